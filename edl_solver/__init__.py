@@ -1,0 +1,49 @@
+"""edl_solver: the full double layer and electrokinetic flow across nanochannels, against the
+thin-layer slip model.
+
+Public API::
+
+    import edl_solver as edl
+    case = edl.Case(geometry=edl.Slit(height="50 nm"),
+                    electrolyte=edl.Electrolyte.from_ions({"K+": "1 mM", "Cl-": "1 mM"}),
+                    wall=edl.Wall(zeta="-50 mV"), field="10 kV/m")
+    result = edl.solve(case)
+    result.summary["eo_ratio"], result.verdict
+"""
+
+from __future__ import annotations
+
+from edl_solver.case import Capillary, Case, Electrolyte, Ion, Numerics, Slit, Wall
+from edl_solver.errors import ConvergenceError, InputError
+from edl_solver.result import Profiles, Result
+from edl_solver.solvent import Solvent, Water
+from edl_solver.solver import solve
+
+__version__ = "0.1.0"
+
+
+def load(path: str) -> Result:
+    """Read a result written by ``Result.to_hdf5``."""
+    from edl_solver import io
+
+    return io.read_result(path)
+
+
+__all__ = [
+    "Capillary",
+    "Case",
+    "ConvergenceError",
+    "Electrolyte",
+    "InputError",
+    "Ion",
+    "Numerics",
+    "Profiles",
+    "Result",
+    "Slit",
+    "Solvent",
+    "Wall",
+    "Water",
+    "__version__",
+    "load",
+    "solve",
+]
