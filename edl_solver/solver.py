@@ -60,8 +60,7 @@ def solve(case: Case) -> Result:
     summary.update(comparison)
     summary.update(_identity_checks(section, problem.kappa2, case))
     summary["error_estimate"] = section.error_estimate
-    for key in [key for key in summary if key.startswith("_")]:
-        del summary[key]
+    summary = {key: _plain(value) for key, value in summary.items() if not key.startswith("_")}
     return Result(
         case=case,
         profiles=profiles,
@@ -73,6 +72,12 @@ def solve(case: Case) -> Result:
         iterations=section.iterations,
         residual=section.residual,
     )
+
+
+def _plain(value: Any) -> Any:
+    """Python floats (and tuples of them) instead of numpy scalars, for a clean summary dict."""
+    # "+ 0.0" turns a negative zero (e.g. the flow of a case with no drive) into a plain zero
+    return tuple(float(v) + 0.0 for v in value) if isinstance(value, tuple) else float(value) + 0.0
 
 
 def _pair(values: tuple[float, float], case: Case) -> Any:
@@ -150,8 +155,11 @@ def _thin_layer_summary(summary: dict[str, Any], profiles: Profiles, units: Scal
     slip = _thin_layer_slip(case)
     thin_per_field = units.section_area * 0.5 * (slip[0] + slip[1])
     full_per_field = summary["_flow_rate_eo_per_field"]
-    error = (thin_per_field - full_per_field) / full_per_field if full_per_field != 0.0 else math.nan
-    eo_ratio = full_per_field / thin_per_field if thin_per_field != 0.0 else math.nan
+    # Between walls of opposite sign either flow may vanish; below round-off of the slip scale the
+    # relative error and the ratio are undefined (NaN) rather than noise.
+    negligible = 1e-10 * units.section_area * max(abs(slip[0]), abs(slip[1]))
+    error = (thin_per_field - full_per_field) / full_per_field if abs(full_per_field) > negligible else math.nan
+    eo_ratio = full_per_field / thin_per_field if abs(thin_per_field) > negligible else math.nan
     return {
         "hs_velocity": _pair(tuple(s * case.field for s in slip), case),
         "eo_ratio": eo_ratio,
@@ -197,10 +205,11 @@ def _identity_checks(section: SectionSolution, kappa2: float, case: Case) -> dic
     balance = abs(net) / wall if wall > 0 else abs(net)
     # Onsager (1931): streaming current per pressure gradient = EO flow rate per field, i.e.
     # int u_eo_hat dV = -kappa2 int rho_hat u_p_hat dV in the dimensionless variables.
+    # Measured against the larger of the two and the wall-potential scale, since both vanish between
+    # walls of opposite sign.
     eo, streaming = i[k.I_UEO], -kappa2 * i[k.I_RHO_UP]
-    reciprocity = abs(eo - streaming) / max(abs(eo), abs(streaming), 1e-300)
-    if eo == 0.0 and streaming == 0.0:
-        reciprocity = 0.0
+    wall_scale = max(abs(i[k.I_PSI_LEFT]), abs(i[k.I_PSI_RIGHT])) * float(np.sum(section.grid.volume))
+    reciprocity = abs(eo - streaming) / max(abs(eo), abs(streaming), wall_scale, 1e-300)
     worst = max(balance, reciprocity)
     if not worst <= IDENTITY_TOLERANCE:
         raise ConvergenceError(f"{case.describe()}: the discrete solution violates charge balance "
