@@ -106,7 +106,7 @@ def _scale(values: np.ndarray, measure: float, n_ions: int) -> np.ndarray:
     floor[k.I_RHO_UEO] = wall_charge * psi_scale
     floor[k.I_RHO_UP] = wall_charge * up_scale
     floor[k.ION_INTEGRALS:k.ION_INTEGRALS + n_ions] = measure
-    return np.maximum(scale, floor)
+    return np.maximum(np.maximum(scale, floor), 1e-300)
 
 
 def solve_section(problem: SectionProblem, accuracy: float, intervals: int | None = None,
