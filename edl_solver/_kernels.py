@@ -1,5 +1,5 @@
-"""Compiled arithmetic on arrays: the Poisson-Boltzmann Newton iteration, the Stokes solve and the
-section integrals on one grid, and the three-grid Richardson driver.
+"""Compiled arithmetic on arrays for one grid: the Poisson-Boltzmann Newton iteration, the Stokes solve
+and the section integrals (nested grids and error control are in _adaptive.py).
 
 Everything here takes only arrays and scalars and knows nothing of cases or units (see grid.py for the
 finite-volume metric and equilibrium.py for the physics these kernels serve). Dimensionless variables:
@@ -294,60 +294,3 @@ def section_integrals(psi, link, volume, kappa2, valence, weight, linear, bc_typ
     rho1, _ = charge(psi[n - 1], valence, weight, linear)
     out[I_FLUX_LEFT] = -link[0] * (psi[1] - psi[0]) - kappa2 * volume[0] * rho0
     out[I_FLUX_RIGHT] = link[n - 2] * (psi[n - 1] - psi[n - 2]) - kappa2 * volume[n - 1] * rho1
-
-
-@njit(cache=True)
-def _prolong(coarse, fine):
-    """Linear interpolation (in grid index) from a grid to the one with every interval halved."""
-    m = coarse.size
-    for i in range(m):
-        fine[2 * i] = coarse[i]
-    for i in range(m - 1):
-        fine[2 * i + 1] = 0.5 * (coarse[i] + coarse[i + 1])
-
-
-@njit(cache=True)
-def richardson_solve(s, beta, metric, kappa2, valence, weight, linear, bc_type, bc_value, centre, flow_type,
-                     flow_value, psi, u_eo, u_p, levels, tol, max_iter, max_step, integrals):
-    """Solve on ``levels`` nested grids (every interval halved from one to the next) and fill
-    ``integrals[level]``; the finest level has the computational nodes ``s``
-    (mapped with ``beta``) and its profiles are returned in psi, u_eo, u_p.
-
-    ``psi`` holds the start guess on the finest grid; the coarsest level starts from its subsample and
-    each finer level from the prolonged coarser solution (nested iteration), so the fine grid needs
-    only one or two Newton steps. ``centre`` is the centre node index on the finest grid.
-
-    Returns status, total Newton iterations, final scaled residual (see ``pb_newton``).
-    """
-    total = 0
-    residual = 0.0
-    start = psi.copy()
-    guess = np.empty(0)
-    for level in range(levels):
-        stride = 2 ** (levels - 1 - level)
-        sl = s[::stride].copy()
-        n = sl.size
-        xl = np.empty(n)
-        link = np.empty(n - 1)
-        volume = np.empty(n)
-        finite_volume_metric(sl, beta, metric, xl, link, volume)
-        if level == 0:
-            p = start[::stride].copy()
-        else:
-            p = np.empty(n)
-            _prolong(guess, p)
-        status, its, residual = pb_newton(p, link, volume, kappa2, valence, weight, linear, bc_type,
-                                          bc_value, tol, max_iter, max_step)
-        total += its
-        if status != 0:
-            return status, total, residual
-        ue = np.empty(n)
-        up = np.empty(n)
-        section_integrals(p, link, volume, kappa2, valence, weight, linear, bc_type, bc_value,
-                          centre // stride, flow_type, flow_value, ue, up, integrals[level])
-        guess = p
-        if level == levels - 1:
-            psi[:] = p
-            u_eo[:] = ue
-            u_p[:] = up
-    return 0, total, residual

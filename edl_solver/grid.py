@@ -27,7 +27,7 @@ from typing import Literal
 
 import numpy as np
 
-from edl_solver import _kernels
+from edl_solver import _adaptive, _kernels
 
 Section = Literal["full", "half"]
 
@@ -66,19 +66,12 @@ class Grid:
         return int(np.argmin(np.abs(self.s)))
 
 
-def stretching(inner_length: float) -> float:
-    """Stretching parameter beta whose first wall cells resolve ``inner_length``.
-
-    Near a wall the map gives a distance d ~ 2 exp(-2 beta) (exp(2 beta t) - 1), t = 1 - s, so the
-    geometric growth starts at d ~ 2 exp(-2 beta); setting that to the smallest physical scale of the
-    layer (units of L) puts the uniform wall cells where the potential is steepest.
-
-    Parameters
-    ----------
-    inner_length : float
-        Smallest length to resolve at the wall, in units of the half-size L (> 0).
-    """
-    return max(0.5 * float(np.log1p(2.0 / inner_length)), 1e-3)
+def from_nodes(s: np.ndarray, beta: float, metric: int) -> Grid:
+    """Grid of the computational nodes ``s`` mapped with stretching ``beta``."""
+    n = s.size
+    x, link, volume = np.empty(n), np.empty(n - 1), np.empty(n)
+    _kernels.finite_volume_metric(s, beta, metric, x, link, volume)
+    return Grid(s=s, x=x, link=link, volume=volume, metric=metric, beta=beta)
 
 
 def build(intervals: int, section: Section, metric: int, inner_length: float) -> Grid:
@@ -94,12 +87,7 @@ def build(intervals: int, section: Section, metric: int, inner_length: float) ->
     metric : int
         0 slit, 1 capillary (a capillary is always a half section, the centre being the axis).
     inner_length : float
-        Smallest length to resolve at the wall, in units of L.
+        Smallest length to resolve at the wall, in units of L (see ``_adaptive.stretching``).
     """
-    beta = stretching(inner_length)
-    start = -1.0 if section == "full" else 0.0
-    s = np.linspace(start, 1.0, intervals * (2 if section == "full" else 1) + 1)
-    n = s.size
-    x, link, volume = np.empty(n), np.empty(n - 1), np.empty(n)
-    _kernels.finite_volume_metric(s, beta, metric, x, link, volume)
-    return Grid(s=s, x=x, link=link, volume=volume, metric=metric, beta=beta)
+    s = _adaptive.computational_nodes(intervals, section == "half")
+    return from_nodes(s, _adaptive.stretching(inner_length), metric)

@@ -14,7 +14,7 @@ import numpy as np
 import pytest
 
 import edl_solver as edl
-from edl_solver import _kernels, equilibrium, grid, scaling
+from edl_solver import _adaptive, _kernels, grid, scaling
 
 SOLVENT = edl.Solvent(temperature=298.15, relative_permittivity=78.4, viscosity=0.89e-3)
 VT = SOLVENT.thermal_voltage
@@ -34,18 +34,20 @@ def make_case(salt: str, geometry: str, kappa_h: float, wall: edl.Wall | tuple, 
                     pressure_gradient=-1e5, **kw)
 
 
-def level_integrals(case: edl.Case, intervals: int, levels: int = 1) -> np.ndarray:
+def level_integrals(case: edl.Case, intervals: int) -> np.ndarray:
     """Raw (unextrapolated) section integrals of the finest of ``levels`` grids."""
     units = scaling.scales(case)
     problem = scaling.section_problem(case, units)
-    inner = equilibrium.inner_length(problem)
+    wall_guess, counter = np.array(problem.wall_potential_guess), np.array(problem.counter_valence)
+    inner = _adaptive.inner_length(problem.kappa2, wall_guess, counter)
     g = grid.build(intervals, "half" if problem.half else "full", problem.metric, inner)
-    psi = equilibrium.initial_guess(problem, g.x)
-    out = np.zeros((levels, _kernels.ION_INTEGRALS + problem.valence.size))
-    status, _, _ = _kernels.richardson_solve(
+    psi = np.empty_like(g.x)
+    _adaptive.gouy_chapman_guess(g.x, problem.kappa2, problem.half, wall_guess, counter, psi)
+    out = np.zeros((_adaptive.LEVELS, _kernels.ION_INTEGRALS + problem.valence.size))
+    status, _, _ = _adaptive.nested_solve(
         g.s, g.beta, problem.metric, problem.kappa2, problem.valence, problem.weight, problem.linear,
-        problem.bc_type, problem.bc_value, g.centre, problem.flow_type, problem.flow_value, psi,
-        np.empty_like(psi), np.empty_like(psi), levels, 1e-12, 200, 5.0, out)
+        problem.bc_type, problem.bc_value, problem.flow_type, problem.flow_value, psi,
+        np.empty_like(psi), np.empty_like(psi), 200, out)
     assert status == 0
     return out[-1]
 
