@@ -47,7 +47,7 @@ from edl_solver.case import Capillary, Case, Electrolyte, Ion, Numerics, Slit, W
 from edl_solver.errors import InputError
 from edl_solver.solvent import Solvent, Water
 
-__all__ = ["CASE_KEYS", "case_from_mapping", "load_case", "read_mapping"]
+__all__ = ["CASE_KEYS", "case_from_mapping", "load_case", "loads_case", "read_mapping"]
 
 T = TypeVar("T")
 
@@ -107,11 +107,6 @@ def read_mapping(path: str | Path) -> dict[str, Any]:
     InputError
         If the file is missing, unreadable, not UTF-8 or not valid TOML (the message names the line).
     """
-    if sys.version_info >= (3, 11):
-        import tomllib
-    else:  # pragma: no cover - exercised on Python 3.10 only
-        import tomli as tomllib
-
     try:
         text = Path(path).read_bytes().decode("utf-8")
     except FileNotFoundError:
@@ -122,10 +117,46 @@ def read_mapping(path: str | Path) -> dict[str, Any]:
         raise InputError(f"{path}: not UTF-8 text (byte {exc.start}), expected a TOML case file") from None
     except OSError as exc:
         raise InputError(f"{path}: cannot read the case file ({exc.strerror or exc})") from None
+    return _parse(text, str(path))
+
+
+def loads_case(text: str, source: str = "") -> Case:
+    """Build a :class:`~edl_solver.case.Case` from the TOML text of a case file.
+
+    Parameters
+    ----------
+    text : str
+        The TOML text (shape in the module docstring).
+    source : str, optional
+        Where the text came from; prefixes every error message when given.
+
+    Returns
+    -------
+    Case
+
+    Raises
+    ------
+    InputError
+        As :func:`load_case`.
+    """
+    return case_from_mapping(_parse(text, source), source)
+
+
+def _parse(text: str, source: str) -> dict[str, Any]:
+    """TOML text -> dict; a syntax error becomes one line with its line and column."""
+    if sys.version_info >= (3, 11):
+        import tomllib
+    else:  # pragma: no cover - exercised on Python 3.10 only
+        import tomli as tomllib
+
     try:
         return tomllib.loads(text)
     except tomllib.TOMLDecodeError as exc:
-        raise InputError(f"{path}: invalid TOML: {exc}") from None
+        prefix = f"{source}: " if source else ""
+        reason = str(exc)
+        if "line " not in reason:  # "(at end of document)": give its line too, as for every other error
+            reason = f"{reason} (line {max(1, len(text.splitlines()))}, the last)"
+        raise InputError(f"{prefix}invalid TOML: {reason}") from None
 
 
 def case_from_mapping(data: Mapping[str, Any], source: str = "") -> Case:
@@ -211,6 +242,9 @@ def _known(table: Mapping[str, Any], keys: tuple[str, ...], path: str) -> None:
 def _hint(key: str, keys: tuple[str, ...], path: str) -> str:
     """' (did you mean 'wall.zeta'?)': a close key of the same table, else the same key elsewhere."""
     close = difflib.get_close_matches(key, keys, n=1, cutoff=0.6)
+    # Shortened or lengthened names ("conc", "zeta_potential") are too far apart for difflib.
+    close = close or [known for known in keys if min(len(key), len(known)) >= 3
+                      and (known.startswith(key) or key.startswith(known))][:1]
     if close:
         suggestion = f"{path}.{close[0]}" if path else close[0]
         return f" (did you mean {suggestion!r}?)"
@@ -284,7 +318,8 @@ def _electrolyte(table: Mapping[str, Any]) -> Electrolyte:
     ions: list[Ion] = []
     listed = table.get("ions")
     if isinstance(listed, Mapping):
-        ions.extend(_build(Ion, {"name": name, "concentration": c}) for name, c in listed.items())
+        ions.extend(_build(Ion, {"name": name, "concentration": c}, rename=("ion:", "electrolyte.ions:"))
+                    for name, c in listed.items())
     elif listed is not None:
         ions.extend(_ion_list(listed, "electrolyte.ions"))
     if "ion" in table:
@@ -305,7 +340,7 @@ def _ion_list(entries: Any, path: str) -> list[Ion]:
                              "(and valence, diffusivity for ions outside the table)")
         if "name" not in entry:
             raise InputError(f"{path}[{i}].name: missing, expected an ion name such as 'K+'")
-        ions.append(_build(Ion, entry))
+        ions.append(_build(Ion, entry, rename=("ion:", f"{path}[{i}].name:")))
     return ions
 
 

@@ -2,7 +2,7 @@
 
 This module is deliberately independent of ``edl_solver`` (it imports nothing from it) so that the
 solver can be tested against something outside the project: published closed forms, and
-high-precision solutions of the nonlinear Poisson–Boltzmann (PB) equation built here with mpmath.
+high-precision solutions of the nonlinear Poisson-Boltzmann (PB) equation built here with mpmath.
 
 Conventions (dimensionless unless the function name ends in ``_si``)
 --------------------------------------------------------------------
@@ -10,7 +10,7 @@ Conventions (dimensionless unless the function name ends in ``_si``)
 * Reduced potential ``psi = z e phi / (k T)``, with ``phi = 0`` in the reservoir.
 * Lengths in Debye lengths ``lambda_D = sqrt(eps k T / (e^2 N_A sum_i z_i^2 c_i))``; ``kappa = 1/lambda_D``.
 * The PB equation then reads ``psi'' = sinh(psi)`` (planar) and
-  ``(1/r)(r psi')' = sinh(psi)`` (cylindrical); its Debye–Hückel (DH) linearisation ``sinh psi -> psi``.
+  ``(1/r)(r psi')' = sinh(psi)`` (cylindrical); its Debye-Hückel (DH) linearisation ``sinh psi -> psi``.
 * Slit: half-height ``h`` (= kappa H / 2), ``x`` measured from the mid-plane, ``0 <= x <= h``.
   Capillary: radius ``a`` (= kappa R), ``r`` from the axis.
 * Reduced wall charge ``sigma_hat = d psi / dn`` at the wall (n: outward normal from the fluid into the
@@ -26,7 +26,7 @@ Precision
 ---------
 Closed forms are evaluated in mpmath at the working precision (default 30 digits).  The nonlinear
 slit reference (:func:`pb_slit`) reaches about 25 significant digits (checked in
-``tests/test_reference_solutions.py`` against mpmath tanh–sinh quadrature, a Jacobi-elliptic closed
+``tests/test_reference_solutions.py`` against mpmath tanh-sinh quadrature, a Jacobi-elliptic closed
 form of the profile, and self-convergence), far below the 1e-6 .. 1e-8 tolerances of the solver tests.
 """
 
@@ -35,7 +35,7 @@ from __future__ import annotations
 import math
 from collections.abc import Sequence
 from dataclasses import dataclass
-from functools import lru_cache
+from functools import cache, lru_cache
 
 import mpmath as mp
 from scipy import constants as _sc
@@ -58,7 +58,7 @@ DEFAULT_NODES: int = 32
 
 
 # ---------------------------------------------------------------------------------------------
-# Gouy–Chapman single wall and Grahame relations
+# Gouy-Chapman single wall and Grahame relations
 # ---------------------------------------------------------------------------------------------
 
 
@@ -87,7 +87,7 @@ def gouy_chapman_potential(distance: Real, zeta: Real) -> mp.mpf:
 
 
 def grahame_charge(zeta: Real) -> mp.mpf:
-    r"""Reduced Gouy–Chapman wall charge of a symmetric z:z electrolyte.
+    r"""Reduced Gouy-Chapman wall charge of a symmetric z:z electrolyte.
 
     .. math:: \hat\sigma = \psi'(0^+) = 2 \sinh(\zeta/2)
 
@@ -113,7 +113,7 @@ def debye_length_si(
     .. math:: \lambda_D = \sqrt{\varepsilon k T / (e^2 N_A \textstyle\sum_i z_i^2 c_i)}
 
     with ``c_i`` in mol/m^3 and ``eps = eps_r eps_0``.  Common practice (definition of the
-    Debye–Hückel screening length; Debye & Hückel 1923, Phys. Z. 24, 185).
+    Debye-Hückel screening length; Debye & Hückel 1923, Phys. Z. 24, 185).
     """
     eps = relative_permittivity * VACUUM_PERMITTIVITY
     ionic = sum(z * z * c for z, c in zip(valences, concentrations, strict=True))
@@ -132,8 +132,9 @@ def grahame_charge_density_si(
     .. math:: \sigma^2 = 2\varepsilon k T N_A \sum_i c_i\left(e^{-z_i e \zeta / kT} - 1\right),
               \qquad \operatorname{sign}\sigma = \operatorname{sign}\zeta
 
-    First integral of the one-dimensional PB equation, ``(eps/2) phi'^2 = kT N_A sum c_i (e^{-z_i e phi/kT} - 1)``,
-    evaluated at the wall.  Source: Grahame (1947), Chem. Rev. 41, 441 (from memory).
+    First integral of the one-dimensional PB equation,
+    ``(eps/2) phi'^2 = kT N_A sum c_i (e^{-z_i e phi/kT} - 1)``, evaluated at the wall.
+    Source: Grahame (1947), Chem. Rev. 41, 441 (from memory).
 
     Parameters
     ----------
@@ -166,7 +167,9 @@ def grahame_zeta_si(
     temperature: float,
     relative_permittivity: float,
 ) -> float:
-    """Wall potential (V) of a single wall of given charge (C/m^2); inverse of :func:`grahame_charge_density_si`.
+    """Wall potential (V) of a single wall of given charge (C/m^2).
+
+    Inverse of :func:`grahame_charge_density_si`.
 
     Solved with Brent's method to a relative tolerance of 1e-15 (the map is monotone).  Source:
     Grahame (1947), Chem. Rev. 41, 441 (from memory).
@@ -187,13 +190,13 @@ def grahame_zeta_si(
 
 
 # ---------------------------------------------------------------------------------------------
-# Debye–Hückel closed forms (dimensionless)
+# Debye-Hückel closed forms (dimensionless)
 # ---------------------------------------------------------------------------------------------
 
 
 @dataclass(frozen=True)
 class LinearChannel:
-    """Dimensionless Debye–Hückel summary of a slit (half-height ``size``) or capillary (radius ``size``).
+    """Dimensionless Debye-Hückel summary of a slit (half-height ``size``) or capillary (radius ``size``).
 
     Attributes
     ----------
@@ -206,7 +209,7 @@ class LinearChannel:
     mean_potential : mpf
         Cross-section mean of the potential.
     eo_ratio : mpf
-        Mean EO velocity divided by the Helmholtz–Smoluchowski velocity, ``1 - mean/zeta``.
+        Mean EO velocity divided by the Helmholtz-Smoluchowski velocity, ``1 - mean/zeta``.
     wall_charge : mpf
         Reduced wall charge ``d psi/dn``.
     streaming : mpf
@@ -223,7 +226,7 @@ class LinearChannel:
 
 
 def dh_slit(h: Real, zeta: Real, dps: int = DEFAULT_DPS) -> LinearChannel:
-    r"""Debye–Hückel slit of half-height ``h`` with both walls at ``zeta``.
+    r"""Debye-Hückel slit of half-height ``h`` with both walls at ``zeta``.
 
     .. math::
         \psi = \zeta \frac{\cosh x}{\cosh h},\quad
@@ -239,7 +242,7 @@ def dh_slit(h: Real, zeta: Real, dps: int = DEFAULT_DPS) -> LinearChannel:
     .. math:: \int_0^h \psi\,(h^2 - x^2)\,dx = \frac{\zeta}{\cosh h}\left(2h\cosh h - 2\sinh h\right)
               = 2\zeta\,(h - \tanh h).
     """
-    with mp.workdps(dps):
+    with mp.workdps(dps + _GUARD_DPS):  # guard digits: h - tanh h cancels for small h
         h, zeta = mp.mpf(h), mp.mpf(zeta)
         th = mp.tanh(h)
         return LinearChannel(
@@ -254,7 +257,7 @@ def dh_slit(h: Real, zeta: Real, dps: int = DEFAULT_DPS) -> LinearChannel:
 
 
 def dh_slit_zeta_from_charge(h: Real, sigma_hat: Real, dps: int = DEFAULT_DPS) -> mp.mpf:
-    r"""Wall potential of a DH slit with reduced wall charge ``sigma_hat``: :math:`\zeta = \hat\sigma/\tanh h`.
+    r"""Wall potential of a DH slit of reduced wall charge: :math:`\zeta = \hat\sigma/\tanh h`.
 
     Source: Burgreen & Nakache (1964), J. Phys. Chem. 68, 1084 (DH limit).
     """
@@ -263,7 +266,7 @@ def dh_slit_zeta_from_charge(h: Real, sigma_hat: Real, dps: int = DEFAULT_DPS) -
 
 
 def dh_capillary(a: Real, zeta: Real, dps: int = DEFAULT_DPS) -> LinearChannel:
-    r"""Debye–Hückel cylindrical capillary of radius ``a`` with wall potential ``zeta``.
+    r"""Debye-Hückel cylindrical capillary of radius ``a`` with wall potential ``zeta``.
 
     .. math::
         \psi = \zeta\frac{I_0(r)}{I_0(a)},\quad
@@ -278,7 +281,7 @@ def dh_capillary(a: Real, zeta: Real, dps: int = DEFAULT_DPS) -> LinearChannel:
 
     .. math:: \int_0^a \psi\,(a^2 - r^2)\,r\,dr = 2\zeta a^2 \frac{I_2(a)}{I_0(a)}.
     """
-    with mp.workdps(dps):
+    with mp.workdps(dps + _GUARD_DPS):  # guard digits: 1 - 2 I1/(a I0) cancels for small a
         a, zeta = mp.mpf(a), mp.mpf(zeta)
         i0, i1, i2 = mp.besseli(0, a), mp.besseli(1, a), mp.besseli(2, a)
         return LinearChannel(
@@ -303,7 +306,7 @@ def dh_capillary_zeta_from_charge(a: Real, sigma_hat: Real, dps: int = DEFAULT_D
 
 
 # ---------------------------------------------------------------------------------------------
-# Nonlinear symmetric slit: first-integral (Burgreen–Nakache) route in mpmath
+# Nonlinear symmetric slit: first-integral (Burgreen-Nakache) route in mpmath
 # ---------------------------------------------------------------------------------------------
 
 
@@ -362,8 +365,11 @@ class SlitPB:
         return self.int_zeta_minus_psi / (self.h * self.zeta)
 
 
-@lru_cache(maxsize=None)
-def _cheb_rule(n: int, dps: int) -> tuple[tuple[mp.mpf, ...], tuple[mp.mpf, ...], tuple[tuple[mp.mpf, ...], ...]]:
+_Vec = tuple[mp.mpf, ...]
+
+
+@cache
+def _cheb_rule(n: int, dps: int) -> tuple[_Vec, _Vec, tuple[_Vec, ...]]:
     """Chebyshev (first-kind) nodes on [-1, 1], Fejér weights and right-cumulative integration matrix.
 
     Returns ``(t, w, m)`` with ascending nodes ``t_j``, ``int_{-1}^{1} f ~ sum_j w_j f_j`` and
@@ -434,7 +440,9 @@ def _panels(psi_m: mp.mpf, delta: mp.mpf) -> tuple[list[_Panel], mp.mpf]:
     return panels, s_c
 
 
-def _nodes(panel: _Panel, psi_m: mp.mpf, delta: mp.mpf, s_c: mp.mpf, n: int, dps: int) -> list[tuple]:
+def _nodes(
+    panel: _Panel, psi_m: mp.mpf, delta: mp.mpf, s_c: mp.mpf, n: int, dps: int
+) -> list[tuple[mp.mpf, mp.mpf, mp.mpf]]:
     """Per node: ``(d, zeta_minus_psi, dx/dv)`` with ``d = psi - psi_m``, all free of cancellation."""
     t, _, _ = _cheb_rule(n, dps)
     half = (panel.b - panel.a) / 2
@@ -448,13 +456,16 @@ def _nodes(panel: _Panel, psi_m: mp.mpf, delta: mp.mpf, s_c: mp.mpf, n: int, dps
             dpsi_dv = psi_m * mp.sinh(v)
             # (s_c - s) splits into (panel end -> s_c) + (node -> panel end).
             gap = (s_c - panel.b) + to_end
-            zmp = (delta - (delta if delta < 1 else mp.mpf(1))) + 2 * psi_m * mp.sinh(gap / 2) * mp.sinh(
-                (s_c + v) / 2
-            )
+            # zeta - psi = (delta - d_c) + (d_c - d), d_c - d = 2 psi_m sinh((s_c - s)/2) sinh((s_c + s)/2).
+            d_c = min(delta, mp.mpf(1))
+            zmp = (delta - d_c) + 2 * psi_m * mp.sinh(gap / 2) * mp.sinh((s_c + v) / 2)
         else:
             d = v - psi_m
             dpsi_dv = mp.mpf(1)
             zmp = (psi_m + delta - panel.b) + to_end
+        if d == 0:  # mid-plane: limit of psi_m sinh s / g as s -> 0
+            out.append((d, zmp, mp.sqrt(psi_m / (2 * mp.sinh(psi_m)))))
+            continue
         g = 2 * mp.sqrt(mp.sinh(psi_m + d / 2) * mp.sinh(d / 2))  # sqrt(2 (cosh psi - cosh psi_m))
         out.append((d, zmp, dpsi_dv / g))
     return out
@@ -467,7 +478,7 @@ def _half_height(psi_m: mp.mpf, delta: mp.mpf, n: int, dps: int) -> mp.mpf:
     total = mp.mpf(0)
     for p in panels:
         nodes = _nodes(p, psi_m, delta, s_c, n, dps)
-        total += (p.b - p.a) / 2 * mp.fsum(wi * node[2] for wi, node in zip(w, nodes))
+        total += (p.b - p.a) / 2 * mp.fsum(wi * node[2] for wi, node in zip(w, nodes, strict=True))
     return total
 
 
@@ -481,14 +492,14 @@ def _integrals(psi_m: mp.mpf, delta: mp.mpf, n: int, dps: int) -> dict[str, mp.m
         half = (p.b - p.a) / 2
         dxdv = [node[2] for node in nodes]
         # Distance from the node to the end of its panel, measured in x.
-        to_panel_end = [half * mp.fsum(m_ji * f for m_ji, f in zip(row, dxdv)) for row in cum]
-        length = half * mp.fsum(wi * f for wi, f in zip(w, dxdv))
+        to_panel_end = [half * mp.fsum(m_ji * f for m_ji, f in zip(row, dxdv, strict=True)) for row in cum]
+        length = half * mp.fsum(wi * f for wi, f in zip(w, dxdv, strict=True))
         per_panel.append((p, nodes, half, to_panel_end, length))
     h_total = mp.fsum(item[4] for item in per_panel)
     sums = {k: [] for k in ("h", "psi", "zmp", "cosh", "cm1", "sinh", "stream")}
     beyond = mp.mpf(0)  # x-distance from the end of the current panel to the wall
-    for p, nodes, half, to_panel_end, length in reversed(per_panel):
-        for wi, (d, zmp, f), tail in zip(w, nodes, to_panel_end):
+    for _, nodes, half, to_panel_end, length in reversed(per_panel):
+        for wi, (d, zmp, f), tail in zip(w, nodes, to_panel_end, strict=True):
             weight = half * wi * f
             psi = psi_m + d
             sh = mp.sinh(psi)
@@ -591,7 +602,7 @@ def _pb_slit_cached(zeta: mp.mpf, h: mp.mpf, dps: int, n: int) -> SlitPB:
         def residual(p: mp.mpf) -> mp.mpf:
             return mp.log(_half_height(z / (1 + mp.exp(p)), z / (1 + mp.exp(-p)), n, wdps)) - log_h
 
-        # Initial guess from the asymptotes: two superposed Gouy–Chapman tails (wide) or
+        # Initial guess from the asymptotes: two superposed Gouy-Chapman tails (wide) or
         # psi ~ psi_m + sinh(psi_m) x^2 / 2 (narrow).
         wide = 8 * mp.tanh(z / 4) * mp.exp(-h)
         narrow = mp.sinh(z) * h**2 / 2
@@ -655,7 +666,7 @@ def _pb_slit_charge_cached(sigma: mp.mpf, h: mp.mpf, dps: int, n: int) -> SlitPB
             # cosh zeta - cosh psi_m = s^2/2  <=>  2 sinh(psi_m + delta/2) sinh(delta/2) = s^2/2.
             zeta = mp.acosh(mp.cosh(psi_m) + s * s / 2)
             delta = zeta - psi_m
-            # One Newton polish of delta on the cancellation-free form.
+            # Newton polish of delta on the cancellation-free form.
             for _ in range(3):
                 f = 2 * mp.sinh(psi_m + delta / 2) * mp.sinh(delta / 2) - s * s / 2
                 df = mp.sinh(psi_m + delta)
@@ -712,7 +723,7 @@ def pb_slit_profile(ref: SlitPB, x: Real, dps: int = DEFAULT_DPS, nodes: int = D
 
     Inverts :math:`x(\psi) = \int_{\psi_m}^{\psi} d\psi' / \sqrt{2(\cosh\psi' - \cosh\psi_m)}`
     (Burgreen & Nakache 1964) by Newton's method on the panel variable, with ``dx/dv`` as derivative
-    and a fresh Chebyshev–Fejér rule on each partial panel.
+    and a fresh Chebyshev-Fejér rule on each partial panel.
 
     Parameters
     ----------
@@ -744,7 +755,7 @@ def pb_slit_profile(ref: SlitPB, x: Real, dps: int = DEFAULT_DPS, nodes: int = D
         def partial(p: _Panel, b: mp.mpf) -> mp.mpf:
             sub = _Panel(p.kind, p.a, b)
             vals = _nodes(sub, psi_m, delta, s_c, nodes, wdps)
-            return (b - p.a) / 2 * mp.fsum(wi * v[2] for wi, v in zip(w, vals))
+            return (b - p.a) / 2 * mp.fsum(wi * v[2] for wi, v in zip(w, vals, strict=True))
 
         def rate(p: _Panel, v: mp.mpf) -> tuple[mp.mpf, mp.mpf]:
             node = _nodes(_Panel(p.kind, v, v), psi_m, delta, s_c, 1, wdps)[0]
@@ -784,13 +795,15 @@ def elliptic_slit_profile(psi_m: Real, x: Real, dps: int = DEFAULT_DPS) -> mp.mp
 
     With ``q = e^psi`` the first integral becomes ``q'^2 = q (q - e^{psi_m})(q - e^{-psi_m})``, solved by
 
-    .. math:: \psi(x) = \psi_m - 2\ln \operatorname{cd}\!\left(\tfrac12 e^{\psi_m/2} x \,\middle|\, m = e^{-2\psi_m}\right)
+    .. math:: \psi(x) = \psi_m
+              - 2\ln \operatorname{cd}\!\left(\tfrac12 e^{\psi_m/2} x \,\middle|\, m = e^{-2\psi_m}\right)
 
     for ``psi_m > 0`` (derived here; cf. the elliptic-function solutions of the slit PB equation in
     Verwey & Overbeek 1948, *Theory of the Stability of Lyophobic Colloids*, ch. IV (from memory)).
-    Usable while ``1 - m`` is representable, i.e. not for very wide channels.
+    Usable while ``1 - m`` is representable, i.e. not for very wide channels.  Evaluated at
+    ``max(dps, mp.dps) + 15`` digits so that it can be differentiated numerically with ``mp.diff``.
     """
-    with mp.workdps(dps + _GUARD_DPS):
+    with mp.workdps(max(dps, mp.mp.dps) + _GUARD_DPS):
         psi_m, x = mp.mpf(psi_m), mp.mpf(x)
         cd = mp.ellipfun("cd", mp.exp(psi_m / 2) * x / 2, m=mp.exp(-2 * psi_m))
         return +(psi_m - 2 * mp.log(cd))
@@ -819,7 +832,8 @@ def symmetric_slit_summary_si(
     * ``wall_charge_density = sigma_hat eps phi_T / lambda``;
     * ``mean_velocity_eo = -(eps E / eta) phi_T int (zeta - psi) dx / h``; ``flow_rate_eo = H`` times it;
     * ``flow_rate_pressure = -G H^3 / (12 eta)`` (plane Poiseuille flow; common practice);
-    * ``conduction_current = E (e^2 N_A / kT) z^2 c 2 lambda [(D_+ + D_-) int cosh psi + (D_- - D_+) int sinh psi]``
+    * ``conduction_current = E (e^2 N_A / kT) z^2 c 2 lambda``
+      ``* [(D_+ + D_-) int cosh psi + (D_- - D_+) int sinh psi]``
       from ``c_+ = c e^{-psi}``, ``c_- = c e^{psi}``;
     * ``streaming_current = int rho_e u_p dy = (eps phi_T G lambda / eta) int sinh psi (h^2 - x^2) dx``,
       from ``rho_e = -2 z e N_A c sinh psi = -(eps phi_T / lambda^2) sinh psi`` and
@@ -854,7 +868,8 @@ def symmetric_slit_summary_si(
     mean_u = -eps * field / viscosity * phi_t * float(ref.int_zeta_minus_psi) / h
     d_plus, d_minus = diffusivities
     ions = (d_plus + d_minus) * float(ref.int_cosh) + (d_minus - d_plus) * float(ref.int_sinh)
-    conduction = field * ELEMENTARY_CHARGE**2 * AVOGADRO / (BOLTZMANN * temperature) * z * z * c * 2 * lam * ions
+    mobility_factor = ELEMENTARY_CHARGE**2 * AVOGADRO / (BOLTZMANN * temperature)  # Nernst-Einstein
+    conduction = field * mobility_factor * z * z * c * 2 * lam * ions
     return {
         "debye_length": lam,
         "zeta": zeta,
@@ -881,7 +896,7 @@ def dh_summary_si(
     field: float,
     pressure_gradient: float,
 ) -> dict[str, float]:
-    r"""SI summary of the Debye–Hückel slit (``size`` = full height H) or capillary (``size`` = radius).
+    r"""SI summary of the Debye-Hückel slit (``size`` = full height H) or capillary (``size`` = radius).
 
     In DH the charge density is ``rho_e = -eps phi / lambda^2`` for any electrolyte, so the potential
     scales with ``zeta`` (V) directly.  Closed forms: Burgreen & Nakache (1964) (slit), Rice &

