@@ -13,20 +13,35 @@ Public API::
 
 from __future__ import annotations
 
+import os
+from typing import TYPE_CHECKING, Any
+
 from edl_solver.case import Capillary, Case, Electrolyte, Ion, Numerics, Slit, Wall
 from edl_solver.errors import ConvergenceError, InputError
 from edl_solver.result import Profiles, Result
 from edl_solver.solvent import Solvent, Water
-from edl_solver.solver import solve
+
+if TYPE_CHECKING:
+    from edl_solver.solver import solve
 
 __version__ = "0.1.0"
 
 
-def load(path: str) -> Result:
+def load(path: str | os.PathLike[str]) -> Result:
     """Read a result written by ``Result.to_hdf5``."""
     from edl_solver import io
 
     return io.read_result(path)
+
+
+def __getattr__(name: str) -> Any:
+    # The solver pulls in numba and scipy (~0.5 s); it is loaded on first use so that the command line
+    # and the input checks start fast.
+    if name == "solve":
+        from edl_solver.solver import solve
+
+        return solve
+    raise AttributeError(f"module 'edl_solver' has no attribute {name!r}")
 
 
 __all__ = [

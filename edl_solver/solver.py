@@ -9,7 +9,7 @@ from typing import Any
 import numpy as np
 
 from edl_solver import _kernels as k
-from edl_solver import equilibrium, flow, scaling, thin_layer, transport
+from edl_solver import equilibrium, flow, scaling, thin_layer, transport, validity
 from edl_solver.case import Capillary, Case
 from edl_solver.constants import AVOGADRO, ELEMENTARY_CHARGE
 from edl_solver.equilibrium import SectionSolution
@@ -71,6 +71,7 @@ def solve(case: Case) -> Result:
                 f"finest grid, estimated relative error {section.error_estimate:.1g}",
         iterations=section.iterations,
         residual=section.residual,
+        warnings=validity.notes(case, profiles, units.thermal_voltage),
     )
 
 

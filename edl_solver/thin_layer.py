@@ -69,8 +69,8 @@ def slip_velocity(zeta: float, solvent: Solvent, field: float) -> float:
 def verdict(error: float, tolerance: float, quantity: str = "EO flow rate") -> str:
     """Plain-words verdict on the thin-layer model from its relative error (thin - full) / full."""
     if not math.isfinite(error):
-        return (f"the full {quantity} vanishes here (walls of opposite sign): the relative error of "
-                "the thin-layer model is undefined; compare the profiles")
+        return (f"the full {quantity} vanishes here (uncharged walls, or walls of opposite sign): the "
+                "relative error of the thin-layer model is undefined; compare the profiles")
     percent = abs(error) * 100.0
     amount = f"{percent:.2g} %" if percent < 10 else f"{percent:.0f} %"
     limit = f"{tolerance * 100:g} %"

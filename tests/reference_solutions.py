@@ -113,7 +113,7 @@ def debye_length_si(
     .. math:: \lambda_D = \sqrt{\varepsilon k T / (e^2 N_A \textstyle\sum_i z_i^2 c_i)}
 
     with ``c_i`` in mol/m^3 and ``eps = eps_r eps_0``.  Common practice (definition of the
-    Debye-Hückel screening length; Debye & Hückel 1923, Phys. Z. 24, 185).
+    Debye-Hückel screening length; Debye & Hückel 1923, Phys. Z. 24, 185 (from memory)).
     """
     eps = relative_permittivity * VACUUM_PERMITTIVITY
     ionic = sum(z * z * c for z, c in zip(valences, concentrations, strict=True))
@@ -375,7 +375,7 @@ def _cheb_rule(n: int, dps: int) -> tuple[_Vec, _Vec, tuple[_Vec, ...]]:
     Returns ``(t, w, m)`` with ascending nodes ``t_j``, ``int_{-1}^{1} f ~ sum_j w_j f_j`` and
     ``int_{t_j}^{1} f ~ sum_i m[j][i] f_i``, both exact for polynomials of degree ``< n``
     (integration of the Chebyshev interpolant; common practice, cf. Trefethen, *Approximation Theory
-    and Approximation Practice*, 2013).
+    and Approximation Practice*, 2013 (from memory)).
     """
     with mp.workdps(dps):
         phi = [mp.pi - (2 * j + 1) * mp.pi / (2 * n) for j in range(n)]  # ascending t = cos(phi)

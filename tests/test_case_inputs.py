@@ -99,7 +99,7 @@ def test_any_positive_height_round_trips(height: float) -> None:
 
 @given(st.floats(allow_nan=True, allow_infinity=True).filter(lambda v: not v > 0 or v != v or v == float("inf")))
 def test_non_positive_or_non_finite_sizes_are_rejected(value: float) -> None:
-    with pytest.raises(edl.InputError, match="geometry.height"):
+    with pytest.raises(edl.InputError, match=r"geometry\.height"):
         edl.Slit(height=value)
 
 

@@ -405,9 +405,9 @@ def make_wall(spec):
 
 @pytest.mark.parametrize("kind,salt,wall,model", RECIPROCITY_CASES)
 def test_onsager_reciprocity(kind: str, salt: str, wall, model: str) -> None:
-    # Onsager (1931), Phys. Rev. 37, 405: streaming current per pressure gradient equals EO flow per field,
-    # I_s / (-dp/dx) = Q_EO / E.  For the slit, integrating Poisson by parts gives both sides as
-    # -(eps/eta) int (zeta_mean - phi) dy for any electrolyte and any pair of walls.
+    # Onsager (1931), Phys. Rev. 37, 405 (from memory): streaming current per pressure gradient equals EO
+    # flow per field, I_s / (-dp/dx) = Q_EO / E.  For the slit, integrating Poisson by parts gives both
+    # sides as -(eps/eta) int (zeta_mean - phi) dy for any electrolyte and any pair of walls.
     c = 10.0
     lam = debye(salt, c)
     geometry = edl.Slit(height=6 * lam) if kind == "slit" else edl.Capillary(radius=3 * lam)

@@ -73,7 +73,8 @@ def test_percent_is_rejected_for_a_length() -> None:
         to_si("5 %", "m", "height")
 
 
-@pytest.mark.parametrize("text", ["fifty mV", "mV", "", "   ", "50 furlongz", "5 m 3", "1/0 mV", "(mV", "1 (mV", "1 mV)", "1 m**m"])
+@pytest.mark.parametrize(
+    "text", ["fifty mV", "mV", "", "   ", "50 furlongz", "5 m 3", "1/0 mV", "(mV", "1 (mV", "1 mV)", "1 m**m"])
 def test_unparsable_strings(text: str) -> None:
     with pytest.raises(InputError, match=r"^zeta: .* is not a quantity with units, "
                                          r"expected an electric potential in V$"):
