@@ -23,6 +23,7 @@ from edl_solver.solvent import Solvent, Water
 
 if TYPE_CHECKING:
     from edl_solver.solver import solve
+    from edl_solver.sweeps import sweep
 
 __version__ = "0.1.0"
 
@@ -41,6 +42,10 @@ def __getattr__(name: str) -> Any:
         from edl_solver.solver import solve
 
         return solve
+    if name == "sweep":
+        from edl_solver.sweeps import sweep
+
+        return sweep
     raise AttributeError(f"module 'edl_solver' has no attribute {name!r}")
 
 
@@ -61,4 +66,5 @@ __all__ = [
     "__version__",
     "load",
     "solve",
+    "sweep",
 ]

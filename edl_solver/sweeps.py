@@ -1,0 +1,463 @@
+"""Design-space sweeps: many cases from a base case and axes over its inputs, into one xarray Dataset.
+
+An axis is a dotted path of a case input (the keys of a TOML case file, ``casefile.CASE_KEYS``: e.g.
+"geometry.height", "wall.zeta", "wall.top.charge_density", "solvent.temperature", "field") plus the
+special path "electrolyte.concentration", which scales every ion's bulk concentration so that the first
+ion's equals the value (the salt concentration for a single salt listed cation first). The cases are the
+cartesian product of the axes in the given order; axes can also be zipped (varied together along one
+dimension, named after the first of them).
+
+Each case is solved exactly as ``edl_solver.solve`` solves it, so a sweep's values equal single solves.
+A case that does not converge is marked (``status`` 1 and its ``message``) and the sweep carries on.
+With a ``path`` the results stream to disk row by row (a row is one line along the last axis): the file
+is built under ``<path>.partial`` and renamed when complete, so a killed sweep keeps what it finished and
+``resume=True`` finishes it, with a result identical to an uninterrupted run.
+"""
+
+from __future__ import annotations
+
+import difflib
+import json
+import os
+from collections.abc import Iterable, Mapping, Sequence
+from dataclasses import dataclass
+from pathlib import Path
+from typing import Any
+
+import numpy as np
+
+from edl_solver.case import Capillary, Case
+from edl_solver.errors import ConvergenceError, InputError
+from edl_solver.result import SUMMARY_UNITS, summary_unit
+
+#: Status codes stored per case.
+PENDING, CONVERGED, FAILED = -1, 0, 1
+
+#: Paths that are not keys of a case file but are understood by sweeps.
+SPECIAL_PATHS = ("electrolyte.concentration",)
+
+#: SI unit of each sweepable path (for parsing values with units and for the file's attributes).
+PATH_UNITS = {
+    "geometry.height": "m", "geometry.radius": "m",
+    "electrolyte.concentration": "mol/m^3",
+    "wall.zeta": "V", "wall.charge_density": "C/m^2",
+    "wall.bottom.zeta": "V", "wall.bottom.charge_density": "C/m^2",
+    "wall.top.zeta": "V", "wall.top.charge_density": "C/m^2",
+    "solvent.temperature": "K", "solvent.relative_permittivity": "dimensionless", "solvent.viscosity": "Pa*s",
+    "field": "V/m", "pressure_gradient": "Pa/m", "tolerance": "dimensionless",
+    "numerics.accuracy": "dimensionless",
+}
+#: Paths whose values are words, not numbers.
+WORD_PATHS = ("model",)
+
+
+@dataclass(frozen=True)
+class Axis:
+    """One dimension of a sweep: its name (the first path) and the paths varied along it."""
+
+    name: str
+    paths: tuple[str, ...]
+    values: tuple[tuple[Any, ...], ...]  # per path, its values (same length for zipped paths)
+
+    @property
+    def size(self) -> int:
+        return len(self.values[0])
+
+
+def _check_path(path: str) -> str:
+    known = tuple(PATH_UNITS) + WORD_PATHS
+    if path not in known:
+        close = difflib.get_close_matches(path, known, n=1, cutoff=0.6)
+        hint = f" (did you mean {close[0]!r}?)" if close else f" (sweepable inputs: {', '.join(known)})"
+        raise InputError(f"axes: {path!r} is not a sweepable input{hint}")
+    return path
+
+
+def _axis_values(path: str, values: Any) -> tuple[Any, ...]:
+    """The values of one axis as SI floats (or words), checked."""
+    from edl_solver.units import to_si
+
+    if isinstance(values, (str, bytes)) or not isinstance(values, Iterable):
+        raise InputError(f"axes.{path}: {values!r} is not a list of values, expected a sequence")
+    items = list(values)
+    if not items:
+        raise InputError(f"axes.{path}: the list of values is empty, expected at least one value")
+    if path in WORD_PATHS:
+        return tuple(str(v) for v in items)
+    return tuple(to_si(v, PATH_UNITS[path], f"axes.{path}") for v in items)
+
+
+def make_axes(axes: Mapping[str, Any], zipped: Sequence[Sequence[str]] = ()) -> tuple[Axis, ...]:
+    """Axes in the given order; paths named together in ``zipped`` share one dimension.
+
+    Raises
+    ------
+    InputError
+        Unknown path, empty or non-list values, zipped paths of different lengths or not in ``axes``.
+    """
+    if not isinstance(axes, Mapping) or not axes:
+        raise InputError(f"axes: {axes!r} is not a mapping of input paths to values, expected e.g. "
+                         "{'geometry.height': [...]}")
+    values = {_check_path(path): _axis_values(path, v) for path, v in axes.items()}
+    group_of: dict[str, tuple[str, ...]] = {}
+    for group in zipped:
+        group = tuple(group)
+        for path in group:
+            if path not in values:
+                raise InputError(f"zip: {path!r} is not one of the axes, expected one of {', '.join(values)}")
+            if path in group_of:
+                raise InputError(f"zip: {path!r} is zipped twice, expected each axis in at most one group")
+            group_of[path] = group
+        lengths = {len(values[p]) for p in group}
+        if len(lengths) > 1:
+            shown = ", ".join(f"{p} has {len(values[p])}" for p in group)
+            raise InputError(f"zip: zipped axes must have equal lengths, but {shown}")
+    result, seen = [], set()
+    for path in values:
+        if path in seen:
+            continue
+        group = group_of.get(path, (path,))
+        seen.update(group)
+        result.append(Axis(name=group[0], paths=group, values=tuple(values[p] for p in group)))
+    return tuple(result)
+
+
+def _set_path(table: dict[str, Any], path: str, value: Any) -> None:
+    """Set one input in the plain-dict form of a case (``io.case_to_dict``)."""
+    if path == "electrolyte.concentration":
+        ions = table["electrolyte"]["ions"]
+        factor = value / ions[0]["concentration"]
+        for ion in ions:
+            ion["concentration"] *= factor
+        return
+    if path in ("wall.zeta", "wall.charge_density"):
+        walls = [table["wall"]["bottom"], table["wall"]["top"]] if "bottom" in table["wall"] else [table["wall"]]
+        for wall in walls:
+            wall.clear()
+            wall[path.split(".")[1]] = value
+        return
+    if path.startswith(("wall.bottom.", "wall.top.")):
+        wall = table["wall"]
+        if "bottom" not in wall:  # one condition for both walls becomes a pair
+            table["wall"] = wall = {"bottom": dict(wall), "top": dict(wall)}
+        side = wall[path.split(".")[1]]
+        side.clear()
+        side[path.split(".")[2]] = value
+        return
+    if path == "solvent.temperature" and table["solvent"].get("name") == "water":
+        # water's permittivity and viscosity follow the temperature (its correlations)
+        table["solvent"] = {"temperature": value, "name": "water"}
+        return
+    node = table
+    *parents, leaf = path.split(".")
+    for key in parents:
+        node = node[key]
+    node[leaf] = value
+
+
+def case_at(base_table: Mapping[str, Any], axes: Sequence[Axis], index: Sequence[int]) -> Case:
+    """The case at one multi-index of the sweep."""
+    from edl_solver.casefile import case_from_mapping
+
+    table = json.loads(json.dumps(base_table))  # a deep copy of plain data
+    for axis, i in zip(axes, index):
+        for path, values in zip(axis.paths, axis.values):
+            _set_path(table, path, values[i])
+    return case_from_mapping(table)
+
+
+def _summary_layout(capillary: bool) -> dict[str, tuple[str, str]]:
+    """Units and long names of every summary key for this geometry."""
+    return {key: (summary_unit(key, capillary), text) for key, (_, text) in SUMMARY_UNITS.items()}
+
+
+def solve_rows(base_table: Mapping[str, Any], axes: Sequence[Axis], rows: Sequence[int]) -> dict[str, Any]:
+    """Solve the cases of some rows (lines along the last axis); a module-level function so that worker
+    processes and Dask workers can run it.
+
+    Returns
+    -------
+    dict
+        ``rows`` and, per summary key, an array (rows, last axis[, 2]); ``status`` and ``message``.
+    """
+    from edl_solver.solver import solve
+
+    shape = tuple(axis.size for axis in axes)
+    last = shape[-1]
+    keys = list(SUMMARY_UNITS)
+    out: dict[str, Any] = {"rows": list(rows), "status": np.full((len(rows), last), FAILED, dtype=np.int8),
+                           "message": [["" for _ in range(last)] for _ in rows]}
+    values = {key: np.full((len(rows), last, 2), np.nan) for key in keys}
+    for r, row in enumerate(rows):
+        lead = np.unravel_index(row, shape[:-1]) if len(shape) > 1 else ()
+        for j in range(last):
+            index = (*lead, j)
+            try:
+                result = solve(case_at(base_table, axes, index))
+            except (ConvergenceError, InputError) as error:
+                out["message"][r][j] = str(error)
+                continue
+            out["status"][r, j] = CONVERGED
+            for key in keys:
+                value = result.summary[key]
+                values[key][r, j] = value if isinstance(value, tuple) else (value, value)
+    out.update(values)
+    return out
+
+
+def _rows_todo(status: np.ndarray) -> list[int]:
+    flat = status.reshape(-1, status.shape[-1])
+    return [int(i) for i in np.nonzero(np.any(flat == PENDING, axis=1))[0]]
+
+
+class _Store:
+    """The sweep's results: in memory, or streamed row by row to a netCDF-4 file (h5netcdf)."""
+
+    def __init__(self, spec: dict[str, Any], axes: Sequence[Axis], capillary: bool, pair: bool,
+                 path: Path | None, resume: bool):
+        self.axes, self.spec, self.capillary, self.pair = axes, spec, capillary, pair
+        self.shape = tuple(axis.size for axis in axes)
+        self.layout = _summary_layout(capillary)
+        self.path = path
+        self.file = None
+        if path is None:
+            self.status = np.full(self.shape, PENDING, dtype=np.int8)
+            self.message = np.full(self.shape, "", dtype=object)
+            self.values = {key: np.full((*self.shape, 2), np.nan) for key in self.layout}
+            return
+        import h5netcdf
+
+        partial = path.with_name(path.name + ".partial")
+        if resume and partial.exists():
+            self.file = h5netcdf.File(partial, "a")
+            if self.file.attrs.get("sweep_json") != json.dumps(spec, sort_keys=True):
+                self.file.close()
+                raise InputError(f"resume: {partial} belongs to a different sweep, expected the same base case "
+                                 "and axes (delete it to start afresh)")
+        else:
+            if not path.parent.is_dir():
+                raise InputError(f"output: {str(path)!r} is in a folder that does not exist")
+            self.file = h5netcdf.File(partial, "w")
+            self._create()
+        self.partial = partial
+        self.status = self.file.variables["status"][...]
+
+    def _create(self) -> None:
+        from edl_solver import __version__
+
+        import h5py
+
+        f = self.file
+        text = h5py.string_dtype()
+        dims = tuple(axis.name for axis in self.axes)
+        f.dimensions = {**{axis.name: axis.size for axis in self.axes}, "wall": 2}
+        for axis in self.axes:
+            for path, values in zip(axis.paths, axis.values):
+                data = np.array(values, dtype=object if path in WORD_PATHS else float)
+                var = f.create_variable(path, (axis.name,), text if path in WORD_PATHS else float, data=data)
+                var.attrs["units"] = PATH_UNITS.get(path, "1")
+                var.attrs["long_name"] = f"swept input {path}"
+        f.create_variable("wall", ("wall",), text, data=np.array(["bottom", "top"], dtype=object))
+        chunks = (*((1,) * (len(dims) - 1)), self.shape[-1])
+        status = f.create_variable("status", dims, np.int8, fillvalue=np.int8(PENDING), chunks=chunks)
+        status[...] = np.full(self.shape, PENDING, dtype=np.int8)
+        status.attrs["long_name"] = "0 converged, 1 failed (see message), -1 not computed yet"
+        status.attrs["units"] = "1"
+        msg = f.create_variable("message", dims, text, chunks=chunks)
+        msg.attrs["long_name"] = "why a case failed (empty when it converged)"
+        for key, (unit, text) in self.layout.items():
+            var_dims = (*dims, "wall") if key in PAIR_KEYS and self.pair else dims
+            var = f.create_variable(key, var_dims, float, fillvalue=np.nan,
+                                    chunks=(*chunks, 2) if len(var_dims) > len(dims) else chunks,
+                                    compression="gzip", shuffle=True)
+            var.attrs["units"] = unit
+            var.attrs["long_name"] = text
+        f.attrs["sweep_json"] = json.dumps(self.spec, sort_keys=True)
+        f.attrs["schema_version"] = "1"
+        f.attrs["edl_solver_version"] = __version__
+        f.attrs["title"] = "edl_solver sweep"
+        f.flush()
+
+    def write(self, part: dict[str, Any]) -> None:
+        for r, row in enumerate(part["rows"]):
+            lead = tuple(int(i) for i in np.unravel_index(row, self.shape[:-1])) if len(self.shape) > 1 else ()
+            if self.file is None:
+                self.status[lead] = part["status"][r]
+                self.message[lead] = part["message"][r]
+                for key in self.layout:
+                    self.values[key][lead] = part[key][r]
+                continue
+            for key in self.layout:
+                var = self.file.variables[key]
+                var[lead] = part[key][r] if var.ndim > len(self.shape) else part[key][r][..., 0]
+            self.file.variables["message"][lead] = np.array(part["message"][r], dtype=object)
+            self.file.variables["status"][lead] = part["status"][r]  # last: marks the row done
+            self.status[lead] = part["status"][r]
+        if self.file is not None:
+            self.file.flush()
+
+    def finish(self) -> Any:
+        import xarray as xr
+
+        if self.file is not None:
+            self.file.close()
+            os.replace(self.partial, self.path)
+            return xr.load_dataset(self.path, engine="h5netcdf")
+        dims = tuple(axis.name for axis in self.axes)
+        coords: dict[str, Any] = {}
+        for axis in self.axes:
+            for path, values in zip(axis.paths, axis.values):
+                coords[path] = ((axis.name,), np.array(values), {"units": PATH_UNITS.get(path, "1"),
+                                                                  "long_name": f"swept input {path}"})
+        data: dict[str, Any] = {
+            "status": (dims, self.status, {"units": "1", "long_name": "0 converged, 1 failed (see message)"}),
+            "message": (dims, self.message.astype(str), {"long_name": "why a case failed (empty when it converged)"}),
+        }
+        if self.pair:
+            coords["wall"] = (("wall",), np.array(["bottom", "top"]))
+        for key, (unit, text) in self.layout.items():
+            if key in PAIR_KEYS and self.pair:
+                data[key] = ((*dims, "wall"), self.values[key], {"units": unit, "long_name": text})
+            else:
+                data[key] = (dims, self.values[key][..., 0], {"units": unit, "long_name": text})
+        return xr.Dataset(data, coords=coords, attrs={"title": "edl_solver sweep"})
+
+    def abandon(self) -> None:
+        if self.file is not None:
+            self.file.close()
+
+
+#: Summary keys that are (bottom, top) pairs for a slit with two different walls.
+PAIR_KEYS = ("zeta", "wall_charge_density", "hs_velocity", "thin_layer_zeta")
+
+
+def sweep(base: Case, axes: Mapping[str, Any], *, zipped: Sequence[Sequence[str]] = (),
+          path: str | os.PathLike[str] | None = None, resume: bool = False, workers: int = 1,
+          dask: Any = None, rows_per_task: int | None = None, progress: bool | None = None) -> Any:
+    """Solve every case of a design space and return the summaries as an ``xarray.Dataset``.
+
+    Parameters
+    ----------
+    base : Case
+        The case every point starts from.
+    axes : mapping of str to sequence
+        Dotted input path -> values (SI numbers or strings with units), e.g.
+        ``{"geometry.height": [...], "wall.zeta": [...]}``; one dimension per axis, in this order.
+    zipped : sequence of sequences of str
+        Groups of axis paths varied together along one dimension (named after the group's first path).
+    path : str or Path, optional
+        HDF5 (netCDF-4) file to stream the results to; opened by ``xarray.open_dataset(path,
+        engine="h5netcdf")``. Built as ``<path>.partial`` and renamed when complete.
+    resume : bool
+        Finish the sweep of an interrupted ``<path>.partial`` instead of starting afresh.
+    workers : int
+        Local worker processes (1: in this process).
+    dask : str or distributed.Client, optional
+        A Dask distributed scheduler address or client; rows are sent to it in tasks and the results
+        gathered and written here.
+    rows_per_task : int, optional
+        Rows (lines along the last axis) per task; by default about 1,000 cases per task.
+    progress : bool, optional
+        Show a progress bar (tqdm); by default only when attached to a terminal.
+
+    Returns
+    -------
+    xarray.Dataset
+        One dimension per axis; every ``result.summary`` key as a variable with ``units`` and
+        ``long_name`` (pair values on an extra ``wall`` dimension when the walls differ); ``status``
+        (0 converged, 1 failed) and ``message`` per case.
+    """
+    from edl_solver.io import case_to_dict
+
+    if not isinstance(base, Case):
+        raise InputError(f"base: {type(base).__name__} is not a Case, expected edl_solver.Case(...)")
+    if isinstance(workers, bool) or not isinstance(workers, int) or workers < 1:
+        raise InputError(f"workers: {workers!r} is not allowed, expected a positive integer")
+    sweep_axes = make_axes(axes, zipped)
+    base_table = case_to_dict(base)
+    pair = isinstance(base.wall, tuple) or any(p.startswith(("wall.bottom", "wall.top"))
+                                               for axis in sweep_axes for p in axis.paths)
+    spec = {"base": base_table, "axes": [[a.name, list(a.paths), [list(v) for v in a.values]] for a in sweep_axes]}
+    out_path = Path(path) if path is not None else None
+    store = _Store(spec, sweep_axes, isinstance(base.geometry, Capillary), pair, out_path, resume)
+    try:
+        todo = _rows_todo(store.status)
+        last = sweep_axes[-1].size
+        per_task = rows_per_task or max(1, 1000 // last)
+        tasks = [todo[i:i + per_task] for i in range(0, len(todo), per_task)]
+        total = len(todo) * last
+        with _progress_bar(total, progress) as bar:
+            for part in _run(tasks, base_table, sweep_axes, workers, dask):
+                store.write(part)
+                bar.update(len(part["rows"]) * last)
+    except BaseException:
+        store.abandon()
+        raise
+    return store.finish()
+
+
+def _run(tasks: list[list[int]], base_table: dict[str, Any], axes: Sequence[Axis], workers: int,
+         dask: Any) -> Iterable[dict[str, Any]]:
+    """Yield each task's results as it completes (in this process, local processes, or Dask)."""
+    if dask is not None:
+        yield from _run_dask(tasks, base_table, axes, dask)
+    elif workers == 1:
+        for rows in tasks:
+            yield solve_rows(base_table, axes, rows)
+    else:
+        import concurrent.futures as cf
+        import multiprocessing
+
+        context = multiprocessing.get_context("spawn")
+        with cf.ProcessPoolExecutor(workers, mp_context=context, initializer=_one_thread) as pool:
+            futures = [pool.submit(solve_rows, base_table, axes, rows) for rows in tasks]
+            try:
+                for future in cf.as_completed(futures):
+                    yield future.result()
+            except BaseException:
+                for future in futures:
+                    future.cancel()
+                raise
+
+
+def _one_thread() -> None:
+    # Each worker is one process on one core: keep numba from spawning threads of its own.
+    os.environ["NUMBA_NUM_THREADS"] = "1"
+
+
+def _run_dask(tasks: list[list[int]], base_table: dict[str, Any], axes: Sequence[Axis],
+              dask: Any) -> Iterable[dict[str, Any]]:
+    from distributed import Client, as_completed
+
+    client = dask if isinstance(dask, Client) else Client(dask)
+    try:
+        futures = [client.submit(solve_rows, base_table, axes, rows, pure=False) for rows in tasks]
+        for future in as_completed(futures):
+            yield future.result()
+    finally:
+        if client is not dask:
+            client.close()
+
+
+class _NoBar:
+    def __enter__(self) -> _NoBar:
+        return self
+
+    def __exit__(self, *exc: object) -> None:
+        return None
+
+    def update(self, n: int) -> None:
+        return None
+
+
+def _progress_bar(total: int, progress: bool | None) -> Any:
+    try:
+        from tqdm import tqdm
+    except ImportError:  # tqdm is optional
+        return _NoBar()
+    # disable=None: tqdm turns itself off when not attached to a terminal (CI, pipes)
+    return tqdm(total=total, unit="case", disable=None if progress is None else not progress,
+                desc="sweep", smoothing=0.1)
+
+
+__all__ = ["PATH_UNITS", "Axis", "case_at", "make_axes", "solve_rows", "sweep"]
