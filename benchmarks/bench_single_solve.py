@@ -685,9 +685,14 @@ def main(argv: list[str] | None = None) -> dict:
               f"({max(QUANTITIES, key=lambda q: edl_err[q][i])}), own estimate {estimates[i]:.1e}, {nodes[i]} nodes")
     out["loop"]["over_accuracy"] = [{"kappa_h": float(kappa_h[i]), "zeta": float(zeta[i]),
                                      "error": float(worst[i]), "estimate": float(estimates[i])} for i in over]
-    under = ok & (estimates > 0)
+    beyond = np.flatnonzero(ok & (worst > estimates))
     print(f"edl's own error estimate vs its actual worst error: actual/estimate median "
-          f"{np.median(worst[under] / estimates[under]):.2g}, max {np.max(worst[under] / estimates[under]):.2g}")
+          f"{np.median(worst[ok] / estimates[ok]):.2g}; actual above the estimate in {beyond.size}/{n_cases} cases")
+    if beyond.size:
+        i = beyond[np.argmax(worst[beyond])]
+        print(f"    the largest of those: kh={kappa_h[i]:.4g} z={zeta[i]:.3f}: error {worst[i]:.1e}, "
+              f"estimate {estimates[i]:.1e}")
+    out["loop"]["error_above_estimate"] = int(beyond.size)
     top = np.argsort(-np.where(ok, worst, -1.0))[:3]
     print("edl.solve largest errors: " + ",  ".join(
         f"kh={kappa_h[i]:.4g} z={zeta[i]:.3f}: {worst[i]:.1e} ({max(QUANTITIES, key=lambda q: edl_err[q][i])}, "

@@ -243,9 +243,9 @@ class _Store:
         self.status = self.file.variables["status"][...]
 
     def _create(self) -> None:
-        from edl_solver import __version__
-
         import h5py
+
+        from edl_solver import __version__
 
         f = self.file
         text = h5py.string_dtype()
