@@ -164,8 +164,8 @@ def starting_intervals(beta, accuracy):
 
 
 @njit(cache=True)
-def nested_solve(s, beta, metric, kappa2, valence, weight, linear, bc_type, bc_value, flow_type,
-                 flow_value, psi, u_eo, u_p, max_iter, integrals):
+def nested_solve(s, beta, metric, kappa2, ions, model, walls, flow_walls, visco, psi, u_eo, u_p, max_iter,
+                 integrals):
     """Solve on LEVELS nested grids and fill ``integrals[level]`` (finest last).
 
     ``s`` are the finest computational nodes and ``psi`` holds the start guess there. The coarsest grid
@@ -189,22 +189,23 @@ def nested_solve(s, beta, metric, kappa2, valence, weight, linear, bc_type, bc_v
         xl = np.empty(n)
         link = np.empty(n - 1)
         volume = np.empty(n)
-        finite_volume_metric(sl, beta, metric, xl, link, volume)
+        spacing = np.empty(n - 1)
+        finite_volume_metric(sl, beta, metric, xl, link, volume, spacing)
         if level == 0:
             p = start[::stride].copy()
         else:
             p = np.empty(n)
             prolong(guess, p)
-        status, its, residual = pb_newton(p, link, volume, kappa2, valence, weight, linear, bc_type,
-                                          bc_value, NEWTON_TOLERANCE, max_iter, MAX_STEP)
+        status, its, residual = pb_newton(p, link, volume, kappa2, ions, model, walls, NEWTON_TOLERANCE,
+                                          max_iter, MAX_STEP)
         total += its
         if status != 0:
             return status, total, residual
         ue = np.empty(n)
         up = np.empty(n)
         centre = 0 if half else (n - 1) // 2
-        section_integrals(p, link, volume, kappa2, valence, weight, linear, bc_type, bc_value, centre,
-                          flow_type, flow_value, ue, up, integrals[level])
+        section_integrals(p, link, volume, spacing, kappa2, ions, model, walls, centre, flow_walls, visco,
+                          ue, up, integrals[level])
         if level == LEVELS - 1:
             correct_profile(p, guess)
             correct_profile(ue, ue_previous)
@@ -217,8 +218,8 @@ def nested_solve(s, beta, metric, kappa2, valence, weight, linear, bc_type, bc_v
 
 
 @njit(cache=True)
-def solve_adaptive(metric, half, kappa2, valence, weight, linear, bc_type, bc_value, flow_type, flow_value,
-                   wall_guess, counter, accuracy, intervals, max_intervals, max_iter, guess, out):
+def solve_adaptive(metric, half, kappa2, ions, model, walls, flow_walls, visco, wall_guess, counter, accuracy,
+                   intervals, max_intervals, max_iter, guess, out):
     """One case to the requested accuracy; fills ``out`` with the extrapolated integrals.
 
     ``intervals`` > 0 fixes the finest grid (no refinement); 0 chooses it from the stiffness and refines.
@@ -229,7 +230,7 @@ def solve_adaptive(metric, half, kappa2, valence, weight, linear, bc_type, bc_va
     status, iterations, estimate, residual, intervals, s, beta, psi, u_eo, u_p
         Status CONVERGED, NEWTON_FAILED or ACCURACY_MISSED; the finest grid's nodes and profiles.
     """
-    n_ions = valence.size
+    n_ions = ions.shape[0]
     beta = stretching(inner_length(kappa2, wall_guess, counter))
     n_half = intervals if intervals > 0 else starting_intervals(beta, accuracy)
     s = computational_nodes(n_half, half)
@@ -248,9 +249,8 @@ def solve_adaptive(metric, half, kappa2, valence, weight, linear, bc_type, bc_va
     while True:
         u_eo = np.empty(s.size)
         u_p = np.empty(s.size)
-        status, its, residual = nested_solve(s, beta, metric, kappa2, valence, weight, linear, bc_type,
-                                             bc_value, flow_type, flow_value, psi, u_eo, u_p, max_iter,
-                                             levels)
+        status, its, residual = nested_solve(s, beta, metric, kappa2, ions, model, walls, flow_walls, visco,
+                                             psi, u_eo, u_p, max_iter, levels)
         iterations += its
         if status != 0:
             return NEWTON_FAILED, iterations, np.inf, residual, n_half, s, beta, psi, u_eo, u_p
@@ -274,9 +274,8 @@ def solve_adaptive(metric, half, kappa2, valence, weight, linear, bc_type, bc_va
 
 
 @njit(cache=True, parallel=True)
-def solve_batch(metric, half, kappa2, valence, weight, linear, bc_type, bc_value, flow_type, flow_value,
-                wall_guess, counter, accuracy, max_intervals, max_iter, chunk_starts, out, status, iterations,
-                estimate):
+def solve_batch(metric, half, kappa2, ions, model, walls, flow_walls, visco, wall_guess, counter, accuracy,
+                max_intervals, max_iter, chunk_starts, out, status, iterations, estimate):
     """Many cases of one kind; row i of every per-case array belongs to case i.
 
     The cases are split into chunks at ``chunk_starts`` (ascending, last entry = number of cases); chunks
@@ -287,8 +286,8 @@ def solve_batch(metric, half, kappa2, valence, weight, linear, bc_type, bc_value
         previous = np.empty(0)
         for i in range(chunk_starts[c], chunk_starts[c + 1]):
             st, its, est, _, _, _, _, psi, _, _ = solve_adaptive(
-                metric, half, kappa2[i], valence[i], weight[i], linear, bc_type[i], bc_value[i], flow_type,
-                flow_value, wall_guess[i], counter[i], accuracy, 0, max_intervals, max_iter, previous, out[i])
+                metric, half, kappa2[i], ions[i], model, walls[i], flow_walls[i], visco[i], wall_guess[i],
+                counter[i], accuracy, 0, max_intervals, max_iter, previous, out[i])
             status[i] = st
             iterations[i] = its
             estimate[i] = est

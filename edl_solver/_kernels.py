@@ -2,14 +2,27 @@
 and the section integrals (nested grids and error control are in _adaptive.py).
 
 Everything here takes only arrays and scalars and knows nothing of cases or units (see grid.py for the
-finite-volume metric and equilibrium.py for the physics these kernels serve). Dimensionless variables:
-psi = e*phi/kT, lengths in the half-size L, the charge density rho_hat = sum_k w_k exp(-z_k psi) with
-w_k = z_k c_k / sum_j z_j^2 c_j, so that Poisson reads  laplacian(psi) = -kappa2 * rho_hat  with
-kappa2 = (kappa L)^2.
+finite-volume metric and scaling.py for how the arrays are filled). Dimensionless variables: psi =
+e*phi/kT, lengths in the half-size L, charge density rho_hat = rho_e / (e N_A sum_j z_j^2 c_j), so that
+Poisson reads  laplacian(psi) = -kappa2 rho_hat  with kappa2 = (kappa L)^2.
 
-Boundary codes (per end of the grid): POTENTIAL fixes the node value; FLUX fixes the outward-normal
-derivative (wall charge, or 0 at a symmetry plane); ROBIN (flow only) is a Navier slip wall
-u = -b du/dn, given as the coefficient 1/b_hat.
+Packed parameters
+-----------------
+ions : (n_ions, 3) array of (z_k, w_k, nu_k): valence, weight w_k = z_k c_k / sum_j z_j^2 c_j and the
+    steric packing parameter nu_k = c_k N_A d^3 (0 without finite ion size).
+model : PB (Boltzmann), DH (linearised) or STERIC (lattice-gas, Bikerman 1942; Kilic, Bazant & Ajdari
+    2007, Phys. Rev. E 75, 021502): c_k = c_k,bulk exp(-z_k psi) / (1 + sum_j nu_j (exp(-z_j psi) - 1)).
+walls : (2, WALL_SIZE) array, one row per end of the grid (left, right), layout W_*:
+    POTENTIAL fixes psi (W_VALUE); FLUX fixes the outward-normal derivative of psi, i.e. the wall charge
+    sigma_hat = sigma e L / (eps kT) (W_VALUE; 0 at a symmetry plane); REGULATED has a charge that depends
+    on the potential psi_0 of the charge plane: a fixed part, a gate term C_g (V_g - psi_0) and acid-base
+    sites, with a Stern layer psi_0 - psi_d = sigma / C_S between the charge plane and the diffuse layer
+    (psi_d is the end node). Capacitances are in units of eps / L, charges as sigma_hat.
+flow_walls : (2, 2) array of (code, value) per end for the Stokes problems: POTENTIAL = prescribed
+    velocity (0: no slip), FLUX = prescribed normal derivative (0 at a symmetry plane), ROBIN = Navier
+    slip u = -b du/dn with value 1/b_hat (b in units of L).
+visco : viscoelectric coefficient f (kT / (e L))^2: eta / eta_0 = 1 + visco |grad psi|^2 (Lyklema &
+    Overbeek 1961).
 """
 
 from __future__ import annotations
@@ -17,9 +30,30 @@ from __future__ import annotations
 import numpy as np
 from numba import njit
 
+# boundary codes
 POTENTIAL = 0
 FLUX = 1
 ROBIN = 2
+REGULATED = 3
+
+# models
+PB = 0
+DH = 1
+STERIC = 2
+
+# wall row layout
+W_TYPE = 0
+W_VALUE = 1
+W_SIGMA = 2  # fixed charge of a regulated wall
+W_GATE_C = 3  # gate capacitance
+W_GATE_V = 4  # gate voltage
+W_STERN = 5  # inverse Stern capacitance (0: no Stern layer)
+W_SITES = 6  # number of kinds of site
+W_SITE0 = 7  # first site block
+MAX_STATES = 4  # protonation states of one kind of site (up to three acid-base steps)
+SITE_SIZE = 2 + MAX_STATES + (MAX_STATES - 1)  # density, n_states, charges, ln(K_i / [H+]_bulk)
+MAX_SITES = 4
+WALL_SIZE = W_SITE0 + MAX_SITES * SITE_SIZE
 
 # Layout of the integral vector filled by ``section_integrals``; ions follow from ION_INTEGRALS on.
 I_PSI = 0  # int psi dV
@@ -37,15 +71,15 @@ ION_INTEGRALS = 11  # int c_k / c_k,bulk dV for each ion k
 
 
 @njit(cache=True)
-def finite_volume_metric(s, beta, metric, x, link, volume):
-    """Nodes x = tanh(beta s)/tanh(beta), link conductances and node volumes (see grid.py).
+def finite_volume_metric(s, beta, metric, x, link, volume, spacing):
+    """Nodes x = tanh(beta s)/tanh(beta), link conductances, node volumes and link lengths (see grid.py).
 
     Node spacings come from the identity tanh(p) - tanh(q) = sinh(p - q) / (cosh p cosh q), never from
     differences of x: wall cells can be 1e-12 of the half-size, below the resolution of x near 1.
     """
     n = s.size
     t = np.tanh(beta)
-    dx = np.empty(n - 1)
+    dx = spacing
     for i in range(n):
         x[i] = np.tanh(beta * s[i]) / t
     for i in range(n - 1):
@@ -79,51 +113,151 @@ def tridiagonal_solve(lower, diag, upper, rhs, out, work):
 
 
 @njit(cache=True)
-def charge(psi, valence, weight, linear):
+def charge(psi, ions, model):
     """Dimensionless charge density rho_hat(psi) and its derivative.
 
-    Nonlinear (Boltzmann): rho = sum_k w_k exp(-z_k psi); linear (Debye-Hueckel): rho = -psi, since
-    sum_k w_k = 0 (bulk neutrality) and sum_k w_k z_k = 1.
+    PB: rho = sum_k w_k exp(-z_k psi). DH: rho = -psi (sum_k w_k = 0 by neutrality, sum_k w_k z_k = 1).
+    STERIC: rho = sum_k w_k exp(-z_k psi) / D, D = 1 + sum_k nu_k (exp(-z_k psi) - 1).
     """
-    if linear:
+    if model == DH:
         return -psi, -1.0
     rho = 0.0
     drho = 0.0
-    for k in range(valence.size):
-        term = weight[k] * np.exp(-valence[k] * psi)
-        rho += term
-        drho -= valence[k] * term
+    crowd = 1.0
+    dcrowd = 0.0
+    for k in range(ions.shape[0]):
+        z = ions[k, 0]
+        e = np.exp(-z * psi)
+        rho += ions[k, 1] * e
+        drho -= ions[k, 1] * z * e
+        crowd += ions[k, 2] * (e - 1.0)
+        dcrowd -= ions[k, 2] * z * e
+    if model == STERIC:
+        return rho / crowd, (drho * crowd - rho * dcrowd) / (crowd * crowd)
     return rho, drho
 
 
 @njit(cache=True)
-def _pb_residual(psi, link, volume, kappa2, valence, weight, linear, bc_type, bc_value, res, scale):
-    """Residual of the discrete Poisson-Boltzmann equation and the size of each row's diagonal.
+def concentration_factor(psi, ions, k, model):
+    """c_k / c_k,bulk at potential psi for the model (linearised for DH, crowding-limited for STERIC)."""
+    z = ions[k, 0]
+    if model == DH:
+        return 1.0 - z * psi
+    e = np.exp(-z * psi)
+    if model == STERIC:
+        crowd = 1.0
+        for j in range(ions.shape[0]):
+            crowd += ions[j, 2] * (np.exp(-ions[j, 0] * psi) - 1.0)
+        return e / crowd
+    return e
 
-    Row i: a_i (psi_{i+1} - psi_i) - a_{i-1} (psi_i - psi_{i-1}) + kappa2 V_i rho(psi_i) (+ r^m sigma at
-    a FLUX end) = 0; a POTENTIAL end reads psi - value = 0. res/scale is a local correction in units
-    of kT/e.
+
+@njit(cache=True)
+def plane_charge(psi0, wall):
+    """Charge sigma_hat of a regulated wall at charge-plane potential psi0, and d sigma_hat / d psi0.
+
+    Fixed part, gate term C_g (V_g - psi0), and for each kind of site with states k = 0..K of charge q_k
+    (successive deprotonations with constants K_i) the Boltzmann-weighted mean charge: f_k proportional
+    to prod_{i<=k} K_i / [H+]_0 with the proton concentration at the plane [H+]_0 = [H+]_bulk exp(-psi0),
+    i.e. log-weight l_k = sum_{i<=k} (ln(K_i / [H+]_bulk) + psi0) (the mass-action law of each step).
+    """
+    sigma = wall[W_SIGMA] + wall[W_GATE_C] * (wall[W_GATE_V] - psi0)
+    dsigma = -wall[W_GATE_C]
+    for j in range(int(wall[W_SITES])):
+        base = W_SITE0 + j * SITE_SIZE
+        density = wall[base]
+        states = int(wall[base + 1])
+        logs = np.empty(states)
+        logs[0] = 0.0
+        top = 0.0
+        for k in range(1, states):
+            logs[k] = logs[k - 1] + wall[base + 2 + MAX_STATES + k - 1] + psi0
+            top = max(top, logs[k])
+        total = 0.0
+        mean_q = 0.0
+        mean_k = 0.0
+        mean_qk = 0.0
+        for k in range(states):
+            f = np.exp(logs[k] - top)
+            q = wall[base + 2 + k]
+            total += f
+            mean_q += q * f
+            mean_k += k * f
+            mean_qk += q * k * f
+        mean_q /= total
+        mean_k /= total
+        mean_qk /= total
+        sigma += density * mean_q
+        dsigma += density * (mean_qk - mean_q * mean_k)
+    return sigma, dsigma
+
+
+@njit(cache=True)
+def regulated_charge(psi_d, wall):
+    """Charge of a regulated wall whose diffuse layer starts at potential ``psi_d``.
+
+    Solves the Stern relation psi0 = psi_d + sigma(psi0) / C_S for the charge-plane potential (Newton on
+    g(psi0) = psi0 - psi_d - sigma(psi0)/C_S, g' = 1 - sigma'/C_S >= 1 because sigma decreases with
+    psi0), then returns sigma_hat, d sigma_hat / d psi_d = sigma' / (1 - sigma'/C_S) and psi0.
+    """
+    inverse = wall[W_STERN]
+    psi0 = psi_d
+    sigma, dsigma = plane_charge(psi0, wall)
+    if inverse > 0.0:
+        for _ in range(200):
+            g = psi0 - psi_d - inverse * sigma
+            dg = 1.0 - inverse * dsigma
+            step = g / dg
+            if abs(step) > 5.0:  # keep the exponentials of the site weights in range
+                step = 5.0 if step > 0 else -5.0
+            psi0 -= step
+            sigma, dsigma = plane_charge(psi0, wall)
+            if abs(step) < 1e-14 * (1.0 + abs(psi0)):
+                break
+        return sigma, dsigma / (1.0 - inverse * dsigma), psi0
+    return sigma, dsigma, psi0
+
+
+@njit(cache=True)
+def _pb_residual(psi, link, volume, kappa2, ions, model, walls, res, scale, jac):
+    """Residual of the discrete Poisson-Boltzmann equation, the size of each row's diagonal and the
+    diagonal of the Jacobian.
+
+    Row i: a_i (psi_{i+1} - psi_i) - a_{i-1} (psi_i - psi_{i-1}) + kappa2 V_i rho(psi_i) (+ sigma_hat at a
+    FLUX or REGULATED end) = 0; a POTENTIAL end reads psi - value = 0. res/scale is a local correction in
+    units of kT/e.
     """
     n = psi.size
     for i in range(n):
-        rho, drho = charge(psi[i], valence, weight, linear)
+        rho, drho = charge(psi[i], ions, model)
         r = kappa2 * volume[i] * rho
         d = kappa2 * volume[i] * abs(drho)
+        j = kappa2 * volume[i] * drho
         if i < n - 1:
             r += link[i] * (psi[i + 1] - psi[i])
             d += link[i]
+            j -= link[i]
         if i > 0:
             r -= link[i - 1] * (psi[i] - psi[i - 1])
             d += link[i - 1]
+            j -= link[i - 1]
         end = 0 if i == 0 else (1 if i == n - 1 else -1)
         if end >= 0:
-            if bc_type[end] == POTENTIAL:
-                r = psi[i] - bc_value[end]
+            kind = int(walls[end, W_TYPE])
+            if kind == POTENTIAL:
+                r = psi[i] - walls[end, W_VALUE]
                 d = 1.0
+                j = 1.0
+            elif kind == FLUX:
+                r += walls[end, W_VALUE]
             else:
-                r += bc_value[end]
+                sigma, dsigma, _ = regulated_charge(psi[i], walls[end])
+                r += sigma
+                d += abs(dsigma)
+                j += dsigma
         res[i] = r
         scale[i] = d
+        jac[i] = j
 
 
 @njit(cache=True)
@@ -139,14 +273,13 @@ def _scaled_norms(res, scale):
 
 
 @njit(cache=True)
-def pb_newton(psi, link, volume, kappa2, valence, weight, linear, bc_type, bc_value, tol, max_iter,
-              max_step):
+def pb_newton(psi, link, volume, kappa2, ions, model, walls, tol, max_iter, max_step):
     """Damped Newton iteration for the discrete Poisson-Boltzmann equation, in place on ``psi``.
 
-    The Jacobian is tridiagonal and negative definite (the Boltzmann charge decreases with psi), so
-    each step costs O(n). Steps are capped at ``max_step`` (kT/e) and halved until the row-scaled
-    residual decreases in the Euclidean norm (a backtracking line search; the row scaling is frozen
-    during the search so that the Newton step is a descent direction).
+    The Jacobian is tridiagonal and negative definite (the charge decreases with psi, in the liquid as on
+    a regulated wall), so each step costs O(n). Steps are capped at ``max_step`` (kT/e) and halved until
+    the row-scaled residual decreases in the Euclidean norm (a backtracking line search; the row scaling
+    is frozen during the search so that the Newton step is a descent direction).
 
     Returns
     -------
@@ -159,29 +292,28 @@ def pb_newton(psi, link, volume, kappa2, valence, weight, linear, bc_type, bc_va
     n = psi.size
     res = np.empty(n)
     scale = np.empty(n)
+    jac = np.empty(n)
     trial_scale = np.empty(n)
+    trial_jac = np.empty(n)
     lower = np.empty(n)
-    diag = np.empty(n)
     upper = np.empty(n)
     step = np.empty(n)
+    rhs = np.empty(n)
     work = np.empty(n)
     trial = np.empty(n)
-    _pb_residual(psi, link, volume, kappa2, valence, weight, linear, bc_type, bc_value, res, scale)
+    _pb_residual(psi, link, volume, kappa2, ions, model, walls, res, scale, jac)
     norm, worst = _scaled_norms(res, scale)
     for it in range(1, max_iter + 1):
         for i in range(n):
-            _, drho = charge(psi[i], valence, weight, linear)
             lower[i] = link[i - 1] if i > 0 else 0.0
             upper[i] = link[i] if i < n - 1 else 0.0
-            diag[i] = kappa2 * volume[i] * drho - lower[i] - upper[i]
-            step[i] = -res[i]
+            rhs[i] = -res[i]
         for end in range(2):
             i = 0 if end == 0 else n - 1
-            if bc_type[end] == POTENTIAL:
+            if int(walls[end, W_TYPE]) == POTENTIAL:
                 lower[i] = 0.0
                 upper[i] = 0.0
-                diag[i] = 1.0
-        tridiagonal_solve(lower, diag, upper, step.copy(), step, work)
+        tridiagonal_solve(lower, jac, upper, rhs, step, work)
         biggest = 0.0
         for i in range(n):
             biggest = max(biggest, abs(step[i]))
@@ -190,7 +322,7 @@ def pb_newton(psi, link, volume, kappa2, valence, weight, linear, bc_type, bc_va
         if biggest < tol:
             for i in range(n):
                 psi[i] += step[i]
-            _pb_residual(psi, link, volume, kappa2, valence, weight, linear, bc_type, bc_value, res, scale)
+            _pb_residual(psi, link, volume, kappa2, ions, model, walls, res, scale, jac)
             norm, worst = _scaled_norms(res, scale)
             return 0, it, worst
         lam = 1.0 if biggest <= max_step else max_step / biggest
@@ -198,8 +330,7 @@ def pb_newton(psi, link, volume, kappa2, valence, weight, linear, bc_type, bc_va
         for _ in range(60):
             for i in range(n):
                 trial[i] = psi[i] + lam * step[i]
-            _pb_residual(trial, link, volume, kappa2, valence, weight, linear, bc_type, bc_value, res,
-                         trial_scale)
+            _pb_residual(trial, link, volume, kappa2, ions, model, walls, res, trial_scale, trial_jac)
             new = 0.0
             for i in range(n):
                 q = res[i] / scale[i]
@@ -210,22 +341,25 @@ def pb_newton(psi, link, volume, kappa2, valence, weight, linear, bc_type, bc_va
                 break
             lam *= 0.5
         if not accepted:
-            _pb_residual(psi, link, volume, kappa2, valence, weight, linear, bc_type, bc_value, res, scale)
+            _pb_residual(psi, link, volume, kappa2, ions, model, walls, res, scale, jac)
             norm, worst = _scaled_norms(res, scale)
             return 2, it, worst
         for i in range(n):
             psi[i] = trial[i]
             scale[i] = trial_scale[i]
+            jac[i] = trial_jac[i]
         norm, worst = _scaled_norms(res, scale)
     return 1, max_iter, worst
 
 
 @njit(cache=True)
-def stokes(link, volume, rhs, bc_type, bc_value, u):
-    """Solve the discrete Stokes equation (L u)_i = rhs_i V_i across the section, in place on ``u``.
+def stokes(link, viscosity, volume, rhs, flow_walls, u):
+    """Solve the discrete Stokes equation div(eta grad u) = rhs across the section, in place on ``u``.
 
-    Ends: POTENTIAL = prescribed velocity (no slip: 0), FLUX = prescribed outward-normal derivative
-    (0 at a symmetry plane), ROBIN = Navier slip u = -b du/dn given as bc_value = 1/b_hat.
+    Rows: a_i eta_i (u_{i+1} - u_i) - a_{i-1} eta_{i-1} (u_i - u_{i-1}) = V_i rhs_i with eta_i the relative
+    viscosity of link i. Ends: POTENTIAL = prescribed velocity (no slip: 0), FLUX = prescribed normal
+    derivative (0 at a symmetry plane), ROBIN = Navier slip u = -b du/dn (value 1/b_hat): the wall shear
+    stress -eta u / b enters the end cell.
     """
     n = u.size
     lower = np.empty(n)
@@ -234,63 +368,67 @@ def stokes(link, volume, rhs, bc_type, bc_value, u):
     b = np.empty(n)
     work = np.empty(n)
     for i in range(n):
-        lower[i] = link[i - 1] if i > 0 else 0.0
-        upper[i] = link[i] if i < n - 1 else 0.0
+        lower[i] = link[i - 1] * viscosity[i - 1] if i > 0 else 0.0
+        upper[i] = link[i] * viscosity[i] if i < n - 1 else 0.0
         diag[i] = -lower[i] - upper[i]
         b[i] = rhs[i] * volume[i]
     for end in range(2):
         i = 0 if end == 0 else n - 1
-        if bc_type[end] == POTENTIAL:
+        kind = int(flow_walls[end, 0])
+        value = flow_walls[end, 1]
+        if kind == POTENTIAL:
             lower[i] = 0.0
             upper[i] = 0.0
             diag[i] = 1.0
-            b[i] = bc_value[end]
-        elif bc_type[end] == FLUX:
-            b[i] -= bc_value[end]
+            b[i] = value
+        elif kind == FLUX:
+            b[i] -= value
         else:
-            diag[i] -= bc_value[end]
+            # wall viscosity: that of the adjacent link (the field is continuous up to the wall)
+            diag[i] -= value * viscosity[i - 1 if i > 0 else 0]
     tridiagonal_solve(lower, diag, upper, b, u, work)
 
 
 @njit(cache=True)
-def section_integrals(psi, link, volume, kappa2, valence, weight, linear, bc_type, bc_value, centre,
-                      flow_type, flow_value, u_eo, u_p, out):
+def section_integrals(psi, link, volume, spacing, kappa2, ions, model, walls, centre, flow_walls, visco,
+                      u_eo, u_p, out):
     """Flow fields and the integral vector (see the I_* layout) of a converged potential ``psi``.
 
-    EO flow: laplacian(u_eo) = -kappa2 rho_hat (u_eo in units of eps E kT / (e eta), equal to
-    psi - psi_wall for uniform properties and no slip). Pressure flow: laplacian(u_p) = 1 (u_p in units
-    of (dp/dx) L^2 / eta).
+    EO flow: div(eta grad u_eo) = -kappa2 rho_hat (u_eo in units of eps E kT / (e eta_0); equal to
+    psi - psi_wall for uniform viscosity and no slip). Pressure flow: div(eta grad u_p) = 1 (u_p in units
+    of (dp/dx) L^2 / eta_0). ``spacing`` are the link lengths (for the field in the viscosity).
     """
     n = psi.size
     rho = np.empty(n)
     for i in range(n):
-        rho[i], _ = charge(psi[i], valence, weight, linear)
+        rho[i], _ = charge(psi[i], ions, model)
         rho[i] *= -kappa2
-    stokes(link, volume, rho, flow_type, flow_value, u_eo)
+    viscosity = np.ones(n - 1)
+    if visco > 0.0:
+        for i in range(n - 1):
+            grad = (psi[i + 1] - psi[i]) / spacing[i]
+            viscosity[i] = 1.0 + visco * grad * grad
+    stokes(link, viscosity, volume, rho, flow_walls, u_eo)
     ones = np.ones(n)
-    stokes(link, volume, ones, flow_type, flow_value, u_p)
+    stokes(link, viscosity, volume, ones, flow_walls, u_p)
     for j in range(out.size):
         out[j] = 0.0
     for i in range(n):
         v = volume[i]
-        r = -rho[i] / kappa2 if kappa2 > 0.0 else 0.0
+        r = -rho[i] / kappa2
         out[I_PSI] += v * psi[i]
         out[I_UEO] += v * u_eo[i]
         out[I_UP] += v * u_p[i]
         out[I_RHO_UEO] += v * r * u_eo[i]
         out[I_RHO_UP] += v * r * u_p[i]
         out[I_RHO] += v * r
-        for k in range(valence.size):
-            if linear:
-                c = 1.0 - valence[k] * psi[i]
-            else:
-                c = np.exp(-valence[k] * psi[i])
-            out[ION_INTEGRALS + k] += v * c
+        for k in range(ions.shape[0]):
+            out[ION_INTEGRALS + k] += v * concentration_factor(psi[i], ions, k, model)
     out[I_PSI_LEFT] = psi[0]
     out[I_PSI_RIGHT] = psi[n - 1]
     out[I_PSI_CENTRE] = psi[centre]
     # Wall flux from the end cell's balance, so that charge is conserved to round-off.
-    rho0, _ = charge(psi[0], valence, weight, linear)
-    rho1, _ = charge(psi[n - 1], valence, weight, linear)
+    rho0, _ = charge(psi[0], ions, model)
+    rho1, _ = charge(psi[n - 1], ions, model)
     out[I_FLUX_LEFT] = -link[0] * (psi[1] - psi[0]) - kappa2 * volume[0] * rho0
     out[I_FLUX_RIGHT] = link[n - 2] * (psi[n - 1] - psi[n - 2]) - kappa2 * volume[n - 1] * rho1

@@ -1,7 +1,14 @@
-"""The ``edl`` command: solve a case from a TOML file and/or flags, or run the built-in demo.
+"""The ``edl`` command: solve a case from a TOML file and/or flags, sweep a design space from a TOML
+sweep file, or run the built-in demo.
 
 Exit codes: 0 success, 1 an output could not be written after the solve, 2 bad input of any kind
-(one line ``edl: error: ...`` on stderr, nothing written), 3 the solve did not converge, 130 interrupted.
+(one line ``edl: error: ...`` on stderr, nothing written), 3 the solve did not converge, 130 interrupted
+(a sweep keeps what it finished in ``OUT.h5.partial`` and says how to resume).
+
+Commands kept in modules of their own (``_PLUGGED_COMMANDS``, e.g. ``edl map`` in ``edl_solver.cli_map``)
+are registered when their module exists: it provides ``add_<name>_command(subparsers)``, which adds its
+parser, and ``run_<name>_command(args) -> int``; an optional ``VALUE_FLAGS`` lists its flags whose
+values may start with "-".
 
 Everything is validated before anything is written: the case, then the output paths, then the solve;
 the files are written last, each atomically (an existing file is replaced only by a complete one).
@@ -50,8 +57,12 @@ _CASE_FLAGS: tuple[tuple[str, str, str, str], ...] = (
 #: Flags that set one value each, put under their dotted field as given.
 _PLAIN_FLAGS = ("--temperature", "--field", "--pressure-gradient", "--tolerance", "--accuracy")
 #: Flags that take a value: a value after them is never read as a flag, so "--zeta -40mV" works.
-_VALUE_FLAGS = frozenset({flag for flag, *_ in _CASE_FLAGS} | {"-o", "--output", "--figure", "--model"})
-_FLAGS = _VALUE_FLAGS | {"-h", "--help", "--version", "-q", "--quiet", "--print-case"}
+_VALUE_FLAGS = frozenset({flag for flag, *_ in _CASE_FLAGS}
+                         | {"-o", "--output", "--figure", "--model", "--workers", "--dask"})
+_FLAGS = _VALUE_FLAGS | {"-h", "--help", "--version", "-q", "--quiet", "--print-case", "--resume"}
+
+#: Commands in modules of their own, registered when the module exists: (name, module).
+_PLUGGED_COMMANDS: tuple[tuple[str, str], ...] = (("map", "edl_solver.cli_map"),)
 
 _SOLVE_EPILOG = """\
 examples:
@@ -71,15 +82,37 @@ examples:
   edl demo --print-case > case.toml          # the demo as an editable case file
 """
 
+_SWEEP_EPILOG = """\
+examples:
+  edl sweep design.toml                      # writes design.h5 next to design.toml
+  edl sweep design.toml -o runs/design.h5 --workers 4
+  edl sweep design.toml --dask tcp://scheduler:8786
+  edl sweep design.toml --resume             # finish an interrupted sweep (design.h5.partial)
+
+A sweep file is a case file plus a [sweep] table whose [sweep.axes] give the values of the inputs
+to vary, one dimension per axis, in the file's order:
+
+  [sweep.axes]
+  "geometry.height" = { log = ["2 nm", "2 um"], points = 50 }
+  "wall.zeta" = { linear = ["-150 mV", "-10 mV"], points = 30 }
+  "electrolyte.concentration" = ["0.1 mM", "1 mM", "10 mM"]
+
+'zip = [["a", "b"]]' in [sweep] varies axes a and b together (see edl_solver.sweepfile).
+Results stream to OUT.h5.partial, renamed OUT.h5 when complete; an interrupted sweep keeps what it
+finished, and --resume finishes it. Cases that fail are kept with status 1 and a message.
+Open the result with xarray.open_dataset("OUT.h5", engine="h5netcdf").
+"""
+
 _MAIN_EPILOG = """\
 examples:
   edl demo                     # a worked case: report, result file and figure
   edl demo --print-case        # its case file, a starting point for your own
   edl solve case.toml -o out.h5 --figure out.png
   edl solve --slit 20nm --ion Na+=1mM --ion Cl-=1mM --zeta -40mV --field 1kV/m
+  edl sweep design.toml -o design.h5 --workers 4
 
 'edl COMMAND --help' describes each command.
-exit codes: 0 done, 1 output not written, 2 bad input, 3 no convergence.
+exit codes: 0 done, 1 output not written, 2 bad input, 3 no convergence, 130 interrupted.
 """
 
 
@@ -88,6 +121,9 @@ class _UsageError(Exception):
 
 
 class _Parser(argparse.ArgumentParser):
+    #: Flags that take a value (see ``_attach_values``); set on the top-level parser.
+    value_flags: frozenset[str] = _VALUE_FLAGS
+
     def error(self, message: str) -> NoReturn:
         raise _UsageError(f"{message} (see '{self.prog} --help')")
 
@@ -108,7 +144,7 @@ def main(argv: Sequence[str] | None = None) -> int:
     arguments = list(sys.argv[1:] if argv is None else argv)
     parser = _parser()
     try:
-        args = parser.parse_args(_attach_values(arguments))
+        args = parser.parse_args(_attach_values(arguments, parser.value_flags))
     except _UsageError as exc:
         return _fail(str(exc), EXIT_INPUT)
     except SystemExit as exc:  # --help and --version print and exit; a caller of main gets the code
@@ -147,11 +183,12 @@ def _fail(message: str, code: int) -> int:
     return code
 
 
-def _attach_values(arguments: list[str]) -> list[str]:
+def _attach_values(arguments: list[str], value_flags: frozenset[str] = _VALUE_FLAGS) -> list[str]:
     """Join a flag and a value that starts with '-' ("--zeta -40mV" -> "--zeta=-40mV").
 
     argparse reads "-40mV" as an unknown flag (only plain numbers like "-40" are taken as values), and
-    negative potentials, charges and gradients are the common case here.
+    negative potentials, charges and gradients are the common case here. ``value_flags`` are the flags
+    that take a value (those of plugged-in commands added).
     """
     joined: list[str] = []
     i = 0
@@ -161,7 +198,7 @@ def _attach_values(arguments: list[str]) -> list[str]:
             joined.extend(arguments[i:])
             break
         value = arguments[i + 1] if i + 1 < len(arguments) else None
-        if item in _VALUE_FLAGS and value is not None and value.startswith("-") and value not in _FLAGS:
+        if item in value_flags and value is not None and value.startswith("-") and value not in _FLAGS:
             joined.append(f"{item}={value}")
             i += 2
         else:
@@ -174,6 +211,7 @@ def _attach_values(arguments: list[str]) -> list[str]:
 
 
 def _parser() -> _Parser:
+    """The whole command line; ``parser.value_flags`` are the flags that take a value."""
     from edl_solver import __version__
 
     formatter = argparse.RawDescriptionHelpFormatter
@@ -214,7 +252,47 @@ def _parser() -> _Parser:
                       help="print the demo's case file (TOML) and stop; a starting point for your own")
     _add_outputs(demo, result_default=DEMO_RESULT, figure_default=DEMO_FIGURE)
     demo.set_defaults(run=_run_demo)
+
+    sweep = commands.add_parser(
+        "sweep", help="solve every case of a design space given by a TOML sweep file", allow_abbrev=False,
+        formatter_class=formatter, epilog=_SWEEP_EPILOG,
+        description="Solve a base case at every combination of the values of its swept inputs and write\n"
+                    "the summary values of all cases to one HDF5 (netCDF-4) file that xarray opens.")
+    sweep.add_argument("sweep_file", metavar="SWEEP.toml", help="sweep file: a case file plus a [sweep] table")
+    sweep.add_argument("-o", "--output", metavar="OUT.h5",
+                       help="the result file (default: the sweep file's name with .h5, next to it)")
+    where = sweep.add_mutually_exclusive_group()
+    where.add_argument("--workers", metavar="N", type=int, default=1,
+                       help="solve in N local processes (default: 1, in this process)")
+    where.add_argument("--dask", metavar="ADDRESS",
+                       help="solve on a Dask distributed cluster, e.g. tcp://scheduler:8786 (needs the "
+                            "'distributed' package); the results are written here")
+    sweep.add_argument("--resume", action="store_true",
+                       help="finish the interrupted sweep kept in OUT.h5.partial (same sweep file)")
+    sweep.add_argument("-q", "--quiet", action="store_true", help="print nothing but errors (no progress bar)")
+    sweep.set_defaults(run=_run_sweep)
+
+    _add_plugged_commands(parser, commands)
     return parser
+
+
+def _add_plugged_commands(parser: _Parser, commands: Any) -> None:
+    """Register the commands of ``_PLUGGED_COMMANDS`` whose modules exist (imported only then).
+
+    A module that exists but fails to import raises: a broken command should be seen, not hidden.
+    """
+    import importlib
+    import importlib.util
+
+    for name, module_name in _PLUGGED_COMMANDS:
+        if importlib.util.find_spec(module_name) is None:
+            continue
+        module = importlib.import_module(module_name)
+        getattr(module, f"add_{name}_command")(commands)
+        sub = commands.choices.get(name)
+        if sub is not None and sub.get_default("run") is None:
+            sub.set_defaults(run=getattr(module, f"run_{name}_command"))
+        parser.value_flags = parser.value_flags | frozenset(getattr(module, "VALUE_FLAGS", ()))
 
 
 def _add_outputs(parser: argparse.ArgumentParser, result_default: str | None, figure_default: str | None) -> None:
@@ -286,6 +364,93 @@ def _solve_and_write(case: Any, outputs: dict[str, Path], quiet: bool) -> int:
         for what, path in written:
             print(f"wrote the {what} to {Path(path).resolve()}")
     return _fail(failure, EXIT_WRITE_FAILED) if failure else EXIT_OK
+
+
+def _run_sweep(args: argparse.Namespace) -> int:
+    """Check the sweep file, the output and the cluster, then sweep; nothing is written before."""
+    from edl_solver.errors import InputError
+    from edl_solver.sweepfile import load_sweep
+
+    spec = load_sweep(args.sweep_file)
+    source = Path(args.sweep_file)
+    output = _writable("-o", args.output if args.output is not None else str(source.with_suffix(".h5")))
+    if output.resolve() == source.resolve():
+        raise InputError(f"-o: {str(output)!r} is the sweep file itself, expected another file name")
+    partial = output.with_name(output.name + ".partial")
+    if partial.exists() and not args.resume:
+        raise InputError(f"{partial}: an interrupted sweep is kept there; add --resume to finish it (or delete "
+                         "the file to start afresh)")
+    if args.workers < 1:
+        raise InputError(f"--workers: {args.workers} is not allowed, expected a positive integer")
+    client = _dask_client(args.dask) if args.dask is not None else None
+    from edl_solver.sweeps import sweep
+
+    if args.resume and not partial.exists() and not args.quiet:
+        print(f"note: no {partial.name} to resume, so the sweep starts from the beginning")
+    try:
+        result = sweep(spec.case, spec.axes, zipped=spec.zipped, path=output, resume=args.resume,
+                       workers=args.workers, dask=client, progress=False if args.quiet else None)
+    except KeyboardInterrupt:
+        if not partial.exists():
+            return _fail("interrupted before any case was finished", EXIT_INTERRUPTED)
+        return _fail(f"interrupted; the finished cases are kept in {partial}; to finish the sweep, run: "
+                     f"{_resume_command(args)}", EXIT_INTERRUPTED)
+    except OSError as exc:
+        kept = f"; the finished cases are kept in {partial}" if partial.exists() else ""
+        return _fail(f"cannot write {exc.filename or output}: {exc.strerror or exc}{kept}", EXIT_WRITE_FAILED)
+    finally:
+        if client is not None:
+            client.close()
+    if not args.quiet:
+        print(_sweep_summary(result, output))
+    return EXIT_OK
+
+
+def _dask_client(address: str) -> Any:
+    """Connect to the Dask scheduler before anything is written, so that a wrong address costs nothing."""
+    from edl_solver.errors import InputError
+
+    try:
+        from distributed import Client
+    except ImportError:
+        raise InputError("--dask: the 'distributed' package is not installed, expected "
+                         "'pip install distributed' first") from None
+    try:
+        return Client(address, timeout="10s")
+    except (OSError, ValueError, TypeError) as exc:  # refused, timed out, or not an address
+        raise InputError(f"--dask: cannot connect to {address!r} ({exc})") from None
+
+
+def _resume_command(args: argparse.Namespace) -> str:
+    """The command line that finishes an interrupted sweep."""
+    import shlex
+
+    words = ["edl", "sweep", args.sweep_file]
+    if args.output is not None:
+        words += ["-o", args.output]
+    if args.workers != 1:
+        words += ["--workers", str(args.workers)]
+    if args.dask is not None:
+        words += ["--dask", args.dask]
+    return shlex.join([*words, "--resume"])
+
+
+def _sweep_summary(result: Any, output: Path) -> str:
+    """Cases, converged, failed (with the first reason), where the file is and how to open it."""
+    import numpy as np
+
+    status = result["status"].values
+    failed = int(np.count_nonzero(status == 1))
+    shape = " x ".join(f"{name} {size}" for name, size in result["status"].sizes.items())
+    lines = [f"swept {status.size} cases ({shape}): {int(np.count_nonzero(status == 0))} converged, "
+             f"{failed} failed"]
+    if failed:
+        first = str(result["message"].values[status == 1][0])
+        lines.append(f"failed cases have status 1 and their reason in 'message', e.g.: {first}")
+    path = output.resolve()
+    lines.append(f"wrote the sweep to {path}")
+    lines.append(f'open it with: xarray.open_dataset("{path}", engine="h5netcdf")')
+    return "\n".join(lines)
 
 
 # -- the case from a file and flags ------------------------------------------------------------------
@@ -433,20 +598,26 @@ def _outputs(args: argparse.Namespace) -> dict[str, Path]:
 
     outputs = {}
     for what, flag, value in (("result", "-o", args.output), ("figure", "--figure", args.figure)):
-        if value is None:
-            continue
-        if not value.strip():
-            raise InputError(f"{flag}: {value!r} is empty, expected a file name")
-        path = Path(value).expanduser()
-        parent = path.parent
-        if path.is_dir():
-            raise InputError(f"{flag}: {value!r} is a directory, expected a file name")
-        if not parent.is_dir():
-            state = "is not a directory" if parent.exists() else "does not exist"
-            raise InputError(f"{flag}: {value!r} cannot be written, its directory {str(parent)!r} {state}")
-        if not os.access(parent, os.W_OK | os.X_OK):
-            raise InputError(f"{flag}: {value!r} cannot be written, its directory {str(parent)!r} is not writable")
-        outputs[what] = path
+        if value is not None:
+            outputs[what] = _writable(flag, value)
     if len(outputs) == 2 and outputs["result"].resolve() == outputs["figure"].resolve():
         raise InputError(f"--figure: {args.figure!r} is also the result file (-o), expected another file name")
     return outputs
+
+
+def _writable(flag: str, value: str) -> Path:
+    """The file named by ``flag``'s value, if it can be created (checked before any work is done)."""
+    from edl_solver.errors import InputError
+
+    if not value.strip():
+        raise InputError(f"{flag}: {value!r} is empty, expected a file name")
+    path = Path(value).expanduser()
+    parent = path.parent
+    if path.is_dir():
+        raise InputError(f"{flag}: {value!r} is a directory, expected a file name")
+    if not parent.is_dir():
+        state = "is not a directory" if parent.exists() else "does not exist"
+        raise InputError(f"{flag}: {value!r} cannot be written, its directory {str(parent)!r} {state}")
+    if not os.access(parent, os.W_OK | os.X_OK):
+        raise InputError(f"{flag}: {value!r} cannot be written, its directory {str(parent)!r} is not writable")
+    return path

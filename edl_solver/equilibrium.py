@@ -50,12 +50,11 @@ class SectionSolution:
 
 def _run(problem: SectionProblem, accuracy: float, intervals: int, max_iterations: int, max_intervals: int,
          guess: np.ndarray) -> tuple:
-    out = np.zeros(_kernels.ION_INTEGRALS + problem.valence.size)
+    out = np.zeros(_kernels.ION_INTEGRALS + problem.ions.shape[0])
     result = _adaptive.solve_adaptive(
-        problem.metric, problem.half, problem.kappa2, problem.valence, problem.weight, problem.linear,
-        problem.bc_type, problem.bc_value, problem.flow_type, problem.flow_value,
-        np.asarray(problem.wall_potential_guess), np.asarray(problem.counter_valence), accuracy, intervals,
-        max_intervals, max_iterations, guess, out)
+        problem.metric, problem.half, problem.kappa2, problem.ions, problem.model, problem.walls,
+        problem.flow_walls, problem.visco, problem.wall_potential_guess, problem.counter_valence, accuracy,
+        intervals, max_intervals, max_iterations, guess, out)
     return (*result, out)
 
 
@@ -90,6 +89,17 @@ def solve_section(problem: SectionProblem, accuracy: float, intervals: int | Non
                            residual)
 
 
+def _scaled_walls(rows: np.ndarray, t: float) -> np.ndarray:
+    """Wall rows with their driving values scaled by t (continuation from uncharged walls at t = 0)."""
+    scaled = rows.copy()
+    scaled[:, _kernels.W_VALUE] *= t
+    scaled[:, _kernels.W_SIGMA] *= t
+    scaled[:, _kernels.W_GATE_V] *= t
+    for j in range(_kernels.MAX_SITES):
+        scaled[:, _kernels.W_SITE0 + j * _kernels.SITE_SIZE] *= t  # site densities
+    return scaled
+
+
 def _continuation(problem: SectionProblem, intervals: int, max_iterations: int, label: str
                   ) -> tuple[np.ndarray, int]:
     """Reach the wall values in steps from zero when Newton fails from the initial guess.
@@ -97,8 +107,7 @@ def _continuation(problem: SectionProblem, intervals: int, max_iterations: int, 
     The continuation parameter t scales the wall values; its step doubles after a success and halves
     after a failure, and each solve starts from the previous solution. Runs on the first grid.
     """
-    inner = _adaptive.inner_length(problem.kappa2, np.asarray(problem.wall_potential_guess),
-                                   np.asarray(problem.counter_valence))
+    inner = _adaptive.inner_length(problem.kappa2, problem.wall_potential_guess, problem.counter_valence)
     g = grid.build(intervals, "half" if problem.half else "full", problem.metric, inner)
     psi = np.zeros(g.x.size)
     t, step, iterations = 0.0, 0.25, 0
@@ -107,9 +116,8 @@ def _continuation(problem: SectionProblem, intervals: int, max_iterations: int, 
         target = min(1.0, t + step)
         trial[:] = psi
         status, its, residual = _kernels.pb_newton(
-            trial, g.link, g.volume, problem.kappa2, problem.valence, problem.weight, problem.linear,
-            problem.bc_type, problem.bc_value * target, _adaptive.NEWTON_TOLERANCE, max_iterations,
-            _adaptive.MAX_STEP)
+            trial, g.link, g.volume, problem.kappa2, problem.ions, problem.model, _scaled_walls(problem.walls, target),
+            _adaptive.NEWTON_TOLERANCE, max_iterations, _adaptive.MAX_STEP)
         iterations += its
         if status == 0:
             psi[:], t, step = trial, target, step * 2.0

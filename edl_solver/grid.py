@@ -69,8 +69,8 @@ class Grid:
 def from_nodes(s: np.ndarray, beta: float, metric: int) -> Grid:
     """Grid of the computational nodes ``s`` mapped with stretching ``beta``."""
     n = s.size
-    x, link, volume = np.empty(n), np.empty(n - 1), np.empty(n)
-    _kernels.finite_volume_metric(s, beta, metric, x, link, volume)
+    x, link, volume, spacing = np.empty(n), np.empty(n - 1), np.empty(n), np.empty(n - 1)
+    _kernels.finite_volume_metric(s, beta, metric, x, link, volume, spacing)
     return Grid(s=s, x=x, link=link, volume=volume, metric=metric, beta=beta)
 
 

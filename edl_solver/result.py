@@ -68,6 +68,7 @@ SUMMARY_UNITS: dict[str, tuple[str, str]] = {
     "kappa_h": ("1", "half-height (slit) or radius (capillary) over the Debye length"),
     "zeta": ("V", "wall potential relative to the reservoir"),
     "wall_charge_density": ("C/m^2", "wall surface charge density"),
+    "stern_potential": ("V", "potential of the charge plane behind the Stern layer (zeta + sigma / C_S)"),
     "centre_potential": ("V", "potential at the slit mid-plane or capillary axis"),
     "mean_potential": ("V", "cross-section mean potential"),
     "flow_rate_eo": ("m^2/s|m^3/s", "electroosmotic flow rate (per unit width for a slit)"),

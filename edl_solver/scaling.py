@@ -14,14 +14,15 @@ from dataclasses import dataclass
 
 import numpy as np
 
-from edl_solver import _kernels
-from edl_solver.case import Capillary, Case, Wall
+from edl_solver import _kernels, walls
+from edl_solver.case import Capillary, Case
 from edl_solver.constants import AVOGADRO, ELEMENTARY_CHARGE
 
 
 @dataclass(frozen=True)
 class SectionProblem:
-    """Dimensionless statement of one cross-section problem, ready for the kernels.
+    """Dimensionless statement of one cross-section problem, ready for the kernels (see _kernels.py for
+    the packed ``ions``, ``walls`` and ``flow_walls`` arrays).
 
     The grid's left end is the bottom wall (full slit section) or the centre (half section); the right
     end is the top wall or the single wall.
@@ -30,15 +31,18 @@ class SectionProblem:
     metric: int
     half: bool
     kappa2: float
-    valence: np.ndarray
-    weight: np.ndarray
-    linear: bool
-    bc_type: np.ndarray
-    bc_value: np.ndarray
-    flow_type: np.ndarray
-    flow_value: np.ndarray
-    wall_potential_guess: tuple[float, float]
-    counter_valence: tuple[float, float]
+    ions: np.ndarray
+    model: int
+    walls: np.ndarray
+    flow_walls: np.ndarray
+    visco: float
+    wall_potential_guess: np.ndarray
+    counter_valence: np.ndarray
+
+    @property
+    def valence(self) -> np.ndarray:
+        """Ion valences."""
+        return self.ions[:, 0]
 
 
 @dataclass(frozen=True)
@@ -103,52 +107,46 @@ def scales(case: Case) -> Scales:
     )
 
 
-def _wall_condition(wall: Wall, units: Scales, kappa_l: float, counter: float) -> tuple[int, float, float]:
-    """Kernel boundary code, dimensionless value and a wall-potential guess for one wall."""
-    if wall.kind == "potential":
-        value = wall.zeta / units.thermal_voltage
-        return _kernels.POTENTIAL, value, value
-    sigma_hat = wall.charge_density / units.charge_density
-    # Gouy-Chapman/Grahame estimate of the wall potential from the charge in Debye units (a guess only)
-    guess = 2.0 / counter * math.asinh(0.5 * counter * sigma_hat / kappa_l)
-    return _kernels.FLUX, sigma_hat, guess
+MODEL_CODES = {"pb": _kernels.PB, "dh": _kernels.DH, "steric": _kernels.STERIC}
 
 
 def section_problem(case: Case, units: Scales) -> SectionProblem:
     """Dimensionless kernel inputs of ``case``."""
-    ions = case.electrolyte.ions
+    electrolyte, solvent = case.electrolyte, case.solvent
+    ions = electrolyte.ions
     valence = np.array([float(ion.valence) for ion in ions])
     conc = np.array([ion.concentration for ion in ions])
-    weight = valence * conc / np.sum(valence**2 * conc)
-    kappa_l = units.length / units.debye_length
+    diameter = ions[0].diameter if case.model == "steric" else 0.0
+    packing = conc * AVOGADRO * diameter**3
+    packed_ions = np.column_stack((valence, valence * conc / np.sum(valence**2 * conc), packing))
     half = case.symmetric
-    types, values, guesses, counters = [], [], [], []
-    walls = case.walls[1:] if half else case.walls
-    for wall in walls:
-        sign = -1.0 if (wall.zeta if wall.kind == "potential" else wall.charge_density) >= 0 else 1.0
-        counter = max((abs(z) for z in valence if z * sign > 0), default=1.0)
-        t, v, g = _wall_condition(wall, units, kappa_l, counter)
-        types.append(t)
-        values.append(v)
-        guesses.append(g)
-        counters.append(counter)
-    if half:  # left end is the symmetry plane (slit mid-plane or capillary axis)
-        types.insert(0, _kernels.FLUX)
-        values.insert(0, 0.0)
+    sides = case.walls[1:] if half else case.walls
+    rows, flows, guesses, counters = [], [], [], []
+    for wall in sides:
+        rows.append(walls.wall_row(wall, electrolyte, solvent, units.length))
+        zeta, _ = walls.isolated_wall(wall, electrolyte, solvent, case.model)
+        guesses.append(zeta / units.thermal_voltage)
+        sign = -1.0 if zeta >= 0.0 else 1.0  # counter-ions carry the sign opposite to the wall's
+        counters.append(max((abs(z) for z in valence if z * sign > 0), default=1.0))
+        slip = wall.slip_length / units.length
+        flows.append((_kernels.ROBIN, 1.0 / slip) if slip > 0.0 else (_kernels.POTENTIAL, 0.0))
+    if half:  # the left end is the symmetry plane (slit mid-plane or capillary axis)
+        symmetry = np.zeros(_kernels.WALL_SIZE)
+        symmetry[_kernels.W_TYPE] = _kernels.FLUX
+        rows.insert(0, symmetry)
+        flows.insert(0, (_kernels.FLUX, 0.0))
         guesses.insert(0, 0.0)
         counters.insert(0, 1.0)
-    flow_type = np.array([_kernels.FLUX if half else _kernels.POTENTIAL, _kernels.POTENTIAL])
+    field_unit = units.thermal_voltage / units.length
     return SectionProblem(
         metric=1 if isinstance(case.geometry, Capillary) else 0,
         half=half,
-        kappa2=kappa_l**2,
-        valence=valence,
-        weight=weight,
-        linear=case.model == "dh",
-        bc_type=np.array(types, dtype=np.int64),
-        bc_value=np.array(values),
-        flow_type=flow_type.astype(np.int64),
-        flow_value=np.zeros(2),
-        wall_potential_guess=(guesses[0], guesses[1]),
-        counter_valence=(counters[0], counters[1]),
+        kappa2=(units.length / units.debye_length) ** 2,
+        ions=packed_ions,
+        model=MODEL_CODES[case.model],
+        walls=np.array(rows),
+        flow_walls=np.array(flows, dtype=float),
+        visco=solvent.viscoelectric_coefficient * field_unit**2,
+        wall_potential_guess=np.array(guesses),
+        counter_valence=np.array(counters),
     )

@@ -114,6 +114,9 @@ class Solvent:
         Dynamic viscosity in Pa s, or a string with units (``"0.89 mPa*s"``).
     name : str, optional
         Label for reports.
+    viscoelectric_coefficient : float or str, optional
+        f in eta = eta_0 (1 + f |E|^2), m^2/V^2 (viscoelectric effect, Lyklema & Overbeek 1961); 0 (the
+        default) switches it off.
 
     Raises
     ------
@@ -129,6 +132,7 @@ class Solvent:
     relative_permittivity: float
     viscosity: float
     name: str = "custom"
+    viscoelectric_coefficient: float = 0.0
 
     def __post_init__(self) -> None:
         converted = {
@@ -139,6 +143,11 @@ class Solvent:
             ),
             "viscosity": _positive(self.viscosity, "Pa*s", "solvent.viscosity", "a viscosity > 0 Pa*s"),
         }
+        converted["viscoelectric_coefficient"] = to_si(self.viscoelectric_coefficient, "m^2/V^2",
+                                                       "solvent.viscoelectric_coefficient")
+        if converted["viscoelectric_coefficient"] < 0.0:
+            raise InputError(f"solvent.viscoelectric_coefficient: {self.viscoelectric_coefficient!r} is negative, "
+                             "expected f >= 0 m^2/V^2")
         for key, number in converted.items():
             object.__setattr__(self, key, number)  # frozen dataclass: bypass the read-only guard
         if not isinstance(self.name, str):
@@ -159,6 +168,7 @@ def Water(  # capitalised: reads as a constructor in the public API, edl.Water(t
     temperature: float | str = 298.15,
     relative_permittivity: float | str | None = None,
     viscosity: float | str | None = None,
+    viscoelectric: bool | float | str = False,
 ) -> Solvent:
     """Liquid water at ``temperature`` and atmospheric pressure.
 
@@ -173,6 +183,9 @@ def Water(  # capitalised: reads as a constructor in the public API, edl.Water(t
         Overrides the correlation.
     viscosity : float or str, optional
         Overrides the correlation; Pa s or a string with units.
+    viscoelectric : bool, float or str, optional
+        The viscoelectric effect: True takes water's coefficient ``WATER_VISCOELECTRIC_COEFFICIENT``, a
+        number (m^2/V^2) or string sets it; False (the default) leaves it off.
 
     Returns
     -------
@@ -189,4 +202,15 @@ def Water(  # capitalised: reads as a constructor in the public API, edl.Water(t
         relative_permittivity = water_relative_permittivity(temperature, field="water.temperature")
     if viscosity is None:
         viscosity = water_viscosity(temperature, field="water.temperature")
-    return Solvent(kelvin, relative_permittivity, viscosity, name="water")
+    if viscoelectric is True:
+        coefficient: float | str = WATER_VISCOELECTRIC_COEFFICIENT
+    elif viscoelectric is False:
+        coefficient = 0.0
+    else:
+        coefficient = viscoelectric
+    return Solvent(kelvin, relative_permittivity, viscosity, name="water", viscoelectric_coefficient=coefficient)
+
+
+#: Viscoelectric coefficient of water, m^2/V^2: f ~ 1.0e-15 (Lyklema & Overbeek 1961, J. Colloid Sci. 16,
+#: 501; from memory).
+WATER_VISCOELECTRIC_COEFFICIENT = 1.0e-15

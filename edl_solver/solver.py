@@ -90,12 +90,19 @@ def _equilibrium_summary(section: SectionSolution, units: Scales, case: Case) ->
     """Wall, centre and mean potentials and the wall charge, SI."""
     i = section.integrals
     vt = units.thermal_voltage
-    return {
+    zetas = (i[k.I_PSI_LEFT] * vt, i[k.I_PSI_RIGHT] * vt)
+    sigmas = (i[k.I_FLUX_LEFT] * units.charge_density, i[k.I_FLUX_RIGHT] * units.charge_density)
+    extra: dict[str, Any] = {}
+    if any(w.stern_capacitance is not None for w in case.walls):
+        # potential of the charge plane, behind the Stern layer: psi_0 = zeta + sigma / C_S
+        extra["stern_potential"] = _pair(tuple(
+            z + q / w.stern_capacitance if w.stern_capacitance is not None else math.nan
+            for z, q, w in zip(zetas, sigmas, case.walls)), case)
+    return extra | {
         "debye_length": units.debye_length,
         "kappa_h": units.length / units.debye_length,
-        "zeta": _pair((i[k.I_PSI_LEFT] * vt, i[k.I_PSI_RIGHT] * vt), case),
-        "wall_charge_density": _pair((i[k.I_FLUX_LEFT] * units.charge_density,
-                                      i[k.I_FLUX_RIGHT] * units.charge_density), case),
+        "zeta": _pair(zetas, case),
+        "wall_charge_density": _pair(sigmas, case),
         "centre_potential": i[k.I_PSI_CENTRE] * vt,
         "mean_potential": i[k.I_PSI] * units.area / units.section_area * vt,
     }
@@ -136,23 +143,17 @@ def _profiles(section: SectionSolution, units: Scales, case: Case) -> Profiles:
     )
 
 
-def _thin_layer_zetas(case: Case) -> tuple[float, float]:
-    """Zeta of each wall as the thin-layer model sees it (Grahame value for a charged wall)."""
-    return tuple(
-        wall.zeta if wall.kind == "potential" else
-        thin_layer.grahame_zeta(wall.charge_density, case.electrolyte, case.solvent, case.model == "dh")
-        for wall in case.walls)
-
-
 def _thin_layer_slip(case: Case) -> tuple[float, float]:
-    """Slip velocity per unit field at each wall, m^2/(V s)."""
-    return tuple(thin_layer.slip_velocity(z, case.solvent, 1.0) for z in _thin_layer_zetas(case))
+    """Slip velocity per unit field at each wall, m^2/(V s), of the isolated walls (thin-layer picture)."""
+    zetas, sigmas = thin_layer.thin_layer_walls(case)
+    return tuple(thin_layer.slip_velocity(z, case.solvent, 1.0, q, w.slip_length)
+                 for z, q, w in zip(zetas, sigmas, case.walls))
 
 
 def _thin_layer_summary(summary: dict[str, Any], profiles: Profiles, units: Scales, case: Case
                         ) -> dict[str, Any]:
     """The thin-layer counterparts and the errors of the thin-layer model (independent of E)."""
-    zetas = _thin_layer_zetas(case)
+    zetas, _ = thin_layer.thin_layer_walls(case)
     slip = _thin_layer_slip(case)
     thin_per_field = units.section_area * 0.5 * (slip[0] + slip[1])
     full_per_field = summary["_flow_rate_eo_per_field"]

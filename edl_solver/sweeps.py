@@ -250,16 +250,24 @@ class _Store:
         f = self.file
         text = h5py.string_dtype()
         dims = tuple(axis.name for axis in self.axes)
-        f.dimensions = {**{axis.name: axis.size for axis in self.axes}, "wall": 2}
+        f.dimensions = {axis.name: axis.size for axis in self.axes}
+        if self.pair:  # as in memory: a wall dimension only when some values are (bottom, top) pairs
+            f.dimensions["wall"] = 2
         for axis in self.axes:
             for path, values in zip(axis.paths, axis.values):
                 data = np.array(values, dtype=object if path in WORD_PATHS else float)
                 var = f.create_variable(path, (axis.name,), text if path in WORD_PATHS else float, data=data)
                 var.attrs["units"] = PATH_UNITS.get(path, "1")
                 var.attrs["long_name"] = f"swept input {path}"
-        f.create_variable("wall", ("wall",), text, data=np.array(["bottom", "top"], dtype=object))
+        if self.pair:
+            f.create_variable("wall", ("wall",), text, data=np.array(["bottom", "top"], dtype=object))
+        # Zipped paths other than the first are coordinates too (CF "coordinates"), not data variables.
+        extra = [path for axis in self.axes for path in axis.paths[1:]]
+        if extra:
+            f.attrs["coordinates"] = " ".join(extra)
         chunks = (*((1,) * (len(dims) - 1)), self.shape[-1])
-        status = f.create_variable("status", dims, np.int8, fillvalue=np.int8(PENDING), chunks=chunks)
+        # No _FillValue: xarray would mask -1 and open status as float; every entry is written below.
+        status = f.create_variable("status", dims, np.int8, chunks=chunks)
         status[...] = np.full(self.shape, PENDING, dtype=np.int8)
         status.attrs["long_name"] = "0 converged, 1 failed (see message), -1 not computed yet"
         status.attrs["units"] = "1"

@@ -4,19 +4,17 @@ In the thin-layer limit the double layer is replaced by the Helmholtz-Smoluchows
 u_s = -eps zeta E / eta at each wall (Smoluchowski 1903), and the liquid outside carries no charge:
 plug flow between equal walls, the linear (Couette-like) profile between two different slip velocities
 in a slit. For a wall of fixed charge the thin-layer model takes zeta from the single-wall Grahame
-relation at the bulk concentration, as a practitioner would.
+relation at the bulk concentration, as a practitioner would (a regulating wall: the self-consistent
+charge and potential of the isolated wall).
 """
 
 from __future__ import annotations
 
 import math
 
-import numpy as np
-from scipy.optimize import brentq
-
-from edl_solver.case import Electrolyte
-from edl_solver.constants import AVOGADRO, ELEMENTARY_CHARGE
+from edl_solver.case import Case, Electrolyte, Wall
 from edl_solver.solvent import Solvent
+from edl_solver.walls import isolated_wall
 
 
 def grahame_zeta(charge_density: float, electrolyte: Electrolyte, solvent: Solvent, linear: bool = False
@@ -27,43 +25,34 @@ def grahame_zeta(charge_density: float, electrolyte: Electrolyte, solvent: Solve
 
         sigma^2 = 2 eps kT N_A sum_i c_i (exp(-z_i e zeta / kT) - 1),  sign(zeta) = sign(sigma)
 
-    and its linearisation sigma = eps kappa zeta when ``linear`` (the Debye-Hueckel model).
-
-    Parameters
-    ----------
-    charge_density : float
-        sigma, C/m^2.
-    electrolyte, solvent
-        Bulk electrolyte and solvent.
-    linear : bool
-        Use the Debye-Hueckel relation.
+    and its linearisation sigma = eps kappa zeta when ``linear`` (the Debye-Hueckel model); see
+    ``walls.isolated_wall`` for regulated walls and the steric model.
 
     Returns
     -------
     float
         zeta, V.
     """
-    eps = solvent.permittivity
-    kt_e = solvent.thermal_voltage
-    if linear or charge_density == 0.0:
-        return charge_density * electrolyte.debye_length(solvent) / eps
-    valence = np.array([ion.valence for ion in electrolyte.ions], dtype=float)
-    conc = np.array([ion.concentration for ion in electrolyte.ions])
-    target = charge_density**2 / (2.0 * eps * ELEMENTARY_CHARGE * kt_e * AVOGADRO)  # mol/m^3
-    sign = math.copysign(1.0, charge_density)
-
-    def excess(psi: float) -> float:
-        return float(np.sum(conc * np.expm1(-valence * sign * psi))) - target
-
-    upper = 1.0
-    while excess(upper) < 0.0:
-        upper *= 2.0
-    return sign * brentq(excess, 0.0, upper, xtol=1e-15, rtol=1e-14) * kt_e
+    zeta, _ = isolated_wall(Wall(charge_density=charge_density), electrolyte, solvent, "dh" if linear else "pb")
+    return zeta
 
 
-def slip_velocity(zeta: float, solvent: Solvent, field: float) -> float:
-    """Helmholtz-Smoluchowski slip velocity u_s = -eps zeta E / eta, m/s (Smoluchowski 1903)."""
-    return -solvent.permittivity * zeta * field / solvent.viscosity
+def thin_layer_walls(case: Case) -> tuple[tuple[float, float], tuple[float, float]]:
+    """((zeta_bottom, zeta_top), (sigma_bottom, sigma_top)) of the walls as the thin-layer model sees them:
+    each wall alone in contact with the bulk (``walls.isolated_wall``)."""
+    pairs = [isolated_wall(wall, case.electrolyte, case.solvent, case.model) for wall in case.walls]
+    return (pairs[0][0], pairs[1][0]), (pairs[0][1], pairs[1][1])
+
+
+def slip_velocity(zeta: float, solvent: Solvent, field: float, charge_density: float = 0.0,
+                  slip_length: float = 0.0) -> float:
+    """Helmholtz-Smoluchowski slip velocity, m/s: u_s = -eps zeta E / eta (Smoluchowski 1903); with a
+    Navier slip length b, u_s = -(eps E / eta)(zeta + b sigma / eps), which is -eps zeta E / eta
+    (1 + b / lambda_D) for a Debye-Hueckel layer (Joly, Ybert, Trizac & Bocquet 2004, Phys. Rev. Lett. 93,
+    257805; from memory). Derivation: in the layer eta u' = eps E phi' (no stress outside), and the slip
+    condition u(0) = b u'(0) with eps phi'(0) = -sigma."""
+    return -solvent.permittivity * field / solvent.viscosity * (zeta + slip_length * charge_density
+                                                                  / solvent.permittivity)
 
 
 def verdict(error: float, tolerance: float, quantity: str = "EO flow rate") -> str:

@@ -11,7 +11,7 @@ import numpy as np
 
 from edl_solver import _kernels as k
 from edl_solver.case import Case
-from edl_solver.constants import FARADAY
+from edl_solver.constants import AVOGADRO, FARADAY
 from edl_solver.scaling import Scales
 
 
@@ -37,9 +37,15 @@ def current_summary(integrals: np.ndarray, units: Scales, case: Case) -> dict[st
 
 
 def concentrations(psi: np.ndarray, case: Case) -> np.ndarray:
-    """Ion concentrations c_i = c_i,bulk exp(-z_i psi) (linearised for the Debye-Hueckel model), mol/m^3."""
-    rows = []
-    for ion in case.electrolyte.ions:
-        factor = 1.0 - ion.valence * psi if case.model == "dh" else np.exp(-ion.valence * psi)
-        rows.append(ion.concentration * factor)
-    return np.array(rows)
+    """Ion concentrations across the section, mol/m^3: c_i = c_i,bulk exp(-z_i psi) (linearised for the
+    Debye-Hueckel model; divided by the crowding factor 1 + sum_j nu_j (exp(-z_j psi) - 1) for the steric
+    model, Kilic, Bazant & Ajdari 2007)."""
+    ions = case.electrolyte.ions
+    if case.model == "dh":
+        return np.array([ion.concentration * (1.0 - ion.valence * psi) for ion in ions])
+    boltzmann = np.array([np.exp(-ion.valence * psi) for ion in ions])
+    bulk = np.array([ion.concentration for ion in ions])[:, None]
+    if case.model == "steric":
+        packing = bulk * AVOGADRO * ions[0].diameter ** 3
+        return bulk * boltzmann / (1.0 + np.sum(packing * (boltzmann - 1.0), axis=0))
+    return bulk * boltzmann

@@ -38,16 +38,15 @@ def level_integrals(case: edl.Case, intervals: int) -> np.ndarray:
     """Raw (unextrapolated) section integrals of the finest of ``levels`` grids."""
     units = scaling.scales(case)
     problem = scaling.section_problem(case, units)
-    wall_guess, counter = np.array(problem.wall_potential_guess), np.array(problem.counter_valence)
+    wall_guess, counter = problem.wall_potential_guess, problem.counter_valence
     inner = _adaptive.inner_length(problem.kappa2, wall_guess, counter)
     g = grid.build(intervals, "half" if problem.half else "full", problem.metric, inner)
     psi = np.empty_like(g.x)
     _adaptive.gouy_chapman_guess(g.x, problem.kappa2, problem.half, wall_guess, counter, psi)
     out = np.zeros((_adaptive.LEVELS, _kernels.ION_INTEGRALS + problem.valence.size))
     status, _, _ = _adaptive.nested_solve(
-        g.s, g.beta, problem.metric, problem.kappa2, problem.valence, problem.weight, problem.linear,
-        problem.bc_type, problem.bc_value, problem.flow_type, problem.flow_value, psi,
-        np.empty_like(psi), np.empty_like(psi), 200, out)
+        g.s, g.beta, problem.metric, problem.kappa2, problem.ions, problem.model, problem.walls,
+        problem.flow_walls, problem.visco, psi, np.empty_like(psi), np.empty_like(psi), 200, out)
     assert status == 0
     return out[-1]
 
