@@ -32,6 +32,7 @@ from __future__ import annotations
 
 import argparse
 import gc
+import hashlib
 import itertools
 import json
 import math
@@ -348,6 +349,15 @@ def fmt_us(seconds: float) -> str:
 # The run
 # ------------------------------------------------------------------------------------------------
 
+def source_digest() -> str:
+    """Short SHA-256 of the package's Python sources: names the state of the tree that was measured."""
+    digest = hashlib.sha256()
+    for path in sorted((ROOT / "edl_solver").rglob("*.py")):
+        digest.update(path.relative_to(ROOT).as_posix().encode())
+        digest.update(path.read_bytes())
+    return digest.hexdigest()[:12]
+
+
 def machine() -> dict[str, str]:
     cpu = platform.processor() or platform.machine()
     try:
@@ -360,7 +370,7 @@ def machine() -> dict[str, str]:
         pass
     return {"platform": platform.platform(), "cpu": cpu, "cpu_count": str(os.cpu_count()),
             "python": platform.python_version(), "numpy": np.__version__, "scipy": scipy.__version__,
-            "numba": numba.__version__, "edl_solver": edl.__version__}
+            "numba": numba.__version__, "edl_solver": f"{edl.__version__} (sources {source_digest()})"}
 
 
 def worst_of(err: dict[str, np.ndarray]) -> np.ndarray:

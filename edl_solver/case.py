@@ -12,6 +12,7 @@ with r from 0 (axis) to a; the field E > 0 points along +x, the axial direction.
 
 from __future__ import annotations
 
+import itertools
 import math
 from collections.abc import Mapping, Sequence
 from dataclasses import dataclass
@@ -273,7 +274,7 @@ class Site:
         charges = tuple(self.charges)
         if not all(isinstance(q, int) and not isinstance(q, bool) for q in charges) \
                 or len(charges) != len(pks) + 1 or not 2 <= len(charges) <= MAX_SITE_STATES \
-                or any(b != a - 1 for a, b in zip(charges, charges[1:])):
+                or any(b != a - 1 for a, b in itertools.pairwise(charges)):
             raise InputError(f"{label}.charges: {self.charges!r} does not fit pK {self.pK!r}, expected one more "
                              f"integer charge than pKs (at most {MAX_SITE_STATES} states), each step one lower, "
                              "e.g. (0, -1)")
