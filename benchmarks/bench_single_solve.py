@@ -662,7 +662,7 @@ def main(argv: list[str] | None = None) -> dict:
         print(f"    {row['tol']:6.0e} {counts:>9s} {row['max_nodes_used']:6d} {row['mean_s'] * 1e6:9.0f} "
               f"{row['mean_s'] / edl_sample_mean:6.1f}  "
               + " ".join(f"{row['errors'][q]['max']:11.1e}/{row['errors'][q]['median']:8.1e} " for q in QUANTITIES)
-              + ("  <- equal accuracy" if row is chosen else ""))
+              + ("  <- equal accuracy" if row is chosen and matching else ("  <- raced" if row is chosen else "")))
     print("    (status 0 = converged; 1 = max_nodes exceeded; 2 = singular Jacobian; 3 = tol not reached)")
     if not matching:
         print("    NO tol on the ladder reached edl_solver's worst error; raced at the tightest")

@@ -40,6 +40,9 @@ NEWTON_TOLERANCE = 1e-11
 #: Newton steps are capped at this size (kT/e) before the line search.
 MAX_STEP = 5.0
 
+#: Potentials below this (kT/e) count as zero when errors are measured (and in the identity checks).
+POTENTIAL_FLOOR = 1e-6
+
 # status codes of a case
 CONVERGED = 0
 NEWTON_FAILED = 1
@@ -131,12 +134,15 @@ def extrapolate(fine, medium, coarse, out):
 
 
 @njit(cache=True)
-def error_scale(values, measure, n_ions, scale):
+def error_scale(values, measure, n_ions, kappa, scale):
     """Magnitudes the errors of the integrals are measured against: the value itself, or, where it may
     vanish (the centre potential of a wide channel, flows between walls of opposite sign), the natural
     size built from the wall potential, the wall charge and the pressure-flow scale."""
-    psi_scale = max(abs(values[I_PSI_LEFT]), abs(values[I_PSI_RIGHT]), 1e-300)
-    wall_charge = abs(values[I_FLUX_LEFT]) + abs(values[I_FLUX_RIGHT]) + 1e-300
+    # Floors: 1e-6 kT/e for potentials and the charge such a potential holds on a Debye-Hueckel wall, so that
+    # walls at (or near) zero potential or charge, e.g. at their point of zero charge, are measured against
+    # a physical size rather than their own round-off.
+    psi_scale = max(abs(values[I_PSI_LEFT]), abs(values[I_PSI_RIGHT]), POTENTIAL_FLOOR)
+    wall_charge = abs(values[I_FLUX_LEFT]) + abs(values[I_FLUX_RIGHT]) + POTENTIAL_FLOOR * max(1.0, kappa)
     up_scale = abs(values[I_UP]) / measure
     for j in range(values.size):
         scale[j] = abs(values[j])
@@ -257,7 +263,7 @@ def solve_adaptive(metric, half, kappa2, ions, model, walls, flow_walls, visco, 
         extrapolate(levels[3], levels[2], levels[1], out)
         extrapolate(levels[2], levels[1], levels[0], lower)
         measure = 1.0 if (half and metric == 0) else (2.0 if metric == 0 else 0.5)
-        error_scale(out, measure, n_ions, scale)
+        error_scale(out, measure, n_ions, np.sqrt(kappa2), scale)
         estimate = 0.0
         for j in range(out.size):
             estimate = max(estimate, abs(out[j] - lower[j]) / scale[j])

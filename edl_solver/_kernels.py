@@ -68,6 +68,21 @@ I_FLUX_LEFT = 8  # outward-normal derivative of psi at the left end (r^m sigma_h
 I_FLUX_RIGHT = 9
 I_PSI_CENTRE = 10
 ION_INTEGRALS = 11  # int c_k / c_k,bulk dV for each ion k
+# Then, for the linear-response matrix (n ions; see ``response_offsets``): int u_j dV for the flow u_j
+# driven by the body force on ion j (div(eta grad u_j) = -c_j / c_j,bulk), n values; int (c_i/c_i,bulk) u_p dV,
+# n values; int (c_i/c_i,bulk) u_j dV, n*n values (row i, column j).
+
+
+@njit(cache=True)
+def response_offsets(n_ions):
+    """Start of the three response blocks in the integral vector, and its total length."""
+    first = ION_INTEGRALS + n_ions
+    return first, first + n_ions, first + 2 * n_ions, first + 2 * n_ions + n_ions * n_ions
+
+
+def integral_count(n_ions: int) -> int:
+    """Length of the integral vector for ``n_ions`` ions."""
+    return ION_INTEGRALS + 3 * n_ions + n_ions * n_ions
 
 
 @njit(cache=True)
@@ -411,8 +426,18 @@ def section_integrals(psi, link, volume, spacing, kappa2, ions, model, walls, ce
     stokes(link, viscosity, volume, rho, flow_walls, u_eo)
     ones = np.ones(n)
     stokes(link, viscosity, volume, ones, flow_walls, u_p)
+    n_ions = ions.shape[0]
+    conc = np.empty((n_ions, n))
+    for k in range(n_ions):
+        for i in range(n):
+            conc[k, i] = concentration_factor(psi[i], ions, k, model)
+    # flows driven by the body force on each ion (the columns of the linear-response matrix)
+    ion_flows = np.empty((n_ions, n))
+    for k in range(n_ions):
+        stokes(link, viscosity, volume, -conc[k], flow_walls, ion_flows[k])
     for j in range(out.size):
         out[j] = 0.0
+    ion_flow_at, conc_up_at, conc_flow_at, _ = response_offsets(n_ions)
     for i in range(n):
         v = volume[i]
         r = -rho[i] / kappa2
@@ -422,8 +447,12 @@ def section_integrals(psi, link, volume, spacing, kappa2, ions, model, walls, ce
         out[I_RHO_UEO] += v * r * u_eo[i]
         out[I_RHO_UP] += v * r * u_p[i]
         out[I_RHO] += v * r
-        for k in range(ions.shape[0]):
-            out[ION_INTEGRALS + k] += v * concentration_factor(psi[i], ions, k, model)
+        for k in range(n_ions):
+            out[ION_INTEGRALS + k] += v * conc[k, i]
+            out[ion_flow_at + k] += v * ion_flows[k, i]
+            out[conc_up_at + k] += v * conc[k, i] * u_p[i]
+            for m in range(n_ions):
+                out[conc_flow_at + k * n_ions + m] += v * conc[k, i] * ion_flows[m, i]
     out[I_PSI_LEFT] = psi[0]
     out[I_PSI_RIGHT] = psi[n - 1]
     out[I_PSI_CENTRE] = psi[centre]

@@ -9,6 +9,7 @@ values when Newton fails from the Gouy-Chapman guess, and turns failures into ``
 
 from __future__ import annotations
 
+from collections.abc import Callable
 from dataclasses import dataclass
 
 import numpy as np
@@ -50,7 +51,7 @@ class SectionSolution:
 
 def _run(problem: SectionProblem, accuracy: float, intervals: int, max_iterations: int, max_intervals: int,
          guess: np.ndarray) -> tuple:
-    out = np.zeros(_kernels.ION_INTEGRALS + problem.ions.shape[0])
+    out = np.zeros(_kernels.integral_count(problem.ions.shape[0]))
     result = _adaptive.solve_adaptive(
         problem.metric, problem.half, problem.kappa2, problem.ions, problem.model, problem.walls,
         problem.flow_walls, problem.visco, problem.wall_potential_guess, problem.counter_valence, accuracy,
@@ -59,7 +60,8 @@ def _run(problem: SectionProblem, accuracy: float, intervals: int, max_iteration
 
 
 def solve_section(problem: SectionProblem, accuracy: float, intervals: int | None = None,
-                  max_iterations: int = 200, max_intervals: int = 4096, label: str = "") -> SectionSolution:
+                  max_iterations: int = 200, max_intervals: int = 4096,
+                  label: str | Callable[[], str] = "") -> SectionSolution:
     """Solve one section to the requested relative ``accuracy`` (or on a fixed grid of ``intervals``).
 
     Raises
@@ -68,6 +70,8 @@ def solve_section(problem: SectionProblem, accuracy: float, intervals: int | Non
         If Newton fails even with continuation in the wall values, or the error estimate misses
         ``accuracy`` at ``max_intervals`` cells per half section. ``label`` names the case.
     """
+    if callable(label):  # built only when a message needs it
+        label = label()
     fixed = intervals or 0
     status, its, estimate, residual, n_half, s, beta, psi, u_eo, u_p, out = _run(
         problem, accuracy, fixed, max_iterations, max_intervals, np.empty(0))

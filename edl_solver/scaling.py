@@ -110,8 +110,12 @@ def scales(case: Case) -> Scales:
 MODEL_CODES = {"pb": _kernels.PB, "dh": _kernels.DH, "steric": _kernels.STERIC}
 
 
-def section_problem(case: Case, units: Scales) -> SectionProblem:
-    """Dimensionless kernel inputs of ``case``."""
+def section_problem(case: Case, units: Scales,
+                    isolated: tuple[tuple[float, float], tuple[float, float]] | None = None) -> SectionProblem:
+    """Dimensionless kernel inputs of ``case``; ``isolated`` are the walls' (zeta, sigma) when alone in the
+    bulk (``walls.isolated_walls``), which start the Newton iteration and set the grid stretching."""
+    if isolated is None:
+        isolated = walls.isolated_walls(case)
     electrolyte, solvent = case.electrolyte, case.solvent
     ions = electrolyte.ions
     valence = np.array([float(ion.valence) for ion in ions])
@@ -120,11 +124,10 @@ def section_problem(case: Case, units: Scales) -> SectionProblem:
     packing = conc * AVOGADRO * diameter**3
     packed_ions = np.column_stack((valence, valence * conc / np.sum(valence**2 * conc), packing))
     half = case.symmetric
-    sides = case.walls[1:] if half else case.walls
+    sides = tuple(zip(case.walls, isolated))[1:] if half else tuple(zip(case.walls, isolated))
     rows, flows, guesses, counters = [], [], [], []
-    for wall in sides:
+    for wall, (zeta, _) in sides:
         rows.append(walls.wall_row(wall, electrolyte, solvent, units.length))
-        zeta, _ = walls.isolated_wall(wall, electrolyte, solvent, case.model)
         guesses.append(zeta / units.thermal_voltage)
         sign = -1.0 if zeta >= 0.0 else 1.0  # counter-ions carry the sign opposite to the wall's
         counters.append(max((abs(z) for z in valence if z * sign > 0), default=1.0))

@@ -3,13 +3,13 @@
 from __future__ import annotations
 
 import math
-from dataclasses import replace
 from typing import Any
 
 import numpy as np
 
+from edl_solver import _adaptive
 from edl_solver import _kernels as k
-from edl_solver import equilibrium, flow, scaling, thin_layer, transport, validity
+from edl_solver import equilibrium, flow, scaling, thin_layer, transport, validity, walls
 from edl_solver.case import Capillary, Case
 from edl_solver.constants import AVOGADRO, ELEMENTARY_CHARGE
 from edl_solver.equilibrium import SectionSolution
@@ -48,15 +48,17 @@ def solve(case: Case) -> Result:
 
         raise InputError(f"case: {type(case).__name__} is not a Case, expected edl_solver.Case(...)")
     units = scaling.scales(case)
-    problem = scaling.section_problem(case, units)
+    isolated = walls.isolated_walls(case)
+    problem = scaling.section_problem(case, units, isolated)
     numerics = case.numerics
     section = equilibrium.solve_section(problem, numerics.accuracy, numerics.intervals,
-                                        numerics.max_iterations, numerics.max_intervals, case.describe())
+                                        numerics.max_iterations, numerics.max_intervals, case.describe)
     summary = _equilibrium_summary(section, units, case)
     summary.update(flow.flow_summary(section.integrals, units, case))
     summary.update(transport.current_summary(section.integrals, units, case))
-    profiles = _profiles(section, units, case)
-    comparison = _thin_layer_summary(summary, profiles, units, case)
+    slip = _thin_layer_slip(case, isolated)
+    profiles = _profiles(section, units, case, slip)
+    comparison = _thin_layer_summary(summary, profiles, units, case, isolated, slip)
     summary.update(comparison)
     summary.update(_identity_checks(section, problem.kappa2, case))
     summary["error_estimate"] = section.error_estimate
@@ -108,7 +110,7 @@ def _equilibrium_summary(section: SectionSolution, units: Scales, case: Case) ->
     }
 
 
-def _profiles(section: SectionSolution, units: Scales, case: Case) -> Profiles:
+def _profiles(section: SectionSolution, units: Scales, case: Case, slip: tuple[float, float]) -> Profiles:
     """Profiles across the whole section; a symmetric slit's half section is mirrored."""
     x = section.grid.x
     psi, u_eo_hat, u_p_hat = section.psi, section.u_eo, section.u_p
@@ -123,11 +125,10 @@ def _profiles(section: SectionSolution, units: Scales, case: Case) -> Profiles:
     conc = transport.concentrations(psi, case)
     valence = np.array([ion.valence for ion in case.electrolyte.ions])[:, None]
     rho = ELEMENTARY_CHARGE * AVOGADRO * np.sum(valence * conc, axis=0)
-    walls = _thin_layer_slip(case)
     if capillary:
-        thin = np.full_like(coordinate, walls[1])
+        thin = np.full_like(coordinate, slip[1])
     else:
-        thin = walls[0] + (walls[1] - walls[0]) * coordinate / case.geometry.height
+        thin = slip[0] + (slip[1] - slip[0]) * coordinate / case.geometry.height
     return Profiles(
         coordinate=coordinate,
         coordinate_name="r" if capillary else "y",
@@ -139,22 +140,22 @@ def _profiles(section: SectionSolution, units: Scales, case: Case) -> Profiles:
         velocity=u_eo + u_p,
         velocity_thin_layer=thin * case.field,
         ion_names=tuple(ion.name for ion in case.electrolyte.ions),
-        eo_per_field=flow.velocity_profiles(u_eo_hat, u_p_hat, units, replace(case, field=1.0))[0],
+        eo_per_field=units.eo_velocity_per_field * u_eo_hat,
     )
 
 
-def _thin_layer_slip(case: Case) -> tuple[float, float]:
+def _thin_layer_slip(case: Case, isolated: tuple[tuple[float, float], tuple[float, float]]
+                     ) -> tuple[float, float]:
     """Slip velocity per unit field at each wall, m^2/(V s), of the isolated walls (thin-layer picture)."""
-    zetas, sigmas = thin_layer.thin_layer_walls(case)
-    return tuple(thin_layer.slip_velocity(z, case.solvent, 1.0, q, w.slip_length)
-                 for z, q, w in zip(zetas, sigmas, case.walls))
+    return tuple(thin_layer.slip_velocity(zeta, case.solvent, 1.0, sigma, wall.slip_length)
+                 for (zeta, sigma), wall in zip(isolated, case.walls))
 
 
-def _thin_layer_summary(summary: dict[str, Any], profiles: Profiles, units: Scales, case: Case
+def _thin_layer_summary(summary: dict[str, Any], profiles: Profiles, units: Scales, case: Case,
+                        isolated: tuple[tuple[float, float], tuple[float, float]], slip: tuple[float, float]
                         ) -> dict[str, Any]:
     """The thin-layer counterparts and the errors of the thin-layer model (independent of E)."""
-    zetas, _ = thin_layer.thin_layer_walls(case)
-    slip = _thin_layer_slip(case)
+    zetas = (isolated[0][0], isolated[1][0])
     thin_per_field = units.section_area * 0.5 * (slip[0] + slip[1])
     full_per_field = summary["_flow_rate_eo_per_field"]
     # Between walls of opposite sign either flow may vanish; below round-off of the slip scale the
@@ -202,15 +203,16 @@ def _identity_checks(section: SectionSolution, kappa2: float, case: Case) -> dic
     i = section.integrals
     left_is_wall = section.grid.x[0] != 0.0  # a half section starts at the centre, not at a wall
     left = i[k.I_FLUX_LEFT] if left_is_wall else 0.0
-    wall = abs(left) + abs(i[k.I_FLUX_RIGHT])
+    wall = abs(left) + abs(i[k.I_FLUX_RIGHT]) + _adaptive.POTENTIAL_FLOOR * max(1.0, math.sqrt(kappa2))
     net = kappa2 * i[k.I_RHO] + i[k.I_FLUX_RIGHT] + left
-    balance = abs(net) / wall if wall > 0 else abs(net)
+    balance = abs(net) / wall
     # Onsager (1931): streaming current per pressure gradient = EO flow rate per field, i.e.
     # int u_eo_hat dV = -kappa2 int rho_hat u_p_hat dV in the dimensionless variables.
     # Measured against the larger of the two and the wall-potential scale, since both vanish between
     # walls of opposite sign.
     eo, streaming = i[k.I_UEO], -kappa2 * i[k.I_RHO_UP]
-    wall_scale = max(abs(i[k.I_PSI_LEFT]), abs(i[k.I_PSI_RIGHT])) * float(np.sum(section.grid.volume))
+    wall_scale = max(abs(i[k.I_PSI_LEFT]), abs(i[k.I_PSI_RIGHT]), _adaptive.POTENTIAL_FLOOR) * float(
+        np.sum(section.grid.volume))
     reciprocity = abs(eo - streaming) / max(abs(eo), abs(streaming), wall_scale, 1e-300)
     worst = max(balance, reciprocity)
     if not worst <= IDENTITY_TOLERANCE:

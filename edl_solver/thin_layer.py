@@ -12,7 +12,7 @@ from __future__ import annotations
 
 import math
 
-from edl_solver.case import Case, Electrolyte, Wall
+from edl_solver.case import Electrolyte, Wall
 from edl_solver.solvent import Solvent
 from edl_solver.walls import isolated_wall
 
@@ -35,13 +35,6 @@ def grahame_zeta(charge_density: float, electrolyte: Electrolyte, solvent: Solve
     """
     zeta, _ = isolated_wall(Wall(charge_density=charge_density), electrolyte, solvent, "dh" if linear else "pb")
     return zeta
-
-
-def thin_layer_walls(case: Case) -> tuple[tuple[float, float], tuple[float, float]]:
-    """((zeta_bottom, zeta_top), (sigma_bottom, sigma_top)) of the walls as the thin-layer model sees them:
-    each wall alone in contact with the bulk (``walls.isolated_wall``)."""
-    pairs = [isolated_wall(wall, case.electrolyte, case.solvent, case.model) for wall in case.walls]
-    return (pairs[0][0], pairs[1][0]), (pairs[0][1], pairs[1][1])
 
 
 def slip_velocity(zeta: float, solvent: Solvent, field: float, charge_density: float = 0.0,

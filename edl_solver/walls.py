@@ -21,7 +21,7 @@ import numpy as np
 from scipy.optimize import brentq
 
 from edl_solver import _kernels as k
-from edl_solver.case import Electrolyte, Wall
+from edl_solver.case import Case, Electrolyte, Wall
 from edl_solver.constants import AVOGADRO, ELEMENTARY_CHARGE
 from edl_solver.solvent import Solvent
 
@@ -109,3 +109,11 @@ def isolated_wall(wall: Wall, electrolyte: Electrolyte, solvent: Solvent, model:
     psi = brentq(mismatch, low, high, xtol=1e-14, rtol=1e-14, maxiter=500)
     zeta = psi * vt
     return zeta, isolated_charge(zeta, electrolyte, solvent, model)
+
+
+def isolated_walls(case: Case) -> tuple[tuple[float, float], tuple[float, float]]:
+    """``isolated_wall`` of the (bottom, top) walls of a case (computed once when they are equal)."""
+    bottom, top = case.walls
+    first = isolated_wall(bottom, case.electrolyte, case.solvent, case.model)
+    second = first if top == bottom else isolated_wall(top, case.electrolyte, case.solvent, case.model)
+    return first, second
