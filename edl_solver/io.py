@@ -8,14 +8,26 @@ shows everything at once)::
     coordinates  y or r (m), ion (names), wall
     profiles     potential, charge_density, velocity_eo, velocity_pressure, velocity,
                  velocity_thin_layer, eo_per_field on (y|r); concentration on (ion, y|r)
-    inputs       valence, bulk_concentration, diffusivity on (ion)
+    inputs       valence, bulk_concentration, diffusivity on (ion); diameter on (ion) when an ion
+                 has one (NaN for those without)
     summary      one variable per summary key, named as the key: 0-d, or on (wall) for a
-                 (bottom, top) pair; the attribute ``summary_keys`` lists them in order
+                 (bottom, top) pair (NaN where a wall has no such value, e.g. the stern_potential of
+                 a wall without Stern layer); the attribute ``summary_keys`` lists them in order
     attributes   every variable has ``units`` and ``long_name``; global attributes hold the case as
                  JSON (``case_json``, the source of truth on reading) and as readable scalars with
-                 the unit in the name (``height_m``, ``field_V_per_m``, ...), the verdict, status,
-                 message, iterations, residual, warnings (``warning_count``, ``warning_1``, ...),
+                 the unit in the name (``height_m``, ``field_V_per_m``, ``pH``,
+                 ``viscoelectric_coefficient_m2_per_V2``; per wall, prefixed ``wall_`` or
+                 ``wall_bottom_``/``wall_top_``: ``kind``, ``zeta_V`` or ``charge_density_C_per_m2``,
+                 ``stern_capacitance_F_per_m2``, ``gate_voltage_V``, ``gate_capacitance_F_per_m2``,
+                 ``slip_length_m`` and, per site n = 1, 2, ..., ``siten_name``, ``siten_density_per_m2``,
+                 ``siten_pK`` and ``siten_charges`` (arrays)), the verdict, status, message,
+                 iterations, residual, warnings (``warning_count``, ``warning_1``, ...),
                  ``schema_version`` and ``edl_solver_version``
+
+The regulated walls, slip, steric model and viscoelectric solvent added keys to ``case_json`` and new
+variables and attributes, but changed none of version 1's, so files written before them read as before
+and the version stays 1 (a reader that predates those keys refuses such a file's ``case_json`` with an
+error naming the unknown key, rather than misreading it).
 
 Arrays are gzip-compressed with the shuffle filter (readable everywhere, unlike lzf); there are no
 bool, complex or enum types, which would break netCDF readers.
@@ -39,7 +51,7 @@ from typing import Any
 import numpy as np
 
 from edl_solver.case import Capillary, Case, Slit, Wall
-from edl_solver.casefile import case_from_mapping
+from edl_solver.casefile import case_from_mapping, case_to_mapping
 from edl_solver.errors import InputError
 from edl_solver.result import PROFILE_UNITS, SUMMARY_UNITS, Profiles, Result, summary_unit
 
@@ -131,12 +143,11 @@ def atomic_output(path: str | os.PathLike[str]) -> Iterator[Path]:
 # Case <-> plain dict (JSON attribute here, TOML case files in the CLI)
 
 
-def _wall_to_dict(wall: Wall) -> dict[str, float]:
-    return {"zeta": wall.zeta} if wall.kind == "potential" else {"charge_density": wall.charge_density}
-
-
 def case_to_dict(case: Case) -> dict[str, Any]:
-    """The case as a plain dict of SI numbers and strings (JSON- and TOML-compatible, no None).
+    """The case as a plain dict of SI numbers, strings and lists (JSON- and TOML-compatible, no None).
+
+    The shape of the TOML case files (``casefile.case_to_mapping``, which this is), so that one parser
+    reads both.
 
     Parameters
     ----------
@@ -146,43 +157,23 @@ def case_to_dict(case: Case) -> dict[str, Any]:
     -------
     dict
         ``{"geometry": {"kind": "slit", "height": H} | {"kind": "capillary", "radius": a},
-        "electrolyte": {"ions": [{"name", "valence", "concentration", "diffusivity"}, ...]},
-        "wall": {"zeta": V} | {"charge_density": C/m^2} | {"bottom": {...}, "top": {...}},
-        "solvent": {"temperature", "relative_permittivity", "viscosity", "name"},
-        "field", "pressure_gradient", "model", "tolerance",
-        "numerics": {"accuracy", "max_iterations", "max_intervals"[, "intervals"]}}``.
-        ``case_from_dict`` inverts it exactly.
+        "electrolyte": {"ions": [{"name", "valence", "concentration", "diffusivity"[, "diameter"]}, ...][,
+        "pH"]}, "wall": {...} | {"bottom": {...}, "top": {...}}, "solvent": {"temperature",
+        "relative_permittivity", "viscosity", "name"[, "viscoelectric_coefficient"]}, "field",
+        "pressure_gradient", "model", "tolerance", "numerics": {"accuracy", "max_iterations",
+        "max_intervals"[, "intervals"]}}``; a wall table holds what is set of ``zeta``,
+        ``charge_density``, ``stern_capacitance``, ``gate_voltage``, ``gate_capacitance``,
+        ``slip_length`` and ``site`` (a list of ``{"name", "density", "pK", "charges"}``).
+        ``case_from_dict`` inverts it exactly, except that H+ and OH- added by ``water_ions=True`` come
+        back as plain ions with ``water_ions=False`` (the same physical case; reading the flag again
+        would add them twice).
+
+    Raises
+    ------
+    InputError
+        If ``case`` is not a Case.
     """
-    if not isinstance(case, Case):
-        raise InputError(f"case: {type(case).__name__} is not a Case, expected edl_solver.Case(...)")
-    g = case.geometry
-    geometry = {"kind": "slit", "height": g.height} if isinstance(g, Slit) else {"kind": "capillary",
-                                                                                  "radius": g.radius}
-    if isinstance(case.wall, tuple):
-        wall: dict[str, Any] = {"bottom": _wall_to_dict(case.wall[0]), "top": _wall_to_dict(case.wall[1])}
-    else:
-        wall = _wall_to_dict(case.wall)
-    numerics: dict[str, Any] = {
-        "accuracy": case.numerics.accuracy,
-        "max_iterations": case.numerics.max_iterations,
-        "max_intervals": case.numerics.max_intervals,
-    }
-    if case.numerics.intervals is not None:  # TOML has no null: "automatic" is an absent key
-        numerics["intervals"] = case.numerics.intervals
-    s = case.solvent
-    return {
-        "geometry": geometry,
-        "electrolyte": {"ions": [{"name": ion.name, "valence": ion.valence, "concentration": ion.concentration,
-                                  "diffusivity": ion.diffusivity} for ion in case.electrolyte.ions]},
-        "wall": wall,
-        "solvent": {"temperature": s.temperature, "relative_permittivity": s.relative_permittivity,
-                    "viscosity": s.viscosity, "name": s.name},
-        "field": case.field,
-        "pressure_gradient": case.pressure_gradient,
-        "model": case.model,
-        "tolerance": case.tolerance,
-        "numerics": numerics,
-    }
+    return case_to_mapping(case)
 
 
 def case_from_dict(table: Mapping[str, Any]) -> Case:
@@ -239,6 +230,22 @@ def _summary_array(key: str, value: Any) -> np.ndarray:
     return data if isinstance(value, tuple) else data.reshape(())
 
 
+def _wall_attributes(prefix: str, wall: Wall) -> dict[str, Any]:
+    """A wall's inputs as attributes named ``<prefix>_<field>_<unit>``; sites numbered from 1."""
+    attrs: dict[str, Any] = {f"{prefix}_kind": wall.kind}
+    for name, unit in (("zeta", "V"), ("charge_density", "C_per_m2"), ("stern_capacitance", "F_per_m2"),
+                       ("gate_voltage", "V"), ("gate_capacitance", "F_per_m2")):
+        if getattr(wall, name) is not None:
+            attrs[f"{prefix}_{name}_{unit}"] = getattr(wall, name)
+    attrs[f"{prefix}_slip_length_m"] = wall.slip_length
+    for number, site in enumerate(wall.sites, start=1):
+        attrs[f"{prefix}_site{number}_name"] = site.name
+        attrs[f"{prefix}_site{number}_density_per_m2"] = site.density
+        attrs[f"{prefix}_site{number}_pK"] = np.array(site.pks, dtype=np.float64)
+        attrs[f"{prefix}_site{number}_charges"] = np.array(site.charges, dtype=np.int32)
+    return attrs
+
+
 def _case_attributes(case: Case) -> dict[str, Any]:
     """Readable scalar inputs; the unit is in the name because attributes carry no attributes."""
     g, s = case.geometry, case.solvent
@@ -250,16 +257,16 @@ def _case_attributes(case: Case) -> dict[str, Any]:
     walls = (("wall", case.wall),) if isinstance(case.wall, Wall) else \
         (("wall_bottom", case.wall[0]), ("wall_top", case.wall[1]))
     for prefix, wall in walls:
-        if wall.kind == "potential":
-            attrs[f"{prefix}_zeta_V"] = wall.zeta
-        else:
-            attrs[f"{prefix}_charge_density_C_per_m2"] = wall.charge_density
+        attrs.update(_wall_attributes(prefix, wall))
+    if case.electrolyte.pH is not None:
+        attrs["pH"] = case.electrolyte.pH
     attrs.update({
         "model": case.model,
         "solvent": s.name,
         "temperature_K": s.temperature,
         "relative_permittivity": s.relative_permittivity,
         "viscosity_Pa_s": s.viscosity,
+        "viscoelectric_coefficient_m2_per_V2": s.viscoelectric_coefficient,
         "field_V_per_m": case.field,
         "pressure_gradient_Pa_per_m": case.pressure_gradient,
         "tolerance": case.tolerance,
@@ -302,6 +309,9 @@ def _write(file: Any, result: Result) -> None:
                "ion concentration in the reservoir (bulk)")
     _add_array(file, "diffusivity", ("ion",), [ion.diffusivity for ion in ions], "m^2/s",
                "ion diffusion coefficient")
+    if any(ion.diameter is not None for ion in ions):
+        _add_array(file, "diameter", ("ion",), [math.nan if ion.diameter is None else ion.diameter for ion in ions],
+                   "m", "ion diameter (steric model; NaN where not given)")
 
     for key, value in result.summary.items():
         if key not in SUMMARY_UNITS:

@@ -14,11 +14,11 @@ from typing import Any
 
 import numpy as np
 
-from edl_solver.case import Capillary, Case, Slit
+from edl_solver.case import Capillary, Case, Slit, Wall
 from edl_solver.constants import ZERO_CELSIUS
 from edl_solver.errors import InputError
 from edl_solver.io import atomic_output
-from edl_solver.report import MODEL_NAMES, prefixed
+from edl_solver.report import MODEL_NAMES, close_packing, prefixed
 from edl_solver.result import Result
 
 __all__ = ["profile_figure"]
@@ -28,25 +28,47 @@ _WALL_COLOUR = "0.85"
 _ZOOM_DEBYE_LENGTHS = 8.0
 
 
+def _condition(wall: Wall) -> str:
+    """A wall in brief: ζ, σ, or its regulation (sites, Stern layer, gate); and its slip length."""
+    if wall.kind == "potential":
+        text = f"ζ = {wall.zeta * 1e3:.3g} mV"
+    elif wall.kind == "charge":
+        text = f"σ = {wall.charge_density * 1e3:.3g} mC/m²"
+    else:
+        parts = [f"{site.name} pK {'/'.join(f'{pk:g}' for pk in site.pks)}" for site in wall.sites]
+        if wall.charge_density is not None:
+            parts.append(f"σ_fixed {wall.charge_density * 1e3:.3g} mC/m²")
+        if wall.stern_capacitance is not None:
+            parts.append(f"C_S {wall.stern_capacitance:.3g} F/m²")
+        if wall.gate_voltage is not None:
+            parts.append(f"gate {wall.gate_voltage:.3g} V")
+        text = f"regulated ({', '.join(parts)})"
+    return text + (f", slip b = {wall.slip_length * 1e9:.3g} nm" if wall.slip_length > 0.0 else "")
+
+
 def _title(case: Case) -> str:
-    """The case in brief, in the units of the field: two lines (section and liquid; walls and drives)."""
+    """The case in brief, in the units of the field: section and liquid; the walls (one line each when they
+    differ); drives and model."""
     g = case.geometry
     size = f"Slit H = {g.height * 1e9:.4g} nm" if isinstance(g, Slit) else f"Capillary a = {g.radius * 1e9:.4g} nm"
-    ions = ", ".join(f"{ion.name} {ion.concentration:.3g} mM" for ion in case.electrolyte.ions)
-
-    def condition(wall: Any) -> str:
-        return (f"ζ = {wall.zeta * 1e3:.3g} mV" if wall.kind == "potential"
-                else f"σ = {wall.charge_density * 1e3:.3g} mC/m²")
-
+    electrolyte = case.electrolyte
+    liquid = ", ".join(f"{ion.name} {ion.concentration:.3g} mM" for ion in electrolyte.ions)
+    if electrolyte.pH is not None:
+        liquid += f", pH {electrolyte.pH:.3g}"
+    liquid += f"; {case.solvent.temperature - ZERO_CELSIUS:.3g} °C"
+    if case.solvent.viscoelectric_coefficient > 0.0:
+        liquid += f", viscoelectric f = {case.solvent.viscoelectric_coefficient:.2g} m²/V²"
     if case.symmetric:
-        walls = f"wall {condition(case.walls[0])}"
+        walls = f"wall {_condition(case.walls[0])}"
     else:
-        walls = f"bottom wall {condition(case.walls[0])}, top wall {condition(case.walls[1])}"
+        walls = f"bottom wall {_condition(case.walls[0])}\ntop wall {_condition(case.walls[1])}"
     drives = f"E = {prefixed(case.field, 'V/m')}"
     if case.pressure_gradient != 0.0:
         drives += f", dp/dx = {prefixed(case.pressure_gradient, 'Pa/m')}"
-    return (f"{size}; {ions}; {case.solvent.temperature - ZERO_CELSIUS:.3g} °C\n"
-            f"{walls}; {drives}; {MODEL_NAMES.get(case.model, case.model)}")
+    model = MODEL_NAMES.get(case.model, case.model)
+    if case.model == "steric":
+        model += f", d = {case.electrolyte.ions[0].diameter * 1e9:.3g} nm"
+    return f"{size}; {liquid}\n{walls}\n{drives}; {model}"
 
 
 def _mark_walls(axes: Any, low: float, high: float, capillary: bool, margin: float, label: bool) -> None:
@@ -66,10 +88,18 @@ def _draw_column(column: Any, x: np.ndarray, result: Result, label: bool) -> Non
     from matplotlib.ticker import FuncFormatter
 
     case, p = result.case, result.profiles
+    capillary = isinstance(case.geometry, Capillary)
     potential_axes, concentration_axes, velocity_axes = column
 
     potential_axes.axhline(0.0, color="0.6", lw=0.6)
-    potential_axes.plot(x, p.potential * 1e3, color="C0")
+    potential_axes.plot(x, p.potential * 1e3, color="C0", label="potential φ (at the wall: ζ)")
+    stern = result.summary.get("stern_potential")
+    if stern is not None:  # the charge plane behind each Stern layer, drawn on its wall
+        values = stern if isinstance(stern, tuple) else (stern, stern)
+        sides = ((x[-1], values[1]),) if capillary else ((x[0], values[0]), (x[-1], values[1]))
+        shown = [(where, value * 1e3) for where, value in sides if np.isfinite(value)]
+        potential_axes.plot([w for w, _ in shown], [v for _, v in shown], ls="none", marker="D", color="C4",
+                            clip_on=False, label="charge-plane potential ψ0 = ζ + σ/C_S (behind the Stern layer)")
 
     # The Debye-Hueckel model linearises the Boltzmann factor and can give c <= 0, which a log axis
     # cannot show: mask those points and say so.
@@ -80,11 +110,17 @@ def _draw_column(column: Any, x: np.ndarray, result: Result, label: bool) -> Non
         handles += concentration_axes.plot(x, row, color=colour, label=name)
         concentration_axes.axhline(case.electrolyte.ions[number].concentration, color=colour, lw=0.8, ls=":")
     handles.append(Line2D([], [], color="0.4", lw=0.8, ls=":", label="reservoir value"))
+    top = np.nanmax(concentration)
+    if case.model == "steric":  # the lattice-gas ceiling of the total ion concentration
+        ceiling = close_packing(case.electrolyte.ions[0].diameter)
+        top = max(top, ceiling)
+        handles.append(concentration_axes.axhline(ceiling, color="k", lw=1.0, ls="--",
+                                                  label="close packing 1/(N_A d³) (steric limit)"))
     concentration_axes.set_yscale("log")
     plain = FuncFormatter(lambda value, _: f"{value:g}")  # 0.5, 2, 10 rather than 5x10^-1
     concentration_axes.yaxis.set_major_formatter(plain)
     # Within a few decades no or one power of ten shows: label the minor ticks at 2 and 5 as well.
-    decades = np.log10(np.nanmax(concentration) / np.nanmin(concentration))
+    decades = np.log10(top / np.nanmin(concentration))
 
     def minor(value: float, _: Any) -> str:
         mantissa = round(value / 10.0 ** np.floor(np.log10(value) + 1e-9))
@@ -104,6 +140,8 @@ def _draw_column(column: Any, x: np.ndarray, result: Result, label: bool) -> Non
     velocity_axes.plot(x, p.velocity_thin_layer * 1e6, color="C3", ls="--", label="thin-layer slip model (EO)")
 
     if label:
+        if stern is not None:
+            potential_axes.legend(fontsize="small", loc="best")
         concentration_axes.legend(handles=handles, fontsize="small", loc="best")
         velocity_axes.legend(fontsize="small", loc="best")
         if np.isnan(concentration).any():
@@ -116,9 +154,11 @@ def profile_figure(result: Result, path: str | os.PathLike[str]) -> Path:
 
     Three stacked panels share the cross-section axis in nm (slit: y from the bottom wall;
     capillary: r from the axis): potential (mV); concentrations (mM, log scale, one line per ion,
-    reservoir values dotted); axial velocity (µm/s) of the full electroosmotic flow, the
+    reservoir values dotted; for the steric model the close-packing limit 1/(N_A d³) dashed); axial
+    velocity (µm/s) of the full electroosmotic flow, the
     pressure-driven flow when there is one, their sum, and the thin-layer slip profile dashed.
-    Walls are shaded grey. The title gives the case in brief and the verdict.
+    Walls are shaded grey; a wall with a Stern layer carries a marker at its charge-plane potential
+    ψ0 = ζ + σ/C_S on the potential panel. The title gives the case in brief and the verdict.
 
     Parameters
     ----------
@@ -185,7 +225,10 @@ def profile_figure(result: Result, path: str | os.PathLike[str]) -> Path:
     full[1].set_ylabel("concentration (mM)")
     full[2].set_ylabel("axial velocity u (µm/s)\n(> 0 along E)")
 
-    figure.suptitle(_title(case), fontsize="medium")
+    # About 13 characters of medium text per inch: long lines (many ions, regulated walls) wrap, not clip.
+    columns = int(13 * figure.get_figwidth())
+    figure.suptitle("\n".join(textwrap.fill(line, columns) for line in _title(case).splitlines()),
+                    fontsize="medium")
     full[0].set_title(textwrap.fill(f"Verdict: {result.verdict}", 100 if not zooms else 90), fontsize="small",
                       loc="left")
 

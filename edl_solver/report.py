@@ -9,14 +9,15 @@ from __future__ import annotations
 import math
 from typing import Any
 
-from edl_solver.case import Capillary, Case, Slit, Wall
-from edl_solver.constants import ZERO_CELSIUS
+from edl_solver.case import Capillary, Case, Site, Slit, Wall
+from edl_solver.constants import AVOGADRO, ZERO_CELSIUS
 from edl_solver.result import Result
 
-__all__ = ["MODEL_NAMES", "prefixed", "text"]
+__all__ = ["MODEL_NAMES", "close_packing", "prefixed", "text"]
 
 #: Plain names of the models, for reports and figure titles.
-MODEL_NAMES = {"pb": "nonlinear Poisson-Boltzmann", "dh": "linearised Debye-Hückel"}
+MODEL_NAMES = {"pb": "nonlinear Poisson-Boltzmann", "dh": "linearised Debye-Hückel",
+               "steric": "Poisson-Boltzmann with finite ion size (steric, lattice gas)"}
 _PREFIXES = {-18: "a", -15: "f", -12: "p", -9: "n", -6: "µ", -3: "m", 0: "", 3: "k", 6: "M", 9: "G"}
 _LABEL_WIDTH = 46
 
@@ -75,10 +76,48 @@ def _percent(fraction: float, signed: bool = False) -> str:
     return f"{100.0 * fraction:+.3g} %" if signed else f"{100.0 * fraction:.3g} %"
 
 
+def _site_text(site: Site) -> str:
+    """'silanol sites 8 nm⁻², pK 7.5 (charge 0 → -1)': density per nm², one pK per step."""
+    pks = ", ".join(_number(pk, 4) for pk in site.pks)
+    charges = " → ".join(f"{q:+d}" if q else "0" for q in site.charges)
+    return f"{site.name} sites {_number(site.density * 1e-18, 4)} nm⁻², pK {pks} (charge {charges})"
+
+
 def _wall_text(wall: Wall) -> str:
+    """The condition of one wall: its potential, its charge, or what regulates its charge; and its slip."""
     if wall.kind == "potential":
-        return f"zeta = {_scaled(wall.zeta, 1e3, 'mV')}"
-    return f"charge density = {_scaled(wall.charge_density, 1e3, 'mC/m²')}"
+        parts = [f"zeta = {_scaled(wall.zeta, 1e3, 'mV')}"]
+    elif wall.kind == "charge":
+        parts = [f"charge density = {_scaled(wall.charge_density, 1e3, 'mC/m²')}"]
+    else:
+        parts = ["charge-regulated"]
+        parts += [_site_text(site) for site in wall.sites]
+        if wall.charge_density is not None:
+            parts.append(f"fixed charge density {_scaled(wall.charge_density, 1e3, 'mC/m²')}")
+        if wall.stern_capacitance is not None:
+            parts.append(f"Stern capacitance C_S = {_number(wall.stern_capacitance)} F/m²")
+        if wall.gate_voltage is not None:
+            parts.append(f"gate at V_g = {_scaled(wall.gate_voltage, 1.0, 'V')} behind "
+                         f"C_g = {_scaled(wall.gate_capacitance, 1e3, 'mF/m²')}")
+    if wall.slip_length > 0.0:
+        parts.append(f"slip length b = {_scaled(wall.slip_length, 1e9, 'nm')}")
+    return "; ".join(parts)
+
+
+def _model_text(case: Case) -> str:
+    """The model's plain name; for the steric model, the ion size and the close-packing limit it implies."""
+    name = MODEL_NAMES.get(case.model, case.model)
+    if case.model != "steric":
+        return name
+    diameter = case.electrolyte.ions[0].diameter  # Case checks that every ion has this same diameter
+    return (f"{name}; ion diameter d = {_scaled(diameter, 1e9, 'nm')}, close packing at 1/(N_A d³) = "
+            f"{_scaled(close_packing(diameter), 1e-3, 'M')}")
+
+
+def close_packing(diameter: float) -> float:
+    """Largest total ion concentration of the lattice-gas (steric) model, c_max = 1/(N_A d^3), mol/m^3
+    (Kilic, Bazant & Ajdari 2007, Phys. Rev. E 75, 021502)."""
+    return 1.0 / (AVOGADRO * diameter**3)
 
 
 def _case_lines(case: Case, capillary: bool) -> list[str]:
@@ -88,22 +127,39 @@ def _case_lines(case: Case, capillary: bool) -> list[str]:
     else:
         assert isinstance(g, Capillary)
         geometry = f"Capillary of radius a = {_scaled(g.radius, 1e9, 'nm', 4)}, r from 0 (axis) to a (wall)"
-    ions = ", ".join(f"{ion.name} {_number(ion.concentration, 4)} mM" for ion in case.electrolyte.ions)
+    electrolyte = case.electrolyte
+    ions = ", ".join(f"{ion.name} {_number(ion.concentration, 4)} mM" for ion in electrolyte.ions)
+    ions += f", ionic strength {_number(electrolyte.ionic_strength, 4)} mM"
+    if electrolyte.pH is not None:
+        among = any(ion.name == "H+" for ion in electrolyte.ions)
+        ions += f"; pH {_number(electrolyte.pH, 4)}" + ("" if among else " (H+ and OH- not among the ions)")
     s = case.solvent
-    solvent = (f"{s.name} at {_number(s.temperature - ZERO_CELSIUS, 4)} °C (εr = {_number(s.relative_permittivity)}, "
-               f"viscosity {_scaled(s.viscosity, 1e3, 'mPa·s')})")
+    properties = f"εr = {_number(s.relative_permittivity)}, viscosity {_scaled(s.viscosity, 1e3, 'mPa·s')}"
+    if s.viscoelectric_coefficient > 0.0:
+        properties += f", viscoelectric coefficient f = {_number(s.viscoelectric_coefficient)} m²/V²"
+    solvent = f"Solvent: {s.name} at {_number(s.temperature - ZERO_CELSIUS, 4)} °C ({properties})"
     if isinstance(case.wall, tuple):
-        walls = f"Walls: bottom {_wall_text(case.wall[0])}; top {_wall_text(case.wall[1])}"
+        walls = [f"Bottom wall: {_wall_text(case.wall[0])}", f"Top wall: {_wall_text(case.wall[1])}"]
     else:
-        walls = f"{'Wall' if capillary else 'Both walls'}: {_wall_text(case.wall)}"
+        walls = [f"{'Wall' if capillary else 'Both walls'}: {_wall_text(case.wall)}"]
     return [
         geometry,
-        f"Electrolyte: {ions} (ionic strength {_number(case.electrolyte.ionic_strength, 4)} mM) in {solvent}",
-        walls,
+        f"Electrolyte: {ions}",
+        solvent,
+        *walls,
         f"Drives: field E = {prefixed(case.field, 'V/m')}, pressure gradient dp/dx = "
-        f"{prefixed(case.pressure_gradient, 'Pa/m')}; model: {MODEL_NAMES.get(case.model, case.model)}",
+        f"{prefixed(case.pressure_gradient, 'Pa/m')}",
+        f"Model: {_model_text(case)}",
         "Signs: E > 0 points along the channel axis +x; positive velocities, flow rates and currents go to +x",
     ]
+
+
+def _stern(value: Any) -> str:
+    """The charge-plane potential, mV; a wall without Stern layer (NaN in a pair) says so."""
+    if not isinstance(value, tuple):
+        return _scaled(value, 1e3, "mV")
+    shown = [_scaled(v, 1e3, "mV") if math.isfinite(v) else "none (no Stern layer)" for v in value]
+    return f"bottom {shown[0]}, top {shown[1]}"
 
 
 def _row(label: str, value: str) -> str:
@@ -157,6 +213,8 @@ def text(result: Result) -> str:
         "Full solution" + ("" if capillary else " (flow rates and currents per metre of slit width)"),
         _row("wall potential (zeta)", mv("zeta")),
         _row("wall charge density", _scaled(get("wall_charge_density"), 1e3, "mC/m²")),
+        *([_row("charge-plane potential ψ0 = ζ + σ/C_S (Stern)", _stern(s["stern_potential"]))]
+          if "stern_potential" in s else []),
         _row(f"{centre} / section mean", f"{mv('centre_potential')} / {mv('mean_potential')}"),
         _row("electroosmotic (EO) mean velocity / flow rate",
              f"{um_s('mean_velocity_eo')} / {flow(get('flow_rate_eo'))}"),
@@ -169,9 +227,14 @@ def text(result: Result) -> str:
                                                      f"{amps('eo_convection_current')}"),
         _row("current: streaming / total", f"{amps('streaming_current')} / {amps('current')}"),
         "",
-        "Thin-layer model (Helmholtz-Smoluchowski slip u_s = -εζE/η at the wall)",
+        "Thin-layer model (" + ("slip velocity u_s = -(εE/η)(ζ + bσ/ε) at the wall: Helmholtz-Smoluchowski with "
+                                "Navier slip length b)" if any(w.slip_length > 0.0 for w in case.walls) else
+                                "Helmholtz-Smoluchowski slip u_s = -εζE/η at the wall)"),
     ]
-    if any(wall.kind == "charge" for wall in case.walls):
+    kinds = {wall.kind for wall in case.walls}
+    if "regulated" in kinds:
+        lines.append(_row("zeta it uses (isolated wall, regulated charge)", mv("thin_layer_zeta")))
+    elif "charge" in kinds:
         lines.append(_row("zeta it uses (Grahame, from the wall charge)", mv("thin_layer_zeta")))
     lines += [
         _row("slip velocity u_s", um_s("hs_velocity")),

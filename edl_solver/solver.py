@@ -7,9 +7,8 @@ from typing import Any
 
 import numpy as np
 
-from edl_solver import _adaptive
+from edl_solver import _adaptive, equilibrium, flow, scaling, thin_layer, transport, validity, walls
 from edl_solver import _kernels as k
-from edl_solver import equilibrium, flow, scaling, thin_layer, transport, validity, walls
 from edl_solver.case import Capillary, Case
 from edl_solver.constants import AVOGADRO, ELEMENTARY_CHARGE
 from edl_solver.equilibrium import SectionSolution

@@ -257,11 +257,11 @@ def _axis_hint(path: str) -> str:
     from edl_solver.casefile import CASE_KEYS
 
     known, _ = _sweepable()
+    if path in CASE_KEYS:  # a real input: a suggestion of a similar name would mislead
+        return f" (it is a case input, but not a sweepable one: {', '.join(known)})"
     close = difflib.get_close_matches(path, list(known), n=1, cutoff=0.6)
     if close:
         return f" (did you mean {close[0]!r}?)"
-    if path in CASE_KEYS or path.replace("ions", "ion[]") in CASE_KEYS:
-        return f" (it is a case input, but not a sweepable one: {', '.join(known)})"
     return f" (sweepable inputs: {', '.join(known)})"
 
 
@@ -341,7 +341,9 @@ def _range_values(path: str, spec: Mapping[str, Any]) -> list[float]:
         values = np.geomspace(start, stop, points) if points > 1 else np.array([start])
     else:
         values = np.linspace(start, stop, points)
-    return [float(v) for v in values]
+    # 15 significant digits, as units.to_si does: "50 nm" in a range is 5e-08, not 4.999999999999999e-08,
+    # so that the coordinate can be selected by the value the user has in mind.
+    return [float(f"{v:.15g}") for v in values]
 
 
 def _check_conflicts(axes: Mapping[str, list[Any]]) -> None:

@@ -199,7 +199,9 @@ def solve_rows(base_table: Mapping[str, Any], axes: Sequence[Axis], rows: Sequen
                 continue
             out["status"][r, j] = CONVERGED
             for key in keys:
-                value = result.summary[key]
+                value = result.summary.get(key)
+                if value is None:  # a key some cases lack (stern_potential without a Stern layer): NaN
+                    continue
                 values[key][r, j] = value if isinstance(value, tuple) else (value, value)
     out.update(values)
     return out
@@ -225,22 +227,29 @@ class _Store:
             self.message = np.full(self.shape, "", dtype=object)
             self.values = {key: np.full((*self.shape, 2), np.nan) for key in self.layout}
             return
-        import h5netcdf
-
         partial = path.with_name(path.name + ".partial")
         if resume and partial.exists():
-            self.file = h5netcdf.File(partial, "a")
+            self._open(partial, "a")
             if self.file.attrs.get("sweep_json") != json.dumps(spec, sort_keys=True):
-                self.file.close()
+                self.abandon()
                 raise InputError(f"resume: {partial} belongs to a different sweep, expected the same base case "
                                  "and axes (delete it to start afresh)")
         else:
             if not path.parent.is_dir():
                 raise InputError(f"output: {str(path)!r} is in a folder that does not exist")
-            self.file = h5netcdf.File(partial, "w")
+            self._open(partial, "w")
             self._create()
         self.partial = partial
         self.status = self.file.variables["status"][...]
+
+    def _open(self, partial: Path, mode: str) -> None:
+        import h5netcdf
+        import h5py
+
+        # h5netcdf's flush() does not flush the HDF5 file; its h5py handle is kept to flush every row to
+        # disk, so that a killed sweep leaves a readable file (track_order as h5netcdf sets it).
+        self.h5 = h5py.File(partial, mode, track_order=True)
+        self.file = h5netcdf.File(self.h5, mode)
 
     def _create(self) -> None:
         import h5py
@@ -285,6 +294,7 @@ class _Store:
         f.attrs["edl_solver_version"] = __version__
         f.attrs["title"] = "edl_solver sweep"
         f.flush()
+        self.h5.flush()
 
     def write(self, part: dict[str, Any]) -> None:
         for r, row in enumerate(part["rows"]):
@@ -303,12 +313,13 @@ class _Store:
             self.status[lead] = part["status"][r]
         if self.file is not None:
             self.file.flush()
+            self.h5.flush()
 
     def finish(self) -> Any:
         import xarray as xr
 
         if self.file is not None:
-            self.file.close()
+            self.abandon()  # closes the file
             os.replace(self.partial, self.path)
             return xr.load_dataset(self.path, engine="h5netcdf")
         dims = tuple(axis.name for axis in self.axes)
@@ -333,6 +344,7 @@ class _Store:
     def abandon(self) -> None:
         if self.file is not None:
             self.file.close()
+            self.h5.close()
 
 
 #: Summary keys that are (bottom, top) pairs for a slit with two different walls.
