@@ -88,6 +88,35 @@ SUMMARY_UNITS: dict[str, tuple[str, str]] = {
     "thin_layer_mean_velocity_error": ("1", "(thin-layer - full) / full mean EO velocity"),
     "thin_layer_max_outer_deviation": (
         "1", "largest |thin-layer - full| EO velocity outside the double layers over the largest slip speed"),
+    "conductance_per_length": ("S|S*m", "current per unit field at no pressure or salt gradient"),
+    "streaming_conductance": ("A/Pa|A*m/Pa", "streaming current per unit -dp/dx"),
+    "streaming_potential_coefficient": ("V/Pa", "streaming potential per pressure difference, at zero current"),
+    "electroviscous_ratio": ("1", "apparent over true viscosity for pressure-driven flow at zero current"),
+    "eo_pump_flow_per_field": ("m^3/(V*s)|m^4/(V*s)", "EO pump flow rate per unit field at no back pressure"),
+    "eo_pump_pressure_per_voltage": ("Pa/V", "EO pump pressure rise per applied voltage at no flow"),
+    "diffusioosmotic_flow": ("m^3/s|m^4/s", "flow rate per unit d ln c/dx at zero current and no pressure "
+                             "difference (positive: toward higher concentration)"),
+    "diffusion_potential": ("V", "potential change per unit change of ln c along the channel, at zero current"),
+    "cation_transference": ("1", "share of the current carried by cations under a field"),
+    "selectivity": ("1", "cation minus anion transference (1: ideally cation-selective)"),
+    "figure_of_merit": ("1", "q^2 / (1 - q^2) of pressure-to-electrical energy conversion"),
+    "max_efficiency": ("1", "maximum efficiency of pressure-to-electrical energy conversion"),
+    "efficiency_at_max_power": ("1", "efficiency of pressure-to-electrical conversion at maximum power"),
+    "max_power_per_length": ("W/m^2|W/m", "maximum electrical power per channel length at this pressure gradient"),
+    **{f"thin_layer_{key}": (unit, f"thin-layer model: {text}") for key, (unit, text) in {
+        "conductance_per_length": ("S|S*m", "conductance per length (bulk conductivity)"),
+        "streaming_potential_coefficient": ("V/Pa", "streaming potential coefficient (Smoluchowski)"),
+        "electroviscous_ratio": ("1", "electroviscous ratio"),
+        "eo_pump_pressure_per_voltage": ("Pa/V", "EO pump pressure per voltage"),
+        "diffusioosmotic_flow": ("m^3/s|m^4/s", "diffusio-osmotic flow per unit d ln c/dx (z:z only)"),
+        "diffusion_potential": ("V", "diffusion potential per unit ln c (bulk transference)"),
+        "cation_transference": ("1", "cation transference of the bulk electrolyte"),
+        "max_efficiency": ("1", "maximum energy-conversion efficiency"),
+    }.items()},
+    **{f"thin_layer_{key}_error": ("1", f"(thin-layer - full) / full {key.replace('_', ' ')}") for key in (
+        "conductance_per_length", "streaming_potential_coefficient", "electroviscous_ratio",
+        "eo_pump_pressure_per_voltage", "diffusioosmotic_flow", "diffusion_potential", "cation_transference",
+        "max_efficiency")},
     "charge_balance": ("1", "net charge of walls plus liquid over the wall charge (0 exactly)"),
     "reciprocity_residual": ("1", "relative mismatch of streaming current per gradient and EO flow per field"),
     "error_estimate": ("1", "estimated relative discretisation error of the summary values"),
@@ -126,6 +155,11 @@ class Result:
         Max row-scaled residual of the finest grid, kT/e.
     warnings : tuple of str
         Notes on the physical validity of the model for this case.
+    response_matrix : ndarray, optional
+        3 x 3 linear-response matrix of (volume flow, current, salt flux) against (solvent force X_P = -dp/dx
+        + RT sum c_i d ln c/dx, field E, salt force X_s), per unit length; see ``transport.reduced_matrix``.
+    ion_response_matrix : ndarray, optional
+        The same resolved per ion, (1 + n) x (1 + n); see ``transport.ion_response_matrix``.
     """
 
     case: Case
@@ -137,6 +171,8 @@ class Result:
     iterations: int = 0
     residual: float = 0.0
     warnings: tuple[str, ...] = field(default_factory=tuple)
+    response_matrix: np.ndarray | None = None
+    ion_response_matrix: np.ndarray | None = None
 
     def to_hdf5(self, path: str | Path) -> Path:
         """Write the result to an HDF5 (netCDF-4) file atomically; see ``edl_solver.io``."""

@@ -59,7 +59,11 @@ def solve(case: Case) -> Result:
     profiles = _profiles(section, units, case, slip)
     comparison = _thin_layer_summary(summary, profiles, units, case, isolated, slip)
     summary.update(comparison)
-    summary.update(_identity_checks(section, problem.kappa2, case))
+    ion_matrix = transport.ion_response_matrix(section.integrals, units, case)
+    matrix = transport.reduced_matrix(ion_matrix, case)
+    thin_matrix = thin_layer.thin_layer_matrix(case, units.section_area, isolated, slip)
+    summary.update(_transport_summary(ion_matrix, matrix, thin_matrix, units, case))
+    summary.update(_identity_checks(section, problem.kappa2, case, ion_matrix))
     summary["error_estimate"] = section.error_estimate
     summary = {key: _plain(value) for key, value in summary.items() if not key.startswith("_")}
     return Result(
@@ -73,6 +77,8 @@ def solve(case: Case) -> Result:
         iterations=section.iterations,
         residual=section.residual,
         warnings=validity.notes(case, profiles, units.thermal_voltage),
+        response_matrix=matrix,
+        ion_response_matrix=ion_matrix,
     )
 
 
@@ -195,7 +201,33 @@ def _outer_deviation(profiles: Profiles, slip: tuple[float, float], units: Scale
     return float(np.max(np.abs(thin - full)[outer])) / largest
 
 
-def _identity_checks(section: SectionSolution, kappa2: float, case: Case) -> dict[str, float]:
+#: Lab quantities whose thin-layer counterparts are reported with their relative error.
+COMPARED = ("conductance_per_length", "streaming_potential_coefficient", "electroviscous_ratio",
+            "eo_pump_pressure_per_voltage", "diffusioosmotic_flow", "diffusion_potential", "cation_transference",
+            "max_efficiency")
+
+
+def _relative_error(thin: float, full: float) -> float:
+    return (thin - full) / full if full != 0.0 and math.isfinite(thin) else math.nan
+
+
+def _transport_summary(ion_matrix: np.ndarray, matrix: np.ndarray, thin_matrix: np.ndarray, units: Scales,
+                       case: Case) -> dict[str, float]:
+    """Lab quantities from the response matrix, their thin-layer counterparts and errors."""
+    full = transport.lab_quantities(matrix, case, units) | transport.transference(ion_matrix, case)
+    thin = transport.lab_quantities(thin_matrix, case, units)
+    ions = case.electrolyte.ions
+    bulk = [ion.valence**2 * ion.diffusivity * ion.concentration for ion in ions]
+    thin["cation_transference"] = sum(b for b, ion in zip(bulk, ions) if ion.valence > 0) / sum(bulk)
+    out = dict(full)
+    for key in COMPARED:
+        out[f"thin_layer_{key}"] = thin[key]
+        out[f"thin_layer_{key}_error"] = _relative_error(thin[key], full[key])
+    return out
+
+
+def _identity_checks(section: SectionSolution, kappa2: float, case: Case, ion_matrix: np.ndarray
+                     ) -> dict[str, float]:
     """Charge balance and Onsager reciprocity of the discrete solution; both are exact identities of
     the scheme (the operator is symmetric and the wall charge comes from the end cells' balance), so a
     violation means the solve went wrong."""
@@ -213,8 +245,12 @@ def _identity_checks(section: SectionSolution, kappa2: float, case: Case) -> dic
     wall_scale = max(abs(i[k.I_PSI_LEFT]), abs(i[k.I_PSI_RIGHT]), _adaptive.POTENTIAL_FLOOR) * float(
         np.sum(section.grid.volume))
     reciprocity = abs(eo - streaming) / max(abs(eo), abs(streaming), wall_scale, 1e-300)
-    worst = max(balance, reciprocity)
+    # the whole ion-resolved matrix must be symmetric too (each entry against its row and column scale)
+    size = np.sqrt(np.abs(np.diag(ion_matrix)))
+    onsager = float(np.max(np.abs(ion_matrix - ion_matrix.T) / np.outer(size, size)))
+    worst = max(balance, reciprocity, onsager)
     if not worst <= IDENTITY_TOLERANCE:
         raise ConvergenceError(f"{case.describe()}: the discrete solution violates charge balance "
-                               f"({balance:.2g}) or reciprocity ({reciprocity:.2g}); not returned")
-    return {"charge_balance": balance, "reciprocity_residual": reciprocity}
+                               f"({balance:.2g}) or reciprocity ({reciprocity:.2g}, matrix {onsager:.2g}); "
+                               "not returned")
+    return {"charge_balance": balance, "reciprocity_residual": max(reciprocity, onsager)}
