@@ -171,24 +171,28 @@ def starting_intervals(beta, accuracy):
 
 @njit(cache=True)
 def nested_solve(s, beta, metric, kappa2, ions, model, walls, flow_walls, visco, psi, u_eo, u_p, max_iter,
-                 integrals):
-    """Solve on LEVELS nested grids and fill ``integrals[level]`` (finest last).
+                 integrals, first_level, coarse):
+    """Solve on nested grids and fill ``integrals[level]`` (LEVELS grids, finest last).
 
     ``s`` are the finest computational nodes and ``psi`` holds the start guess there. The coarsest grid
     starts from its subsample, each finer one from the prolonged coarser solution (nested iteration), so
-    fine grids need one or two Newton steps. The finest profiles, Richardson-corrected with the next
-    coarser grid (``correct_profile``), are returned in psi, u_eo, u_p.
+    fine grids need one or two Newton steps. Levels below ``first_level`` are taken as already solved (after
+    a refinement they are the previous grids); ``coarse`` then holds the raw (psi, u_eo, u_p) rows of the
+    level just below. The finest profiles, Richardson-corrected with the next coarser grid
+    (``correct_profile``), are returned in psi, u_eo, u_p.
 
-    Returns status (0 converged), total Newton iterations, final scaled residual.
+    Returns status (0 converged), total Newton iterations, final scaled residual, and the raw finest
+    (psi, u_eo, u_p) as a 3-row array (for the next refinement).
     """
     total = 0
     residual = 0.0
     start = psi.copy()
-    guess = np.empty(0)
-    ue_previous = np.empty(0)
-    up_previous = np.empty(0)
+    guess = coarse[0].copy()
+    ue_previous = coarse[1].copy()
+    up_previous = coarse[2].copy()
     half = s[0] == 0.0
-    for level in range(LEVELS):
+    raw = np.empty((3, s.size))
+    for level in range(first_level, LEVELS):
         stride = 2 ** (LEVELS - 1 - level)
         sl = s[::stride].copy()
         n = sl.size
@@ -197,7 +201,7 @@ def nested_solve(s, beta, metric, kappa2, ions, model, walls, flow_walls, visco,
         volume = np.empty(n)
         spacing = np.empty(n - 1)
         finite_volume_metric(sl, beta, metric, xl, link, volume, spacing)
-        if level == 0:
+        if level == first_level and first_level == 0:
             p = start[::stride].copy()
         else:
             p = np.empty(n)
@@ -206,13 +210,14 @@ def nested_solve(s, beta, metric, kappa2, ions, model, walls, flow_walls, visco,
                                           max_iter, MAX_STEP)
         total += its
         if status != 0:
-            return status, total, residual
+            return status, total, residual, raw
         ue = np.empty(n)
         up = np.empty(n)
         centre = 0 if half else (n - 1) // 2
         section_integrals(p, link, volume, spacing, kappa2, ions, model, walls, centre, flow_walls, visco,
                           ue, up, integrals[level])
         if level == LEVELS - 1:
+            raw[0], raw[1], raw[2] = p, ue, up
             correct_profile(p, guess)
             correct_profile(ue, ue_previous)
             correct_profile(up, up_previous)
@@ -220,7 +225,7 @@ def nested_solve(s, beta, metric, kappa2, ions, model, walls, flow_walls, visco,
             u_eo[:] = ue
             u_p[:] = up
         guess, ue_previous, up_previous = p, ue, up
-    return 0, total, residual
+    return 0, total, residual, raw
 
 
 @njit(cache=True)
@@ -228,7 +233,8 @@ def solve_adaptive(metric, half, kappa2, ions, model, walls, flow_walls, visco, 
                    intervals, max_intervals, max_iter, guess, out):
     """One case to the requested accuracy; fills ``out`` with the extrapolated integrals.
 
-    ``intervals`` > 0 fixes the finest grid (no refinement); 0 chooses it from the stiffness and refines.
+    ``intervals`` > 0 fixes the finest grid (no refinement); 0 chooses it from the stiffness and refines,
+    each refinement solving only the new finest grid (the coarser three are the previous ones).
     ``guess`` is a start profile on the first grid's nodes, or empty for the Gouy-Chapman guess.
 
     Returns
@@ -252,11 +258,13 @@ def solve_adaptive(metric, half, kappa2, ions, model, walls, flow_walls, visco, 
     lower = np.empty(out.size)
     scale = np.empty(out.size)
     iterations = 0
+    first_level = 0
+    coarse = np.empty((3, 0))
     while True:
         u_eo = np.empty(s.size)
         u_p = np.empty(s.size)
-        status, its, residual = nested_solve(s, beta, metric, kappa2, ions, model, walls, flow_walls, visco,
-                                             psi, u_eo, u_p, max_iter, levels)
+        status, its, residual, raw = nested_solve(s, beta, metric, kappa2, ions, model, walls, flow_walls,
+                                                  visco, psi, u_eo, u_p, max_iter, levels, first_level, coarse)
         iterations += its
         if status != 0:
             return NEWTON_FAILED, iterations, np.inf, residual, n_half, s, beta, psi, u_eo, u_p
@@ -272,11 +280,14 @@ def solve_adaptive(metric, half, kappa2, ions, model, walls, flow_walls, visco, 
             return CONVERGED, iterations, estimate, residual, n_half, s, beta, psi, u_eo, u_p
         if 2 * n_half > max_intervals:
             return ACCURACY_MISSED, iterations, estimate, residual, n_half, s, beta, psi, u_eo, u_p
-        finer = np.empty(2 * psi.size - 1)
-        prolong(psi, finer)
-        psi = finer
+        # refine: the three finer grids become the coarser three of the new set
+        for level in range(LEVELS - 1):
+            levels[level, :] = levels[level + 1, :]
+        first_level = LEVELS - 1
+        coarse = raw
         n_half *= 2
         s = computational_nodes(n_half, half)
+        psi = np.empty(s.size)  # the finest guess is prolonged from the raw coarse solution inside
 
 
 @njit(cache=True, parallel=True)

@@ -44,9 +44,10 @@ def level_integrals(case: edl.Case, intervals: int) -> np.ndarray:
     psi = np.empty_like(g.x)
     _adaptive.gouy_chapman_guess(g.x, problem.kappa2, problem.half, wall_guess, counter, psi)
     out = np.zeros((_adaptive.LEVELS, _kernels.integral_count(problem.valence.size)))
-    status, _, _ = _adaptive.nested_solve(
+    status, _, _, _ = _adaptive.nested_solve(
         g.s, g.beta, problem.metric, problem.kappa2, problem.ions, problem.model, problem.walls,
-        problem.flow_walls, problem.visco, psi, np.empty_like(psi), np.empty_like(psi), 200, out)
+        problem.flow_walls, problem.visco, psi, np.empty_like(psi), np.empty_like(psi), 200, out, 0,
+        np.empty((3, 0)))
     assert status == 0
     return out[-1]
 
