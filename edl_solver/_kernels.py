@@ -368,13 +368,13 @@ def pb_newton(psi, link, volume, kappa2, ions, model, walls, tol, max_iter, max_
 
 
 @njit(cache=True)
-def stokes(link, viscosity, volume, rhs, flow_walls, u):
+def stokes(link, viscosity, wall_viscosity, volume, rhs, flow_walls, u):
     """Solve the discrete Stokes equation div(eta grad u) = rhs across the section, in place on ``u``.
 
     Rows: a_i eta_i (u_{i+1} - u_i) - a_{i-1} eta_{i-1} (u_i - u_{i-1}) = V_i rhs_i with eta_i the relative
     viscosity of link i. Ends: POTENTIAL = prescribed velocity (no slip: 0), FLUX = prescribed normal
     derivative (0 at a symmetry plane), ROBIN = Navier slip u = -b du/dn (value 1/b_hat): the wall shear
-    stress -eta u / b enters the end cell.
+    stress -eta_w u / b enters the end cell, with ``wall_viscosity`` (per end) the viscosity at the wall.
     """
     n = u.size
     lower = np.empty(n)
@@ -399,8 +399,7 @@ def stokes(link, viscosity, volume, rhs, flow_walls, u):
         elif kind == FLUX:
             b[i] -= value
         else:
-            # wall viscosity: that of the adjacent link (the field is continuous up to the wall)
-            diag[i] -= value * viscosity[i - 1 if i > 0 else 0]
+            diag[i] -= value * wall_viscosity[end]
     tridiagonal_solve(lower, diag, upper, b, u, work)
 
 
@@ -419,13 +418,20 @@ def section_integrals(psi, link, volume, spacing, kappa2, ions, model, walls, ce
         rho[i], _ = charge(psi[i], ions, model)
         rho[i] *= -kappa2
     viscosity = np.ones(n - 1)
+    wall_viscosity = np.ones(2)
     if visco > 0.0:
         for i in range(n - 1):
             grad = (psi[i + 1] - psi[i]) / spacing[i]
             viscosity[i] = 1.0 + visco * grad * grad
-    stokes(link, viscosity, volume, rho, flow_walls, u_eo)
+        # the field at the walls from the end cells' balance (the wall charge), not from the first link:
+        # a slip wall's shear stress needs the viscosity at the wall itself
+        left = -link[0] * (psi[1] - psi[0]) + volume[0] * rho[0]
+        right = link[n - 2] * (psi[n - 1] - psi[n - 2]) + volume[n - 1] * rho[n - 1]
+        wall_viscosity[0] = 1.0 + visco * left * left
+        wall_viscosity[1] = 1.0 + visco * right * right
+    stokes(link, viscosity, wall_viscosity, volume, rho, flow_walls, u_eo)
     ones = np.ones(n)
-    stokes(link, viscosity, volume, ones, flow_walls, u_p)
+    stokes(link, viscosity, wall_viscosity, volume, ones, flow_walls, u_p)
     n_ions = ions.shape[0]
     conc = np.empty((n_ions, n))
     for k in range(n_ions):
@@ -434,7 +440,7 @@ def section_integrals(psi, link, volume, spacing, kappa2, ions, model, walls, ce
     # flows driven by the body force on each ion (the columns of the linear-response matrix)
     ion_flows = np.empty((n_ions, n))
     for k in range(n_ions):
-        stokes(link, viscosity, volume, -conc[k], flow_walls, ion_flows[k])
+        stokes(link, viscosity, wall_viscosity, volume, -conc[k], flow_walls, ion_flows[k])
     for j in range(out.size):
         out[j] = 0.0
     ion_flow_at, conc_up_at, conc_flow_at, _ = response_offsets(n_ions)
