@@ -16,7 +16,7 @@ from __future__ import annotations
 import os
 from typing import TYPE_CHECKING, Any
 
-from edl_solver.case import Capillary, Case, Electrolyte, Ion, Numerics, Slit, Wall
+from edl_solver.case import Capillary, Case, Electrolyte, Ion, Numerics, Site, Slit, Wall
 from edl_solver.errors import ConvergenceError, InputError
 from edl_solver.result import Profiles, Result
 from edl_solver.solvent import Solvent, Water
@@ -59,6 +59,7 @@ __all__ = [
     "Numerics",
     "Profiles",
     "Result",
+    "Site",
     "Slit",
     "Solvent",
     "Wall",

@@ -297,9 +297,9 @@ def _hint(key: str, keys: tuple[str, ...], path: str) -> str:
         suggestion = f"{path}.{close[0]}" if path else close[0]
         return f" (did you mean {suggestion!r}?)"
     # A key put in the wrong table ("height" at the top level, "pK" in [wall]) is found by its last part;
-    # plain paths before list entries.
+    # paths below this table first ("wall.site[].name" for "wall.name"), then plain paths, then list entries.
     leaves: dict[str, str] = {}
-    for full in sorted(CASE_KEYS, key=lambda dotted: "[]" in dotted):
+    for full in sorted(CASE_KEYS, key=lambda dotted: (not dotted.startswith(f"{path}."), "[]" in dotted)):
         leaves.setdefault(full.rsplit(".", 1)[-1].lower(), full)
     close = difflib.get_close_matches(key.lower(), list(leaves), n=1, cutoff=0.8)
     return f" (did you mean {leaves[close[0]]!r}?)" if close else f" (known keys here: {', '.join(keys)})"

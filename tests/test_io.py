@@ -15,6 +15,7 @@ import pytest
 
 import edl_solver as edl
 from edl_solver import io
+from edl_solver.case import Site
 from edl_solver.errors import InputError
 from edl_solver.result import PROFILE_UNITS, SUMMARY_UNITS, summary_unit
 
@@ -33,7 +34,32 @@ CASES = {
                           electrolyte=edl.Electrolyte.from_ions({"Mg2+": "1 mM", "Cl-": "2 mM"}),
                           wall=edl.Wall(charge_density="-5 mC/m^2"), solvent=edl.Water("37 degC"),
                           field="1 kV/m", pressure_gradient="-1 bar/mm", model="dh", tolerance=0.1),
+    # Every new input at once: a silica wall with slip below, an amphoteric wall with fixed charge and a
+    # gate (no Stern layer) above, H+ and OH- added at pH 5.
+    "regulated slit": edl.Case(
+        geometry=edl.Slit(height="40 nm"),
+        electrolyte=edl.Electrolyte.from_ions({"K+": "1 mM", "Cl-": "1 mM"}, pH=5, water_ions=True),
+        wall=(edl.Wall.silica(slip_length="1 nm"),
+              edl.Wall(charge_density="-1 mC/m^2", gate_voltage="1 V", gate_capacitance="10 mF/m^2",
+                       sites=(Site(density="2 nm^-2", pK=(4.0, 9.0), charges=(1, 0, -1), name="amphoteric"),))),
+        field="1 kV/m"),
+    "steric capillary": edl.Case(
+        geometry=edl.Capillary(radius="20 nm"),
+        electrolyte=edl.Electrolyte((edl.Ion("K+", concentration="10 mM", diameter="0.7 nm"),
+                                     edl.Ion("Cl-", concentration="10 mM", diameter="0.7 nm"))),
+        wall=edl.Wall(zeta="-100 mV", slip_length="5 nm"), field="10 kV/m", model="steric"),
+    "viscoelectric slit": edl.Case(
+        geometry=edl.Slit(height="30 nm"), electrolyte=edl.Electrolyte.from_ions({"Na+": 5, "Cl-": 5}, pH=7.5),
+        wall=edl.Wall(zeta="-80 mV"), solvent=edl.Water(viscoelectric=True), field="10 kV/m"),
 }
+CAPILLARIES = ("capillary", "steric capillary")
+
+
+def as_stored(case: edl.Case) -> edl.Case:
+    """The case a file gives back: H+ and OH- added by water_ions=True are kept as plain ions, with
+    water_ions=False (reading the flag again would add them a second time)."""
+    e = case.electrolyte
+    return dataclasses.replace(case, electrolyte=edl.Electrolyte(e.ions, pH=e.pH))
 
 
 @pytest.fixture(scope="module")
@@ -53,7 +79,7 @@ def test_round_trip_restores_everything(results: dict[str, edl.Result], name: st
     assert path == tmp_path / "result.h5"
     loaded = edl.load(path)
 
-    assert loaded.case == result.case
+    assert loaded.case == as_stored(result.case)
     assert list(loaded.summary) == list(result.summary)
     for key, value in result.summary.items():
         got = loaded.summary[key]
@@ -63,7 +89,7 @@ def test_round_trip_restores_everything(results: dict[str, edl.Result], name: st
         else:
             assert type(got) is float, key
     p, q = result.profiles, loaded.profiles
-    assert q.coordinate_name == p.coordinate_name == ("r" if name == "capillary" else "y")
+    assert q.coordinate_name == p.coordinate_name == ("r" if name in CAPILLARIES else "y")
     assert q.ion_names == p.ion_names
     for field in ("coordinate", "concentration", *PROFILE_NAMES):
         np.testing.assert_array_equal(getattr(q, field), getattr(p, field), err_msg=field)
@@ -92,9 +118,10 @@ def test_warnings_nan_and_multiline_text_round_trip(results: dict[str, edl.Resul
 
 @pytest.mark.parametrize("name", CASES)
 def test_xarray_sees_coordinates_and_units(results: dict[str, edl.Result], name: str, tmp_path: Path) -> None:
-    xr = pytest.importorskip("xarray")
+    import xarray as xr
+
     result = results[name]
-    capillary = name == "capillary"
+    capillary = name in CAPILLARIES
     coordinate = "r" if capillary else "y"
     path = result.to_hdf5(tmp_path / "x.h5")
     with xr.open_dataset(path, engine="h5netcdf") as ds:
@@ -128,7 +155,7 @@ def test_xarray_sees_coordinates_and_units(results: dict[str, edl.Result], name:
         assert ds.attrs["verdict"] == result.verdict
         assert ds.attrs["field_V_per_m"] == result.case.field
         assert ("radius_m" if capillary else "height_m") in ds.attrs
-        assert io.case_from_dict(json.loads(ds.attrs["case_json"])) == result.case
+        assert io.case_from_dict(json.loads(ds.attrs["case_json"])) == as_stored(result.case)
 
 
 def test_arrays_compressed_and_netcdf_safe(results: dict[str, edl.Result], tmp_path: Path) -> None:
@@ -273,7 +300,7 @@ def test_incomplete_file_is_input_error(results: dict[str, edl.Result], tmp_path
 def test_case_dict_round_trip_through_json(name: str) -> None:
     case = CASES[name]
     table = io.case_to_dict(case)
-    assert io.case_from_dict(json.loads(json.dumps(table))) == case
+    assert io.case_from_dict(json.loads(json.dumps(table))) == as_stored(case)
     assert None not in _leaves(table)  # TOML has no null
 
 
@@ -318,3 +345,93 @@ def test_unreadable_case_json_is_input_error(results: dict[str, edl.Result], tmp
         f.attrs["case_json"] = '{"geometry": {"kind": "slit"'
     with pytest.raises(InputError, match="case_json"):
         edl.load(path)
+
+
+# ------------------------------------------------------------------------- regulated walls, steric, slip
+
+
+def test_new_inputs_are_readable_attributes(results: dict[str, edl.Result], tmp_path: Path) -> None:
+    import xarray as xr
+
+    with xr.open_dataset(results["regulated slit"].to_hdf5(tmp_path / "r.h5"), engine="h5netcdf") as ds:
+        a = ds.attrs
+        assert a["pH"] == 5.0
+        assert a["wall_bottom_kind"] == a["wall_top_kind"] == "regulated"
+        assert a["wall_bottom_site1_name"] == "silanol"
+        assert a["wall_bottom_site1_density_per_m2"] == 8e18
+        assert float(a["wall_bottom_site1_pK"]) == 7.5
+        assert list(a["wall_bottom_site1_charges"]) == [0, -1]
+        assert a["wall_bottom_stern_capacitance_F_per_m2"] == 2.9
+        assert a["wall_bottom_slip_length_m"] == 1e-9
+        assert "wall_bottom_gate_voltage_V" not in a
+        assert list(a["wall_top_site1_pK"]) == [4.0, 9.0]
+        assert list(a["wall_top_site1_charges"]) == [1, 0, -1]
+        assert (a["wall_top_gate_voltage_V"], a["wall_top_gate_capacitance_F_per_m2"]) == (1.0, 0.01)
+        assert a["wall_top_charge_density_C_per_m2"] == -1e-3
+        assert "wall_top_stern_capacitance_F_per_m2" not in a
+        assert a["viscoelectric_coefficient_m2_per_V2"] == 0.0
+        assert "diameter" not in ds  # no ion has one
+        # The charge plane of the wall without Stern layer is NaN in the pair.
+        assert ds["stern_potential"].dims == ("wall",) and ds["stern_potential"].attrs["units"] == "V"
+        bottom, top = ds["stern_potential"].values
+        assert np.isfinite(bottom) and np.isnan(top)
+    with xr.open_dataset(results["steric capillary"].to_hdf5(tmp_path / "s.h5"), engine="h5netcdf") as ds:
+        assert ds.attrs["model"] == "steric" and ds.attrs["wall_slip_length_m"] == 5e-9
+        assert ds.attrs["wall_kind"] == "potential"
+        assert ds["diameter"].dims == ("ion",) and ds["diameter"].attrs["units"] == "m"
+        np.testing.assert_array_equal(ds["diameter"].values, [0.7e-9, 0.7e-9])
+    with xr.open_dataset(results["viscoelectric slit"].to_hdf5(tmp_path / "v.h5"), engine="h5netcdf") as ds:
+        assert ds.attrs["viscoelectric_coefficient_m2_per_V2"] == 1e-15
+        assert ds.attrs["pH"] == 7.5
+
+
+def test_stern_potential_pair_round_trips_with_nan(results: dict[str, edl.Result], tmp_path: Path) -> None:
+    result = results["regulated slit"]
+    bottom, top = result.summary["stern_potential"]
+    assert math.isfinite(bottom) and math.isnan(top)  # the case this test is about
+    loaded = edl.load(result.to_hdf5(tmp_path / "stern.h5"))
+    assert loaded.summary["stern_potential"][0] == bottom
+    assert math.isnan(loaded.summary["stern_potential"][1])
+
+
+def test_water_ions_are_stored_once(results: dict[str, edl.Result], tmp_path: Path) -> None:
+    case = CASES["regulated slit"]
+    assert [ion.name for ion in case.electrolyte.ions] == ["K+", "Cl-", "H+", "OH-"]
+    table = io.case_to_dict(case)
+    assert [ion["name"] for ion in table["electrolyte"]["ions"]] == ["K+", "Cl-", "H+", "OH-"]
+    assert table["electrolyte"]["pH"] == 5.0 and "water_ions" not in table["electrolyte"]
+    # The stored case is the same physical case: solving it gives the very same numbers.
+    loaded = edl.load(results["regulated slit"].to_hdf5(tmp_path / "w.h5"))
+    assert loaded.case.electrolyte.ions == case.electrolyte.ions
+    again = edl.solve(loaded.case)
+    for key, value in results["regulated slit"].summary.items():
+        assert same(again.summary[key], value), key
+
+
+def test_version_1_shape_is_unchanged_for_inputs_it_had() -> None:
+    # Files of schema version 1 written before regulated walls, slip, the steric model and viscoelectric
+    # solvents must still read the same: a case without them has the very dict the first writer wrote.
+    assert io.SCHEMA_VERSION == "1"
+    assert io.case_to_dict(CASES["slit"]) == {
+        "geometry": {"kind": "slit", "height": 5e-08},
+        "electrolyte": {"ions": [{"name": "K+", "valence": 1, "concentration": 1.0, "diffusivity": 1.957e-09},
+                                 {"name": "Cl-", "valence": -1, "concentration": 1.0, "diffusivity": 2.032e-09}]},
+        "wall": {"zeta": -0.05},
+        "solvent": {"temperature": 298.15, "relative_permittivity": 78.30334375,
+                    "viscosity": 0.0008897608881015455, "name": "water"},
+        "field": 10000.0, "pressure_gradient": -100000.0, "model": "pb", "tolerance": 0.05,
+        "numerics": {"accuracy": 1e-06, "max_iterations": 200, "max_intervals": 4096},
+    }
+
+
+def test_regulated_case_dict_lists_sites_in_full() -> None:
+    table = io.case_to_dict(CASES["regulated slit"])
+    # A preset is written out in full, so a file keeps its meaning if the preset's values change.
+    assert table["wall"]["bottom"] == {"stern_capacitance": 2.9, "slip_length": 1e-9, "site": [
+        {"name": "silanol", "density": 8e18, "pK": 7.5, "charges": [0, -1]}]}
+    assert table["wall"]["top"] == {"charge_density": -1e-3, "gate_voltage": 1.0, "gate_capacitance": 0.01,
+                                    "site": [{"name": "amphoteric", "density": 2e18, "pK": [4.0, 9.0],
+                                              "charges": [1, 0, -1]}]}
+    steric = io.case_to_dict(CASES["steric capillary"])
+    assert [ion["diameter"] for ion in steric["electrolyte"]["ions"]] == [0.7e-9, 0.7e-9]
+    assert io.case_to_dict(CASES["viscoelectric slit"])["solvent"]["viscoelectric_coefficient"] == 1e-15

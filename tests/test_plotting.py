@@ -6,13 +6,12 @@ import os
 import struct
 from pathlib import Path
 
+import matplotlib
 import pytest
 
 import edl_solver as edl
 from edl_solver.errors import InputError
-
-matplotlib = pytest.importorskip("matplotlib")
-from edl_solver.plotting import profile_figure  # noqa: E402  (after the skip: needs matplotlib)
+from edl_solver.plotting import profile_figure
 
 PNG_SIGNATURE = b"\x89PNG\r\n\x1a\n"
 KCL_1MM = edl.Electrolyte.from_ions({"K+": "1 mM", "Cl-": "1 mM"})

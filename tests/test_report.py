@@ -5,11 +5,13 @@ from __future__ import annotations
 import dataclasses
 import math
 from pathlib import Path
+from typing import Any
 
 import pytest
 
 import edl_solver as edl
-from edl_solver.report import prefixed, text
+from edl_solver.case import Site
+from edl_solver.report import close_packing, prefixed, text
 
 KCL_1MM = edl.Electrolyte.from_ions({"K+": "1 mM", "Cl-": "1 mM"})
 
@@ -78,7 +80,7 @@ def test_capillary_report_uses_kappa_a_and_absolute_units(capillary: edl.Result)
 
 def test_two_walls_are_reported_each(asymmetric: edl.Result) -> None:
     report = asymmetric.report()
-    assert "bottom zeta = -50 mV; top zeta = -20 mV" in report
+    assert "Bottom wall: zeta = -50 mV\nTop wall: zeta = -20 mV\n" in report
     assert "bottom -50 mV, top -20 mV" in report
 
 
@@ -106,3 +108,130 @@ def test_report_of_loaded_result_is_identical(slit: edl.Result, tmp_path: Path) 
 ])
 def test_prefixed(value: float, unit: str, expected: str) -> None:
     assert prefixed(value, unit) == expected
+
+
+# -- regulated walls, slip, steric model, pH, viscoelectric solvent ----------------------------------------
+
+
+@pytest.fixture(scope="module")
+def regulated() -> edl.Result:
+    # A silica wall with slip below; above, an amphoteric wall with fixed charge and a gate, no Stern layer.
+    top = edl.Wall(charge_density="-1 mC/m^2", gate_voltage="1 V", gate_capacitance="10 mF/m^2",
+                   sites=(Site(density="2 nm^-2", pK=(4.0, 9.0), charges=(1, 0, -1), name="amphoteric"),))
+    return edl.solve(edl.Case(geometry=edl.Slit(height="40 nm"), field="1 kV/m",
+                              electrolyte=edl.Electrolyte.from_ions({"K+": "1 mM", "Cl-": "1 mM"}, pH=5,
+                                                                    water_ions=True),
+                              wall=(edl.Wall.silica(slip_length="1 nm"), top)))
+
+
+@pytest.fixture(scope="module")
+def steric() -> edl.Result:
+    ions = (edl.Ion("K+", concentration="10 mM", diameter="0.7 nm"),
+            edl.Ion("Cl-", concentration="10 mM", diameter="0.7 nm"))
+    return edl.solve(edl.Case(geometry=edl.Capillary(radius="20 nm"), electrolyte=edl.Electrolyte(ions, pH=7),
+                              wall=edl.Wall(zeta="-100 mV", slip_length="5 nm"), field="10 kV/m", model="steric"))
+
+
+def test_regulated_walls_are_described(regulated: edl.Result) -> None:
+    report = regulated.report()
+    assert ("Bottom wall: charge-regulated; silanol sites 8 nm⁻², pK 7.5 (charge 0 → -1); Stern capacitance "
+            "C_S = 2.9 F/m²; slip length b = 1 nm\n") in report
+    assert ("Top wall: charge-regulated; amphoteric sites 2 nm⁻², pK 4, 9 (charge +1 → 0 → -1); fixed charge "
+            "density -1 mC/m²; gate at V_g = 1 V behind C_g = 10 mF/m²\n") in report
+    # H+ and OH- are among the ions here, so the pH needs no remark.
+    assert "H+ 0.01 mM, OH- 1e-06 mM, ionic strength 1.01 mM; pH 5\n" in report
+    assert "isolated wall, regulated charge" in report  # where the thin-layer zeta comes from
+    assert "Navier slip length b" in report
+    assert len(report.splitlines()) <= 30
+
+
+def test_stern_potential_is_printed_per_wall(regulated: edl.Result) -> None:
+    bottom, top = regulated.summary["stern_potential"]
+    assert math.isnan(top)  # the top wall has no Stern layer
+    line = next(line for line in regulated.report().splitlines() if "charge-plane potential" in line)
+    assert line.endswith(f"bottom {bottom * 1e3:.3g} mV, top none (no Stern layer)")
+    assert "ψ0 = ζ + σ/C_S" in line
+
+
+def test_no_stern_line_without_a_stern_layer(steric: edl.Result) -> None:
+    assert "stern_potential" not in steric.summary
+    assert "charge-plane" not in steric.report()
+
+
+def test_steric_model_slip_and_ph_are_described(steric: edl.Result) -> None:
+    report = steric.report()
+    assert "Model: Poisson-Boltzmann with finite ion size (steric, lattice gas)" in report
+    # 1 / (N_A d^3) for d = 0.7 nm: 1 / (6.022e23 * 3.43e-28 m^3) = 4841 mol/m^3 = 4.84 M
+    assert "ion diameter d = 0.7 nm, close packing at 1/(N_A d³) = 4.84 M" in report
+    assert "Wall: zeta = -100 mV; slip length b = 5 nm" in report
+    assert "pH 7 (H+ and OH- not among the ions)" in report
+    assert "viscoelectric" not in report
+
+
+def test_viscoelectric_coefficient_is_given() -> None:
+    result = edl.solve(edl.Case(geometry=edl.Slit(height="30 nm"), electrolyte=KCL_1MM, wall=edl.Wall(zeta="-60 mV"),
+                                solvent=edl.Water(viscoelectric=True), field="10 kV/m"))
+    assert "Solvent: water at 25 °C (εr = 78.3, viscosity 0.89 mPa·s, viscoelectric coefficient f = 1e-15 m²/V²)" \
+        in result.report()
+
+
+def test_warnings_of_the_solve_are_printed() -> None:
+    # 0.5 M is above the dilute limit of edl_solver.validity: the solve itself notes it.
+    result = edl.solve(edl.Case(geometry=edl.Slit(height="20 nm"), wall=edl.Wall(zeta="-30 mV"),
+                                electrolyte=edl.Electrolyte.from_ions({"K+": "500 mM", "Cl-": "500 mM"})))
+    assert result.warnings
+    report = result.report()
+    for warning in result.warnings:
+        assert f"Warning: {warning}\n" in report
+
+
+def test_report_of_a_loaded_regulated_result_is_identical(regulated: edl.Result, tmp_path: Path) -> None:
+    # The file stores the water ions as plain ions; the report reads the same.
+    assert edl.load(regulated.to_hdf5(tmp_path / "r.h5")).report() == regulated.report()
+
+
+# -- the figure's wording for the new models (plotting shares the report's model names) --------------------
+
+
+def drawn_figure(result: edl.Result, path: Path, monkeypatch: pytest.MonkeyPatch) -> Any:
+    """Draw ``result`` with plotting.profile_figure and return the matplotlib Figure it saved."""
+    from matplotlib.figure import Figure
+
+    from edl_solver.plotting import profile_figure
+
+    saved = []
+    real = Figure.savefig
+
+    def keep(self: Figure, *args: Any, **kwargs: Any) -> None:
+        saved.append(self)
+        real(self, *args, **kwargs)
+
+    monkeypatch.setattr(Figure, "savefig", keep)
+    profile_figure(result, path)
+    return saved[0]
+
+
+def test_figure_marks_close_packing_for_the_steric_model(steric: edl.Result, tmp_path: Path,
+                                                         monkeypatch: pytest.MonkeyPatch) -> None:
+    figure = drawn_figure(steric, tmp_path / "steric.png", monkeypatch)
+    title = " ".join(" ".join(text.get_text() for text in figure.texts).split())  # suptitle; wrapped lines joined
+    assert "d = 0.7 nm" in title and "slip b = 5 nm" in title
+    concentration_axes = figure.axes[1]
+    marks = [line for line in concentration_axes.get_lines() if "close packing" in str(line.get_label())]
+    assert len(marks) == 1
+    assert marks[0].get_ydata()[0] == pytest.approx(close_packing(0.7e-9)) == pytest.approx(4841.0, rel=1e-3)
+
+
+def test_figure_marks_the_charge_plane_of_a_stern_wall(regulated: edl.Result, tmp_path: Path,
+                                                       monkeypatch: pytest.MonkeyPatch) -> None:
+    figure = drawn_figure(regulated, tmp_path / "regulated.png", monkeypatch)
+    title = " ".join(" ".join(text.get_text() for text in figure.texts).split())
+    assert "pH 5" in title and "silanol pK 7.5" in title and "gate 1 V" in title
+    potential_axes = figure.axes[0]
+    marks = [line for line in potential_axes.get_lines() if "charge-plane" in str(line.get_label())]
+    assert len(marks) == 1
+    # Only the bottom wall has a Stern layer: one marker, on it, at psi_0.
+    assert list(marks[0].get_xdata()) == [0.0]
+    assert list(marks[0].get_ydata()) == [regulated.summary["stern_potential"][0] * 1e3]
+    closes = [line for axes in figure.axes for line in axes.get_lines() if "close packing" in str(line.get_label())]
+    assert not closes  # point ions: no ceiling
