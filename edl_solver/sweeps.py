@@ -36,19 +36,30 @@ PENDING, CONVERGED, FAILED = -1, 0, 1
 #: Paths that are not keys of a case file but are understood by sweeps.
 SPECIAL_PATHS = ("electrolyte.concentration",)
 
-#: SI unit of each sweepable path (for parsing values with units and for the file's attributes).
+_WALL_UNITS = {"zeta": "V", "charge_density": "C/m^2", "slip_length": "m", "stern_capacitance": "F/m^2",
+               "gate_voltage": "V", "gate_capacitance": "F/m^2"}
+_SITE_UNITS = {"pK": "dimensionless", "density": "1/m^2"}
+
+#: SI unit of each sweepable path (for parsing values with units and for the file's attributes). Walls:
+#: "wall.<key>" sets every wall, "wall.bottom.<key>" / "wall.top.<key>" one slit wall; sites as
+#: "wall.site[0].pK" (first kind of site; "wall.top.site[0].density" and so on).
 PATH_UNITS = {
     "geometry.height": "m", "geometry.radius": "m",
-    "electrolyte.concentration": "mol/m^3",
-    "wall.zeta": "V", "wall.charge_density": "C/m^2",
-    "wall.bottom.zeta": "V", "wall.bottom.charge_density": "C/m^2",
-    "wall.top.zeta": "V", "wall.top.charge_density": "C/m^2",
+    "electrolyte.concentration": "mol/m^3", "electrolyte.pH": "dimensionless",
+    **{f"wall.{key}": unit for key, unit in _WALL_UNITS.items()},
+    **{f"wall.{side}.{key}": unit for side in ("bottom", "top") for key, unit in _WALL_UNITS.items()},
+    **{f"wall.site[{j}].{key}": unit for j in range(4) for key, unit in _SITE_UNITS.items()},
+    **{f"wall.{side}.site[{j}].{key}": unit for side in ("bottom", "top") for j in range(4)
+       for key, unit in _SITE_UNITS.items()},
     "solvent.temperature": "K", "solvent.relative_permittivity": "dimensionless", "solvent.viscosity": "Pa*s",
+    "solvent.viscoelectric_coefficient": "m^2/V^2",
     "field": "V/m", "pressure_gradient": "Pa/m", "tolerance": "dimensionless",
     "numerics.accuracy": "dimensionless",
 }
 #: Paths whose values are words, not numbers.
 WORD_PATHS = ("model",)
+#: Keys of a wall table that set its electrical condition (a fixed zeta excludes the others).
+_CHARGE_KEYS = ("charge_density", "site", "stern_capacitance", "gate_voltage", "gate_capacitance")
 
 
 @dataclass(frozen=True)
@@ -122,31 +133,55 @@ def make_axes(axes: Mapping[str, Any], zipped: Sequence[Sequence[str]] = ()) -> 
     return tuple(result)
 
 
+def _set_wall(wall: dict[str, Any], key: str, value: Any) -> None:
+    """Set one key of a wall table; a fixed zeta and the charge keys exclude each other."""
+    if key == "zeta":
+        for other in _CHARGE_KEYS:
+            wall.pop(other, None)
+    elif key in ("charge_density", "stern_capacitance", "gate_voltage", "gate_capacitance"):
+        wall.pop("zeta", None)
+    if key.startswith("site["):
+        index, leaf = int(key[5:key.index("]")]), key.split(".")[-1]
+        sites = wall.get("site", [])
+        if index >= len(sites):
+            raise InputError(f"axes: wall.{key} names site {index}, but the wall has {len(sites)} kind(s) of site")
+        sites[index][leaf] = value
+        return
+    wall[key] = value
+
+
 def _set_path(table: dict[str, Any], path: str, value: Any) -> None:
     """Set one input in the plain-dict form of a case (``io.case_to_dict``)."""
+    electrolyte = table["electrolyte"]
+    if path in ("electrolyte.concentration", "electrolyte.pH") and any(
+            ion["name"] in ("H+", "OH-") for ion in electrolyte["ions"]):
+        raise InputError(f"axes: {path!r} cannot be swept when H+ or OH- are among the ions, expected the pH given "
+                         "on its own (Electrolyte(..., pH=...) without water_ions)")
     if path == "electrolyte.concentration":
-        ions = table["electrolyte"]["ions"]
+        ions = electrolyte["ions"]
         factor = value / ions[0]["concentration"]
         for ion in ions:
             ion["concentration"] *= factor
         return
-    if path in ("wall.zeta", "wall.charge_density"):
-        walls = [table["wall"]["bottom"], table["wall"]["top"]] if "bottom" in table["wall"] else [table["wall"]]
-        for wall in walls:
-            wall.clear()
-            wall[path.split(".")[1]] = value
-        return
-    if path.startswith(("wall.bottom.", "wall.top.")):
+    if path.startswith("wall."):
+        rest = path[len("wall."):]
         wall = table["wall"]
-        if "bottom" not in wall:  # one condition for both walls becomes a pair
-            table["wall"] = wall = {"bottom": dict(wall), "top": dict(wall)}
-        side = wall[path.split(".")[1]]
-        side.clear()
-        side[path.split(".")[2]] = value
+        paired = "bottom" in wall
+        side = rest.split(".")[0]
+        if side in ("bottom", "top"):
+            if not paired:  # one condition for both walls becomes a pair
+                table["wall"] = wall = {"bottom": wall, "top": json.loads(json.dumps(wall))}
+            _set_wall(wall[side], rest[len(side) + 1:], value)
+        else:
+            for one in ([wall["bottom"], wall["top"]] if paired else [wall]):
+                _set_wall(one, rest, value)
         return
     if path == "solvent.temperature" and table["solvent"].get("name") == "water":
         # water's permittivity and viscosity follow the temperature (its correlations)
+        coefficient = table["solvent"].get("viscoelectric_coefficient")
         table["solvent"] = {"temperature": value, "name": "water"}
+        if coefficient:
+            table["solvent"]["viscoelectric_coefficient"] = coefficient
         return
     node = table
     *parents, leaf = path.split(".")
