@@ -166,8 +166,37 @@ def _row(label: str, value: str) -> str:
     return f"  {label:<{_LABEL_WIDTH}} {value}"
 
 
+def _transport_lines(s: dict[str, Any], capillary: bool) -> list[str]:
+    """Lab quantities per unit channel length, each beside its thin-layer value and that value's error."""
+    if "conductance_per_length" not in s:
+        return []
+    per = "per unit length" + ("" if capillary else ", per metre of width")
+
+    def pair(key: str, scale: float, unit: str) -> str:
+        full = _scaled(s[key], scale, unit).rstrip()
+        thin = s.get(f"thin_layer_{key}", math.nan)
+        error = s.get(f"thin_layer_{key}_error", math.nan)
+        if not math.isfinite(thin):  # e.g. a coupling beyond the second law (q^2 >= 1) in an overlapped channel
+            return f"{full}   (thin-layer: no consistent value here)"
+        return f"{full}   (thin-layer {_scaled(thin, scale, unit).rstrip()}, {_percent(error, signed=True)})"
+
+    conductance_unit = ("nS·m", 1e9) if capillary else ("nS", 1e9)
+    return [
+        f"Transport and energy conversion ({per}; in brackets the thin-layer value and its error)",
+        _row("conductance × length", pair("conductance_per_length", conductance_unit[1], conductance_unit[0])),
+        _row("streaming potential per pressure", pair("streaming_potential_coefficient", 1e9, "mV/MPa")),
+        _row("EO pump pressure per volt (no flow)", pair("eo_pump_pressure_per_voltage", 1e-3, "kPa/V")),
+        _row("electroviscous ratio η_app/η", pair("electroviscous_ratio", 1.0, "")),
+        _row("cation transference / selectivity",
+             f"{_number(s['cation_transference'])} / {_number(s['selectivity'])}   (thin-layer "
+             f"{_number(s['thin_layer_cation_transference'])})"),
+        _row("diffusion potential per unit ln c", pair("diffusion_potential", 1e3, "mV")),
+        _row("max efficiency, pressure -> electric", pair("max_efficiency", 100.0, "%")),
+    ]
+
+
 def text(result: Result) -> str:
-    """A short plain-text report of ``result`` (about 25 lines).
+    """A short plain-text report of ``result`` (about 35 lines).
 
     It states the case, the Debye length and κh (or κa), the main summary values in convenient units,
     the thin-layer (Helmholtz-Smoluchowski slip) comparison with its verdict, the solver status and
@@ -243,6 +272,8 @@ def text(result: Result) -> str:
         _row("largest profile deviation outside the layers",
              f"{_percent(get('thin_layer_max_outer_deviation'))} of the slip speed"),
         f"Verdict: {result.verdict}",
+        "",
+        *_transport_lines(s, capillary),
         "",
         f"Solver: {result.message or result.status}",
     ]
