@@ -13,6 +13,8 @@ shows everything at once)::
     summary      one variable per summary key, named as the key: 0-d, or on (wall) for a
                  (bottom, top) pair (NaN where a wall has no such value, e.g. the stern_potential of
                  a wall without Stern layer); the attribute ``summary_keys`` lists them in order
+    group transport   response_matrix (flux x force: volume flow, current, salt flux against solvent force,
+                 field, salt force) and ion_response_matrix (ion_flux x ion_force), per unit length
     attributes   every variable has ``units`` and ``long_name``; global attributes hold the case as
                  JSON (``case_json``, the source of truth on reading) and as readable scalars with
                  the unit in the name (``height_m``, ``field_V_per_m``, ``pH``,
@@ -322,6 +324,9 @@ def _write(file: Any, result: Result) -> None:
         _add_array(file, key, ("wall",) if data.ndim else (), data, summary_unit(key, capillary),
                    SUMMARY_UNITS[key][1])
 
+    if result.response_matrix is not None:
+        _write_transport(file.create_group("transport"), result, capillary)
+
     attrs = {
         "title": f"edl_solver result: {case.describe()}",
         "schema_version": SCHEMA_VERSION,
@@ -340,6 +345,36 @@ def _write(file: Any, result: Result) -> None:
     }
     for name, value in attrs.items():
         file.attrs[name] = value
+
+
+#: Rows (fluxes) and columns (forces) of the 3 x 3 response matrix, with their units (slit, capillary).
+_FLUXES = (("volume_flow", "m^2/s", "m^3/s"), ("current", "A/m", "A"), ("salt_flux", "mol/(m*s)", "mol/s"))
+_FORCES = (("solvent_force", "Pa/m"), ("field", "V/m"), ("salt_force", "J/(mol*m)"))
+
+
+def _write_transport(group: Any, result: Result, capillary: bool) -> None:
+    """Group "transport": the response matrices, per unit length (slit: per unit width)."""
+    ions = result.profiles.ion_names
+    group.dimensions = {"flux": 3, "force": 3, "ion_flux": len(ions) + 1, "ion_force": len(ions) + 1}
+    _add_strings_on(group, "flux", "flux", [f for f, *_ in _FLUXES], "conjugate flux (row)")
+    _add_strings_on(group, "force", "force", [f for f, _ in _FORCES], "driving force (column)")
+    _add_strings_on(group, "ion_flux", "ion_flux", ["volume_flow", *ions], "flux: volume flow, then each ion")
+    _add_strings_on(group, "ion_force", "ion_force", ["solvent_force", *ions], "force: solvent, then each ion")
+    units = ", ".join(f"{f} [{c if capillary else s}]" for f, s, c in _FLUXES) + " per " + ", ".join(
+        f"{f} [{u}]" for f, u in _FORCES)
+    _add_array(group, "response_matrix", ("flux", "force"), result.response_matrix, "mixed (see units_by_entry)",
+               "linear-response matrix of the section per unit length (space-charge model)")
+    group.variables["response_matrix"].attrs["units_by_entry"] = units
+    _add_array(group, "ion_response_matrix", ("ion_flux", "ion_force"), result.ion_response_matrix,
+               "mixed (volume flow m^3/s or m^2/s, ion flux mol/s or mol/(m s); forces Pa/m and J/(mol m))",
+               "linear-response matrix resolved per ion (solvent force, then the ions' electrochemical forces)")
+
+
+def _add_strings_on(group: Any, name: str, dim: str, values: Sequence[str], long_name: str) -> None:
+    import h5py
+
+    variable = group.create_variable(name, (dim,), h5py.string_dtype(), data=np.array(values, dtype=object))
+    variable.attrs["long_name"] = long_name
 
 
 def write_result(result: Result, path: str | os.PathLike[str]) -> Path:
@@ -418,6 +453,11 @@ def _read(file: Any, shown: str) -> Result:
         data = variables[key][...]
         summary[key] = tuple(_number(v) for v in data) if np.ndim(data) else _number(data[()])
     warnings = tuple(_text(attrs[f"warning_{n}"]) for n in range(1, int(attrs.get("warning_count", 0)) + 1))
+    matrices: dict[str, Any] = {}
+    if "transport" in file.groups:
+        transport = file.groups["transport"].variables
+        matrices = {name: np.asarray(transport[name][...], dtype=float)
+                    for name in ("response_matrix", "ion_response_matrix") if name in transport}
     return Result(
         case=case,
         profiles=profiles,
@@ -428,6 +468,7 @@ def _read(file: Any, shown: str) -> Result:
         iterations=int(attrs.get("iterations", 0)),
         residual=float(attrs.get("residual", math.nan)),
         warnings=warnings,
+        **matrices,
     )
 
 

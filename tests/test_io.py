@@ -435,3 +435,20 @@ def test_regulated_case_dict_lists_sites_in_full() -> None:
     steric = io.case_to_dict(CASES["steric capillary"])
     assert [ion["diameter"] for ion in steric["electrolyte"]["ions"]] == [0.7e-9, 0.7e-9]
     assert io.case_to_dict(CASES["viscoelectric slit"])["solvent"]["viscoelectric_coefficient"] == 1e-15
+
+
+def test_transport_group_round_trips_the_response_matrices(tmp_path: Path) -> None:
+    """The response matrices are stored in the "transport" group (xarray opens it with group=) and read back."""
+    import xarray as xr
+
+    case = edl.Case(geometry=edl.Capillary(radius="10 nm"), electrolyte=edl.Electrolyte.from_ions(
+        {"Ca2+": "1 mM", "Cl-": "2 mM"}), wall=edl.Wall(charge_density="-5 mC/m^2"))
+    result = edl.solve(case)
+    path = result.to_hdf5(tmp_path / "t.h5")
+    back = edl.load(path)
+    assert np.array_equal(back.response_matrix, result.response_matrix)
+    assert np.array_equal(back.ion_response_matrix, result.ion_response_matrix)
+    with xr.open_dataset(path, engine="h5netcdf", group="transport") as ds:
+        assert list(ds["ion_flux"].values) == ["volume_flow", "Ca2+", "Cl-"]
+        assert ds["response_matrix"].dims == ("flux", "force")
+        assert "current [A]" in ds["response_matrix"].attrs["units_by_entry"]
