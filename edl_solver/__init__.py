@@ -22,6 +22,7 @@ from edl_solver.result import Profiles, Result
 from edl_solver.solvent import Solvent, Water
 
 if TYPE_CHECKING:
+    from edl_solver.channel import Channel
     from edl_solver.solver import solve
     from edl_solver.sweeps import sweep
 
@@ -46,11 +47,16 @@ def __getattr__(name: str) -> Any:
         from edl_solver.sweeps import sweep
 
         return sweep
+    if name == "Channel":
+        from edl_solver.channel import Channel
+
+        return Channel
     raise AttributeError(f"module 'edl_solver' has no attribute {name!r}")
 
 
 __all__ = [
     "Capillary",
+    "Channel",
     "Case",
     "ConvergenceError",
     "Electrolyte",
