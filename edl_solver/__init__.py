@@ -56,8 +56,8 @@ def __getattr__(name: str) -> Any:
 
 __all__ = [
     "Capillary",
-    "Channel",
     "Case",
+    "Channel",
     "ConvergenceError",
     "Electrolyte",
     "InputError",

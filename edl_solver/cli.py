@@ -380,6 +380,8 @@ def _run_sweep(args: argparse.Namespace) -> int:
     if partial.exists() and not args.resume:
         raise InputError(f"{partial}: an interrupted sweep is kept there; add --resume to finish it (or delete "
                          "the file to start afresh)")
+    if partial.exists():
+        _check_partial(partial)
     if args.workers < 1:
         raise InputError(f"--workers: {args.workers} is not allowed, expected a positive integer")
     client = _dask_client(args.dask) if args.dask is not None else None
@@ -404,6 +406,24 @@ def _run_sweep(args: argparse.Namespace) -> int:
     if not args.quiet:
         print(_sweep_summary(result, output))
     return EXIT_OK
+
+
+def _check_partial(partial: Path) -> None:
+    """A partial file that cannot be resumed (a run killed while it laid the file out) is reported as
+    such, rather than as a traceback from the HDF5 library."""
+    import h5py
+
+    from edl_solver.errors import InputError
+
+    try:
+        with h5py.File(partial, "r") as f:
+            laid_out = "status" in f and "sweep_json" in f.attrs
+    except (OSError, KeyError, RuntimeError, ValueError) as exc:
+        laid_out, reason = False, str(exc)
+    else:
+        reason = "its layout is incomplete"
+    if not laid_out:
+        raise InputError(f"{partial}: cannot be resumed ({reason}); delete it to start the sweep afresh")
 
 
 def _dask_client(address: str) -> Any:

@@ -70,15 +70,8 @@ SWEEP_KEYS = ("axes", "zip", "output_profiles")
 _RANGE_KEYS = ("log", "linear", "points")
 #: More values than this on one axis is a typo, not a design space (it would also exhaust memory).
 MAX_POINTS = 1_000_000
-#: Axes that would overwrite each other's input (the later one silently winning).
-_CONFLICTS = (
-    ("geometry.height", "geometry.radius"),
-    ("wall.zeta", "wall.charge_density"),
-    ("wall.bottom.zeta", "wall.bottom.charge_density"),
-    ("wall.top.zeta", "wall.top.charge_density"),
-    *((every, side) for every in ("wall.zeta", "wall.charge_density")
-      for side in ("wall.bottom.zeta", "wall.bottom.charge_density", "wall.top.zeta", "wall.top.charge_density")),
-)
+#: Wall keys that make a wall a charged one; a fixed zeta excludes them (as ``case.Wall`` does).
+_CHARGE_KEYS = ("charge_density", "site", "stern_capacitance", "gate_voltage", "gate_capacitance")
 
 
 class SweepSpec(NamedTuple):
@@ -116,7 +109,7 @@ def load_sweep(path: str | Path) -> SweepSpec:
     InputError
         One line starting with the file name and naming the dotted key: a missing or invalid file, an
         unknown key or axis (with a "did you mean" hint), an empty list, a bad range (``points`` not a
-        positive integer, a log bound not positive), values without, with mixed or with wrong units,
+        positive integer, a log bound not positive), values with mixed or wrong units,
         zipped axes of different lengths, conflicting axes, or a value the case does not accept.
     """
     from edl_solver.casefile import read_mapping
@@ -347,15 +340,41 @@ def _range_values(path: str, spec: Mapping[str, Any]) -> list[float]:
 
 
 def _check_conflicts(axes: Mapping[str, list[Any]]) -> None:
-    for first, second in _CONFLICTS:
-        if first in axes and second in axes:
-            hint = ""
-            if first in ("wall.zeta", "wall.charge_density") and "." in second[5:]:
-                side = second.split(".")[1]
-                other = "bottom" if side == "top" else "top"
-                hint = f" (vary the {other} wall with 'wall.{other}.{first.split('.')[1]}')"
-            raise InputError(f'sweep.axes: "{first}" and "{second}" both set the same input, expected one '
-                             f"of them{hint}")
+    """Reject two axes of which the later would overwrite the other's input (the sweep applies the axes
+    in order, so one of them would silently have no effect)."""
+    paths = list(axes)
+    for i, first in enumerate(paths):
+        for second in paths[i + 1:]:
+            if {first, second} == {"geometry.height", "geometry.radius"}:
+                raise InputError(f'sweep.axes: "{first}" and "{second}" are two geometries, expected one of them')
+            if first.startswith("wall.") and second.startswith("wall.") and _walls_clash(first, second):
+                raise InputError(f'sweep.axes: "{first}" and "{second}" both set the same input, expected one '
+                                 f"of them{_other_wall_hint(first, second)}")
+
+
+def _wall_scope(path: str) -> tuple[str, str]:
+    """("bottom" | "top" | "every", the key within the wall) of a "wall..." path."""
+    rest = path[len("wall."):]
+    side, _, key = rest.partition(".")
+    return (side, key) if side in ("bottom", "top") else ("every", rest)
+
+
+def _walls_clash(first: str, second: str) -> bool:
+    (scope1, key1), (scope2, key2) = _wall_scope(first), _wall_scope(second)
+    if scope1 != scope2 and "every" not in (scope1, scope2):
+        return False  # the two walls of a slit are independent
+    kinds = {key.split("[")[0].split(".")[0] for key in (key1, key2)}
+    return key1 == key2 or ("zeta" in kinds and bool(kinds & set(_CHARGE_KEYS)))
+
+
+def _other_wall_hint(first: str, second: str) -> str:
+    """For every wall against one wall: how to vary the other wall instead."""
+    scopes = {_wall_scope(first)[0]: first, _wall_scope(second)[0]: second}
+    if "every" not in scopes or len(scopes) != 2:
+        return ""
+    side = next(scope for scope in scopes if scope != "every")
+    other = "bottom" if side == "top" else "top"
+    return f" (vary the {other} wall with 'wall.{other}.{_wall_scope(scopes['every'])[1]}')"
 
 
 def _zip_groups(value: Any, axes: Mapping[str, list[Any]]) -> list[list[str]]:
