@@ -244,7 +244,7 @@ def solve_adaptive(metric, half, kappa2, ions, model, walls, flow_walls, visco, 
     """
     n_ions = ions.shape[0]
     beta = stretching(inner_length(kappa2, wall_guess, counter))
-    n_half = intervals if intervals > 0 else starting_intervals(beta, accuracy)
+    n_half = intervals if intervals > 0 else min(starting_intervals(beta, accuracy), max_intervals)
     s = computational_nodes(n_half, half)
     psi = np.empty(s.size)
     if guess.size == s.size:

@@ -61,6 +61,7 @@ from typing import Any, NamedTuple
 
 from edl_solver.case import Case
 from edl_solver.errors import InputError
+from edl_solver.sweeps import check_conflicts
 
 __all__ = ["SWEEP_KEYS", "SweepSpec", "load_sweep", "sweep_from_mapping"]
 
@@ -71,7 +72,6 @@ _RANGE_KEYS = ("log", "linear", "points")
 #: More values than this on one axis is a typo, not a design space (it would also exhaust memory).
 MAX_POINTS = 1_000_000
 #: Wall keys that make a wall a charged one; a fixed zeta excludes them (as ``case.Wall`` does).
-_CHARGE_KEYS = ("charge_density", "site", "stern_capacitance", "gate_voltage", "gate_capacitance")
 
 
 class SweepSpec(NamedTuple):
@@ -159,7 +159,7 @@ def _spec(data: Mapping[str, Any]) -> SweepSpec:
     table = _sweep_table(data)
     raw_axes = _flatten_axes(table.get("axes"))
     axes = {path: _axis_values(path, spec) for path, spec in raw_axes.items()}
-    _check_conflicts(axes)
+    check_conflicts(axes, "sweep.axes")
     zipped = _zip_groups(table.get("zip", []), axes)
     _check_output_profiles(table.get("output_profiles", False))
     case_data = {key: value for key, value in data.items() if key != "sweep"}
@@ -337,44 +337,6 @@ def _range_values(path: str, spec: Mapping[str, Any]) -> list[float]:
     # 15 significant digits, as units.to_si does: "50 nm" in a range is 5e-08, not 4.999999999999999e-08,
     # so that the coordinate can be selected by the value the user has in mind.
     return [float(f"{v:.15g}") for v in values]
-
-
-def _check_conflicts(axes: Mapping[str, list[Any]]) -> None:
-    """Reject two axes of which the later would overwrite the other's input (the sweep applies the axes
-    in order, so one of them would silently have no effect)."""
-    paths = list(axes)
-    for i, first in enumerate(paths):
-        for second in paths[i + 1:]:
-            if {first, second} == {"geometry.height", "geometry.radius"}:
-                raise InputError(f'sweep.axes: "{first}" and "{second}" are two geometries, expected one of them')
-            if first.startswith("wall.") and second.startswith("wall.") and _walls_clash(first, second):
-                raise InputError(f'sweep.axes: "{first}" and "{second}" both set the same input, expected one '
-                                 f"of them{_other_wall_hint(first, second)}")
-
-
-def _wall_scope(path: str) -> tuple[str, str]:
-    """("bottom" | "top" | "every", the key within the wall) of a "wall..." path."""
-    rest = path[len("wall."):]
-    side, _, key = rest.partition(".")
-    return (side, key) if side in ("bottom", "top") else ("every", rest)
-
-
-def _walls_clash(first: str, second: str) -> bool:
-    (scope1, key1), (scope2, key2) = _wall_scope(first), _wall_scope(second)
-    if scope1 != scope2 and "every" not in (scope1, scope2):
-        return False  # the two walls of a slit are independent
-    kinds = {key.split("[")[0].split(".")[0] for key in (key1, key2)}
-    return key1 == key2 or ("zeta" in kinds and bool(kinds & set(_CHARGE_KEYS)))
-
-
-def _other_wall_hint(first: str, second: str) -> str:
-    """For every wall against one wall: how to vary the other wall instead."""
-    scopes = {_wall_scope(first)[0]: first, _wall_scope(second)[0]: second}
-    if "every" not in scopes or len(scopes) != 2:
-        return ""
-    side = next(scope for scope in scopes if scope != "every")
-    other = "bottom" if side == "top" else "top"
-    return f" (vary the {other} wall with 'wall.{other}.{_wall_scope(scopes['every'])[1]}')"
 
 
 def _zip_groups(value: Any, axes: Mapping[str, list[Any]]) -> list[list[str]]:
