@@ -246,8 +246,10 @@ def _identity_checks(section: SectionSolution, kappa2: float, case: Case, ion_ma
         np.sum(section.grid.volume))
     reciprocity = abs(eo - streaming) / max(abs(eo), abs(streaming), wall_scale, 1e-300)
     # the whole ion-resolved matrix must be symmetric too (each entry against its row and column scale)
-    size = np.sqrt(np.abs(np.diag(ion_matrix)))
-    onsager = float(np.max(np.abs(ion_matrix - ion_matrix.T) / np.outer(size, size)))
+    entries = ion_matrix.tolist()
+    size = [math.sqrt(abs(entries[a][a])) for a in range(len(entries))]
+    onsager = max((abs(entries[a][b] - entries[b][a]) / (size[a] * size[b])
+                   for a in range(len(entries)) for b in range(a)), default=0.0)
     worst = max(balance, reciprocity, onsager)
     if not worst <= IDENTITY_TOLERANCE:
         raise ConvergenceError(f"{case.describe()}: the discrete solution violates charge balance "

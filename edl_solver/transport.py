@@ -139,33 +139,32 @@ def lab_quantities(matrix: np.ndarray, case: Case, units: Scales) -> dict[str, f
       Stein, Meyer & Dekker 2007, Nano Lett. 7, 1022, from memory); maximum power per length at the case's
       pressure gradient M01^2 (dp/dx)^2 / (4 M11).
     """
-    m = matrix
+    m = matrix.tolist()  # plain floats: this runs on every solve, and numpy scalars are slow one by one
     rt = GAS_CONSTANT * case.solvent.temperature
-    nu = salt_stoichiometry(case)
-    total_nu = float(np.sum(nu))
     total_c = sum(ion.concentration for ion in case.electrolyte.ions)
+    total_nu = total_c / min(ion.concentration for ion in case.electrolyte.ions)  # sum of salt_stoichiometry
     # per unit g = d ln c/dx at no hydrostatic pressure gradient: X_P = RT sum c, X_s = -RT sum nu
     x_p, x_s = rt * total_c, -rt * total_nu
-    field = -(m[1, 0] * x_p + m[1, 2] * x_s) / m[1, 1]  # zero current
-    do_flow = m[0, 0] * x_p + m[0, 1] * field + m[0, 2] * x_s  # per unit g
-    q2 = m[0, 1] * m[1, 0] / (m[0, 0] * m[1, 1])
+    field = -(m[1][0] * x_p + m[1][2] * x_s) / m[1][1]  # zero current
+    do_flow = m[0][0] * x_p + m[0][1] * field + m[0][2] * x_s  # per unit g
+    q2 = m[0][1] * m[1][0] / (m[0][0] * m[1][1])
     # q^2 >= 1 would violate the second law; only a model outside its validity (the thin-layer model in an
     # overlapped channel) produces it, and then the conversion figures and the apparent viscosity are undefined
     physical = q2 < 1.0
     root = math.sqrt(1.0 - q2) if physical else math.nan
     return {
-        "conductance_per_length": m[1, 1],
-        "streaming_conductance": m[1, 0],
-        "streaming_potential_coefficient": -m[1, 0] / m[1, 1],
+        "conductance_per_length": m[1][1],
+        "streaming_conductance": m[1][0],
+        "streaming_potential_coefficient": -m[1][0] / m[1][1],
         "electroviscous_ratio": 1.0 / (1.0 - q2) if physical else math.nan,
-        "eo_pump_flow_per_field": m[0, 1],
-        "eo_pump_pressure_per_voltage": m[0, 1] / m[0, 0],
+        "eo_pump_flow_per_field": m[0][1],
+        "eo_pump_pressure_per_voltage": m[0][1] / m[0][0],
         "diffusioosmotic_flow": do_flow,
         "diffusion_potential": -field,
         "figure_of_merit": q2 / (1.0 - q2) if physical else math.nan,
         "max_efficiency": q2 / (1.0 + root) ** 2,
         "efficiency_at_max_power": q2 / (2.0 * (2.0 - q2)) if physical else math.nan,
-        "max_power_per_length": m[0, 1] * m[1, 0] * case.pressure_gradient**2 / (4.0 * m[1, 1]),
+        "max_power_per_length": m[0][1] * m[1][0] * case.pressure_gradient**2 / (4.0 * m[1][1]),
     }
 
 
