@@ -85,7 +85,7 @@ _PROFILE_LONG_NAMES = {
 # Atomic output
 
 
-def _output_path(path: object) -> Path:
+def checked_output_path(path: object) -> Path:
     """Check that ``path`` names a file that can be created; return it as a Path."""
     if not isinstance(path, (str, os.PathLike)) or not os.fspath(path):
         raise InputError(f"path: {path!r} is not a file path, expected a str or pathlib.Path")
@@ -120,7 +120,7 @@ def atomic_output(path: str | os.PathLike[str]) -> Iterator[Path]:
     InputError
         If ``path`` is not a path, is a directory, or its directory does not exist or is not writable.
     """
-    target = _output_path(path)
+    target = checked_output_path(path)
     temporary = target.with_name(f".{target.name}.{secrets.token_hex(6)}.tmp")
     try:
         # os.open with 0o666 lets the umask decide the final permissions (mkstemp would force 0o600).

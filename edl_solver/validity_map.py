@@ -43,6 +43,7 @@ import numpy as np
 from edl_solver.case import Capillary, Case
 from edl_solver.constants import FARADAY
 from edl_solver.errors import ConvergenceError, InputError
+from edl_solver.io import atomic_output, checked_output_path
 
 __all__ = [
     "PSEUDO_AXES",
@@ -311,7 +312,7 @@ def validity_map(base: Case, x_axis: tuple[str, Any], y_axis: tuple[str, Any], *
     overlay = None if boundary_tolerance is None else _tolerance(boundary_tolerance, "boundary_tolerance")
     if "zipped" in sweep_options or "axes" in sweep_options:
         raise InputError("sweep_options: a map has exactly two independent axes, expected no 'zipped' or 'axes'")
-    target = _output_path(path) if path is not None else None
+    target = checked_output_path(path) if path is not None else None
     raw = target.with_name(target.name + ".sweep") if target is not None else None
     data = sweep(base, {y.path: list(y.inputs), x.path: list(x.inputs)}, path=raw, **sweep_options)
     data = _map_dataset(data, base, x, y, levels)
@@ -325,18 +326,6 @@ def validity_map(base: Case, x_axis: tuple[str, Any], y_axis: tuple[str, Any], *
         _write(data, target)
         raw.unlink(missing_ok=True)
     return data
-
-
-def _output_path(path: object) -> Path:
-    """The map's file name, checked before anything is solved."""
-    if not isinstance(path, (str, os.PathLike)) or not os.fspath(path):
-        raise InputError(f"path: {path!r} is not a file path, expected a str or pathlib.Path")
-    target = Path(os.fspath(path)).expanduser()
-    if target.is_dir():
-        raise InputError(f"path: {str(path)!r} is a directory, expected a file name")
-    if not target.parent.is_dir():
-        raise InputError(f"path: {str(path)!r} is in a directory that does not exist ({str(target.parent)!r})")
-    return target
 
 
 def _boundary_along(x: _MapAxis, y: _MapAxis) -> _MapAxis:
@@ -419,7 +408,6 @@ def _thin_layer_currents(base: Case, x: _MapAxis, y: _MapAxis) -> np.ndarray:
 
 def _write(data: Any, target: Path) -> None:
     """The map as netCDF-4 (h5netcdf), atomically; gzip + shuffle on the numeric arrays."""
-    from edl_solver.io import atomic_output
 
     encoding = {}
     for name, variable in data.variables.items():
@@ -794,7 +782,6 @@ def map_figure(ds: Any, path: str | os.PathLike[str], boundary: Any = None) -> P
     from matplotlib.figure import Figure
     from matplotlib.ticker import FuncFormatter
 
-    from edl_solver.io import atomic_output
 
     x_name, y_name, table = _map_parts(ds)
     curve = _curve_for(ds, boundary, x_name, y_name)
