@@ -559,8 +559,12 @@ def _run(tasks: list[list[int]], base_table: dict[str, Any], axes: Sequence[Axis
 
 
 def _one_thread() -> None:
-    # Each worker is one process on one core: keep numba from spawning threads of its own.
+    # Each worker is one process on one core: keep numba from spawning threads of its own. The variable
+    # only counts before numba starts its threads, so set the live value as well.
     os.environ["NUMBA_NUM_THREADS"] = "1"
+    import numba
+
+    numba.set_num_threads(1)
 
 
 def _run_dask(tasks: list[list[int]], base_table: dict[str, Any], axes: Sequence[Axis],
