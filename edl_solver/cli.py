@@ -58,7 +58,9 @@ _CASE_FLAGS: tuple[tuple[str, str, str, str], ...] = (
 _PLAIN_FLAGS = ("--temperature", "--field", "--pressure-gradient", "--tolerance", "--accuracy")
 #: Flags that take a value: a value after them is never read as a flag, so "--zeta -40mV" works.
 _VALUE_FLAGS = frozenset({flag for flag, *_ in _CASE_FLAGS}
-                         | {"-o", "--output", "--figure", "--model", "--workers", "--dask"})
+                         | {"-o", "--output", "--figure", "--model", "--workers", "--dask"}
+                         | {"--length", "--pump-figure", "--conductance", "--conductance-figure", "--iv", "--left",
+                            "--right", "--iv-figure"})
 _FLAGS = _VALUE_FLAGS | {"-h", "--help", "--version", "-q", "--quiet", "--print-case", "--resume"}
 
 #: Commands in modules of their own, registered when the module exists: (name, module).
@@ -103,6 +105,30 @@ finished, and --resume finishes it. Cases that fail are kept with status 1 and a
 Open the result with xarray.open_dataset("OUT.h5", engine="h5netcdf").
 """
 
+_TRANSPORT_EPILOG = """\
+examples:
+  edl transport case.toml                                  # the report, with its transport block
+  edl transport case.toml --length 10um --pump-figure pump.png
+  edl transport case.toml --conductance 0.001mM:100mM:30 --conductance-figure conductance.png
+  edl transport case.toml --length 5um --left 1mM --right 10mM --iv -150mV:150mV:31 \\
+      --iv-figure iv.png -o channel.h5
+  edl transport --slit 20nm --ion K+=1mM --ion Cl-=1mM --charge-density -5mC/m^2 --length 2um \\
+      --left 0.1mM --right 1mM                             # membrane potential and osmotic power
+
+why a command of its own: 'edl solve' answers for one cross-section (one solve, milliseconds);
+'edl transport' answers for a whole channel as a lab measures it - a length, two reservoirs, curves
+over voltage or concentration - which takes from tens to hundreds of solves. Its case flags and
+report are those of 'edl solve'.
+
+--length L makes a finite channel: its conductance and, with --left C and --right C (the
+reservoirs' concentrations of the first ion; both or neither, default the case's), its membrane
+potential, short-circuit current, maximum osmotic power and efficiency. --iv V1:V2:N adds its I-V
+curve at N voltages V(right) - V(left), evenly spaced. --conductance C1:C2:N solves the section at
+N concentrations, evenly spaced in log (per unit length, or of the channel with --length).
+-o OUT.h5 holds the result (as 'edl solve' writes it) and the groups "conductance" and "channel":
+  xarray.open_dataset("OUT.h5", engine="h5netcdf", group="channel")
+"""
+
 _MAIN_EPILOG = """\
 examples:
   edl demo                     # a worked case: report, result file and figure
@@ -110,6 +136,7 @@ examples:
   edl solve case.toml -o out.h5 --figure out.png
   edl solve --slit 20nm --ion Na+=1mM --ion Cl-=1mM --zeta -40mV --field 1kV/m
   edl sweep design.toml -o design.h5 --workers 4
+  edl transport case.toml --length 10um --left 1mM --right 10mM --iv -0.2V:0.2V:41 --iv-figure iv.png
 
 'edl COMMAND --help' describes each command.
 exit codes: 0 done, 1 output not written, 2 bad input, 3 no convergence, 130 interrupted.
@@ -228,20 +255,10 @@ def _parser() -> _Parser:
                     "flow, the currents, and the error of the thin-layer slip model. Prints a report.")
     solve.add_argument("case", nargs="?", metavar="CASE.toml", help="case file (see 'edl demo --print-case')")
     _add_outputs(solve, result_default=None, figure_default=None)
-    geometry = solve.add_argument_group("geometry (one of)").add_mutually_exclusive_group()
-    electrolyte = solve.add_argument_group("electrolyte")
-    walls = solve.add_argument_group("walls")
-    bottom, top = walls.add_mutually_exclusive_group(), walls.add_mutually_exclusive_group()
-    conditions = solve.add_argument_group("conditions and numerics")
-    group_of = {"--slit": geometry, "--capillary": geometry, "--ion": electrolyte, "--zeta": bottom,
-                "--charge-density": bottom, "--top-zeta": top, "--top-charge-density": top}
-    for flag, metavar, field, text in _CASE_FLAGS:
-        group = group_of.get(flag, conditions)
-        action = "append" if flag == "--ion" else "store"
-        group.add_argument(flag, metavar=metavar, action=action, help=f"{text} [{field}]")
-    conditions.add_argument("--model", choices=("pb", "dh"),
-                            help="pb: Poisson-Boltzmann; dh: its linearisation (Debye-Hueckel) [model]")
+    _add_case_flags(solve)
     solve.set_defaults(run=_run_solve)
+
+    _add_transport_command(commands, formatter)
 
     demo = commands.add_parser(
         "demo", help="solve the built-in demonstration case", allow_abbrev=False, formatter_class=formatter,
@@ -295,6 +312,23 @@ def _add_plugged_commands(parser: _Parser, commands: Any) -> None:
         parser.value_flags = parser.value_flags | frozenset(getattr(module, "VALUE_FLAGS", ()))
 
 
+def _add_case_flags(parser: argparse.ArgumentParser) -> None:
+    """The flags of ``_CASE_FLAGS`` and --model, in groups (shared by solve and transport)."""
+    geometry = parser.add_argument_group("geometry (one of)").add_mutually_exclusive_group()
+    electrolyte = parser.add_argument_group("electrolyte")
+    walls = parser.add_argument_group("walls")
+    bottom, top = walls.add_mutually_exclusive_group(), walls.add_mutually_exclusive_group()
+    conditions = parser.add_argument_group("conditions and numerics")
+    group_of = {"--slit": geometry, "--capillary": geometry, "--ion": electrolyte, "--zeta": bottom,
+                "--charge-density": bottom, "--top-zeta": top, "--top-charge-density": top}
+    for flag, metavar, field, text in _CASE_FLAGS:
+        group = group_of.get(flag, conditions)
+        action = "append" if flag == "--ion" else "store"
+        group.add_argument(flag, metavar=metavar, action=action, help=f"{text} [{field}]")
+    conditions.add_argument("--model", choices=("pb", "dh"),
+                            help="pb: Poisson-Boltzmann; dh: its linearisation (Debye-Hueckel) [model]")
+
+
 def _add_outputs(parser: argparse.ArgumentParser, result_default: str | None, figure_default: str | None) -> None:
     on_default = " (default: %(default)s)" if result_default else ""
     parser.add_argument("-o", "--output", metavar="OUT.h5", default=result_default,
@@ -308,6 +342,13 @@ def _add_outputs(parser: argparse.ArgumentParser, result_default: str | None, fi
 
 
 def _run_solve(args: argparse.Namespace) -> int:
+    case = _case_from_args(args)
+    outputs = _outputs(args)
+    return _solve_and_write(case, outputs, args.quiet)
+
+
+def _case_from_args(args: argparse.Namespace) -> Any:
+    """The case of a case file (optional) with the case flags applied; errors name the flag or the file."""
     from edl_solver.casefile import case_from_mapping, read_mapping
     from edl_solver.errors import InputError
 
@@ -318,11 +359,9 @@ def _run_solve(args: argparse.Namespace) -> int:
     origins = _override(data, args, ions)
     _require_sections(data, args.case)
     try:
-        case = case_from_mapping(data)
+        return case_from_mapping(data)
     except InputError as exc:
         raise InputError(_locate(str(exc), origins, args.case)) from None
-    outputs = _outputs(args)
-    return _solve_and_write(case, outputs, args.quiet)
 
 
 def _run_demo(args: argparse.Namespace) -> int:
@@ -406,6 +445,310 @@ def _run_sweep(args: argparse.Namespace) -> int:
     if not args.quiet:
         print(_sweep_summary(result, output))
     return EXIT_OK
+
+
+# -- edl transport -----------------------------------------------------------------------------------
+
+
+def _add_transport_command(commands: Any, formatter: type[argparse.HelpFormatter]) -> None:
+    transport = commands.add_parser(
+        "transport", help="transport coefficients, conductance curve and a finite channel between reservoirs",
+        allow_abbrev=False, formatter_class=formatter, epilog=_TRANSPORT_EPILOG,
+        description="Solve a case as 'edl solve' does, then what a lab measures on a channel: the\n"
+                    "electroosmotic pump curve, the conductance against salt concentration and, for a channel\n"
+                    "of a given length between two reservoirs, its I-V curve, membrane potential and osmotic\n"
+                    "power. Prints the report and writes the figures and the result file asked for.")
+    transport.add_argument("case", nargs="?", metavar="CASE.toml", help="case file (see 'edl demo --print-case')")
+    _add_outputs(transport, result_default=None, figure_default=None)
+    channel = transport.add_argument_group("finite channel")
+    channel.add_argument("--length", metavar="L", help="channel length, e.g. 10um")
+    channel.add_argument("--left", metavar="C", help="salt concentration of the left reservoir (x = 0), e.g. 1mM "
+                                                     "(of the first ion; needs --right and --length)")
+    channel.add_argument("--right", metavar="C", help="salt concentration of the right reservoir (x = L), e.g. 10mM")
+    channel.add_argument("--iv", metavar="V1:V2:N", help="I-V curve at N voltages V(right) - V(left) from V1 to V2, "
+                                                         "e.g. -150mV:150mV:31 (needs --length)")
+    channel.add_argument("--iv-figure", metavar="PNG", help="write a figure of the I-V curve (needs --iv)")
+    curves = transport.add_argument_group("pump curve and conductance curve")
+    curves.add_argument("--pump-figure", metavar="PNG",
+                        help="write the linear EO pump curve at the case's field, full and thin-layer model "
+                             "(back pressure over --length, or per unit length)")
+    curves.add_argument("--conductance", metavar="C1:C2:N",
+                        help="conductance at N salt concentrations from C1 to C2, evenly spaced in log, e.g. "
+                             "0.001mM:100mM:30")
+    curves.add_argument("--conductance-figure", metavar="PNG",
+                        help="write the conductance curve, log-log, with the bulk line and the counter-ion plateau "
+                             "(needs --conductance)")
+    _add_case_flags(transport)
+    transport.set_defaults(run=_run_transport)
+
+
+#: Most points of an I-V or conductance curve (each one or more solves).
+_MOST_POINTS = 1000
+
+
+def _parse_range(text: str, flag: str, unit: str, log: bool) -> list[float]:
+    """``FROM:TO:N`` -> N values (SI) from FROM to TO, evenly spaced (in log when ``log``)."""
+    import numpy as np
+
+    from edl_solver.errors import InputError
+    from edl_solver.units import to_si
+
+    example = "0.001mM:100mM:30" if log else "-150mV:150mV:31"
+    parts = text.split(":")
+    if len(parts) != 3 or not all(part.strip() for part in parts):
+        raise InputError(f"{flag}: {text!r} is not FROM:TO:N, expected e.g. {flag} {example}")
+    low, high = (to_si(part.strip(), unit, f"{flag} {name}") for part, name in zip(parts[:2], ("FROM", "TO")))
+    count = parts[2].strip()
+    if not count.isdigit() or not 2 <= int(count) <= _MOST_POINTS:
+        raise InputError(f"{flag}: N {count!r} is not allowed, expected a whole number from 2 to {_MOST_POINTS}")
+    if low == high:
+        raise InputError(f"{flag}: FROM and TO are both {parts[0].strip()!r}, expected two different values")
+    if log:
+        if not (low > 0.0 and high > 0.0):
+            raise InputError(f"{flag}: {text!r} has a concentration that is not positive, expected FROM and TO "
+                             "above zero")
+        return [float(v) for v in np.geomspace(low, high, int(count))]
+    return [float(v) for v in np.linspace(low, high, int(count))]
+
+
+def _positive(value: str, flag: str, unit: str, what: str) -> float:
+    from edl_solver.errors import InputError
+    from edl_solver.units import to_si
+
+    number = to_si(value, unit, flag)
+    if not number > 0.0:
+        raise InputError(f"{flag}: {value!r} is not positive, expected {what}")
+    return number
+
+
+def _transport_plan(args: argparse.Namespace, case: Any) -> dict[str, Any]:
+    """Check the transport flags against each other and the case; nothing is solved or written yet."""
+    from edl_solver.conductance import cases_at
+    from edl_solver.errors import InputError
+
+    plan: dict[str, Any] = {"length": None, "reservoirs": None, "voltages": None, "concentrations": None}
+    for flag, value, needs, needed in (("--conductance-figure", args.conductance_figure, "--conductance",
+                                        args.conductance), ("--iv-figure", args.iv_figure, "--iv", args.iv)):
+        if value is not None and needed is None:
+            raise InputError(f"{flag}: needs {needs} too, expected e.g. {needs} "
+                             f"{'0.001mM:100mM:30' if needs == '--conductance' else '-150mV:150mV:31'}")
+    if (args.left is None) != (args.right is None):
+        given, missing = ("--left", "--right") if args.left is not None else ("--right", "--left")
+        raise InputError(f"{given}: given without {missing}, expected both reservoir concentrations (or neither, "
+                         "for reservoirs at the case's concentration)")
+    if args.length is None:
+        for flag, value in (("--left", args.left), ("--iv", args.iv)):
+            if value is not None:
+                raise InputError(f"{flag}: needs --length, the length of the channel, expected e.g. --length 10um")
+    else:
+        plan["length"] = _positive(args.length, "--length", "m", "a channel length, e.g. 10um")
+        first = case.electrolyte.ions[0].concentration
+        plan["reservoirs"] = (first, first) if args.left is None else (
+            _positive(args.left, "--left", "mol/m^3", "a concentration, e.g. 1mM"),
+            _positive(args.right, "--right", "mol/m^3", "a concentration, e.g. 10mM"))
+        cases_at(case, list(plan["reservoirs"]))  # an electrolyte that cannot be scaled fails here, not later
+    if args.iv is not None:
+        plan["voltages"] = _parse_range(args.iv, "--iv", "V", log=False)
+    if args.conductance is not None:
+        plan["concentrations"] = _parse_range(args.conductance, "--conductance", "mol/m^3", log=True)
+        cases_at(case, plan["concentrations"][:1])
+    if args.pump_figure is not None and case.field == 0.0:
+        raise InputError("--pump-figure: the case has no field, expected --field E (e.g. --field 10kV/m) or a "
+                         "field in the case file")
+    return plan
+
+
+def _transport_outputs(args: argparse.Namespace) -> dict[str, Path]:
+    """The output files, each checked to be writable and all different, before any solve."""
+    from edl_solver.errors import InputError
+
+    outputs: dict[str, Path] = {}
+    seen: dict[Path, str] = {}
+    for what, flag, value in (("result", "-o", args.output), ("figure", "--figure", args.figure),
+                              ("pump curve", "--pump-figure", args.pump_figure),
+                              ("conductance curve", "--conductance-figure", args.conductance_figure),
+                              ("I-V curve", "--iv-figure", args.iv_figure)):
+        if value is None:
+            continue
+        path = _writable(flag, value)
+        if path.resolve() in seen:
+            raise InputError(f"{flag}: {value!r} is also the file of {seen[path.resolve()]}, expected another "
+                             "file name")
+        seen[path.resolve()] = flag
+        outputs[what] = path
+    return outputs
+
+
+def _run_transport(args: argparse.Namespace) -> int:
+    """Check everything, solve, compute the curves, write the files (each atomically), print."""
+    from edl_solver import solver
+    from edl_solver.errors import ConvergenceError
+
+    case = _case_from_args(args)
+    plan = _transport_plan(args, case)
+    outputs = _transport_outputs(args)
+    result = solver.solve(case)
+    curve = channel = None
+    if plan["concentrations"] is not None:
+        from edl_solver.conductance import conductance_curve
+
+        curve = conductance_curve(case, plan["concentrations"], plan["length"],
+                                  progress=False if args.quiet else None)
+        if not (curve["status"].values == 0).any():
+            raise ConvergenceError(f"--conductance: none of the {curve['status'].size} solves converged (the "
+                                   f"first: {curve['message'].values[0]})")
+    if plan["length"] is not None:
+        from edl_solver.channel import Channel
+        from edl_solver.conductance import channel_characteristics
+
+        spec = Channel(case, plan["length"], *plan["reservoirs"])
+        channel = channel_characteristics(spec, plan["voltages"])
+    written: list[tuple[str, Path]] = []
+    failure = None
+    try:
+        if "result" in outputs:
+            written.append(("result", _write_transport_file(outputs["result"], result, curve, channel)))
+        written += _write_transport_figures(outputs, result, curve, channel, plan["length"])
+    except OSError as exc:
+        failure = f"cannot write {exc.filename or 'the output'}: {exc.strerror or exc}"
+    if not args.quiet:
+        print(result.report())
+        if curve is not None:
+            print(_conductance_lines(curve))
+        if channel is not None:
+            print(_channel_lines(channel, result))
+        for what, path in written:
+            print(f"wrote the {what} to {Path(path).resolve()}")
+    return _fail(failure, EXIT_WRITE_FAILED) if failure else EXIT_OK
+
+
+def _write_transport_file(path: Path, result: Any, curve: Any, channel: Any) -> Path:
+    """The Result, then the groups "conductance" and "channel", all in one temporary file renamed at the end:
+    the final name never holds a file without its groups."""
+    from edl_solver.io import atomic_output, write_result
+
+    try:
+        with atomic_output(path) as temporary:
+            write_result(result, temporary)
+            for group, data in (("conductance", curve), ("channel", channel)):
+                if data is not None:
+                    data.to_netcdf(temporary, group=group, mode="a", engine="h5netcdf")
+    except OSError as exc:  # name the file the user asked for, not the temporary one
+        raise OSError(exc.errno, exc.strerror or str(exc), str(path)) from exc
+    return path
+
+
+def _write_transport_figures(outputs: dict[str, Path], result: Any, curve: Any, channel: Any,
+                             length: float | None) -> list[tuple[str, Path]]:
+    written = []
+    if "figure" in outputs:
+        from edl_solver import plotting
+
+        written.append(("figure", plotting.profile_figure(result, outputs["figure"])))
+    if not {"pump curve", "conductance curve", "I-V curve"} & outputs.keys():
+        return written
+    from edl_solver import transport_plots
+
+    if "pump curve" in outputs:
+        written.append(("pump curve", transport_plots.pump_curve_figure(result, outputs["pump curve"], length)))
+    if "conductance curve" in outputs:
+        written.append(("conductance curve", transport_plots.conductance_figure(curve, outputs["conductance curve"])))
+    if "I-V curve" in outputs:
+        written.append(("I-V curve", transport_plots.iv_figure(channel, outputs["I-V curve"])))
+    return written
+
+
+def _conductance_lines(curve: Any) -> str:
+    """The conductance curve at up to seven concentrations, ends included, and where the bulk line meets the
+    counter-ion estimate."""
+    import math
+
+    import numpy as np
+
+    from edl_solver.conductance import crossover_concentration
+    from edl_solver.report import prefixed
+
+    data = curve.sortby("concentration")
+    c = data["concentration"].values
+    unit = data["conductance"].attrs["units"].replace("*", "·")
+    slit = data.attrs.get("geometry") == "slit"
+    length = data.attrs.get("length_m")
+    of = "per unit length" if length is None else f"of the {prefixed(length, 'm')} channel"
+    status = data["status"].values
+    lines = [f"Conductance against salt concentration ({of}{', per metre of slit width' if slit else ''}; "
+             f"{c.size} concentrations, {int(np.count_nonzero(status == 0))} converged)",
+             f"  {'c (mM)':>10}  {'full model':>12}  {'bulk line K·A':>14}  {'counter-ions only':>18}"]
+    picks = sorted({round(i * (c.size - 1) / 6) for i in range(7)})
+    estimate = np.where(np.isfinite(data["plateau_estimate"].values), data["plateau_estimate"].values,
+                        data["plateau_conduction"].values)
+    for i in picks:
+        full = prefixed(data["conductance"].values[i], unit) if status[i] == 0 else "failed"
+        lines.append(f"  {c[i]:>10.4g}  {full:>12}  {prefixed(data['bulk_conductance'].values[i], unit):>14}  "
+                     f"{prefixed(estimate[i], unit):>18}")
+    crossing = crossover_concentration(data)
+    if math.isfinite(crossing):
+        lines.append(f"  the bulk line meets the counter-ion estimate at c = {crossing:.3g} mM: below it the "
+                     "double layers carry more current than the bulk")
+    lines.append("  counter-ions only: their conduction 2μ|σ| (2πaμ|σ| in a capillary, μ = |z|eD/kT) and EO "
+                 "convection; the limit c -> 0")
+    return "\n".join(lines) + "\n"
+
+
+def _channel_lines(data: Any, result: Any) -> str:
+    """The finite channel's landmarks with units (per metre of width for a slit)."""
+    import math
+
+    from edl_solver.case import Capillary
+    from edl_solver.constants import FARADAY, GAS_CONSTANT
+    from edl_solver.report import prefixed
+
+    case = result.case
+    capillary = isinstance(case.geometry, Capillary)
+    left, right = data.attrs["left_concentration"], data.attrs["right_concentration"]
+    per = "" if capillary else "; per metre of slit width"
+    amp, watt, siemens = ("A", "W", "S") if capillary else ("A/m", "W/m", "S/m")
+
+    def value(name: str) -> float:
+        return float(data[name].values)
+
+    def row(label: str, text: str) -> str:
+        return f"  {label:<48} {text}"
+
+    lines = [f"Finite channel: length {prefixed(data.attrs['length'], 'm')} between reservoirs of {left:.4g} mM "
+             f"(left, x = 0) and {right:.4g} mM (right, x = L){per}",
+             row("conductance -dI/dΔV at zero current", prefixed(value("conductance"), siemens, 4))]
+    if data.attrs["equal_reservoirs"]:
+        lines.append("  equal reservoirs: no membrane potential and no osmotic power (give --left and --right)")
+    else:
+        thermal = GAS_CONSTANT * case.solvent.temperature / FARADAY
+        references = [f"uncharged channel (Henderson) {value('henderson_potential') * 1e3:+.4g} mV"]
+        sigma = result.summary["wall_charge_density"]
+        sign = math.copysign(1.0, sum(sigma) if isinstance(sigma, tuple) else sigma) if sigma else 0.0
+        ions = case.electrolyte.ions
+        if sign and len(ions) == 2:
+            counter = next(ion for ion in ions if ion.valence * sign < 0)
+            nernst = -thermal / counter.valence * math.log(right / left)
+            kind = "cation" if counter.valence > 0 else "anion"
+            references.append(f"ideally {kind}-selective (Nernst) {nernst * 1e3:+.4g} mV")
+        lines += [
+            row("membrane potential V(right) - V(left) at I = 0", f"{value('membrane_potential') * 1e3:+.4f} mV"),
+            row("", f"(for comparison: {'; '.join(references)})"),
+            row("short-circuit current (ΔV = 0)", prefixed(value("short_circuit_current"), amp, 4)),
+            row("maximum osmotic power", f"{prefixed(value('max_power'), watt, 4)} at ΔV = "
+                                         f"{value('voltage_at_max_power') * 1e3:+.4g} mV"),
+            row("efficiency at maximum power", f"{100 * value('efficiency'):.3g} % of the Gibbs energy released by "
+                                               f"the salt flux ({100 * value('efficiency_total'):.3g} % of the whole "
+                                               "free-energy input)"),
+        ]
+    if "voltage" in data.dims:
+        status = data["status"].values
+        volts = data["voltage"].values
+        failed = int((status != 0).sum())
+        span = f"{volts.size} voltages from {volts.min() * 1e3:+.4g} to {volts.max() * 1e3:+.4g} mV"
+        lines.append(row("I-V curve", f"{span}, {'all converged' if not failed else f'{failed} did not converge'}"))
+    if data.attrs.get("osmotic_power_status", "converged") != "converged":
+        lines.append("  note: the maximum-power search did not converge; its values are undefined")
+    return "\n".join(lines) + "\n"
 
 
 def _check_partial(partial: Path) -> None:

@@ -73,7 +73,8 @@ def prefixed(value: float, unit: str, digits: int = 3) -> str:
 def _percent(fraction: float, signed: bool = False) -> str:
     if not math.isfinite(fraction):
         return "undefined"
-    return f"{100.0 * fraction:+.3g} %" if signed else f"{100.0 * fraction:.3g} %"
+    text = _number(100.0 * fraction)  # 2360, not 2.36e+03
+    return f"{'+' if signed and fraction > 0 else ''}{text} %"
 
 
 def _site_text(site: Site) -> str:
