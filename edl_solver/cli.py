@@ -58,7 +58,8 @@ _CASE_FLAGS: tuple[tuple[str, str, str, str], ...] = (
 _PLAIN_FLAGS = ("--temperature", "--field", "--pressure-gradient", "--tolerance", "--accuracy")
 #: Flags that take a value: a value after them is never read as a flag, so "--zeta -40mV" works.
 _VALUE_FLAGS = frozenset({flag for flag, *_ in _CASE_FLAGS}
-                         | {"-o", "--output", "--figure", "--model", "--workers", "--dask"}
+                         | {"-o", "--output", "--figure", "--model", "--workers", "--dask", "--pH", "--diameter",
+                            "--slip-length"}
                          | {"--length", "--pump-figure", "--conductance", "--conductance-figure", "--iv", "--left",
                             "--right", "--iv-figure"})
 _FLAGS = _VALUE_FLAGS | {"-h", "--help", "--version", "-q", "--quiet", "--print-case", "--resume"}
@@ -325,8 +326,19 @@ def _add_case_flags(parser: argparse.ArgumentParser) -> None:
         group = group_of.get(flag, conditions)
         action = "append" if flag == "--ion" else "store"
         group.add_argument(flag, metavar=metavar, action=action, help=f"{text} [{field}]")
-    conditions.add_argument("--model", choices=("pb", "dh"),
-                            help="pb: Poisson-Boltzmann; dh: its linearisation (Debye-Hueckel) [model]")
+    conditions.add_argument("--model", choices=("pb", "dh", "steric"),
+                            help="pb: Poisson-Boltzmann; dh: its linearisation (Debye-Hueckel); steric: finite "
+                                 "ion size, needs --diameter [model]")
+    electrolyte.add_argument("--pH", metavar="PH", help="bulk pH, for charge-regulating walls [electrolyte.pH]")
+    electrolyte.add_argument("--diameter", metavar="D",
+                             help="one ion diameter for every ion (steric model), e.g. 0.7nm [electrolyte.diameter]")
+    bottom.add_argument("--silica", action="store_true",
+                        help="silica walls: silanol sites (pK 7.5, 8/nm^2) and a 2.9 F/m^2 Stern layer; needs --pH "
+                             "[wall.preset]")
+    walls.add_argument("--slip-length", metavar="B", help="Navier slip length of every wall, e.g. 2nm "
+                                                          "[wall.slip_length]")
+    conditions.add_argument("--viscoelectric", action="store_true",
+                            help="viscosity rising with the field, water's coefficient [solvent.viscoelectric]")
 
 
 def _add_outputs(parser: argparse.ArgumentParser, result_default: str | None, figure_default: str | None) -> None:
@@ -882,7 +894,36 @@ def _override(data: dict[str, Any], args: argparse.Namespace, ions: list[tuple[s
             origins[field] = flag
     if args.model is not None:
         data["model"] = args.model
+    _override_models(data, args, origins)
     return origins
+
+
+def _override_models(data: dict[str, Any], args: argparse.Namespace, origins: dict[str, str]) -> None:
+    """--pH, --diameter, --silica, --slip-length and --viscoelectric into the case dict."""
+    def section(name: str) -> dict[str, Any]:
+        table = data.get(name)
+        if not isinstance(table, dict):
+            table = data[name] = {}
+        return table
+
+    if args.pH is not None:
+        section("electrolyte")["pH"] = args.pH
+        origins["electrolyte.pH"] = "--pH"
+    if args.diameter is not None:
+        section("electrolyte")["diameter"] = args.diameter
+        origins["electrolyte.diameter"] = "--diameter"
+    if args.silica:
+        data["wall"] = {"preset": "silica"}
+        origins["wall.preset"] = "--silica"
+    if args.slip_length is not None:
+        wall = section("wall")
+        for one in ([wall.get("bottom"), wall.get("top")] if "bottom" in wall or "top" in wall else [wall]):
+            if isinstance(one, dict):
+                one["slip_length"] = args.slip_length
+        origins["wall.slip_length"] = "--slip-length"
+    if args.viscoelectric:
+        section("solvent")["viscoelectric"] = True
+        origins["solvent.viscoelectric"] = "--viscoelectric"
 
 
 def _file_ion(data: dict[str, Any], name: str) -> dict[str, Any]:

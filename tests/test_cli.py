@@ -364,3 +364,29 @@ def test_module_entry_point_fails_cleanly_on_a_bad_unit(tmp_path: Path) -> None:
     assert process.returncode == 2
     assert_one_line_error(process.stderr, "--slit", "'20 parsecs per volt'")
     assert process.stdout == "" and not out.exists()
+
+
+def test_model_flags_reach_the_case(tmp_path: Path) -> None:
+    """--silica --pH, --slip-length, --model steric --diameter and --viscoelectric set the same case as Python."""
+    out = tmp_path / "silica.h5"
+    code, _, err = run(["solve", "--slit", "40nm", "--ion", "K+=1mM", "--ion", "Cl-=1mM", "--silica", "--pH", "7",
+                        "--slip-length", "1nm", "--field", "1kV/m", "-q", "-o", str(out)])
+    assert code == 0 and err == ""
+    expected = edl.Case(geometry=edl.Slit(height="40 nm"),
+                        electrolyte=edl.Electrolyte.from_ions({"K+": "1 mM", "Cl-": "1 mM"}, pH=7),
+                        wall=edl.Wall.silica(slip_length="1 nm"), field="1 kV/m")
+    assert edl.load(out).case == expected
+    out = tmp_path / "steric.h5"
+    code, _, err = run(["solve", "--slit", "10nm", "--ion", "K+=100mM", "--ion", "Cl-=100mM", "--zeta", "-300mV",
+                        "--model", "steric", "--diameter", "0.7nm", "--viscoelectric", "-q", "-o", str(out)])
+    assert code == 0 and err == ""
+    case = edl.load(out).case
+    assert case.model == "steric" and {ion.diameter for ion in case.electrolyte.ions} == {7e-10}
+    assert case.solvent.viscoelectric_coefficient == 1e-15
+
+
+def test_silica_without_ph_is_a_one_line_error(tmp_path: Path) -> None:
+    code, _, err = run(["solve", "--slit", "40nm", "--ion", "K+=1mM", "--ion", "Cl-=1mM", "--silica",
+                        "-o", str(tmp_path / "x.h5")])
+    assert code == 2 and err.count("\n") == 1 and "electrolyte.pH" in err
+    assert list(tmp_path.iterdir()) == []
