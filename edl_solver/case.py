@@ -500,8 +500,7 @@ class Case:
     @property
     def symmetric(self) -> bool:
         """True when one condition holds on every wall (half the section is solved)."""
-        bottom, top = self.walls
-        return bottom == top
+        return not isinstance(self.wall, tuple) or self.wall[0] == self.wall[1]
 
     @property
     def debye_length(self) -> float:

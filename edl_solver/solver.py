@@ -65,7 +65,9 @@ def solve(case: Case) -> Result:
     summary.update(_transport_summary(ion_matrix, matrix, thin_matrix, units, case))
     summary.update(_identity_checks(section, problem.kappa2, case, ion_matrix))
     summary["error_estimate"] = section.error_estimate
-    summary = {key: _plain(value) for key, value in summary.items() if not key.startswith("_")}
+    for private in ("_flow_rate_eo_per_field", "_flow_rate_per_gradient", "_streaming_current_per_gradient"):
+        del summary[private]  # intermediate values of the steps above, not results
+    summary = {key: _plain(value) for key, value in summary.items()}
     return Result(
         case=case,
         profiles=profiles,
@@ -85,7 +87,7 @@ def solve(case: Case) -> Result:
 def _plain(value: Any) -> Any:
     """Python floats (and tuples of them) instead of numpy scalars, for a clean summary dict."""
     # "+ 0.0" turns a negative zero (e.g. the flow of a case with no drive) into a plain zero
-    return tuple(float(v) + 0.0 for v in value) if isinstance(value, tuple) else float(value) + 0.0
+    return tuple(float(v) + 0.0 for v in value) if type(value) is tuple else float(value) + 0.0
 
 
 def _pair(values: tuple[float, float], case: Case) -> Any:
