@@ -63,7 +63,8 @@ def main() -> None:
         rhs, u = -np.ones(n), np.empty(n)
         ones_link, ones_wall = np.ones(n - 1), np.ones(2)
         _kernels.stokes(link, ones_link, ones_wall, volume, rhs, flows, u)
-        stokes = timed(lambda: _kernels.stokes(link, ones_link, ones_wall, volume, rhs, flows, u), 3000)
+        arguments = (link, ones_link, ones_wall, volume, rhs, flows, u)
+        stokes = timed(lambda a=arguments: _kernels.stokes(*a), 3000)
         kernel = stokes * problem.ions.shape[0] * (1 + 0.5 + 0.25 + 0.125) * 1.5  # x1.5 for the ion integrals
         print(f"{label:<34} {full:9.1f} {python:18.1f} {kernel:18.1f} {full / (full - python - kernel):6.2f}")
 
