@@ -23,7 +23,7 @@ from edl_solver.constants import AVOGADRO, ELEMENTARY_CHARGE
 from edl_solver.errors import InputError
 from edl_solver.ions import lookup_ion
 from edl_solver.solvent import Solvent, Water
-from edl_solver.units import to_si
+from edl_solver.units import to_positive_si, to_si
 
 Model = Literal["pb", "dh", "steric"]
 MODELS: tuple[str, ...] = ("pb", "dh", "steric")
@@ -39,13 +39,6 @@ NEUTRALITY_TOLERANCE = 1e-6
 
 def _set(obj: object, name: str, value: object) -> None:
     object.__setattr__(obj, name, value)
-
-
-def _positive(value: object, unit: str, field_name: str, expected: str) -> float:
-    number = to_si(value, unit, field_name)
-    if not number > 0.0:
-        raise InputError(f"{field_name}: {value!r} is not positive, expected {expected}")
-    return number
 
 
 @dataclass(frozen=True)
@@ -88,13 +81,13 @@ class Ion:
         _set(self, "valence", int(valence))
         if self.concentration is None:
             raise InputError(f"{label}.concentration: missing, expected a bulk concentration like '1 mM'")
-        _set(self, "concentration", _positive(self.concentration, "mol/m^3", f"{label}.concentration",
+        _set(self, "concentration", to_positive_si(self.concentration, "mol/m^3", f"{label}.concentration",
                                               "a positive concentration in mol/m^3 (or '1 mM')"))
         diffusivity = known.diffusivity if self.diffusivity is None else self.diffusivity
-        _set(self, "diffusivity", _positive(diffusivity, "m^2/s", f"{label}.diffusivity",
+        _set(self, "diffusivity", to_positive_si(diffusivity, "m^2/s", f"{label}.diffusivity",
                                             "a positive diffusivity in m^2/s"))
         if self.diameter is not None:
-            _set(self, "diameter", _positive(self.diameter, "m", f"{label}.diameter", "a positive diameter in m"))
+            _set(self, "diameter", to_positive_si(self.diameter, "m", f"{label}.diameter", "a positive diameter in m"))
 
 
 @dataclass(frozen=True)
@@ -207,7 +200,7 @@ class Slit:
     height: float | str
 
     def __post_init__(self) -> None:
-        _set(self, "height", _positive(self.height, "m", "geometry.height", "a positive height in m"))
+        _set(self, "height", to_positive_si(self.height, "m", "geometry.height", "a positive height in m"))
 
     @property
     def half_size(self) -> float:
@@ -228,7 +221,7 @@ class Capillary:
     radius: float | str
 
     def __post_init__(self) -> None:
-        _set(self, "radius", _positive(self.radius, "m", "geometry.radius", "a positive radius in m"))
+        _set(self, "radius", to_positive_si(self.radius, "m", "geometry.radius", "a positive radius in m"))
 
     @property
     def half_size(self) -> float:
@@ -267,7 +260,7 @@ class Site:
 
     def __post_init__(self) -> None:
         label = f"site {self.name}"
-        _set(self, "density", _positive(self.density, "1/m^2", f"{label}.density",
+        _set(self, "density", to_positive_si(self.density, "1/m^2", f"{label}.density",
                                         "a positive site density in 1/m^2 (or '8 nm^-2')"))
         pks = (self.pK,) if isinstance(self.pK, (int, float, str)) else tuple(self.pK)
         pks = tuple(to_si(pk, "dimensionless", f"{label}.pK") for pk in pks)
@@ -348,11 +341,11 @@ class Wall:
         if self.charge_density is not None:
             _set(self, "charge_density", to_si(self.charge_density, "C/m^2", "wall.charge_density"))
         if self.stern_capacitance is not None:
-            _set(self, "stern_capacitance", _positive(self.stern_capacitance, "F/m^2", "wall.stern_capacitance",
+            _set(self, "stern_capacitance", to_positive_si(self.stern_capacitance, "F/m^2", "wall.stern_capacitance",
                                                       "a positive capacitance in F/m^2"))
         if gate[0]:
             _set(self, "gate_voltage", to_si(self.gate_voltage, "V", "wall.gate_voltage"))
-            _set(self, "gate_capacitance", _positive(self.gate_capacitance, "F/m^2", "wall.gate_capacitance",
+            _set(self, "gate_capacitance", to_positive_si(self.gate_capacitance, "F/m^2", "wall.gate_capacitance",
                                                      "a positive capacitance in F/m^2"))
         slip = to_si(self.slip_length, "m", "wall.slip_length")
         if slip < 0.0:

@@ -91,7 +91,7 @@ from edl_solver import transport
 from edl_solver.case import Capillary, Case
 from edl_solver.constants import FARADAY, GAS_CONSTANT
 from edl_solver.errors import ConvergenceError, InputError
-from edl_solver.units import to_si
+from edl_solver.units import to_positive_si, to_si
 
 __all__ = [
     "Channel",
@@ -130,11 +130,7 @@ QUADRATURE_LIMIT = 1e-3
 
 
 def _concentration(value: object, name: str) -> float:
-    number = to_si(value, "mol/m^3", f"channel.{name}")
-    if not number > 0.0:
-        raise InputError(f"channel.{name}: {value!r} is not positive, expected a salt concentration in mol/m^3 "
-                         "(or '1 mM')")
-    return number
+    return to_positive_si(value, "mol/m^3", f"channel.{name}", "a salt concentration in mol/m^3 (or '1 mM')")
 
 
 @dataclass(frozen=True)
@@ -170,10 +166,7 @@ class Channel:
     def __post_init__(self) -> None:
         if not isinstance(self.case, Case):
             raise InputError(f"channel.case: {type(self.case).__name__} is not a Case, expected edl_solver.Case(...)")
-        length = to_si(self.length, "m", "channel.length")
-        if not length > 0.0:
-            raise InputError(f"channel.length: {self.length!r} is not positive, expected a length in m "
-                             "(or '10 um')")
+        length = to_positive_si(self.length, "m", "channel.length", "a length in m (or '10 um')")
         object.__setattr__(self, "length", length)
         object.__setattr__(self, "left_concentration", _concentration(self.left_concentration,
                                                                       "left_concentration"))

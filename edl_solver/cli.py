@@ -524,13 +524,9 @@ def _parse_range(text: str, flag: str, unit: str, log: bool) -> list[float]:
 
 
 def _positive(value: str, flag: str, unit: str, what: str) -> float:
-    from edl_solver.errors import InputError
-    from edl_solver.units import to_si
+    from edl_solver.units import to_positive_si
 
-    number = to_si(value, unit, flag)
-    if not number > 0.0:
-        raise InputError(f"{flag}: {value!r} is not positive, expected {what}")
-    return number
+    return to_positive_si(value, unit, flag, what)
 
 
 def _transport_plan(args: argparse.Namespace, case: Any) -> dict[str, Any]:

@@ -26,7 +26,7 @@ import numpy as np
 from edl_solver.case import Capillary, Case
 from edl_solver.constants import FARADAY, GAS_CONSTANT
 from edl_solver.errors import ConvergenceError, InputError
-from edl_solver.units import to_si
+from edl_solver.units import to_positive_si, to_si
 
 __all__ = [
     "bulk_conductivity",
@@ -175,11 +175,8 @@ def _concentrations(values: Any) -> list[float]:
                          "concentrations, e.g. ['0.01 mM', '100 mM']")
     out = []
     for i, value in enumerate(items):
-        number = to_si(value, "mol/m^3", f"concentrations[{i}]")
-        if not number > 0.0:
-            raise InputError(f"concentrations[{i}]: {value!r} is not positive, expected a salt concentration in "
-                             "mol/m^3 (or '1 mM')")
-        out.append(number)
+        out.append(to_positive_si(value, "mol/m^3", f"concentrations[{i}]",
+                                  "a salt concentration in mol/m^3 (or '1 mM')"))
     return out
 
 
@@ -193,10 +190,7 @@ def checked_length(length: Any, name: str = "length") -> float | None:
     """
     if length is None:
         return None
-    value = to_si(length, "m", name)
-    if not value > 0.0:
-        raise InputError(f"{name}: {length!r} is not positive, expected a channel length in m (or '10 um')")
-    return value
+    return to_positive_si(length, "m", name, "a channel length in m (or '10 um')")
 
 
 def cases_at(case: Case, concentrations: Sequence[float]) -> list[Case]:

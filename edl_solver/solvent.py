@@ -7,7 +7,7 @@ from typing import Any
 
 from edl_solver.constants import BOLTZMANN, ELEMENTARY_CHARGE, VACUUM_PERMITTIVITY, ZERO_CELSIUS
 from edl_solver.errors import InputError
-from edl_solver.units import to_si
+from edl_solver.units import to_positive_si, to_si
 
 __all__ = ["Solvent", "Water", "water_relative_permittivity", "water_viscosity"]
 
@@ -92,14 +92,6 @@ def water_viscosity(temperature: float | str, *, field: str = "temperature") -> 
     return _ETA_20 * 10.0 ** (d / (116.0 - d) * bracket)  # t + 96 == 116 - d
 
 
-def _positive(value: Any, unit: str, field: str, expected: str) -> float:
-    """Convert with :func:`to_si` and require a strictly positive result."""
-    number = to_si(value, unit, field)
-    if number <= 0.0:
-        raise InputError(f"{field}: {value!r} is not positive, expected {expected}")
-    return number
-
-
 @dataclass(frozen=True)
 class Solvent:
     """A continuum solvent: temperature, dielectric constant and viscosity.
@@ -136,12 +128,12 @@ class Solvent:
 
     def __post_init__(self) -> None:
         converted = {
-            "temperature": _positive(self.temperature, "K", "solvent.temperature", "a temperature > 0 K"),
-            "relative_permittivity": _positive(
+            "temperature": to_positive_si(self.temperature, "K", "solvent.temperature", "a temperature > 0 K"),
+            "relative_permittivity": to_positive_si(
                 self.relative_permittivity, "dimensionless", "solvent.relative_permittivity",
                 "a relative permittivity > 0",
             ),
-            "viscosity": _positive(self.viscosity, "Pa*s", "solvent.viscosity", "a viscosity > 0 Pa*s"),
+            "viscosity": to_positive_si(self.viscosity, "Pa*s", "solvent.viscosity", "a viscosity > 0 Pa*s"),
         }
         converted["viscoelectric_coefficient"] = to_si(self.viscoelectric_coefficient, "m^2/V^2",
                                                        "solvent.viscoelectric_coefficient")
@@ -197,7 +189,7 @@ def Water(  # capitalised: reads as a constructor in the public API, edl.Water(t
     InputError
         If the temperature is outside 0–100 °C where a correlation is needed, or a value is invalid.
     """
-    kelvin = _positive(temperature, "K", "water.temperature", "a temperature > 0 K")
+    kelvin = to_positive_si(temperature, "K", "water.temperature", "a temperature > 0 K")
     if relative_permittivity is None:
         relative_permittivity = water_relative_permittivity(temperature, field="water.temperature")
     if viscosity is None:

@@ -19,7 +19,10 @@ from __future__ import annotations
 import difflib
 import json
 import os
-from collections.abc import Iterable, Mapping, Sequence
+import signal
+import threading
+from collections.abc import Iterable, Iterator, Mapping, Sequence
+from contextlib import contextmanager
 from dataclasses import dataclass
 from pathlib import Path
 from typing import Any
@@ -263,6 +266,7 @@ def solve_rows(base_table: Mapping[str, Any], axes: Sequence[Axis], rows: Sequen
                            "message": [["" for _ in range(last)] for _ in rows]}
     values = {key: np.full((len(rows), last, 2), np.nan) for key in keys}
     for r, row in enumerate(rows):
+        _stop_if_asked()
         lead = np.unravel_index(row, shape[:-1]) if len(shape) > 1 else ()
         for j in range(last):
             index = (*lead, j)
@@ -407,31 +411,41 @@ class _Store:
             return
         # Rows that follow each other along the last leading axis form one block: one write per variable
         # and block through h5py (row-by-row writes through h5netcdf cost ~25 ms a row).
-        start = 0
+        blocks, start = [], 0
         while start < len(rows):
             stop = start + 1
             while (stop < len(rows) and rows[stop] == rows[stop - 1] + 1
                    and (len(self.shape) < 2 or rows[stop] % self.shape[-2] != 0)):
                 stop += 1
-            self._write_block(part, start, stop)
+            blocks.append(self._block(part, start, stop))
             start = stop
+        # Commit in two steps: the values reach the disk before the status that marks their rows done, since
+        # HDF5 may write its cached chunks in any order and a killed sweep must never keep a row marked done
+        # whose values were lost.
+        for where, pick in blocks:
+            self._write_values(part, where, pick)
+        self.h5.flush()
+        for where, pick in blocks:
+            self.h5["status"][where] = part["status"][pick]
+            self.status[where] = part["status"][pick]
         self.h5.flush()
 
     def _lead(self, row: int) -> tuple[int, ...]:
         return tuple(int(i) for i in np.unravel_index(row, self.shape[:-1])) if len(self.shape) > 1 else ()
 
-    def _write_block(self, part: dict[str, Any], start: int, stop: int) -> None:
-        """Rows part["rows"][start:stop], consecutive along the last leading axis, in one write each."""
+    def _block(self, part: dict[str, Any], start: int, stop: int) -> tuple[tuple[Any, ...], Any]:
+        """Where in the file rows part["rows"][start:stop] (consecutive along the last leading axis) go, and
+        which of the part's rows they are."""
         first = self._lead(part["rows"][start])
         where = (*first[:-1], slice(first[-1], first[-1] + stop - start)) if first else ()
-        pick = slice(start, stop) if first else start
+        return where, (slice(start, stop) if first else start)
+
+    def _write_values(self, part: dict[str, Any], where: tuple[Any, ...], pick: Any) -> None:
         for key in self.layout:
             dataset = self.h5[key]
             block = part[key][pick]
             dataset[where] = block if dataset.ndim > len(self.shape) else block[..., 0]
         self.h5["message"][where] = np.array(part["message"][pick], dtype=object)
-        self.h5["status"][where] = part["status"][pick]  # last: marks the rows done
-        self.status[where] = part["status"][pick]
 
     def finish(self) -> Any:
         import xarray as xr
@@ -524,14 +538,50 @@ def sweep(base: Case, axes: Mapping[str, Any], *, zipped: Sequence[Sequence[str]
         per_task = rows_per_task or max(1, 1000 // last)
         tasks = [todo[i:i + per_task] for i in range(0, len(todo), per_task)]
         total = len(todo) * last
-        with _progress_bar(total, progress) as bar:
+        with _progress_bar(total, progress) as bar, _interruptible():
             for part in _run(tasks, base_table, sweep_axes, workers, dask):
                 store.write(part)
                 bar.update(len(part["rows"]) * last)
+                _stop_if_asked()
     except BaseException:
         store.abandon()
         raise
     return store.finish()
+
+
+#: Set by Ctrl-C during a sweep; checked between cases (see ``_interruptible``).
+_STOP = threading.Event()
+
+
+@contextmanager
+def _interruptible() -> Iterator[None]:
+    """Turn Ctrl-C into a flag that the sweep checks between cases.
+
+    Python raises KeyboardInterrupt wherever the main thread happens to be, and when that is inside a weakref
+    or garbage-collection callback (frequent in a long sweep) the interrupt is printed and ignored, so the
+    sweep would run on. A second Ctrl-C interrupts at once, as usual.
+    """
+    if threading.current_thread() is not threading.main_thread() \
+            or signal.getsignal(signal.SIGINT) is not signal.default_int_handler:
+        yield
+        return
+
+    def ask_to_stop(signum: int, frame: Any) -> None:
+        _STOP.set()
+        signal.signal(signal.SIGINT, signal.default_int_handler)
+
+    _STOP.clear()
+    signal.signal(signal.SIGINT, ask_to_stop)
+    try:
+        yield
+    finally:
+        signal.signal(signal.SIGINT, signal.default_int_handler)
+        _STOP.clear()
+
+
+def _stop_if_asked() -> None:
+    if _STOP.is_set():
+        raise KeyboardInterrupt
 
 
 def _run(tasks: list[list[int]], base_table: dict[str, Any], axes: Sequence[Axis], workers: int,

@@ -15,7 +15,7 @@ from typing import Any
 
 from edl_solver.errors import InputError
 
-__all__ = ["to_si"]
+__all__ = ["to_positive_si", "to_si"]
 
 # (SI unit, quantity kind with article, SI unit name) of the kinds of input this package takes;
 # only used to word error messages.
@@ -194,3 +194,17 @@ def _string_to_si(text: str, target: Any, expected: str, field: str) -> float:
     # Unit factors such as 1e-3 carry binary round-off ("1 mM" -> 0.9999999999999999); the user wrote
     # at most 15 significant digits, so round the noise away.
     return float(f"{result:.15g}")
+
+
+def to_positive_si(value: Any, unit: str, field: str, expected: str) -> float:
+    """``to_si`` that also requires a strictly positive result.
+
+    Raises
+    ------
+    InputError
+        ``{field}: {value!r} is not positive, expected {expected}`` (or the unit errors of ``to_si``).
+    """
+    number = to_si(value, unit, field)
+    if not number > 0.0:
+        raise InputError(f"{field}: {value!r} is not positive, expected {expected}")
+    return number

@@ -239,9 +239,16 @@ def test_ctrl_c_exits_130_keeps_the_partial_file_and_resume_finishes(tmp_path: P
                           stdout=subprocess.PIPE, stderr=subprocess.PIPE, text=True) as process:
         try:
             deadline = time.monotonic() + 60.0
-            # The partial file appears by a rename once it is laid out (reading it while the sweep holds it
-            # open can fail, so its existence is the signal).
+            # The partial file appears by a rename once it is laid out, and changes when the first block of rows
+            # is written: interrupting after that hits the sweep while it solves (reading the file while the
+            # sweep holds it open can fail, so its size and time stamp are the signal).
             while time.monotonic() < deadline and process.poll() is None and not partial.exists():
+                time.sleep(0.005)
+            laid_out = partial.stat() if partial.exists() else None
+            while time.monotonic() < deadline and process.poll() is None and laid_out is not None:
+                now = partial.stat()
+                if (now.st_size, now.st_mtime_ns) != (laid_out.st_size, laid_out.st_mtime_ns):
+                    break
                 time.sleep(0.005)
             assert process.poll() is None, f"the sweep ended before it was interrupted: {process.communicate()}"
             process.send_signal(signal.SIGINT)
