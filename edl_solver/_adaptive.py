@@ -1,11 +1,9 @@
-"""Compiled nested-grid driver: Richardson extrapolation, error control and batches of cases.
+"""Compiled nested-grid driver: Richardson extrapolation and error control.
 
 One case: solve on four nested grids (each halving the spacing of the previous), extrapolate the
 section integrals from the three finest (h^2 and h^4 error terms removed) and from the three coarsest;
 their difference, divided by 8, is the error estimate, and the grid is doubled until it meets the
-requested accuracy. A batch runs many cases of one kind (same metric, section and number of ions) in
-parallel chunks; inside a chunk each case starts from its predecessor's solution (continuation along
-the sweep), so neighbouring cases cost one or two Newton steps per grid.
+requested accuracy. Batches of cases run in ``_batch.py``.
 
 Takes only arrays and scalars; see _kernels.py for the single-grid arithmetic and equilibrium.py for
 the Python side.
@@ -14,7 +12,7 @@ the Python side.
 from __future__ import annotations
 
 import numpy as np
-from numba import njit, prange
+from numba import njit
 
 from edl_solver._kernels import (
     I_FLUX_LEFT,
@@ -288,24 +286,3 @@ def solve_adaptive(metric, half, kappa2, ions, model, walls, flow_walls, visco, 
         n_half *= 2
         s = computational_nodes(n_half, half)
         psi = np.empty(s.size)  # the finest guess is prolonged from the raw coarse solution inside
-
-
-@njit(cache=True, parallel=True)
-def solve_batch(metric, half, kappa2, ions, model, walls, flow_walls, visco, wall_guess, counter, accuracy,
-                max_intervals, max_iter, chunk_starts, out, status, iterations, estimate):
-    """Many cases of one kind; row i of every per-case array belongs to case i.
-
-    The cases are split into chunks at ``chunk_starts`` (ascending, last entry = number of cases); chunks
-    run in parallel, and inside a chunk each case starts from the previous case's finest profile when the
-    grids agree (continuation along the sweep).
-    """
-    for c in prange(chunk_starts.size - 1):
-        previous = np.empty(0)
-        for i in range(chunk_starts[c], chunk_starts[c + 1]):
-            st, its, est, _, _, _, _, psi, _, _ = solve_adaptive(
-                metric, half, kappa2[i], ions[i], model, walls[i], flow_walls[i], visco[i], wall_guess[i],
-                counter[i], accuracy, 0, max_intervals, max_iter, previous, out[i])
-            status[i] = st
-            iterations[i] = its
-            estimate[i] = est
-            previous = psi if st == CONVERGED else np.empty(0)

@@ -153,21 +153,6 @@ def charge(psi, ions, model):
 
 
 @njit(cache=True)
-def concentration_factor(psi, ions, k, model):
-    """c_k / c_k,bulk at potential psi for the model (linearised for DH, crowding-limited for STERIC)."""
-    z = ions[k, 0]
-    if model == DH:
-        return 1.0 - z * psi
-    e = np.exp(-z * psi)
-    if model == STERIC:
-        crowd = 1.0
-        for j in range(ions.shape[0]):
-            crowd += ions[j, 2] * (np.exp(-ions[j, 0] * psi) - 1.0)
-        return e / crowd
-    return e
-
-
-@njit(cache=True)
 def plane_charge(psi0, wall):
     """Charge sigma_hat of a regulated wall at charge-plane potential psi0, and d sigma_hat / d psi0.
 
@@ -368,39 +353,89 @@ def pb_newton(psi, link, volume, kappa2, ions, model, walls, tol, max_iter, max_
 
 
 @njit(cache=True)
-def stokes(link, viscosity, wall_viscosity, volume, rhs, flow_walls, u):
-    """Solve the discrete Stokes equation div(eta grad u) = rhs across the section, in place on ``u``.
+def stokes_operator(link, viscosity, wall_viscosity, flow_walls):
+    """Factor the discrete Stokes operator div(eta grad u) across the section once, for several right-hand
+    sides (``stokes_solve``).
 
     Rows: a_i eta_i (u_{i+1} - u_i) - a_{i-1} eta_{i-1} (u_i - u_{i-1}) = V_i rhs_i with eta_i the relative
     viscosity of link i. Ends: POTENTIAL = prescribed velocity (no slip: 0), FLUX = prescribed normal
     derivative (0 at a symmetry plane), ROBIN = Navier slip u = -b du/dn (value 1/b_hat): the wall shear
     stress -eta_w u / b enters the end cell, with ``wall_viscosity`` (per end) the viscosity at the wall.
+
+    Returns
+    -------
+    ndarray
+        (3, n): the sub-diagonal, the pivots and the super-diagonal over the pivots of the Thomas algorithm
+        (as ``tridiagonal_solve`` computes them).
     """
-    n = u.size
+    n = link.size + 1
     lower = np.empty(n)
     diag = np.empty(n)
     upper = np.empty(n)
-    b = np.empty(n)
-    work = np.empty(n)
     for i in range(n):
         lower[i] = link[i - 1] * viscosity[i - 1] if i > 0 else 0.0
         upper[i] = link[i] * viscosity[i] if i < n - 1 else 0.0
         diag[i] = -lower[i] - upper[i]
-        b[i] = rhs[i] * volume[i]
     for end in range(2):
         i = 0 if end == 0 else n - 1
         kind = int(flow_walls[end, 0])
-        value = flow_walls[end, 1]
         if kind == POTENTIAL:
             lower[i] = 0.0
             upper[i] = 0.0
             diag[i] = 1.0
-            b[i] = value
-        elif kind == FLUX:
-            b[i] -= value
-        else:
-            diag[i] -= value * wall_viscosity[end]
-    tridiagonal_solve(lower, diag, upper, b, u, work)
+        elif kind == ROBIN:
+            diag[i] -= flow_walls[end, 1] * wall_viscosity[end]
+    factor = np.empty((3, n))
+    factor[0] = lower
+    factor[1, 0] = diag[0]
+    factor[2, 0] = upper[0] / diag[0]
+    for i in range(1, n):
+        denom = diag[i] - lower[i] * factor[2, i - 1]
+        factor[1, i] = denom
+        factor[2, i] = upper[i] / denom if i < n - 1 else 0.0
+    return factor
+
+
+@njit(cache=True)
+def stokes_solve(factor, volume, rhs, sign, flow_walls, u):
+    """Solve div(eta grad u) = sign * rhs with the factored operator (``stokes_operator``), in place on ``u``."""
+    n = u.size
+    lower, pivot, ratio = factor[0], factor[1], factor[2]
+    for i in range(n):
+        b = sign * rhs[i] * volume[i]
+        end = 0 if i == 0 else (1 if i == n - 1 else -1)
+        if end >= 0:
+            kind = int(flow_walls[end, 0])
+            if kind == POTENTIAL:
+                b = flow_walls[end, 1]
+            elif kind == FLUX:
+                b -= flow_walls[end, 1]
+        u[i] = b / pivot[0] if i == 0 else (b - lower[i] * u[i - 1]) / pivot[i]
+    for i in range(n - 2, -1, -1):
+        u[i] -= ratio[i] * u[i + 1]
+
+
+@njit(cache=True)
+def _concentrations(psi, ions, model, out):
+    """c_k / c_k,bulk of every ion at potential psi into ``out`` (linearised for DH, crowding-limited for
+    STERIC); returns rho_hat(psi) (as ``charge``), with one exponential per ion."""
+    n_ions = ions.shape[0]
+    if model == DH:
+        for k in range(n_ions):
+            out[k] = 1.0 - ions[k, 0] * psi
+        return -psi
+    rho = 0.0
+    crowd = 1.0
+    for k in range(n_ions):
+        e = np.exp(-ions[k, 0] * psi)
+        out[k] = e
+        rho += ions[k, 1] * e
+        crowd += ions[k, 2] * (e - 1.0)
+    if model == STERIC:
+        for k in range(n_ions):
+            out[k] /= crowd
+        return rho / crowd
+    return rho
 
 
 @njit(cache=True)
@@ -413,10 +448,11 @@ def section_integrals(psi, link, volume, spacing, kappa2, ions, model, walls, ce
     of (dp/dx) L^2 / eta_0). ``spacing`` are the link lengths (for the field in the viscosity).
     """
     n = psi.size
+    n_ions = ions.shape[0]
     rho = np.empty(n)
+    conc = np.empty((n_ions, n))
     for i in range(n):
-        rho[i], _ = charge(psi[i], ions, model)
-        rho[i] *= -kappa2
+        rho[i] = -kappa2 * _concentrations(psi[i], ions, model, conc[:, i])
     viscosity = np.ones(n - 1)
     wall_viscosity = np.ones(2)
     if visco > 0.0:
@@ -429,18 +465,13 @@ def section_integrals(psi, link, volume, spacing, kappa2, ions, model, walls, ce
         right = link[n - 2] * (psi[n - 1] - psi[n - 2]) + volume[n - 1] * rho[n - 1]
         wall_viscosity[0] = 1.0 + visco * left * left
         wall_viscosity[1] = 1.0 + visco * right * right
-    stokes(link, viscosity, wall_viscosity, volume, rho, flow_walls, u_eo)
-    ones = np.ones(n)
-    stokes(link, viscosity, wall_viscosity, volume, ones, flow_walls, u_p)
-    n_ions = ions.shape[0]
-    conc = np.empty((n_ions, n))
-    for k in range(n_ions):
-        for i in range(n):
-            conc[k, i] = concentration_factor(psi[i], ions, k, model)
+    operator = stokes_operator(link, viscosity, wall_viscosity, flow_walls)
+    stokes_solve(operator, volume, rho, 1.0, flow_walls, u_eo)
+    stokes_solve(operator, volume, np.ones(n), 1.0, flow_walls, u_p)
     # flows driven by the body force on each ion (the columns of the linear-response matrix)
     ion_flows = np.empty((n_ions, n))
     for k in range(n_ions):
-        stokes(link, viscosity, wall_viscosity, volume, -conc[k], flow_walls, ion_flows[k])
+        stokes_solve(operator, volume, conc[k], -1.0, flow_walls, ion_flows[k])
     for j in range(out.size):
         out[j] = 0.0
     ion_flow_at, conc_up_at, conc_flow_at, _ = response_offsets(n_ions)

@@ -70,8 +70,6 @@ def solve_section(problem: SectionProblem, accuracy: float, intervals: int | Non
         If Newton fails even with continuation in the wall values, or the error estimate misses
         ``accuracy`` at ``max_intervals`` cells per half section. ``label`` names the case.
     """
-    if callable(label):  # built only when a message needs it
-        label = label()
     fixed = intervals or 0
     status, its, estimate, residual, n_half, s, beta, psi, u_eo, u_p, out = _run(
         problem, accuracy, fixed, max_iterations, max_intervals, np.empty(0))
@@ -82,6 +80,8 @@ def solve_section(problem: SectionProblem, accuracy: float, intervals: int | Non
         status, its, estimate, residual, n_half, s, beta, psi, u_eo, u_p, out = _run(
             problem, accuracy, fixed, max_iterations, max_intervals, guess)
         iterations += its
+    if status != _adaptive.CONVERGED and callable(label):  # built only when a message needs it
+        label = label()
     if status == _adaptive.NEWTON_FAILED:
         raise ConvergenceError(f"{label}: Poisson-Boltzmann Newton iteration did not converge on the "
                                f"refined grid (scaled residual {residual:.2g})")
@@ -104,7 +104,7 @@ def _scaled_walls(rows: np.ndarray, t: float) -> np.ndarray:
     return scaled
 
 
-def _continuation(problem: SectionProblem, intervals: int, max_iterations: int, label: str
+def _continuation(problem: SectionProblem, intervals: int, max_iterations: int, label: str | Callable[[], str]
                   ) -> tuple[np.ndarray, int]:
     """Reach the wall values in steps from zero when Newton fails from the initial guess.
 
@@ -128,7 +128,8 @@ def _continuation(problem: SectionProblem, intervals: int, max_iterations: int, 
         else:
             step *= 0.5
             if step < 1e-4:
+                name = label() if callable(label) else label
                 raise ConvergenceError(
-                    f"{label}: Poisson-Boltzmann Newton iteration did not converge (continuation stalled "
+                    f"{name}: Poisson-Boltzmann Newton iteration did not converge (continuation stalled "
                     f"at {t:.3g} of the wall values, scaled residual {residual:.2g})")
     return psi, iterations

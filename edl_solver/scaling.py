@@ -5,18 +5,19 @@ half-height h = H/2 or capillary radius a); charge density rho_hat = rho_e / (e 
 that Poisson's equation reads laplacian(psi) = -(kappa L)^2 rho_hat with kappa = 1/lambda_D; wall
 charge sigma_hat = sigma e L / (eps kT) (the outward-normal derivative of psi); EO velocity in units
 of eps E kT / (e eta) and pressure-driven velocity in units of (dp/dx) L^2 / eta.
+
+The arithmetic is compiled (``_prepare.py``) and reads the packed case vector (``packing.py``), so that
+sweeps, which pack many cases at once, turn them into the same numbers.
 """
 
 from __future__ import annotations
 
-import math
 from dataclasses import dataclass
 
 import numpy as np
 
-from edl_solver import _kernels, walls
-from edl_solver.case import Capillary, Case
-from edl_solver.constants import AVOGADRO, ELEMENTARY_CHARGE
+from edl_solver import _prepare, packing
+from edl_solver.case import Case
 
 
 @dataclass(frozen=True)
@@ -83,73 +84,38 @@ class Scales:
     section_area: float
 
 
-def scales(case: Case) -> Scales:
-    """Dimensionless units of ``case`` (see the module docstring)."""
-    solvent = case.solvent
-    kt_e = solvent.thermal_voltage
-    length = case.geometry.half_size
-    capillary = isinstance(case.geometry, Capillary)
-    if capillary:
-        area, section_area = 2.0 * math.pi * length**2, math.pi * length**2
-    else:
-        area, section_area = length * (2.0 if case.symmetric else 1.0), 2.0 * length
-    strength = sum(ion.valence**2 * ion.concentration for ion in case.electrolyte.ions)
-    return Scales(
-        thermal_voltage=kt_e,
-        length=length,
-        debye_length=case.debye_length,
-        charge_density=solvent.permittivity * kt_e / length,
-        volume_charge=ELEMENTARY_CHARGE * AVOGADRO * strength,
-        eo_velocity_per_field=solvent.permittivity * kt_e / solvent.viscosity,
-        pressure_velocity_per_gradient=length**2 / solvent.viscosity,
-        area=area,
-        section_area=section_area,
-    )
+@dataclass(frozen=True)
+class Prepared:
+    """A case turned into the compiled pipeline's inputs.
+
+    Attributes
+    ----------
+    vector : ndarray
+        The packed SI inputs (``packing.case_vector``).
+    problem : SectionProblem
+    units : Scales
+    isolated : tuple
+        ((zeta V, sigma C/m^2) of the bottom wall, the same of the top wall), each alone in the bulk
+        (``walls.isolated_wall``): the thin-layer picture, the Newton start and the grid stretching.
+    scale_vector, isolated_array : ndarray
+        The same scales and isolated walls as the compiled steps take them.
+    """
+
+    vector: np.ndarray
+    problem: SectionProblem
+    units: Scales
+    isolated: tuple[tuple[float, float], tuple[float, float]]
+    scale_vector: np.ndarray
+    isolated_array: np.ndarray
 
 
-MODEL_CODES = {"pb": _kernels.PB, "dh": _kernels.DH, "steric": _kernels.STERIC}
-
-
-def section_problem(case: Case, units: Scales,
-                    isolated: tuple[tuple[float, float], tuple[float, float]] | None = None) -> SectionProblem:
-    """Dimensionless kernel inputs of ``case``; ``isolated`` are the walls' (zeta, sigma) when alone in the
-    bulk (``walls.isolated_walls``), which start the Newton iteration and set the grid stretching."""
-    if isolated is None:
-        isolated = walls.isolated_walls(case)
-    electrolyte, solvent = case.electrolyte, case.solvent
-    ions = electrolyte.ions
-    valence = np.array([float(ion.valence) for ion in ions])
-    conc = np.array([ion.concentration for ion in ions])
-    diameter = ions[0].diameter if case.model == "steric" else 0.0
-    packing = conc * AVOGADRO * diameter**3
-    packed_ions = np.column_stack((valence, valence * conc / np.sum(valence**2 * conc), packing))
-    half = case.symmetric
-    sides = tuple(zip(case.walls, isolated))[1:] if half else tuple(zip(case.walls, isolated))
-    rows, flows, guesses, counters = [], [], [], []
-    for wall, (zeta, _) in sides:
-        rows.append(walls.wall_row(wall, electrolyte, solvent, units.length))
-        guesses.append(zeta / units.thermal_voltage)
-        sign = -1.0 if zeta >= 0.0 else 1.0  # counter-ions carry the sign opposite to the wall's
-        counters.append(max((abs(z) for z in valence if z * sign > 0), default=1.0))
-        slip = wall.slip_length / units.length
-        flows.append((_kernels.ROBIN, 1.0 / slip) if slip > 0.0 else (_kernels.POTENTIAL, 0.0))
-    if half:  # the left end is the symmetry plane (slit mid-plane or capillary axis)
-        symmetry = np.zeros(_kernels.WALL_SIZE)
-        symmetry[_kernels.W_TYPE] = _kernels.FLUX
-        rows.insert(0, symmetry)
-        flows.insert(0, (_kernels.FLUX, 0.0))
-        guesses.insert(0, 0.0)
-        counters.insert(0, 1.0)
-    field_unit = units.thermal_voltage / units.length
-    return SectionProblem(
-        metric=1 if isinstance(case.geometry, Capillary) else 0,
-        half=half,
-        kappa2=(units.length / units.debye_length) ** 2,
-        ions=packed_ions,
-        model=MODEL_CODES[case.model],
-        walls=np.array(rows),
-        flow_walls=np.array(flows, dtype=float),
-        visco=solvent.viscoelectric_coefficient * field_unit**2,
-        wall_potential_guess=np.array(guesses),
-        counter_valence=np.array(counters),
-    )
+def prepare(case: Case) -> Prepared:
+    """The dimensionless kernel inputs, scales and isolated walls of ``case`` (``_prepare.section_inputs``)."""
+    vector = packing.case_vector(case)
+    (metric, half, kappa2, ions, model, rows, flows, visco, guess, counter, sc,
+     iso) = _prepare.section_inputs(vector)
+    problem = SectionProblem(metric=metric, half=half, kappa2=kappa2, ions=ions, model=model, walls=rows,
+                             flow_walls=flows, visco=visco, wall_potential_guess=guess, counter_valence=counter)
+    units = Scales(*sc.tolist())
+    isolated = ((float(iso[0, 0]), float(iso[0, 1])), (float(iso[1, 0]), float(iso[1, 1])))
+    return Prepared(vector, problem, units, isolated, sc, iso)

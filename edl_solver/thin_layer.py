@@ -6,16 +6,16 @@ plug flow between equal walls, the linear (Couette-like) profile between two dif
 in a slit. For a wall of fixed charge the thin-layer model takes zeta from the single-wall Grahame
 relation at the bulk concentration, as a practitioner would (a regulating wall: the self-consistent
 charge and potential of the isolated wall).
+
+The thin-layer counterparts in a result's summary (its response matrix with chemiosmotic slip, the lab
+quantities and their errors) are computed, compiled, in ``_summary.py`` (``thin_layer_matrix``).
 """
 
 from __future__ import annotations
 
 import math
 
-import numpy as np
-
-from edl_solver.case import Capillary, Case, Electrolyte, Slit, Wall
-from edl_solver.constants import FARADAY, GAS_CONSTANT
+from edl_solver.case import Capillary, Electrolyte, Slit, Wall
 from edl_solver.solvent import Solvent
 from edl_solver.walls import isolated_wall
 
@@ -80,51 +80,3 @@ def poiseuille_per_gradient(geometry: Slit | Capillary, viscosity: float, slip: 
     b1, b2 = slip
     c = h * (h + 2.0 * b2) / (h + b1 + b2)
     return (-h**3 / 3.0 + c * (h * h / 2.0 + b1 * h)) / (2.0 * viscosity)
-
-
-def chemiosmotic_slip(zeta: float, electrolyte: Electrolyte, solvent: Solvent) -> float:
-    """Thin-layer diffusio-osmotic slip velocity per unit d ln c/dx of a symmetric z:z electrolyte, m^2/s:
-    u = -(eps / eta)(kT / z e)^2 4 ln cosh(z e zeta / 4 kT) d ln c/dx (chemiosmosis; Prieve, Anderson, Ebel &
-    Lowell 1984, J. Fluid Mech. 148, 247, from memory; it follows from the Gouy-Chapman layer, since
-    int_0^inf x (cosh psi - 1) dx = 4 ln cosh(psi_w / 4)). NaN for other electrolytes."""
-    valences = sorted(ion.valence for ion in electrolyte.ions)
-    if len(valences) != 2 or valences[0] != -valences[1]:
-        return math.nan
-    z = valences[1]
-    vt = solvent.thermal_voltage / z
-    return -solvent.permittivity / solvent.viscosity * vt * vt * 4.0 * math.log(math.cosh(zeta / (4.0 * vt)))
-
-
-def thin_layer_matrix(case: Case, area: float, isolated: tuple[tuple[float, float], tuple[float, float]],
-                      slip_per_field: tuple[float, float]) -> np.ndarray:
-    """The 3 x 3 response matrix of the thin-layer model (see ``transport.reduced_matrix`` for its layout).
-
-    Bulk electrolyte everywhere, the double layers reduced to slip velocities: Poiseuille flow with the walls'
-    slip lengths; EO slip (mean of the walls' Helmholtz-Smoluchowski velocities) coupling flow and field both
-    ways (Smoluchowski's streaming relation); bulk conduction K = (F^2 / RT) sum z_i^2 D_i c_i; bulk diffusion
-    and convection of the salt; chemiosmotic slip for the salt force (z:z electrolytes only; NaN otherwise).
-    ``area`` is the section area (H per unit width, or pi a^2).
-    """
-    from edl_solver.transport import salt_stoichiometry
-
-    ions = case.electrolyte.ions
-    rt = GAS_CONSTANT * case.solvent.temperature
-    total_nu = float(np.sum(salt_stoichiometry(case)))
-    total_c = sum(ion.concentration for ion in ions)
-    poiseuille = poiseuille_per_gradient(case.geometry, case.solvent.viscosity,
-                                         tuple(w.slip_length for w in case.walls))
-    eo = area * 0.5 * (slip_per_field[0] + slip_per_field[1])
-    chemi = 0.5 * sum(chemiosmotic_slip(z, case.electrolyte, case.solvent) for z, _ in isolated)
-    salt_flow = total_c / total_nu * poiseuille + area * chemi / (-rt * total_nu)  # Q per X_s
-    conductance = FARADAY**2 / rt * area * sum(ion.valence**2 * ion.diffusivity * ion.concentration for ion in ions)
-    diffusion_current = FARADAY * area / (rt * total_nu) * sum(
-        ion.valence * ion.diffusivity * ion.concentration for ion in ions)
-    salt_diffusion = area / (rt * total_nu**2) * sum(ion.diffusivity * ion.concentration for ion in ions)
-    # the salt force moves the bulk like a solvent force of (sum c / sum nu) per unit X_s, so its current
-    # includes that share of the streaming coupling (Onsager partner of the Poiseuille part of salt_flow)
-    salt_current = total_c / total_nu * eo + diffusion_current
-    return np.array([
-        [poiseuille, eo, salt_flow],
-        [eo, conductance, salt_current],
-        [salt_flow, salt_current, total_c / total_nu * salt_flow + salt_diffusion],
-    ])

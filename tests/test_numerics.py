@@ -36,8 +36,7 @@ def make_case(salt: str, geometry: str, kappa_h: float, wall: edl.Wall | tuple, 
 
 def level_integrals(case: edl.Case, intervals: int) -> np.ndarray:
     """Raw (unextrapolated) section integrals of the finest of ``levels`` grids."""
-    units = scaling.scales(case)
-    problem = scaling.section_problem(case, units)
+    problem = scaling.prepare(case).problem
     wall_guess, counter = problem.wall_potential_guess, problem.counter_valence
     inner = _adaptive.inner_length(problem.kappa2, wall_guess, counter)
     g = grid.build(intervals, "half" if problem.half else "full", problem.metric, inner)
