@@ -32,6 +32,7 @@ import numpy as np
 from edl_solver.case import Capillary, Case
 from edl_solver.errors import ConvergenceError, InputError
 from edl_solver.result import SUMMARY_UNITS, summary_unit
+from edl_solver.sweep_plan import SweepPlan, make_plan
 
 #: Status codes stored per case.
 PENDING, CONVERGED, FAILED = -1, 0, 1
@@ -248,44 +249,82 @@ def _summary_layout(capillary: bool) -> dict[str, tuple[str, str]]:
     return {key: (summary_unit(key, capillary), text) for key, (_, text) in SUMMARY_UNITS.items()}
 
 
-def solve_rows(base_table: Mapping[str, Any], axes: Sequence[Axis], rows: Sequence[int]) -> dict[str, Any]:
+def solve_rows(base_table: Mapping[str, Any], axes: Sequence[Axis], rows: Sequence[int],
+               plan: SweepPlan | None = None) -> dict[str, Any]:
     """Solve the cases of some rows (lines along the last axis); a module-level function so that worker
     processes and Dask workers can run it.
+
+    With a ``plan`` the cases are packed from it and solved in one compiled batch (``_batch.solve_cases``,
+    the same compiled steps as ``edl_solver.solve``); cases the batch cannot finish (no convergence from the
+    start guess, an invalid combination of inputs) and every case without a plan go through
+    ``edl_solver.solve`` one by one, which also words the reason of a failure.
 
     Returns
     -------
     dict
         ``rows`` and, per summary key, an array (rows, last axis[, 2]); ``status`` and ``message``.
     """
-    from edl_solver.solver import solve
-
     shape = tuple(axis.size for axis in axes)
     last = shape[-1]
-    keys = list(SUMMARY_UNITS)
     out: dict[str, Any] = {"rows": list(rows), "status": np.full((len(rows), last), FAILED, dtype=np.int8),
                            "message": [["" for _ in range(last)] for _ in rows]}
-    values = {key: np.full((len(rows), last, 2), np.nan) for key in keys}
-    for r, row in enumerate(rows):
+    values = {key: np.full((len(rows), last, 2), np.nan) for key in SUMMARY_UNITS}
+    points = (np.asarray(rows, dtype=np.int64)[:, None] * last + np.arange(last)).ravel()
+    one_by_one = np.ones(points.size, dtype=bool)
+    if plan is not None:
         _stop_if_asked()
-        lead = np.unravel_index(row, shape[:-1]) if len(shape) > 1 else ()
-        for j in range(last):
-            index = (*lead, j)
-            try:
-                result = solve(case_at(base_table, axes, index))
-            except (ConvergenceError, InputError) as error:
-                out["message"][r][j] = str(error)
-                continue
-            except Exception as error:  # one broken case must not stop a long sweep: record it and go on
-                out["message"][r][j] = f"unexpected {type(error).__name__}: {error}"
-                continue
-            out["status"][r, j] = CONVERGED
-            for key in keys:
-                value = result.summary.get(key)
-                if value is None:  # a key some cases lack (stern_potential without a Stern layer): NaN
-                    continue
-                values[key][r, j] = value if isinstance(value, tuple) else (value, value)
+        one_by_one = _solve_batch(plan, points, values, out["status"])
+    for flat in np.nonzero(one_by_one)[0].tolist():
+        _stop_if_asked()
+        r, j = divmod(flat, last)
+        _solve_one(base_table, axes, np.unravel_index(int(points[flat]), shape), values, out, r, j)
     out.update(values)
     return out
+
+
+def _solve_batch(plan: SweepPlan, points: np.ndarray, values: dict[str, np.ndarray], status: np.ndarray
+                 ) -> np.ndarray:
+    """Solve the valid points in one compiled batch, filling ``values`` and ``status`` (rows, last axis);
+    returns which points are left to the case-by-case path."""
+    from edl_solver import _batch, _summary
+
+    vectors, valid = plan.vectors(points)
+    chosen = np.nonzero(valid)[0]
+    summaries = np.full((chosen.size, _summary.SUMMARY_SIZE), np.nan)
+    codes = np.empty(chosen.size, dtype=np.int64)
+    iterations = np.empty(chosen.size, dtype=np.int64)
+    _batch.solve_cases(np.ascontiguousarray(vectors[chosen]), summaries, codes, iterations)
+    done = chosen[codes == _batch.CONVERGED]
+    finished = summaries[codes == _batch.CONVERGED]
+    last = status.shape[1]
+    r, j = np.divmod(done, last)
+    status[r, j] = CONVERGED
+    for key, at in _summary.SLOTS.items():
+        pair = key in _summary.PAIR_KEYS
+        values[key][r, j, 0] = finished[:, at]
+        values[key][r, j, 1] = finished[:, at + 1] if pair else finished[:, at]
+    left = np.ones(points.size, dtype=bool)
+    left[done] = False
+    return left
+
+
+def _solve_one(base_table: Mapping[str, Any], axes: Sequence[Axis], index: tuple[int, ...],
+               values: dict[str, np.ndarray], out: dict[str, Any], r: int, j: int) -> None:
+    """Solve one point with ``edl_solver.solve``; a failure is recorded with its reason."""
+    from edl_solver.solver import solve
+
+    try:
+        result = solve(case_at(base_table, axes, index))
+    except (ConvergenceError, InputError) as error:
+        out["message"][r][j] = str(error)
+        return
+    except Exception as error:  # one broken case must not stop a long sweep: record it and go on
+        out["message"][r][j] = f"unexpected {type(error).__name__}: {error}"
+        return
+    out["status"][r, j] = CONVERGED
+    for key, value in result.summary.items():
+        if key in values:  # a key some cases lack (stern_potential without a Stern layer) stays NaN
+            values[key][r, j] = value if isinstance(value, tuple) else (value, value)
 
 
 def _check_resumable(partial: Path, spec_json: str) -> None:
@@ -533,13 +572,14 @@ def sweep(base: Case, axes: Mapping[str, Any], *, zipped: Sequence[Sequence[str]
     out_path = Path(path) if path is not None else None
     store = _Store(spec, sweep_axes, isinstance(base.geometry, Capillary), pair, out_path, resume)
     try:
+        plan = make_plan(base_table, sweep_axes)
         todo = _rows_todo(store.status)
         last = sweep_axes[-1].size
         per_task = rows_per_task or max(1, 1000 // last)
         tasks = [todo[i:i + per_task] for i in range(0, len(todo), per_task)]
         total = len(todo) * last
         with _progress_bar(total, progress) as bar, _interruptible():
-            for part in _run(tasks, base_table, sweep_axes, workers, dask):
+            for part in _run(tasks, base_table, sweep_axes, plan, workers, dask):
                 store.write(part)
                 bar.update(len(part["rows"]) * last)
                 _stop_if_asked()
@@ -584,21 +624,21 @@ def _stop_if_asked() -> None:
         raise KeyboardInterrupt
 
 
-def _run(tasks: list[list[int]], base_table: dict[str, Any], axes: Sequence[Axis], workers: int,
-         dask: Any) -> Iterable[dict[str, Any]]:
+def _run(tasks: list[list[int]], base_table: dict[str, Any], axes: Sequence[Axis], plan: SweepPlan | None,
+         workers: int, dask: Any) -> Iterable[dict[str, Any]]:
     """Yield each task's results as it completes (in this process, local processes, or Dask)."""
     if dask is not None:
-        yield from _run_dask(tasks, base_table, axes, dask)
+        yield from _run_dask(tasks, base_table, axes, plan, dask)
     elif workers == 1:
         for rows in tasks:
-            yield solve_rows(base_table, axes, rows)
+            yield solve_rows(base_table, axes, rows, plan)
     else:
         import concurrent.futures as cf
         import multiprocessing
 
         context = multiprocessing.get_context("spawn")
         with cf.ProcessPoolExecutor(workers, mp_context=context, initializer=_one_thread) as pool:
-            futures = [pool.submit(solve_rows, base_table, axes, rows) for rows in tasks]
+            futures = [pool.submit(solve_rows, base_table, axes, rows, plan) for rows in tasks]
             try:
                 for future in cf.as_completed(futures):
                     yield future.result()
@@ -617,13 +657,13 @@ def _one_thread() -> None:
     numba.set_num_threads(1)
 
 
-def _run_dask(tasks: list[list[int]], base_table: dict[str, Any], axes: Sequence[Axis],
+def _run_dask(tasks: list[list[int]], base_table: dict[str, Any], axes: Sequence[Axis], plan: SweepPlan | None,
               dask: Any) -> Iterable[dict[str, Any]]:
     from distributed import Client, as_completed
 
     client = dask if isinstance(dask, Client) else Client(dask)
     try:
-        futures = [client.submit(solve_rows, base_table, axes, rows, pure=False) for rows in tasks]
+        futures = [client.submit(solve_rows, base_table, axes, rows, plan, pure=False) for rows in tasks]
         for future in as_completed(futures):
             yield future.result()
     finally:
