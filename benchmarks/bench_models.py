@@ -15,7 +15,7 @@ import statistics
 import time
 
 import edl_solver as edl
-from edl_solver import equilibrium, scaling, walls
+from edl_solver import equilibrium, scaling
 
 
 def cases() -> dict[str, list[edl.Case]]:
@@ -65,8 +65,7 @@ def main() -> None:
     for name, group in groups.items():
         full = kernel = 0.0
         for case in group:
-            units = scaling.scales(case)
-            problem = scaling.section_problem(case, units, walls.isolated_walls(case))
+            problem = scaling.prepare(case).problem
             full += timed(lambda c=case: edl.solve(c), args.repeats) / len(group)
             kernel += timed(lambda p=problem, a=case.numerics.accuracy: equilibrium.solve_section(p, a),
                             args.repeats) / len(group)

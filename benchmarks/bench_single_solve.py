@@ -486,7 +486,7 @@ def main(argv: list[str] | None = None) -> dict:
 
     # -- (a) one warm solve, repeated -------------------------------------------------------------
     single = slit_case(1.0, -4.0, accuracy=accuracy)
-    problem = scaling.section_problem(single, scaling.scales(single))
+    problem = scaling.prepare(single).problem
     single_median, single_min = repeat_median(lambda: edl.solve(single), repeats)
     kernel_median, kernel_min = repeat_median(lambda: equilibrium.solve_section(problem, accuracy), repeats)
     corner_rows = []
@@ -529,7 +529,7 @@ def main(argv: list[str] | None = None) -> dict:
     edl_err = errors(values[:, 0], values[:, 1], values[:, 2], zeta, refs)
 
     # -- (c) the kernel path only (problems built outside the timer) ------------------------------
-    problems = [scaling.section_problem(c, scaling.scales(c)) for c in cases]
+    problems = [scaling.prepare(c).problem for c in cases]
     kernel_pass, kernel_times = np.empty((passes, n_cases)), []
     kvalues = np.full((n_cases, 3), np.nan)
     for k in range(passes):
