@@ -166,6 +166,8 @@ def test_file_opens_with_xarray_and_equals_the_in_memory_result(slit_sweep: xr.D
             assert opened[key].attrs["units"] == slit_sweep[key].attrs["units"], key
         assert opened.attrs["schema_version"] and opened.attrs["edl_solver_version"] == edl.__version__
     xr.testing.assert_equal(returned, slit_sweep)
+    # what edl.sweep returns is the file as xarray reads it, attributes included
+    xr.testing.assert_identical(returned, xr.load_dataset(path, engine="h5netcdf"))
 
 
 # -- parallel: local processes and Dask ------------------------------------------------------------------
