@@ -20,6 +20,7 @@ __all__ = ["add_map_command", "parse_axis", "run_map_command"]
 EXIT_OK = 0
 EXIT_INPUT = 2
 EXIT_CONVERGENCE = 3
+EXIT_INTERRUPTED = 130
 
 #: Tolerances always drawn as contour lines, besides the one of --tolerance.
 _CONTOUR_TOLERANCES = (0.01, 0.05, 0.10)
@@ -71,6 +72,8 @@ def add_map_command(subparsers: Any) -> None:
     parser.add_argument("-o", "--output", metavar="MAP.h5", help="write the map (HDF5/netCDF, read by xarray)")
     parser.add_argument("--figure", metavar="MAP.png", help="write a figure of the map (PNG)")
     parser.add_argument("--workers", metavar="N", default="1", help="local worker processes (default: 1)")
+    parser.add_argument("--resume", action="store_true",
+                        help="finish a map interrupted by Ctrl-C or a crash (its cases are kept next to -o MAP.h5)")
     parser.add_argument("-q", "--quiet", action="store_true", help="print nothing but errors")
     parser.set_defaults(run=run_map_command)
 
@@ -162,8 +165,16 @@ def _run(args: argparse.Namespace) -> int:
     if not workers.isdigit() or int(workers) < 1:
         raise InputError(f"--workers: {args.workers!r} is not allowed, expected a positive whole number")
     outputs = _outputs(args)
-    data = validity_map(base, x_axis, y_axis, tolerances=sorted({*_CONTOUR_TOLERANCES, tolerance}),
-                        path=outputs.get("map"), boundary_tolerance=tolerance, workers=int(workers))
+    partial = _interrupted_sweep(args, outputs)
+    try:
+        data = validity_map(base, x_axis, y_axis, tolerances=sorted({*_CONTOUR_TOLERANCES, tolerance}),
+                            path=outputs.get("map"), boundary_tolerance=tolerance, workers=int(workers),
+                            resume=args.resume)
+    except KeyboardInterrupt:
+        if partial is None or not partial.exists():
+            return _fail("interrupted before any case was kept", EXIT_INTERRUPTED)
+        return _fail(f"interrupted; the finished cases are kept in {partial}; to finish the map, run the same "
+                     "command with --resume", EXIT_INTERRUPTED)
     converged = int((data["status"].values == 0).sum())
     if converged == 0:
         first = str(data["message"].values.flat[0])
@@ -204,6 +215,25 @@ def _outputs(args: argparse.Namespace) -> dict[str, Path]:
     if len(outputs) == 2 and outputs["map"].resolve() == outputs["figure"].resolve():
         raise InputError(f"--figure: {args.figure!r} is also the map file (-o), expected another file name")
     return outputs
+
+
+def _interrupted_sweep(args: argparse.Namespace, outputs: dict[str, Path]) -> Path | None:
+    """Where the map's sweep keeps its finished cases (None without -o); refuse to start afresh over an
+    interrupted one, and to resume without a file."""
+    from edl_solver.errors import InputError
+
+    if "map" not in outputs:
+        if args.resume:
+            raise InputError("--resume: a map keeps its finished cases only next to its file, expected -o MAP.h5 "
+                             "as in the interrupted run")
+        return None
+    partial = outputs["map"].with_name(outputs["map"].name + ".sweep.partial")
+    if partial.exists() and not args.resume:
+        raise InputError(f"{partial}: an interrupted map is kept there; add --resume to finish it (or delete the "
+                         "file to start afresh)")
+    if args.resume and not partial.exists() and not args.quiet:
+        print(f"note: no {partial.name} to resume, so the map starts from the beginning")
+    return partial
 
 
 #: Short symbols of the axes for the printed boundary ("{ion}": the first ion of the case).

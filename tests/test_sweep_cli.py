@@ -5,17 +5,14 @@ from __future__ import annotations
 import contextlib
 import importlib.machinery
 import io
-import os
-import signal
-import subprocess
 import sys
-import time
 import types
 from pathlib import Path
 
 import numpy as np
 import pytest
 import xarray as xr
+from interrupting import interrupt_after_first_write
 
 import edl_solver as edl
 from edl_solver.cli import main
@@ -225,44 +222,23 @@ def test_bad_command_lines_exit_2_and_write_nothing(tmp_path: Path) -> None:
 
 def test_ctrl_c_exits_130_keeps_the_partial_file_and_resume_finishes(tmp_path: Path) -> None:
 
-    # 4,000 cases (~2 s): long enough to be interrupted after the file is laid out, short enough to be
-    # finished here.
+    # 40,000 cases (~2 s in compiled batches of 4,000): long enough to be interrupted after the first batch is
+    # written, short enough to be finished here.
     text = BASE_TOML + """
 [sweep.axes]
 "geometry.height" = { log = ["5 nm", "500 nm"], points = 1000 }
-"wall.zeta" = ["-15 mV", "-45 mV", "-90 mV", "-140 mV"]
+"wall.zeta" = { linear = ["-140 mV", "-15 mV"], points = 40 }
 """
     sweep_file = write(tmp_path, text)
     output, partial = tmp_path / "design.h5", tmp_path / "design.h5.partial"
-    env = {**os.environ, "PYTHONPATH": os.pathsep.join(filter(None, [str(ROOT), os.environ.get("PYTHONPATH")]))}
-    with subprocess.Popen([sys.executable, "-m", "edl_solver", "sweep", str(sweep_file)], env=env,
-                          stdout=subprocess.PIPE, stderr=subprocess.PIPE, text=True) as process:
-        try:
-            deadline = time.monotonic() + 60.0
-            # The partial file appears by a rename once it is laid out, and changes when the first block of rows
-            # is written: interrupting after that hits the sweep while it solves (reading the file while the
-            # sweep holds it open can fail, so its size and time stamp are the signal).
-            while time.monotonic() < deadline and process.poll() is None and not partial.exists():
-                time.sleep(0.005)
-            laid_out = partial.stat() if partial.exists() else None
-            while time.monotonic() < deadline and process.poll() is None and laid_out is not None:
-                now = partial.stat()
-                if (now.st_size, now.st_mtime_ns) != (laid_out.st_size, laid_out.st_mtime_ns):
-                    break
-                time.sleep(0.005)
-            assert process.poll() is None, f"the sweep ended before it was interrupted: {process.communicate()}"
-            process.send_signal(signal.SIGINT)
-            out, err = process.communicate(timeout=60)
-        finally:
-            if process.poll() is None:
-                process.kill()
-    assert process.returncode == 130, (out, err)
+    code, out, err = interrupt_after_first_write(["sweep", str(sweep_file)], partial)
+    assert code == 130, (out, err)
     assert err.startswith("edl: error: interrupted") and err.count("\n") == 1, err
     assert f"kept in {partial}" in err and f"edl sweep {sweep_file} --resume" in err
     assert partial.exists() and not output.exists()
 
     code, out, err = run(["sweep", str(sweep_file), "--resume"])
-    assert code == 0 and err == "" and "4000 converged, 0 failed" in out
+    assert code == 0 and err == "" and "40000 converged, 0 failed" in out
     assert output.exists() and not partial.exists()
     case, axes, zipped = load_sweep(sweep_file)
     with xr.open_dataset(output, engine="h5netcdf") as resumed:

@@ -17,6 +17,7 @@ import mpmath
 import numpy as np
 import pytest
 import xarray as xr
+from interrupting import interrupt_after_first_write
 from scipy import constants
 from scipy.optimize import brentq
 from scipy.special import i0e, i1e
@@ -407,3 +408,31 @@ def test_map_command_through_edl_main(tmp_path: Path) -> None:
         code = main(["map", case, "--y", "zeta_kT:-4:-1:2:lin"])  # no --x
     assert code == 2 and err.getvalue().startswith("edl: error: ") and "--x" in err.getvalue()
     assert err.getvalue().count("\n") == 1
+
+
+def test_map_command_ctrl_c_keeps_the_cases_and_resume_finishes_the_same_map(tmp_path: Path) -> None:
+    # 22,500 cases (~1 s in compiled batches of 4,000): interrupted once the first batch is written
+    case = case_file(tmp_path)
+    output = tmp_path / "map.h5"
+    partial = tmp_path / "map.h5.sweep.partial"
+    axes = ["--x", "electrolyte.concentration:0.1mM:100mM:150", "--y", "geometry.height:5nm:2um:150"]
+    code, out, err = interrupt_after_first_write(["map", case, *axes, "-o", str(output)], partial)
+    assert code == 130, (out, err)
+    assert err.startswith("edl: error: interrupted; the finished cases are kept in") and err.count("\n") == 1, err
+    assert "--resume" in err and partial.exists() and not output.exists()
+    # starting afresh would lose them: refused until --resume is given
+    code, _, err = run_map([case, *axes, "-o", str(output)])
+    assert code == 2 and "--resume" in err and partial.exists()
+    code, out, err = run_map([case, *axes, "-o", str(output), "--resume", "-q"])
+    assert (code, out, err) == (0, "", "")
+    assert not partial.exists()
+    with xr.open_dataset(output, engine="h5netcdf") as resumed:
+        code, _, _ = run_map([case, *axes, "-o", str(tmp_path / "again.h5"), "-q"])
+        assert code == 0
+        with xr.open_dataset(tmp_path / "again.h5", engine="h5netcdf") as uninterrupted:
+            xr.testing.assert_identical(resumed.load(), uninterrupted.load())
+
+
+def test_map_command_resume_needs_the_map_file(tmp_path: Path) -> None:
+    code, out, err = run_map([case_file(tmp_path), "--x", "kappa_h:1:100:2", "--y", "zeta_kT:-4:-1:2", "--resume"])
+    assert code == 2 and out == "" and "--resume" in err and "-o MAP.h5" in err and err.count("\n") == 1
