@@ -498,6 +498,10 @@ class _Store:
         import xarray as xr
 
         if self.file is not None:
+            if _summary_bytes(self.shape, self.pair) > LOAD_LIMIT_BYTES:
+                self.abandon()
+                os.replace(self.partial, self.path)
+                return xr.open_dataset(self.path, engine="h5netcdf")  # lazily: memory stays flat
             status, message, values, attrs = self._read_back()
             self.abandon()  # closes the file
             os.replace(self.partial, self.path)
@@ -535,6 +539,17 @@ class _Store:
         if self.file is not None:
             self.file.close()
             self.h5.close()
+
+
+#: A sweep streamed to a file returns its Dataset loaded into memory up to this size of its values, and
+#: opened lazily from the file beyond it (values read on access), so that memory stays flat.
+LOAD_LIMIT_BYTES = 256 * 2**20
+
+
+def _summary_bytes(shape: tuple[int, ...], pair: bool) -> int:
+    """Bytes of a sweep's summary values in memory."""
+    columns = sum(2 if key in PAIR_KEYS and pair else 1 for key in SUMMARY_UNITS)
+    return int(np.prod(shape)) * columns * 8
 
 
 #: Summary keys that are (bottom, top) pairs for a slit with two different walls.
@@ -577,7 +592,9 @@ def sweep(base: Case, axes: Mapping[str, Any], *, zipped: Sequence[Sequence[str]
     xarray.Dataset
         One dimension per axis; every ``result.summary`` key as a variable with ``units`` and
         ``long_name`` (pair values on an extra ``wall`` dimension when the walls differ); ``status``
-        (0 converged, 1 failed) and ``message`` per case.
+        (0 converged, 1 failed) and ``message`` per case. With a ``path``, the file as xarray reads it:
+        loaded into memory when its values take up to ``LOAD_LIMIT_BYTES`` (256 MiB, about 500,000
+        cases), else opened lazily (values read from the file on access; close it when done).
     """
     from edl_solver.io import case_to_dict
 

@@ -272,3 +272,16 @@ def test_bad_sweep_arguments_name_the_argument() -> None:
         edl.sweep(SLIT, {"wall.zet": ["-20 mV"]})
     with pytest.raises(InputError, match="equal lengths"):
         edl.sweep(SLIT, {"wall.zeta": ["-20 mV"], "field": [1.0, 2.0]}, zipped=[["wall.zeta", "field"]])
+
+
+def test_a_large_sweep_to_a_file_is_returned_lazily(slit_sweep: xr.Dataset, tmp_path: Path,
+                                                    monkeypatch: pytest.MonkeyPatch) -> None:
+    # Beyond the load limit the values stay in the file and are read on access (memory stays flat).
+    import edl_solver.sweeps as sweeps
+
+    monkeypatch.setattr(sweeps, "LOAD_LIMIT_BYTES", 0)
+    path = tmp_path / "sweep.h5"
+    with edl.sweep(SLIT, SLIT_AXES, zipped=SLIT_ZIP, path=path) as returned:
+        assert Path(returned.encoding["source"]) == path
+        assert not returned["flow_rate_eo"].variable._in_memory
+        xr.testing.assert_equal(returned.load(), slit_sweep)
