@@ -1,10 +1,10 @@
 """Compiled step from the section integrals of one case to its summary: every value ``Result.summary``
 holds, in one float vector (layout ``SLOTS``), plus the ion-resolved and reduced response matrices.
 
-The physics of each part is stated where it is used from Python: flow.py (flow rates), transport.py
-(currents, the response matrices and the lab quantities), thin_layer.py (the slip model and its matrix)
-and solver.py (the comparison with the thin-layer model and the identity checks). One compiled copy
-serves a single solve and a sweep alike, so their values are identical.
+Each step states its physics and sources in its docstring (the response matrices of the space-charge
+model, the lab quantities, the thin-layer matrix, the identity checks); flow.py and transport.py state
+the flow-rate and current integrals, thin_layer.py the slip model. One compiled copy serves a single solve
+(solver.py) and a sweep (_batch.py) alike, so their values are identical.
 """
 
 from __future__ import annotations
@@ -79,7 +79,7 @@ IDENTITY_TOLERANCE = 1e-8
 #: The thin-layer profile is compared with the full one farther than this many Debye lengths from the walls.
 OUTER_REGION_DEBYE_LENGTHS = 3.0
 
-#: Lab quantities of a 3 x 3 response matrix, in this order (see ``transport.lab_quantities``), then the
+#: Lab quantities of a 3 x 3 response matrix, in this order (see ``lab_quantities``), then the
 #: cation transference (filled separately for the full and the thin-layer model).
 LAB_KEYS = ("conductance_per_length", "streaming_conductance", "streaming_potential_coefficient",
             "electroviscous_ratio", "eo_pump_flow_per_field", "eo_pump_pressure_per_voltage",
@@ -95,6 +95,7 @@ COMPARED_LAB = np.array([LAB_KEYS.index(key) for key in COMPARED])
 COMPARED_THIN = np.array([SLOTS[f"thin_layer_{key}"] for key in COMPARED])
 COMPARED_ERROR = np.array([SLOTS[f"thin_layer_{key}_error"] for key in COMPARED])
 
+# Slots of the summary keys written by name below (numba reads module-level ints as constants).
 Z_ZETA = SLOTS["zeta"]
 Z_SIGMA = SLOTS["wall_charge_density"]
 Z_STERN = SLOTS["stern_potential"]
@@ -137,9 +138,13 @@ def thin_slip(p, iso):
 
 @njit(cache=True, error_model="numpy")
 def outer_deviation(s, beta, u_eo, p, sc, slip):
-    """Largest |thin-layer - full| EO velocity outside the double layers, over the largest slip speed
-    (see ``solver.OUTER_REGION_DEBYE_LENGTHS``); ``u_eo`` is the dimensionless EO profile on the finest
-    computational nodes ``s`` of the tanh map with stretching ``beta``."""
+    """Largest |thin-layer - full| EO velocity outside the double layers, over the largest slip speed.
+
+    The outer region lies farther than ``OUTER_REGION_DEBYE_LENGTHS`` Debye lengths from every wall; when
+    the layers overlap it shrinks to the centre. Inside the layers the slip model does not claim to hold,
+    so the comparison stops there. ``u_eo`` is the dimensionless EO profile on the finest computational
+    nodes ``s`` of the tanh map with stretching ``beta``.
+    """
     largest = max(abs(slip[0]), abs(slip[1]))
     if largest == 0.0:
         return np.nan
@@ -381,7 +386,7 @@ def _relative_error(thin, full):
 
 @njit(cache=True, error_model="numpy")
 def identity_residuals(p, kappa2, integrals, ion_matrix):
-    """Charge balance and reciprocity of the discrete solution (see ``solver.IDENTITY_TOLERANCE``).
+    """Charge balance and reciprocity of the discrete solution (a solve fails beyond ``IDENTITY_TOLERANCE``).
 
     Both are exact identities of the scheme: the operator is symmetric and the wall charge comes from the
     end cells' balance. Reciprocity (Onsager 1931): the streaming current per pressure gradient equals the

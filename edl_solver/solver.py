@@ -19,11 +19,6 @@ from edl_solver.errors import ConvergenceError
 from edl_solver.result import Profiles, Result
 from edl_solver.scaling import Scales
 
-IDENTITY_TOLERANCE = _summary.IDENTITY_TOLERANCE
-#: The thin-layer profile is compared with the full one farther than this many Debye lengths from
-#: the walls (the outer region of the matched-asymptotic picture).
-OUTER_REGION_DEBYE_LENGTHS = _summary.OUTER_REGION_DEBYE_LENGTHS
-
 
 def solve(case: Case) -> Result:
     """Solve the equilibrium double layer and the flow across one section and compare with the
@@ -105,7 +100,7 @@ def _check_identities(summary: dict[str, Any], case: Case) -> None:
     """Refuse a solution that violates charge balance or reciprocity (``_summary.identity_residuals``):
     both are exact identities of the scheme, so a violation means the solve went wrong."""
     balance, reciprocity = summary["charge_balance"], summary["reciprocity_residual"]
-    if not max(balance, reciprocity) <= IDENTITY_TOLERANCE:
+    if not max(balance, reciprocity) <= _summary.IDENTITY_TOLERANCE:
         raise ConvergenceError(f"{case.describe()}: the discrete solution violates charge balance "
                                f"({balance:.2g}) or reciprocity ({reciprocity:.2g}); not returned")
 

@@ -128,7 +128,7 @@ def _flow_display(capillary: bool, largest: float) -> tuple[float, str, str]:
 def pump_curve_figure(result: Result, path: str | os.PathLike[str], length: float | str | None = None) -> Path:
     """Write a PNG of the linear electroosmotic pump curve at the case's field: flow against back pressure.
 
-    The section's response matrix gives, per unit length, Q = M_QE E - M_QP dp/dx (``transport.lab_quantities``):
+    The section's response matrix gives, per unit length, Q = M_QE E - M_QP dp/dx (``_summary.lab_quantities``):
     with a back pressure Delta p rising along the flow over a channel of length L, the flow falls linearly
     from the free flow Q_0 = M_QE E (``eo_pump_flow_per_field`` times E) to zero at the stall pressure
     Delta p_0 = (M_QE / M_QP) E L (``eo_pump_pressure_per_voltage`` times the voltage E L). The thin-layer

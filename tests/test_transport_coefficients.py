@@ -688,7 +688,7 @@ def test_transference_tends_to_one_in_overlapped_charged_channel() -> None:
 
 @pytest.mark.parametrize("name", list(BULK_ELECTROLYTES))
 def test_diffusion_potential_of_uncharged_channel_is_henderson(name: str) -> None:
-    """Uncharged channel, zero current and no pressure difference (``transport.lab_quantities``): with
+    """Uncharged channel, zero current and no pressure difference (``_summary.lab_quantities``): with
     g = d ln c/dx at fixed composition each ion feels X_i = -RT g + z_i F E; with no charge and no
     flow J_i = (D_i c_i / RT) X_i A, and the current I = F sum z_i J_i = 0 gives
     E = (RT / F) g sum z D c / sum z^2 D c. The potential
