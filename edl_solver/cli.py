@@ -442,7 +442,8 @@ def _run_sweep(args: argparse.Namespace) -> int:
         print(f"note: no {partial.name} to resume, so the sweep starts from the beginning")
     try:
         result = sweep(spec.case, spec.axes, zipped=spec.zipped, path=output, resume=args.resume,
-                       workers=args.workers, dask=client, progress=False if args.quiet else None)
+                       workers=args.workers, dask=client, progress=False if args.quiet else None,
+                       profiles=spec.profile_points)
     except KeyboardInterrupt:
         if not partial.exists():
             return _fail("interrupted before any case was finished", EXIT_INTERRUPTED)

@@ -17,7 +17,8 @@ that any case file becomes a sweep by adding a table) plus a ``[sweep]`` table::
     zeta = "-50 mV"
 
     [sweep]
-    output_profiles = false           # optional; sweeps store the summary values only
+    output_profiles = false           # optional: true (101 positions) or a number of positions across the
+                                      # section also stores every case's profiles (large; slower)
 
     [sweep.axes]                      # one dimension per axis, in this order
     "geometry.height" = { log = ["2 nm", "2 um"], points = 50 }       # 50 values, evenly spaced in log
@@ -54,13 +55,15 @@ Every error is one line naming the file and the dotted TOML key, e.g.
 from __future__ import annotations
 
 import difflib
-from collections.abc import Mapping
+from collections.abc import Iterator, Mapping
+from dataclasses import dataclass
 from numbers import Real
 from pathlib import Path
-from typing import Any, NamedTuple
+from typing import Any
 
 from edl_solver.case import Case
 from edl_solver.errors import InputError
+from edl_solver.sweep_profiles import check_points
 from edl_solver.sweeps import check_conflicts
 
 __all__ = ["SWEEP_KEYS", "SweepSpec", "load_sweep", "sweep_from_mapping"]
@@ -74,8 +77,10 @@ MAX_POINTS = 1_000_000
 #: Wall keys that make a wall a charged one; a fixed zeta excludes them (as ``case.Wall`` does).
 
 
-class SweepSpec(NamedTuple):
-    """What a sweep file asks for: the arguments of :func:`edl_solver.sweep`.
+@dataclass(frozen=True)
+class SweepSpec:
+    """What a sweep file asks for: the arguments of :func:`edl_solver.sweep`. Unpacks as
+    ``case, axes, zipped``.
 
     Attributes
     ----------
@@ -85,11 +90,17 @@ class SweepSpec(NamedTuple):
         Dotted input path -> values in SI units (floats; words for "model"), in the file's order.
     zipped : list of list of str
         Groups of axis paths varied together along one dimension.
+    profile_points : int
+        Positions across the section at which profiles are stored (0: none), ``sweep(profiles=...)``.
     """
 
     case: Case
     axes: dict[str, list[Any]]
     zipped: list[list[str]]
+    profile_points: int = 0
+
+    def __iter__(self) -> Iterator[Any]:
+        return iter((self.case, self.axes, self.zipped))
 
 
 def load_sweep(path: str | Path) -> SweepSpec:
@@ -161,12 +172,12 @@ def _spec(data: Mapping[str, Any]) -> SweepSpec:
     axes = {path: _axis_values(path, spec) for path, spec in raw_axes.items()}
     check_conflicts(axes, "sweep.axes")
     zipped = _zip_groups(table.get("zip", []), axes)
-    _check_output_profiles(table.get("output_profiles", False))
+    profile_points = check_points(table.get("output_profiles", False), "sweep.output_profiles")
     case_data = {key: value for key, value in data.items() if key != "sweep"}
     _fill_from_axes(case_data, axes)
     case = case_from_mapping(case_data)
     _check_cases(case, axes, raw_axes, zipped)
-    return SweepSpec(case, axes, zipped)
+    return SweepSpec(case, axes, zipped, profile_points)
 
 
 # -- the [sweep] table -------------------------------------------------------------------------------
@@ -187,14 +198,6 @@ def _sweep_table(data: Mapping[str, Any]) -> Mapping[str, Any]:
         if key not in SWEEP_KEYS:
             raise InputError(f"unknown key 'sweep.{key}'{_did_you_mean(str(key), SWEEP_KEYS, 'sweep.')}")
     return table
-
-
-def _check_output_profiles(value: Any) -> None:
-    if not isinstance(value, bool):
-        raise InputError(f"sweep.output_profiles: {value!r} is not true or false, expected false")
-    if value:
-        raise InputError("sweep.output_profiles: true is not supported, expected false (a sweep stores the "
-                         "summary values; 'edl solve' writes the profiles of one case)")
 
 
 def _did_you_mean(key: str, known: tuple[str, ...] | list[str], prefix: str = "") -> str:

@@ -29,6 +29,7 @@ from typing import Any
 
 import numpy as np
 
+from edl_solver import sweep_profiles
 from edl_solver.case import Capillary, Case
 from edl_solver.errors import ConvergenceError, InputError
 from edl_solver.result import SUMMARY_UNITS, summary_unit
@@ -251,34 +252,40 @@ def _summary_layout(capillary: bool) -> dict[str, tuple[str, str]]:
 
 
 def solve_rows(base_table: Mapping[str, Any], axes: Sequence[Axis], rows: Sequence[int],
-               plan: SweepPlan | None = None) -> dict[str, Any]:
+               plan: SweepPlan | None = None, profile_points: int = 0) -> dict[str, Any]:
     """Solve the cases of some rows (lines along the last axis); a module-level function so that worker
     processes and Dask workers can run it.
 
     With a ``plan`` the cases are packed from it and solved in one compiled batch (``_batch.solve_cases``,
     the same compiled steps as ``edl_solver.solve``); cases the batch cannot finish (no convergence from the
     start guess, an invalid combination of inputs) and every case without a plan go through
-    ``edl_solver.solve`` one by one, which also words the reason of a failure.
+    ``edl_solver.solve`` one by one, which also words the reason of a failure. With ``profile_points``
+    every case goes through ``edl_solver.solve`` and its profiles are sampled at that many positions
+    (``sweep_profiles``).
 
     Returns
     -------
     dict
-        ``rows`` and, per summary key, an array (rows, last axis[, 2]); ``status`` and ``message``.
+        ``rows`` and, per summary key, an array (rows, last axis[, 2]); ``status`` and ``message``; with
+        profiles, per profile variable an array (rows, last axis[, ion], position).
     """
     shape = tuple(axis.size for axis in axes)
     last = shape[-1]
     out: dict[str, Any] = {"rows": list(rows), "status": np.full((len(rows), last), FAILED, dtype=np.int8),
                            "message": [["" for _ in range(last)] for _ in rows]}
     values = {key: np.full((len(rows), last, 2), np.nan) for key in SUMMARY_UNITS}
+    if profile_points:
+        n_ions = len(base_table["electrolyte"]["ions"])
+        values.update(sweep_profiles.empty((len(rows), last), n_ions, profile_points))
     points = (np.asarray(rows, dtype=np.int64)[:, None] * last + np.arange(last)).ravel()
     one_by_one = np.ones(points.size, dtype=bool)
-    if plan is not None:
+    if plan is not None and not profile_points:
         _stop_if_asked()
         one_by_one = _solve_batch(plan, points, values, out["status"])
     for flat in np.nonzero(one_by_one)[0].tolist():
         _stop_if_asked()
         r, j = divmod(flat, last)
-        _solve_one(base_table, axes, np.unravel_index(int(points[flat]), shape), values, out, r, j)
+        _solve_one(base_table, axes, np.unravel_index(int(points[flat]), shape), values, out, r, j, profile_points)
     out.update(values)
     return out
 
@@ -310,8 +317,9 @@ def _solve_batch(plan: SweepPlan, points: np.ndarray, values: dict[str, np.ndarr
 
 
 def _solve_one(base_table: Mapping[str, Any], axes: Sequence[Axis], index: tuple[int, ...],
-               values: dict[str, np.ndarray], out: dict[str, Any], r: int, j: int) -> None:
-    """Solve one point with ``edl_solver.solve``; a failure is recorded with its reason."""
+               values: dict[str, np.ndarray], out: dict[str, Any], r: int, j: int, profile_points: int = 0) -> None:
+    """Solve one point with ``edl_solver.solve`` (and sample its profiles); a failure is recorded with its
+    reason."""
     from edl_solver.solver import solve
 
     try:
@@ -326,6 +334,9 @@ def _solve_one(base_table: Mapping[str, Any], axes: Sequence[Axis], index: tuple
     for key, value in result.summary.items():
         if key in values:  # a key some cases lack (stern_potential without a Stern layer) stays NaN
             values[key][r, j] = value if isinstance(value, tuple) else (value, value)
+    if profile_points:
+        for name, sampled in sweep_profiles.sample(result.profiles, profile_points).items():
+            values[name][r, j] = sampled
 
 
 def _check_resumable(partial: Path, spec_json: str) -> None:
@@ -356,16 +367,21 @@ class _Store:
     """The sweep's results: in memory, or streamed row by row to a netCDF-4 file (h5netcdf)."""
 
     def __init__(self, spec: dict[str, Any], axes: Sequence[Axis], capillary: bool, pair: bool,
-                 path: Path | None, resume: bool):
+                 path: Path | None, resume: bool, ions: Sequence[str] = (), profile_points: int = 0):
         self.axes, self.spec, self.capillary, self.pair = axes, spec, capillary, pair
         self.shape = tuple(axis.size for axis in axes)
         self.layout = _summary_layout(capillary)
+        self.ions, self.profile_points = tuple(ions), profile_points
+        self.profile_names = [sweep_profiles.variable_name(f) for f in sweep_profiles.PROFILE_FIELDS] \
+            if profile_points else []
         self.path = path
         self.file = None
         if path is None:
             self.status = np.full(self.shape, PENDING, dtype=np.int8)
             self.message = np.full(self.shape, "", dtype=object)
             self.values = {key: np.full((*self.shape, 2), np.nan) for key in self.layout}
+            if profile_points:
+                self.values.update(sweep_profiles.empty(self.shape, len(self.ions), profile_points))
             return
         partial = path.with_name(path.name + ".partial")
         if resume and partial.exists():
@@ -438,12 +454,36 @@ class _Store:
                                     chunks=(*chunks, 2) if len(var_dims) > len(dims) else chunks)
             var.attrs["units"] = unit
             var.attrs["long_name"] = text
+        if self.profile_points:
+            self._create_profiles(dims, chunks)
         f.attrs["sweep_json"] = json.dumps(self.spec, sort_keys=True)
         f.attrs["schema_version"] = "1"
         f.attrs["edl_solver_version"] = __version__
         f.attrs["title"] = "edl_solver sweep"
         f.flush()
         self.h5.flush()
+
+    def _create_profiles(self, dims: tuple[str, ...], chunks: tuple[int, ...]) -> None:
+        """The profile variables and their position and ion coordinates."""
+        import h5py
+
+        f, points = self.file, self.profile_points
+        f.dimensions[sweep_profiles.POSITION] = points
+        f.dimensions[sweep_profiles.ION] = len(self.ions)
+        position = f.create_variable(sweep_profiles.POSITION, (sweep_profiles.POSITION,), float,
+                                     data=sweep_profiles.positions(points))
+        position.attrs["units"] = "1"
+        position.attrs["long_name"] = sweep_profiles.position_name(self.capillary)
+        f.create_variable(sweep_profiles.ION, (sweep_profiles.ION,), h5py.string_dtype(),
+                          data=np.array(self.ions, dtype=object))
+        for field in sweep_profiles.PROFILE_FIELDS:
+            per_ion = field in sweep_profiles.PER_ION
+            extra = (sweep_profiles.ION, sweep_profiles.POSITION) if per_ion else (sweep_profiles.POSITION,)
+            sizes = (len(self.ions), points) if per_ion else (points,)
+            var = f.create_variable(sweep_profiles.variable_name(field), (*dims, *extra), float, fillvalue=np.nan,
+                                    chunks=(*chunks, *sizes))
+            var.attrs["units"] = sweep_profiles.unit(field)
+            var.attrs["long_name"] = sweep_profiles.long_name(field, self.capillary)
 
     def write(self, part: dict[str, Any]) -> None:
         rows = part["rows"]
@@ -452,7 +492,7 @@ class _Store:
                 lead = self._lead(row)
                 self.status[lead] = part["status"][r]
                 self.message[lead] = part["message"][r]
-                for key in self.layout:
+                for key in (*self.layout, *self.profile_names):
                     self.values[key][lead] = part[key][r]
             return
         # Rows that follow each other along the last leading axis form one block: one write per variable
@@ -491,6 +531,8 @@ class _Store:
             dataset = self._dataset(key)
             block = part[key][pick]
             dataset[where] = block if dataset.ndim > len(self.shape) else block[..., 0]
+        for key in self.profile_names:
+            self._dataset(key)[where] = part[key][pick]
         self._dataset("message")[where] = np.array(part["message"][pick], dtype=object)
 
     def finish(self) -> Any:
@@ -507,7 +549,7 @@ class _Store:
             os.replace(self.partial, self.path)
         else:
             status, message, attrs = self.status, self.message.astype(str), {"title": "edl_solver sweep"}
-            values = {key: value if key in PAIR_KEYS and self.pair else value[..., 0]
+            values = {key: value if (key in PAIR_KEYS and self.pair) or key in self.profile_names else value[..., 0]
                       for key, value in self.values.items()}
         dims = tuple(axis.name for axis in self.axes)
         coords: dict[str, Any] = {}
@@ -524,13 +566,28 @@ class _Store:
         for key, (unit, text) in self.layout.items():
             key_dims = (*dims, "wall") if key in PAIR_KEYS and self.pair else dims
             data[key] = (key_dims, values[key], {"units": unit, "long_name": text})
+        if self.profile_points:
+            self._profile_data(dims, values, coords, data)
         return xr.Dataset(data, coords=coords, attrs=attrs)
+
+    def _profile_data(self, dims: tuple[str, ...], values: dict[str, np.ndarray], coords: dict[str, Any],
+                      data: dict[str, Any]) -> None:
+        """The profile variables and their coordinates, as the file holds them."""
+        position, ion = sweep_profiles.POSITION, sweep_profiles.ION
+        coords[position] = ((position,), sweep_profiles.positions(self.profile_points),
+                            {"units": "1", "long_name": sweep_profiles.position_name(self.capillary)})
+        coords[ion] = ((ion,), np.array(self.ions))
+        for field in sweep_profiles.PROFILE_FIELDS:
+            name = sweep_profiles.variable_name(field)
+            extra = (ion, position) if field in sweep_profiles.PER_ION else (position,)
+            data[name] = ((*dims, *extra), values[name], {"units": sweep_profiles.unit(field),
+                                                          "long_name": sweep_profiles.long_name(field, self.capillary)})
 
     def _read_back(self) -> tuple[np.ndarray, np.ndarray, dict[str, np.ndarray], dict[str, Any]]:
         """Status, messages, values and global attributes from the file, through h5py (reading it through
         xarray costs ~5 ms per variable in metadata alone)."""
         h5 = self.h5
-        values = {key: h5[key][...] for key in self.layout}
+        values = {key: h5[key][...] for key in (*self.layout, *self.profile_names)}
         message = h5["message"].asstr()[...].astype(str)
         attrs = {name: h5.attrs[name] for name in ("title", "sweep_json", "schema_version", "edl_solver_version")}
         return h5["status"][...], message, values, attrs
@@ -558,7 +615,8 @@ PAIR_KEYS = ("zeta", "wall_charge_density", "hs_velocity", "thin_layer_zeta", "s
 
 def sweep(base: Case, axes: Mapping[str, Any], *, zipped: Sequence[Sequence[str]] = (),
           path: str | os.PathLike[str] | None = None, resume: bool = False, workers: int = 1,
-          dask: Any = None, rows_per_task: int | None = None, progress: bool | None = None) -> Any:
+          dask: Any = None, rows_per_task: int | None = None, progress: bool | None = None,
+          profiles: bool | int | None = None) -> Any:
     """Solve every case of a design space and return the summaries as an ``xarray.Dataset``.
 
     Parameters
@@ -586,6 +644,10 @@ def sweep(base: Case, axes: Mapping[str, Any], *, zipped: Sequence[Sequence[str]
         solved one by one (no compiled batch).
     progress : bool, optional
         Show a progress bar (tqdm); by default only when attached to a terminal.
+    profiles : bool or int, optional
+        Also store every case's profiles across the section, at this many positions evenly spaced in y/H
+        (slit) or r/a (capillary), ``True`` for 101 (``sweep_profiles``). They are large, and the cases are
+        then solved one by one through ``edl_solver.solve`` (about 3 times slower than the compiled batch).
 
     Returns
     -------
@@ -594,7 +656,9 @@ def sweep(base: Case, axes: Mapping[str, Any], *, zipped: Sequence[Sequence[str]
         ``long_name`` (pair values on an extra ``wall`` dimension when the walls differ); ``status``
         (0 converged, 1 failed) and ``message`` per case. With a ``path``, the file as xarray reads it:
         loaded into memory when its values take up to ``LOAD_LIMIT_BYTES`` (256 MiB, about 500,000
-        cases), else opened lazily (values read from the file on access; close it when done).
+        cases), else opened lazily (values read from the file on access; close it when done). With
+        profiles, ``profile_<field>`` variables on an extra ``position`` dimension (and ``ion`` for the
+        concentrations).
     """
     from edl_solver.io import case_to_dict
 
@@ -606,18 +670,22 @@ def sweep(base: Case, axes: Mapping[str, Any], *, zipped: Sequence[Sequence[str]
     base_table = case_to_dict(base)
     pair = isinstance(base.wall, tuple) or any(p.startswith(("wall.bottom", "wall.top"))
                                                for axis in sweep_axes for p in axis.paths)
+    profile_points = sweep_profiles.check_points(profiles)
     spec = {"base": base_table, "axes": [[a.name, list(a.paths), [list(v) for v in a.values]] for a in sweep_axes]}
+    if profile_points:
+        spec["profile_points"] = profile_points
     out_path = Path(path) if path is not None else None
-    store = _Store(spec, sweep_axes, isinstance(base.geometry, Capillary), pair, out_path, resume)
+    store = _Store(spec, sweep_axes, isinstance(base.geometry, Capillary), pair, out_path, resume,
+                   ions=[ion.name for ion in base.electrolyte.ions], profile_points=profile_points)
     try:
         plan = make_plan(base_table, sweep_axes)
         todo = _rows_todo(store.status)
         last = sweep_axes[-1].size
-        per_task = rows_per_task or max(1, _cases_per_task(plan, workers, dask) // last)
+        per_task = rows_per_task or max(1, _cases_per_task(None if profile_points else plan, workers, dask) // last)
         tasks = [todo[i:i + per_task] for i in range(0, len(todo), per_task)]
         total = len(todo) * last
         with _progress_bar(total, progress) as bar, _interruptible():
-            for part in _run(tasks, base_table, sweep_axes, plan, workers, dask):
+            for part in _run(tasks, (base_table, sweep_axes, plan, profile_points), workers, dask):
                 store.write(part)
                 bar.update(len(part["rows"]) * last)
                 _stop_if_asked()
@@ -670,21 +738,22 @@ def _stop_if_asked() -> None:
         raise KeyboardInterrupt
 
 
-def _run(tasks: list[list[int]], base_table: dict[str, Any], axes: Sequence[Axis], plan: SweepPlan | None,
-         workers: int, dask: Any) -> Iterable[dict[str, Any]]:
-    """Yield each task's results as it completes (in this process, local processes, or Dask)."""
+def _run(tasks: list[list[int]], job: tuple[Any, ...], workers: int, dask: Any) -> Iterable[dict[str, Any]]:
+    """Yield each task's results as it completes (in this process, local processes, or Dask); ``job`` holds
+    the arguments of ``solve_rows`` other than the rows: base table, axes, plan, profile points."""
+    base_table, axes, plan, profile_points = job
     if dask is not None:
-        yield from _run_dask(tasks, base_table, axes, plan, dask)
+        yield from _run_dask(tasks, job, dask)
     elif workers == 1:
         for rows in tasks:
-            yield solve_rows(base_table, axes, rows, plan)
+            yield solve_rows(base_table, axes, rows, plan, profile_points)
     else:
         import concurrent.futures as cf
         import multiprocessing
 
         context = multiprocessing.get_context("spawn")
         with cf.ProcessPoolExecutor(workers, mp_context=context, initializer=_one_thread) as pool:
-            futures = [pool.submit(solve_rows, base_table, axes, rows, plan) for rows in tasks]
+            futures = [pool.submit(solve_rows, base_table, axes, rows, plan, profile_points) for rows in tasks]
             try:
                 for future in cf.as_completed(futures):
                     yield future.result()
@@ -703,13 +772,14 @@ def _one_thread() -> None:
     numba.set_num_threads(1)
 
 
-def _run_dask(tasks: list[list[int]], base_table: dict[str, Any], axes: Sequence[Axis], plan: SweepPlan | None,
-              dask: Any) -> Iterable[dict[str, Any]]:
+def _run_dask(tasks: list[list[int]], job: tuple[Any, ...], dask: Any) -> Iterable[dict[str, Any]]:
     from distributed import Client, as_completed
 
     client = dask if isinstance(dask, Client) else Client(dask)
     try:
-        futures = [client.submit(solve_rows, base_table, axes, rows, plan, pure=False) for rows in tasks]
+        base_table, axes, plan, profile_points = job
+        futures = [client.submit(solve_rows, base_table, axes, rows, plan, profile_points, pure=False)
+                   for rows in tasks]
         for future in as_completed(futures):
             yield future.result()
     finally:

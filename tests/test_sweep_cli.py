@@ -156,7 +156,7 @@ BAD_SWEEPS = {
                                ["sweep.zip[0]", "'feild'", "the axes are wall.zeta"]),
     "unknown key in [sweep]": ('[sweep]\nzipped = [["wall.zeta", "field"]]\n' + AXES,
                                ["'sweep.zipped'", "did you mean 'sweep.zip'"]),
-    "profiles asked for": ("[sweep]\noutput_profiles = true\n" + AXES, ["sweep.output_profiles", "not supported"]),
+    "one profile position": ("[sweep]\noutput_profiles = 1\n" + AXES, ["sweep.output_profiles", "at least 2"]),
     "no [sweep]": ("", ["missing section [sweep]"]),
     "misspelt [sweep]": ('[sweeps.axes]\n"wall.zeta" = ["-20 mV"]\n', ["'sweeps'", "did you mean 'sweep'"]),
     "no axes": ("[sweep]\noutput_profiles = false\n", ["sweep.axes", "missing"]),
