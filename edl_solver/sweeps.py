@@ -439,7 +439,7 @@ class _Store:
         extra = [path for axis in self.axes for path in axis.paths[1:]]
         if extra:
             f.attrs["coordinates"] = " ".join(extra)
-        chunks = (*((1,) * (len(dims) - 1)), self.shape[-1])
+        chunks = _chunks(self.shape, 1024 if self.profile_points else CHUNK_CASES)
         # No _FillValue: xarray would mask -1 and open status as float; every entry is written below.
         status = f.create_variable("status", dims, np.int8, chunks=chunks)
         status[...] = np.full(self.shape, PENDING, dtype=np.int8)
@@ -596,6 +596,22 @@ class _Store:
         if self.file is not None:
             self.file.close()
             self.h5.close()
+
+
+#: Cases per chunk of a variable in a sweep file (HDF5 stores and compresses variables chunk by chunk;
+#: ~8 kB chunks of floats, as HDF5 advises 10 kB-1 MB, and whole lines along the last axes).
+CHUNK_CASES = 1024
+
+
+def _chunks(shape: tuple[int, ...], cases: int) -> tuple[int, ...]:
+    """Chunk shape: whole lines along the trailing axes, about ``cases`` cases per chunk."""
+    chunks = []
+    room = cases
+    for size in reversed(shape):
+        take = max(1, min(size, room))
+        chunks.append(take)
+        room = max(1, room // take)
+    return tuple(reversed(chunks))
 
 
 #: A sweep streamed to a file returns its Dataset loaded into memory up to this size of its values, and
