@@ -598,16 +598,17 @@ class _Store:
             self.h5.close()
 
 
-#: Cases per chunk of a variable in a sweep file (HDF5 stores and compresses variables chunk by chunk;
-#: ~8 kB chunks of floats, as HDF5 advises 10 kB-1 MB, and whole lines along the last axes).
+#: Cases per chunk of a variable in a sweep file (HDF5 stores variables chunk by chunk: ~8 kB chunks of
+#: floats; common practice is 10 kB-1 MB), in whole rows.
 CHUNK_CASES = 1024
 
 
 def _chunks(shape: tuple[int, ...], cases: int) -> tuple[int, ...]:
-    """Chunk shape: whole lines along the trailing axes, about ``cases`` cases per chunk."""
-    chunks = []
-    room = cases
-    for size in reversed(shape):
+    """Chunk shape: whole rows (lines along the last axis, the unit of work), as many as make about
+    ``cases`` cases."""
+    chunks = [shape[-1]]
+    room = max(1, cases // shape[-1])
+    for size in reversed(shape[:-1]):
         take = max(1, min(size, room))
         chunks.append(take)
         room = max(1, room // take)
