@@ -193,12 +193,12 @@ class Channel:
 
 def _cases_at(case: Case, concentrations: np.ndarray) -> list[Case]:
     """The case at each salt concentration, built exactly as the sweep path "electrolyte.concentration"."""
-    from edl_solver import sweeps
+    from edl_solver import sweep_axes
     from edl_solver.io import case_to_dict
 
-    axes = sweeps.make_axes({"electrolyte.concentration": [float(c) for c in concentrations]})
+    axes = sweep_axes.make_axes({"electrolyte.concentration": [float(c) for c in concentrations]})
     table = case_to_dict(case)
-    return [sweeps.case_at(table, axes, (i,)) for i in range(len(concentrations))]
+    return [sweep_axes.case_at(table, axes, (i,)) for i in range(len(concentrations))]
 
 
 def _solve_all(case: Case, concentrations: np.ndarray) -> tuple[np.ndarray, np.ndarray, tuple[str, ...]]:

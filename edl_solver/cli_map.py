@@ -90,7 +90,7 @@ def parse_axis(text: str, flag: str) -> tuple[str, list[float]]:
     import numpy as np
 
     from edl_solver.errors import InputError
-    from edl_solver.sweeps import PATH_UNITS
+    from edl_solver.sweep_axes import PATH_UNITS
     from edl_solver.units import to_si
     from edl_solver.validity_map import PSEUDO_AXES
 

@@ -201,12 +201,12 @@ def cases_at(case: Case, concentrations: Sequence[float]) -> list[Case]:
     InputError
         If the electrolyte cannot be scaled (H+ or OH- among the ions) or a case is invalid.
     """
-    from edl_solver import sweeps
+    from edl_solver import sweep_axes
     from edl_solver.io import case_to_dict
 
-    axes = sweeps.make_axes({"electrolyte.concentration": list(concentrations)})
+    axes = sweep_axes.make_axes({"electrolyte.concentration": list(concentrations)})
     table = case_to_dict(case)
-    return [sweeps.case_at(table, axes, (i,)) for i in range(len(concentrations))]
+    return [sweep_axes.case_at(table, axes, (i,)) for i in range(len(concentrations))]
 
 
 def conductance_units(capillary: bool, per_length: bool) -> str:

@@ -1,6 +1,6 @@
 """Packed case vectors for a whole sweep, assembled from its axes without building a Case per point.
 
-Each value of each axis is applied to the base case alone (through ``sweeps.case_at``, exactly as a single
+Each value of each axis is applied to the base case alone (through ``sweep_axes.case_at``, exactly as a single
 point is built) and packed (``packing.case_vector``); the columns of the packed vector an axis changes are
 its own. When no two axes change the same column, the vector of any point is the base's with every axis's
 columns taken from its value at the point's index. The symmetry flag of a slit depends on both walls, which
@@ -77,7 +77,7 @@ class SweepPlan:
 
 def _vector_at(base_table: Mapping[str, Any], axes: Sequence[Any], index: Sequence[int]) -> np.ndarray | None:
     """The packed vector of one point built in full, or None when it is not a valid case."""
-    from edl_solver.sweeps import case_at
+    from edl_solver.sweep_axes import case_at
 
     try:
         return packing.case_vector(case_at(base_table, axes, index))

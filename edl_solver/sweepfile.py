@@ -36,7 +36,7 @@ Axes vary together along one dimension (named after the first of them) when they
 
 Rules:
 
-- An axis key is the dotted address of a case input (``edl_solver.sweeps.PATH_UNITS``: "geometry.height",
+- An axis key is the dotted address of a case input (``edl_solver.sweep_axes.PATH_UNITS``: "geometry.height",
   "wall.zeta", "wall.top.charge_density", "solvent.temperature", "field", "model", ...) plus
   "electrolyte.concentration", which scales every ion so that the first ion's concentration is the value.
   Quote the key (``"wall.zeta" = ...``); the unquoted TOML form (``wall.zeta = ...``) means the same.
@@ -63,8 +63,8 @@ from typing import Any
 
 from edl_solver.case import Case
 from edl_solver.errors import InputError
+from edl_solver.sweep_axes import check_conflicts
 from edl_solver.sweep_profiles import check_points
-from edl_solver.sweeps import check_conflicts
 
 __all__ = ["SWEEP_KEYS", "SweepSpec", "load_sweep", "sweep_from_mapping"]
 
@@ -219,7 +219,7 @@ def _key(path: str, *more: str) -> str:
 
 def _sweepable() -> tuple[tuple[str, ...], tuple[str, ...]]:
     """(every sweepable path, the paths whose values are words)."""
-    from edl_solver.sweeps import PATH_UNITS, WORD_PATHS
+    from edl_solver.sweep_axes import PATH_UNITS, WORD_PATHS
 
     return (*PATH_UNITS, *WORD_PATHS), tuple(WORD_PATHS)
 
@@ -284,7 +284,7 @@ def _axis_values(path: str, spec: Any) -> list[Any]:
 
 def _numbers(path: str, items: list[Any], key: str) -> list[float]:
     """Numbers or strings with units -> SI floats; one axis uses one of the two forms throughout."""
-    from edl_solver.sweeps import PATH_UNITS
+    from edl_solver.sweep_axes import PATH_UNITS
     from edl_solver.units import to_si
 
     unit = PATH_UNITS[path]
@@ -398,7 +398,7 @@ def _check_cases(case: Case, axes: Mapping[str, list[Any]], raw: Mapping[str, An
     For a range only its bounds are built: the checks are intervals, which hold between the bounds.
     """
     from edl_solver.io import case_to_dict
-    from edl_solver.sweeps import case_at, make_axes
+    from edl_solver.sweep_axes import case_at, make_axes
 
     sweep_axes = make_axes(axes, zipped)
     table = case_to_dict(case)

@@ -127,7 +127,7 @@ def _axis_spec(axis: object, field: str) -> tuple[str, Any]:
 
 def _resolve(base: Case, name: object, values: Any, field: str) -> _MapAxis:
     """Check an axis and translate a pseudo-axis into the case input it sets."""
-    from edl_solver.sweeps import WORD_PATHS, make_axes
+    from edl_solver.sweep_axes import WORD_PATHS, make_axes
     from edl_solver.units import to_si
 
     if not isinstance(name, str):
@@ -337,7 +337,7 @@ def _boundary_along(x: _MapAxis, y: _MapAxis) -> _MapAxis:
 
 
 def _path_units(path: str) -> str:
-    from edl_solver.sweeps import PATH_UNITS
+    from edl_solver.sweep_axes import PATH_UNITS
 
     return PATH_UNITS.get(path, "1")
 
@@ -390,7 +390,7 @@ def _thin_layer_currents(base: Case, x: _MapAxis, y: _MapAxis) -> np.ndarray:
     against a direct evaluation; should an input ever break the product form, every case is built.
     """
     from edl_solver.io import case_to_dict
-    from edl_solver.sweeps import case_at, make_axes
+    from edl_solver.sweep_axes import case_at, make_axes
 
     table = case_to_dict(base)
     plane = make_axes({y.path: list(y.inputs), x.path: list(x.inputs)})
@@ -423,7 +423,7 @@ def _write(data: Any, target: Path) -> None:
 
 
 def _case_at(table: Mapping[str, Any], path: str, value: float) -> Case:
-    from edl_solver.sweeps import case_at, make_axes
+    from edl_solver.sweep_axes import case_at, make_axes
 
     return case_at(table, make_axes({path: [value]}), (0,))
 
@@ -530,7 +530,7 @@ def _probe(base: Case, axis: str) -> float:
 
 
 def _bracket(base: Case, axis: str, bracket: object) -> tuple[float, float]:
-    from edl_solver.sweeps import PATH_UNITS
+    from edl_solver.sweep_axes import PATH_UNITS
     from edl_solver.units import to_si
 
     if bracket is None:
