@@ -1,9 +1,11 @@
 """The axes of a sweep: which case inputs can be swept, their units, and the case at a point.
 
 An axis is a dotted path of a case input (the keys of a TOML case file, ``casefile.CASE_KEYS``: e.g.
-"geometry.height", "wall.zeta", "wall.top.charge_density", "solvent.temperature", "field") plus the
-special path "electrolyte.concentration", which scales every ion's bulk concentration so that the first
-ion's equals the value (the salt concentration for a single salt listed cation first). The cases are the
+"geometry.height", "wall.zeta", "wall.top.charge_density", "solvent.temperature", "field") plus two
+special paths: "electrolyte.concentration" scales every ion's bulk concentration so that the first ion's
+equals the value (the salt concentration for a single salt listed cation first), and "electrolyte.valence"
+gives every ion that valence with its own sign (a z:z salt of equal concentrations stays neutral; the
+ions keep their names and diffusivities, as model ions of another valence). The cases are the
 cartesian product of the axes in the given order; axes can also be zipped (varied together along one
 dimension, named after the first of them).
 """
@@ -20,7 +22,7 @@ from edl_solver.case import Case
 from edl_solver.errors import InputError
 
 #: Paths that are not keys of a case file but are understood by sweeps.
-SPECIAL_PATHS = ("electrolyte.concentration",)
+SPECIAL_PATHS = ("electrolyte.concentration", "electrolyte.valence")
 
 _WALL_UNITS = {"zeta": "V", "charge_density": "C/m^2", "slip_length": "m", "stern_capacitance": "F/m^2",
                "gate_voltage": "V", "gate_capacitance": "F/m^2"}
@@ -31,7 +33,7 @@ _SITE_UNITS = {"pK": "dimensionless", "density": "1/m^2"}
 #: "wall.site[0].pK" (first kind of site; "wall.top.site[0].density" and so on).
 PATH_UNITS = {
     "geometry.height": "m", "geometry.radius": "m",
-    "electrolyte.concentration": "mol/m^3", "electrolyte.pH": "dimensionless",
+    "electrolyte.concentration": "mol/m^3", "electrolyte.pH": "dimensionless", "electrolyte.valence": "dimensionless",
     **{f"wall.{key}": unit for key, unit in _WALL_UNITS.items()},
     **{f"wall.{side}.{key}": unit for side in ("bottom", "top") for key, unit in _WALL_UNITS.items()},
     **{f"wall.site[{j}].{key}": unit for j in range(4) for key, unit in _SITE_UNITS.items()},
@@ -178,7 +180,7 @@ def _set_wall(wall: dict[str, Any], key: str, value: Any) -> None:
 def _set_path(table: dict[str, Any], path: str, value: Any) -> None:
     """Set one input in the plain-dict form of a case (``io.case_to_dict``)."""
     electrolyte = table["electrolyte"]
-    if path in ("electrolyte.concentration", "electrolyte.pH") and any(
+    if path in ("electrolyte.concentration", "electrolyte.pH", "electrolyte.valence") and any(
             ion["name"] in ("H+", "OH-") for ion in electrolyte["ions"]):
         raise InputError(f"axes: {path!r} cannot be swept when H+ or OH- are among the ions, expected the pH given "
                          "on its own (Electrolyte(..., pH=...) without water_ions)")
@@ -187,6 +189,13 @@ def _set_path(table: dict[str, Any], path: str, value: Any) -> None:
         factor = value / ions[0]["concentration"]
         for ion in ions:
             ion["concentration"] *= factor
+        return
+    if path == "electrolyte.valence":
+        if not (value >= 1 and value == int(value)):
+            raise InputError(f"axes: electrolyte.valence {value:g} is not a valence, expected a whole number of at "
+                             "least 1 (every ion takes it, with its own sign)")
+        for ion in electrolyte["ions"]:
+            ion["valence"] = int(value) if ion["valence"] > 0 else -int(value)
         return
     if path.startswith("wall."):
         rest = path[len("wall."):]

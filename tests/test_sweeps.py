@@ -301,3 +301,21 @@ def test_file_chunks_hold_whole_lines_of_about_a_thousand_cases(tmp_path: Path) 
     edl.sweep(SLIT, {"geometry.height": ["10 nm", "20 nm", "30 nm"], "wall.zeta": ["-20 mV", "-40 mV"]}, path=path)
     with h5py.File(path, "r") as handle:
         assert handle["flow_rate_eo"].chunks == (3, 2)
+
+
+def test_valence_axis_gives_z_z_salts_that_follow_grahame() -> None:
+    # Symmetric z:z electrolyte at a wide wall: sigma = sqrt(8 eps kT N_A c) sinh(z e zeta / 2 kT) (Grahame 1947,
+    # Chem. Rev. 41, 441) and lambda_D proportional to 1/z; constants from scipy.constants (CODATA).
+    from scipy import constants as sc
+
+    base = edl.Case(geometry=edl.Slit(height="2 um"), electrolyte=KCL, wall=edl.Wall(zeta="-50 mV"),
+                    solvent=edl.Solvent(temperature=298.15, relative_permittivity=78.4, viscosity=0.89e-3))
+    ds = edl.sweep(base, {"electrolyte.valence": [1, 2, 3, 1.5]})
+    np.testing.assert_array_equal(ds["status"].values, [0, 0, 0, 1])
+    assert "whole number" in str(ds["message"].values[3])
+    kt = sc.k * 298.15
+    eps = 78.4 * 8.8541878188e-12  # the vacuum permittivity of CODATA 2022, as edl_solver uses it
+    for i, z in enumerate([1, 2, 3]):
+        expected = np.sqrt(8 * eps * kt * sc.N_A * 1.0) * np.sinh(z * sc.e * -0.050 / (2 * kt))
+        assert float(ds["wall_charge_density"][i]) == pytest.approx(expected, rel=1e-6)
+        assert float(ds["debye_length"][i]) == pytest.approx(float(ds["debye_length"][0]) / z, rel=1e-13)
