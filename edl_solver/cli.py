@@ -101,6 +101,7 @@ to vary, one dimension per axis, in the file's order:
   "electrolyte.concentration" = ["0.1 mM", "1 mM", "10 mM"]
 
 'zip = [["a", "b"]]' in [sweep] varies axes a and b together (see edl_solver.sweepfile).
+'output_profiles = 101' in [sweep] also stores every case's profiles at 101 positions across the section.
 Results stream to OUT.h5.partial, renamed OUT.h5 when complete; an interrupted sweep keeps what it
 finished, and --resume finishes it. Cases that fail are kept with status 1 and a message.
 Open the result with xarray.open_dataset("OUT.h5", engine="h5netcdf").
