@@ -58,13 +58,11 @@ def variable_name(field: str) -> str:
 
 
 def position_name(capillary: bool) -> str:
-    return ("position across the capillary, r/a (0 axis, 1 wall)" if capillary
-            else "position across the slit, y/H (0 bottom wall, 1 top wall)")
+    return "r/a (0 axis, 1 wall)" if capillary else "y/H (0 bottom wall, 1 top wall)"
 
 
-def long_name(field: str, capillary: bool) -> str:
-    where = "r/a" if capillary else "y/H"
-    return f"{PROFILE_FIELDS[field]} across the section, at the positions {where}"
+def long_name(field: str) -> str:
+    return PROFILE_FIELDS[field]
 
 
 def unit(field: str) -> str:

@@ -174,7 +174,7 @@ class SweepStore:
             var = f.create_variable(sweep_profiles.variable_name(field), (*dims, *extra), float, fillvalue=np.nan,
                                     chunks=(*chunks, *sizes))
             var.attrs["units"] = sweep_profiles.unit(field)
-            var.attrs["long_name"] = sweep_profiles.long_name(field, self.capillary)
+            var.attrs["long_name"] = sweep_profiles.long_name(field)
 
     def write(self, part: dict[str, Any]) -> None:
         rows = part["rows"]
@@ -272,7 +272,7 @@ class SweepStore:
             name = sweep_profiles.variable_name(field)
             extra = (ion, position) if field in sweep_profiles.PER_ION else (position,)
             data[name] = ((*dims, *extra), values[name], {"units": sweep_profiles.unit(field),
-                                                          "long_name": sweep_profiles.long_name(field, self.capillary)})
+                                                          "long_name": sweep_profiles.long_name(field)})
 
     def _read_back(self) -> tuple[np.ndarray, np.ndarray, dict[str, np.ndarray], dict[str, Any]]:
         """Status, messages, values and global attributes from the file, through h5py (reading it through
