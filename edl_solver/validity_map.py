@@ -315,6 +315,8 @@ def validity_map(base: Case, x_axis: tuple[str, Any], y_axis: tuple[str, Any], *
     target = checked_output_path(path) if path is not None else None
     raw = target.with_name(target.name + ".sweep") if target is not None else None
     data = sweep(base, {y.path: list(y.inputs), x.path: list(x.inputs)}, path=raw, **sweep_options)
+    if raw is not None:  # a very large sweep comes back lazily from its file, which is removed below
+        data.load().close()
     data = _map_dataset(data, base, x, y, levels)
     if overlay is not None:
         along, other = (x, y) if _boundary_along(x, y) is x else (y, x)
