@@ -110,12 +110,23 @@ class Prepared:
 
 
 def prepare(case: Case) -> Prepared:
-    """The dimensionless kernel inputs, scales and isolated walls of ``case`` (``_prepare.section_inputs``)."""
+    """The dimensionless kernel inputs, scales and isolated walls of ``case`` (``_prepare.section_inputs``).
+
+    Raises
+    ------
+    ConvergenceError
+        If the isolated wall has no solution (its root is not bracketed).
+    """
     vector = packing.case_vector(case)
     (metric, half, kappa2, ions, model, rows, flows, visco, guess, counter, sc,
      iso) = _prepare.section_inputs(vector)
     problem = SectionProblem(metric=metric, half=half, kappa2=kappa2, ions=ions, model=model, walls=rows,
                              flow_walls=flows, visco=visco, wall_potential_guess=guess, counter_valence=counter)
+    if not np.isfinite(iso).all():  # never seen: the wall and layer charges always cross (walls.py)
+        from edl_solver.errors import ConvergenceError
+
+        raise ConvergenceError(f"{case.describe()}: no potential balances the charge of a wall alone in the bulk "
+                               "(the thin-layer picture and the start of the solve); not solved")
     units = Scales(*sc.tolist())
     isolated = ((float(iso[0, 0]), float(iso[0, 1])), (float(iso[1, 0]), float(iso[1, 1])))
     return Prepared(vector, problem, units, isolated, sc, iso)
