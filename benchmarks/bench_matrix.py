@@ -13,23 +13,11 @@ the cost of the matrix relative to the same solve without it (target <= 1.5).
 
 from __future__ import annotations
 
-import statistics
-import time
-
 import numpy as np
+from bench_models import timed  # the same median-of-5 timer (this folder is on sys.path when run as a script)
 
 import edl_solver as edl
 from edl_solver import _kernels, _summary, equilibrium, scaling
-
-
-def timed(function, repeats: int = 300) -> float:
-    samples = []
-    for _ in range(5):
-        start = time.perf_counter()
-        for _ in range(repeats):
-            function()
-        samples.append((time.perf_counter() - start) / repeats)
-    return statistics.median(samples) * 1e6
 
 
 def main() -> None:
@@ -42,12 +30,13 @@ def main() -> None:
             electrolyte=edl.Electrolyte.from_ions({"Ca2+": "1 mM", "Cl-": "2 mM"})),
     }.items():
         edl.solve(case)
-        full = timed(lambda c=case: edl.solve(c))
+        full = timed(lambda c=case: edl.solve(c), 300)
         prepared = scaling.prepare(case)
         problem = prepared.problem
         section = equilibrium.solve_section(problem, case.numerics.accuracy)
         values = np.empty(_summary.SUMMARY_SIZE)
-        arguments = (prepared.vector, prepared.scale_vector, prepared.isolated_array, section.integrals,
+        slip = _summary.thin_slip(prepared.vector, prepared.isolated_array)
+        arguments = (prepared.vector, prepared.scale_vector, prepared.isolated_array, slip, section.integrals,
                      problem.kappa2, 0.0, 0.0, values)
         python = timed(lambda a=arguments: _summary.summarize(*a), 3000)
         # kernel part: one Stokes solve per ion on each level (levels have n, n/2, n/4, n/8 intervals)

@@ -2,7 +2,7 @@
 
 Each case goes through exactly the compiled steps of a single solve (``solver.solve``): its kernel inputs
 (``_prepare.section_inputs``), the nested-grid solve from the Gouy-Chapman guess
-(``_adaptive.solve_adaptive``), the outer-region deviation and the summary (``_summary``), so a batch's
+(``_adaptive.solve_adaptive``) and the summary (``_summary.summarize_solution``), so a batch's
 values equal single solves bit for bit. What a single solve adds on failure, continuation in the wall values
 and a message naming the case, is left to the caller: a case that is not CONVERGED here is solved again
 one by one.
@@ -16,7 +16,7 @@ from numba import njit, prange
 from edl_solver import _adaptive
 from edl_solver._kernels import response_offsets
 from edl_solver._prepare import section_inputs
-from edl_solver._summary import IDENTITY_TOLERANCE, SLOTS, outer_deviation, summarize, thin_slip
+from edl_solver._summary import identities_hold, summarize_solution
 from edl_solver.packing import P_ACCURACY, P_INTERVALS, P_MAX_INTERVALS, P_MAX_ITERATIONS
 
 # status codes of a case (the first three as _adaptive's)
@@ -24,9 +24,6 @@ CONVERGED = _adaptive.CONVERGED
 NEWTON_FAILED = _adaptive.NEWTON_FAILED
 ACCURACY_MISSED = _adaptive.ACCURACY_MISSED
 IDENTITY_FAILED = 3
-
-_SLOT_BALANCE = SLOTS["charge_balance"]
-_SLOT_RECIPROCITY = SLOTS["reciprocity_residual"]
 
 
 @njit(cache=True)
@@ -40,13 +37,8 @@ def solve_one(p, out):
         int(p[P_INTERVALS]), int(p[P_MAX_INTERVALS]), int(p[P_MAX_ITERATIONS]), np.empty(0), integrals)
     if status != CONVERGED:
         return status, iterations
-    slip = thin_slip(p, iso)
-    deviation = outer_deviation(s, beta, u_eo, p, sc, slip)
-    summarize(p, sc, iso, integrals, kappa2, deviation, estimate, out)
-    worst = max(out[_SLOT_BALANCE], out[_SLOT_RECIPROCITY])
-    if not worst <= IDENTITY_TOLERANCE:
-        return IDENTITY_FAILED, iterations
-    return CONVERGED, iterations
+    summarize_solution(p, sc, iso, integrals, kappa2, s, beta, u_eo, estimate, out)
+    return (CONVERGED if identities_hold(out) else IDENTITY_FAILED), iterations
 
 
 @njit(cache=True, parallel=True)

@@ -11,7 +11,7 @@ import numpy as np
 from numba import njit
 
 from edl_solver._kernels import FLUX, POTENTIAL, ROBIN, STERIC, W_TYPE, W_VALUE, WALL_SIZE
-from edl_solver._walls import dimensionless_wall, isolated_wall
+from edl_solver._walls import dimensionless_wall, isolated_wall, twice_ionic_strength
 from edl_solver.constants import AVOGADRO, BOLTZMANN, ELEMENTARY_CHARGE
 from edl_solver.packing import (
     ION_SIZE,
@@ -62,15 +62,12 @@ def scales(p):
     vt = BOLTZMANN * p[P_TEMPERATURE] / ELEMENTARY_CHARGE
     length = p[P_LENGTH]
     eps = p[P_PERMITTIVITY]
-    ions = ion_block(p)
-    strength = 0.0  # sum z^2 c = twice the ionic strength
-    for i in range(ions.shape[0]):
-        strength += ions[i, 0] ** 2 * ions[i, 1]
+    twice_strength = twice_ionic_strength(ion_block(p))
     out[S_THERMAL_VOLTAGE] = vt
     out[S_LENGTH] = length
-    out[S_DEBYE_LENGTH] = np.sqrt(eps * vt / (ELEMENTARY_CHARGE * AVOGADRO * strength))
+    out[S_DEBYE_LENGTH] = np.sqrt(eps * vt / (ELEMENTARY_CHARGE * AVOGADRO * twice_strength))
     out[S_CHARGE_DENSITY] = eps * vt / length
-    out[S_VOLUME_CHARGE] = ELEMENTARY_CHARGE * AVOGADRO * strength
+    out[S_VOLUME_CHARGE] = ELEMENTARY_CHARGE * AVOGADRO * twice_strength
     out[S_EO_VELOCITY] = eps * vt / p[P_VISCOSITY]
     out[S_PRESSURE_VELOCITY] = length**2 / p[P_VISCOSITY]
     if p[P_CAPILLARY] != 0.0:
@@ -125,14 +122,12 @@ def section_inputs(p):
     iso = isolated_walls(p, sc)
     block = ion_block(p)
     n = block.shape[0]
-    strength = 0.0
-    for i in range(n):
-        strength += block[i, 0] ** 2 * block[i, 1]
+    twice_strength = twice_ionic_strength(block)
     model = int(p[P_MODEL])
     ions = np.empty((n, 3))
     for i in range(n):
         ions[i, 0] = block[i, 0]
-        ions[i, 1] = block[i, 0] * block[i, 1] / strength
+        ions[i, 1] = block[i, 0] * block[i, 1] / twice_strength
         ions[i, 2] = block[i, 1] * AVOGADRO * p[P_DIAMETER] ** 3 if model == STERIC else 0.0
     vt, length = sc[S_THERMAL_VOLTAGE], sc[S_LENGTH]
     half = p[P_SYMMETRIC] != 0.0

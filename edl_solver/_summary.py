@@ -419,10 +419,26 @@ def _set_pair(out, at, bottom, top, symmetric):
 
 
 @njit(cache=True, error_model="numpy")
-def summarize(p, sc, iso, integrals, kappa2, deviation, estimate, out):
+def summarize_solution(p, sc, iso, integrals, kappa2, s, beta, u_eo, estimate, out):
+    """``summarize`` a solved section, with the outer-region deviation of its finest EO profile ``u_eo`` (on
+    the computational nodes ``s`` of the tanh map with stretching ``beta``); the step a single solve and a
+    batch share. Returns the ion-resolved and the reduced response matrices."""
+    slip = thin_slip(p, iso)
+    deviation = outer_deviation(s, beta, u_eo, p, sc, slip)
+    return summarize(p, sc, iso, slip, integrals, kappa2, deviation, estimate, out)
+
+
+@njit(cache=True, error_model="numpy")
+def identities_hold(out):
+    """Whether a filled summary vector passes the identity checks (``IDENTITY_TOLERANCE``; NaN fails)."""
+    return max(out[Z_CHARGE_BALANCE], out[Z_RECIPROCITY_RESIDUAL]) <= IDENTITY_TOLERANCE
+
+
+@njit(cache=True, error_model="numpy")
+def summarize(p, sc, iso, slip, integrals, kappa2, deviation, estimate, out):
     """Fill ``out`` (``SLOTS`` layout) from the extrapolated section integrals; returns the ion-resolved
-    and the reduced response matrices. ``deviation`` is ``outer_deviation`` of the finest profile and
-    ``estimate`` the grid error estimate."""
+    and the reduced response matrices. ``slip`` is ``thin_slip`` of the isolated walls, ``deviation``
+    ``outer_deviation`` of the finest profile and ``estimate`` the grid error estimate."""
     ions = ion_block(p)
     symmetric = p[P_SYMMETRIC] != 0.0
     field, gradient = p[P_FIELD], p[P_PRESSURE_GRADIENT]
@@ -465,7 +481,6 @@ def summarize(p, sc, iso, integrals, kappa2, deviation, estimate, out):
     out[Z_CURRENT] = field * (conductance + eo_convection) + streaming
     out[Z_CURRENT_PER_FIELD] = conductance + eo_convection
     # the thin-layer model: slip velocities of the isolated walls, and its error on the EO flow
-    slip = thin_slip(p, iso)
     thin_per_field = section * 0.5 * (slip[0] + slip[1])
     # between walls of opposite sign either flow may vanish; below round-off of the slip scale the relative
     # error and the ratio are undefined (NaN) rather than noise

@@ -69,16 +69,22 @@ def dimensionless_wall(si, thermal_voltage, permittivity, length, protons):
 
 
 @njit(cache=True)
+def twice_ionic_strength(ions):
+    """sum z^2 c of the (valence, concentration, ...) rows, mol/m^3."""
+    total = 0.0
+    for i in range(ions.shape[0]):
+        total += ions[i, 0] ** 2 * ions[i, 1]
+    return total
+
+
+@njit(cache=True)
 def layer_pressure(zeta, ions, model, diameter, thermal_voltage):
     """P(zeta) of the diffuse layer's first integral, J/m^3 (see walls.py; Debye-Hueckel: its quadratic
     approximation). ``ions`` rows are (valence, concentration, diffusivity)."""
     psi = zeta / thermal_voltage
     kt = ELEMENTARY_CHARGE * thermal_voltage
     if model == DH:
-        strength = 0.0
-        for i in range(ions.shape[0]):
-            strength += ions[i, 1] * ions[i, 0] ** 2
-        return 0.5 * kt * AVOGADRO * strength * psi * psi
+        return 0.5 * kt * AVOGADRO * twice_ionic_strength(ions) * psi * psi
     total = 0.0
     if model == STERIC:
         volume = diameter**3

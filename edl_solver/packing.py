@@ -14,7 +14,7 @@ import math
 import numpy as np
 
 from edl_solver import _kernels as k
-from edl_solver.case import Capillary, Case, Wall
+from edl_solver.case import Capillary, Case, Electrolyte, Wall
 
 P_LENGTH = 0  # half-size L: slit half-height or capillary radius, m
 P_CAPILLARY = 1  # 1 capillary, 0 slit
@@ -77,6 +77,11 @@ def wall_row_si(wall: Wall) -> np.ndarray:
     return row
 
 
+def ion_rows(electrolyte: Electrolyte) -> np.ndarray:
+    """The ions as (valence, concentration mol/m^3, diffusivity m^2/s) rows, the layout of the ion block."""
+    return np.array([[ion.valence, ion.concentration, ion.diffusivity] for ion in electrolyte.ions], dtype=float)
+
+
 def case_vector(case: Case) -> np.ndarray:
     """The packed inputs of ``case`` (layout ``P_*``)."""
     ions = case.electrolyte.ions
@@ -102,5 +107,5 @@ def case_vector(case: Case) -> np.ndarray:
     for side, wall in enumerate(case.walls):
         p[P_SLIP + side] = wall.slip_length
         p[P_WALLS + side * k.WALL_SIZE:P_WALLS + (side + 1) * k.WALL_SIZE] = wall_row_si(wall)
-    p[P_IONS:] = [value for ion in ions for value in (ion.valence, ion.concentration, ion.diffusivity)]
+    p[P_IONS:] = ion_rows(case.electrolyte).ravel()
     return p

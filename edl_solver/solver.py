@@ -47,15 +47,16 @@ def solve(case: Case) -> Result:
     numerics = case.numerics
     section = equilibrium.solve_section(problem, numerics.accuracy, numerics.intervals,
                                         numerics.max_iterations, numerics.max_intervals, case.describe)
-    slip = _summary.thin_slip(prepared.vector, prepared.isolated_array)
-    deviation = _summary.outer_deviation(section.grid.s, section.grid.beta, section.u_eo, prepared.vector,
-                                         prepared.scale_vector, slip)
     values = np.empty(_summary.SUMMARY_SIZE)
-    ion_matrix, matrix = _summary.summarize(prepared.vector, prepared.scale_vector, prepared.isolated_array,
-                                            section.integrals, problem.kappa2, deviation, section.error_estimate,
-                                            values)
+    ion_matrix, matrix = _summary.summarize_solution(
+        prepared.vector, prepared.scale_vector, prepared.isolated_array, section.integrals, problem.kappa2,
+        section.grid.s, section.grid.beta, section.u_eo, section.error_estimate, values)
     summary = summary_dict(values, case)
-    _check_identities(summary, case)
+    if not _summary.identities_hold(values):
+        raise ConvergenceError(f"{case.describe()}: the discrete solution violates charge balance "
+                               f"({summary['charge_balance']:.2g}) or reciprocity "
+                               f"({summary['reciprocity_residual']:.2g}); not returned")
+    slip = _summary.thin_slip(prepared.vector, prepared.isolated_array)
     profiles = _profiles(section, units, case, (float(slip[0]), float(slip[1])))
     return Result(
         case=case,
@@ -94,15 +95,6 @@ def summary_dict(values: np.ndarray, case: Case) -> dict[str, Any]:
         else:
             summary[key] = _plain(flat[at])
     return summary
-
-
-def _check_identities(summary: dict[str, Any], case: Case) -> None:
-    """Refuse a solution that violates charge balance or reciprocity (``_summary.identity_residuals``):
-    both are exact identities of the scheme, so a violation means the solve went wrong."""
-    balance, reciprocity = summary["charge_balance"], summary["reciprocity_residual"]
-    if not max(balance, reciprocity) <= _summary.IDENTITY_TOLERANCE:
-        raise ConvergenceError(f"{case.describe()}: the discrete solution violates charge balance "
-                               f"({balance:.2g}) or reciprocity ({reciprocity:.2g}); not returned")
 
 
 def _profiles(section: SectionSolution, units: Scales, case: Case, slip: tuple[float, float]) -> Profiles:

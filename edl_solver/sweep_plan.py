@@ -43,8 +43,6 @@ class SweepPlan:
     valid : tuple of ndarray
         Per axis, whether each of its values gives a valid case (an invalid one is left to the case-by-case
         path, which records why).
-    symmetry_per_point : bool
-        Whether the symmetry flag is recomputed per point from the walls (slits).
     site_names_match : bool
         Whether the base's two walls name their sites alike (walls that differ only in names are not
         symmetric).
@@ -55,7 +53,6 @@ class SweepPlan:
     columns: tuple[np.ndarray, ...]
     values: tuple[np.ndarray, ...]
     valid: tuple[np.ndarray, ...]
-    symmetry_per_point: bool
     site_names_match: bool
 
     def vectors(self, points: np.ndarray) -> tuple[np.ndarray, np.ndarray]:
@@ -67,11 +64,10 @@ class SweepPlan:
             if columns.size:
                 out[:, columns] = values[at]
             valid &= ok[at]
-        if self.symmetry_per_point:
+        if self.base[packing.P_CAPILLARY] == 0.0:  # a slit is symmetric where its two walls are the same
             same = np.all(out[:, _WALL_COLUMNS[0]] == out[:, _WALL_COLUMNS[1]], axis=1)
             same &= out[:, packing.P_SLIP] == out[:, packing.P_SLIP + 1]
-            capillary = out[:, packing.P_CAPILLARY] != 0.0
-            out[:, packing.P_SYMMETRIC] = capillary | (same & self.site_names_match)
+            out[:, packing.P_SYMMETRIC] = same & self.site_names_match
         return out, valid
 
 
@@ -120,10 +116,8 @@ def make_plan(base_table: Mapping[str, Any], axes: Sequence[Any]) -> SweepPlan |
         valid.append(np.array(ok))
     bottom, top = base_case.walls
     names = [[site.name for site in wall.sites] for wall in (bottom, top)]
-    slit = bool(base[packing.P_CAPILLARY] == 0.0)
     plan = SweepPlan(shape=tuple(axis.size for axis in axes), base=base, columns=tuple(columns),
-                     values=tuple(values), valid=tuple(valid), symmetry_per_point=slit,
-                     site_names_match=names[0] == names[1])
+                     values=tuple(values), valid=tuple(valid), site_names_match=names[0] == names[1])
     return plan if _holds(plan, base_table, axes) else None
 
 

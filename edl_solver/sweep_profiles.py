@@ -20,8 +20,8 @@ from edl_solver.result import PROFILE_UNITS, Profiles
 #: Default number of positions across the section.
 DEFAULT_POINTS = 101
 
-#: Profile fields of a sweep (variable ``profile_<field>``): unit and long name. The concentrations carry
-#: an extra ``ion`` dimension.
+#: Profile fields of a sweep (variable ``profile_<field>``) and their long names (units: ``PROFILE_UNITS``).
+#: The concentrations carry an extra ``ion`` dimension.
 PROFILE_FIELDS = {
     "potential": "electric potential relative to the reservoir",
     "concentration": "ion concentration",

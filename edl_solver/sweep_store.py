@@ -25,6 +25,7 @@ from edl_solver.sweep_axes import PATH_UNITS, WORD_PATHS, Axis
 PENDING, CONVERGED, FAILED = -1, 0, 1
 STATUS_MEANING = "0 converged, 1 failed (see message), -1 not computed yet"
 
+
 def _summary_layout(capillary: bool) -> dict[str, tuple[str, str]]:
     """Units and long names of every summary key for this geometry."""
     return {key: (summary_unit(key, capillary), text) for key, (_, text) in SUMMARY_UNITS.items()}
@@ -231,13 +232,13 @@ class SweepStore:
         import xarray as xr
 
         if self.file is not None:
-            if _summary_bytes(self.shape, self.pair) > LOAD_LIMIT_BYTES:
-                self.abandon()
-                os.replace(self.partial, self.path)
-                return xr.open_dataset(self.path, engine="h5netcdf")  # lazily: memory stays flat
-            status, message, values, attrs = self._read_back()
+            lazy = self._value_bytes() > LOAD_LIMIT_BYTES
+            if not lazy:
+                status, message, values, attrs = self._read_back()
             self.abandon()  # closes the file
             os.replace(self.partial, self.path)
+            if lazy:
+                return xr.open_dataset(self.path, engine="h5netcdf")  # values read on access: memory stays flat
         else:
             status, message, attrs = self.status, self.message.astype(str), {"title": "edl_solver sweep"}
             values = {key: value if (key in PAIR_KEYS and self.pair) or key in self.profile_names else value[..., 0]
@@ -274,6 +275,15 @@ class SweepStore:
             data[name] = ((*dims, *extra), values[name], {"units": sweep_profiles.unit(field),
                                                           "long_name": sweep_profiles.long_name(field)})
 
+    def _value_bytes(self) -> int:
+        """Bytes of the sweep's values (summary and profiles) in memory."""
+        columns = sum(2 if key in PAIR_KEYS and self.pair else 1 for key in SUMMARY_UNITS)
+        if self.profile_points:
+            per_position = len(sweep_profiles.PROFILE_FIELDS) - len(sweep_profiles.PER_ION) \
+                + len(sweep_profiles.PER_ION) * len(self.ions)
+            columns += per_position * self.profile_points
+        return int(np.prod(self.shape)) * columns * 8
+
     def _read_back(self) -> tuple[np.ndarray, np.ndarray, dict[str, np.ndarray], dict[str, Any]]:
         """Status, messages, values and global attributes from the file, through h5py (reading it through
         xarray costs ~5 ms per variable in metadata alone)."""
@@ -309,11 +319,3 @@ def _chunks(shape: tuple[int, ...], cases: int) -> tuple[int, ...]:
 #: A sweep streamed to a file returns its Dataset loaded into memory up to this size of its values, and
 #: opened lazily from the file beyond it (values read on access), so that memory stays flat.
 LOAD_LIMIT_BYTES = 256 * 2**20
-
-
-def _summary_bytes(shape: tuple[int, ...], pair: bool) -> int:
-    """Bytes of a sweep's summary values in memory."""
-    columns = sum(2 if key in PAIR_KEYS and pair else 1 for key in SUMMARY_UNITS)
-    return int(np.prod(shape)) * columns * 8
-
-

@@ -41,8 +41,8 @@ def solve_rows(base_table: Mapping[str, Any], axes: Sequence[Axis], rows: Sequen
     the same compiled steps as ``edl_solver.solve``); cases the batch cannot finish (no convergence from the
     start guess, an invalid combination of inputs) and every case without a plan go through
     ``edl_solver.solve`` one by one, which also words the reason of a failure. With ``profile_points``
-    every case goes through ``edl_solver.solve`` and its profiles are sampled at that many positions
-    (``sweep_profiles``).
+    (and no plan: the batch returns no profiles) the profiles of each case are sampled at that many
+    positions (``sweep_profiles``).
 
     Returns
     -------
@@ -60,7 +60,7 @@ def solve_rows(base_table: Mapping[str, Any], axes: Sequence[Axis], rows: Sequen
         values.update(sweep_profiles.empty((len(rows), last), n_ions, profile_points))
     points = (np.asarray(rows, dtype=np.int64)[:, None] * last + np.arange(last)).ravel()
     one_by_one = np.ones(points.size, dtype=bool)
-    if plan is not None and not profile_points:
+    if plan is not None:
         _stop_if_asked()
         one_by_one = _solve_batch(plan, points, values, out["status"])
     for flat in np.nonzero(one_by_one)[0].tolist():
@@ -183,12 +183,13 @@ def sweep(base: Case, axes: Mapping[str, Any], *, zipped: Sequence[Sequence[str]
         spec["profile_points"] = profile_points
     out_path = Path(path) if path is not None else None
     store = SweepStore(spec, sweep_axes, isinstance(base.geometry, Capillary), pair, out_path, resume,
-                   ions=[ion.name for ion in base.electrolyte.ions], profile_points=profile_points)
+                       ions=[ion.name for ion in base.electrolyte.ions], profile_points=profile_points)
     try:
-        plan = make_plan(base_table, sweep_axes)
+        # profiles come from single solves, so a sweep that stores them needs no compiled batch
+        plan = None if profile_points else make_plan(base_table, sweep_axes)
         todo = rows_todo(store.status)
         last = sweep_axes[-1].size
-        per_task = rows_per_task or max(1, _cases_per_task(None if profile_points else plan, workers, dask) // last)
+        per_task = rows_per_task or max(1, _cases_per_task(plan, workers, dask) // last)
         tasks = [todo[i:i + per_task] for i in range(0, len(todo), per_task)]
         total = len(todo) * last
         with _progress_bar(total, progress) as bar, _interruptible():

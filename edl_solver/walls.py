@@ -17,23 +17,9 @@ from __future__ import annotations
 
 import numpy as np
 
-from edl_solver import _prepare, _walls, packing
-from edl_solver.case import Case, Electrolyte, Wall
+from edl_solver import _walls, packing
+from edl_solver.case import Electrolyte, Wall
 from edl_solver.solvent import Solvent
-
-
-def _ions(electrolyte: Electrolyte) -> np.ndarray:
-    return np.array([[ion.valence, ion.concentration, ion.diffusivity] for ion in electrolyte.ions], dtype=float)
-
-
-def _diameter(electrolyte: Electrolyte, model: str) -> float:
-    return electrolyte.ions[0].diameter if model == "steric" else 0.0
-
-
-def isolated_charge(zeta: float, electrolyte: Electrolyte, solvent: Solvent, model: str) -> float:
-    """Charge density (C/m^2) of an isolated wall at potential ``zeta`` (V): sigma = sign(zeta) sqrt(2 eps P)."""
-    return float(_walls.isolated_charge(zeta, _ions(electrolyte), packing.MODEL_CODES[model],
-                                        _diameter(electrolyte, model), solvent.thermal_voltage, solvent.permittivity))
 
 
 def isolated_wall(wall: Wall, electrolyte: Electrolyte, solvent: Solvent, model: str) -> tuple[float, float]:
@@ -44,15 +30,9 @@ def isolated_wall(wall: Wall, electrolyte: Electrolyte, solvent: Solvent, model:
     zeta, so the root is unique). Compiled in ``_walls.isolated_wall``.
     """
     protons = electrolyte.proton_concentration
+    diameter = electrolyte.ions[0].diameter if model == "steric" else 0.0
     zeta, sigma = _walls.isolated_wall(
-        packing.wall_row_si(wall), _ions(electrolyte), packing.MODEL_CODES[model], _diameter(electrolyte, model),
+        packing.wall_row_si(wall), packing.ion_rows(electrolyte), packing.MODEL_CODES[model], diameter,
         solvent.thermal_voltage, solvent.permittivity, np.nan if protons is None else protons,
         electrolyte.debye_length(solvent))
     return float(zeta), float(sigma)
-
-
-def isolated_walls(case: Case) -> tuple[tuple[float, float], tuple[float, float]]:
-    """``isolated_wall`` of the (bottom, top) walls of a case."""
-    vector = packing.case_vector(case)
-    iso = _prepare.isolated_walls(vector, _prepare.scales(vector))
-    return (float(iso[0, 0]), float(iso[0, 1])), (float(iso[1, 0]), float(iso[1, 1]))
