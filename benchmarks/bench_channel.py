@@ -38,7 +38,7 @@ ROOT = Path(__file__).resolve().parents[1]
 sys.path.insert(0, str(ROOT))  # run from a checkout without installing
 
 import edl_solver as edl  # noqa: E402
-from edl_solver import channel as ch  # noqa: E402
+from edl_solver.channel import model as ch  # noqa: E402
 
 SOLVENT = edl.Solvent(temperature=298.15, relative_permittivity=78.4, viscosity=0.89e-3)
 

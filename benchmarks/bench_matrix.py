@@ -17,7 +17,9 @@ import numpy as np
 from bench_models import timed  # the same median-of-5 timer (this folder is on sys.path when run as a script)
 
 import edl_solver as edl
-from edl_solver import _kernels, _summary, equilibrium, scaling
+from edl_solver.kernels import fv1d as _kernels
+from edl_solver.kernels import summary as _summary
+from edl_solver.model import equilibrium, scaling
 
 
 def main() -> None:

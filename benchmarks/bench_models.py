@@ -15,7 +15,7 @@ import statistics
 import time
 
 import edl_solver as edl
-from edl_solver import equilibrium, scaling
+from edl_solver.model import equilibrium, scaling
 
 
 def cases() -> dict[str, list[edl.Case]]:

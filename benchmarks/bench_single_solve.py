@@ -55,7 +55,8 @@ sys.path.insert(0, str(ROOT))  # run from a checkout without installing
 import numba  # noqa: E402
 
 import edl_solver as edl  # noqa: E402
-from edl_solver import _kernels, equilibrium, scaling  # noqa: E402
+from edl_solver.kernels import fv1d as _kernels  # noqa: E402
+from edl_solver.model import equilibrium, scaling  # noqa: E402
 
 #: Target figures of the issue.
 TARGET_RATIO = 50.0

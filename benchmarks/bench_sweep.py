@@ -64,8 +64,14 @@ import bench_single_solve as single  # noqa: E402
 import numba  # noqa: E402
 
 import edl_solver as edl  # noqa: E402
-from edl_solver import _batch, _summary, equilibrium, packing, scaling  # noqa: E402
-from edl_solver.solver import summary_dict  # noqa: E402
+from edl_solver.kernels import batch as _batch  # noqa: E402
+from edl_solver.kernels import summary as _summary  # noqa: E402
+from edl_solver.model import (  # noqa: E402
+    equilibrium,
+    packing,
+    scaling,
+)
+from edl_solver.pipeline import summary_dict  # noqa: E402
 
 #: Target of the issue: slit cross-section solves per second per core at default accuracy, including
 #: EO flow and currents.

@@ -16,22 +16,22 @@ from __future__ import annotations
 import os
 from typing import TYPE_CHECKING, Any
 
-from edl_solver.case import Capillary, Case, Electrolyte, Ion, Numerics, Site, Slit, Wall
 from edl_solver.errors import ConvergenceError, InputError
-from edl_solver.result import Profiles, Result
-from edl_solver.solvent import Solvent, Water
+from edl_solver.inputs.case import Capillary, Case, Electrolyte, Ion, Numerics, Site, Slit, Wall
+from edl_solver.inputs.solvent import Solvent, Water
+from edl_solver.results.result import Profiles, Result
 
 if TYPE_CHECKING:
-    from edl_solver.channel import Channel
-    from edl_solver.solver import solve
-    from edl_solver.sweeps import sweep
+    from edl_solver.channel.model import Channel
+    from edl_solver.pipeline import solve
+    from edl_solver.sweeping.run import sweep
 
 __version__ = "0.1.0"
 
 
 def load(path: str | os.PathLike[str]) -> Result:
     """Read a result written by ``Result.to_hdf5``."""
-    from edl_solver import io
+    from edl_solver.io import hdf5 as io
 
     return io.read_result(path)
 
@@ -40,15 +40,15 @@ def __getattr__(name: str) -> Any:
     # The solver pulls in numba and scipy (~0.5 s); it is loaded on first use so that the command line
     # and the input checks start fast.
     if name == "solve":
-        from edl_solver.solver import solve
+        from edl_solver.pipeline import solve
 
         return solve
     if name == "sweep":
-        from edl_solver.sweeps import sweep
+        from edl_solver.sweeping.run import sweep
 
         return sweep
     if name == "Channel":
-        from edl_solver.channel import Channel
+        from edl_solver.channel.model import Channel
 
         return Channel
     raise AttributeError(f"module 'edl_solver' has no attribute {name!r}")

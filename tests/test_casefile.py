@@ -11,8 +11,10 @@ from hypothesis import given
 from hypothesis import strategies as st
 
 import edl_solver as edl
-from edl_solver.case import Site
-from edl_solver.casefile import (
+from edl_solver.cli.demo import DEMO_TOML, demo_case
+from edl_solver.errors import InputError
+from edl_solver.inputs.case import Site
+from edl_solver.inputs.casefile import (
     CASE_KEYS,
     case_from_mapping,
     case_to_mapping,
@@ -21,8 +23,6 @@ from edl_solver.casefile import (
     loads_case,
     read_mapping,
 )
-from edl_solver.demo import DEMO_TOML, demo_case
-from edl_solver.errors import InputError
 
 if sys.version_info >= (3, 11):
     import tomllib
@@ -173,7 +173,7 @@ CASES = {
 @pytest.mark.parametrize("name", CASES)
 def test_the_dict_form_of_io_reads_back_to_the_same_case(name: str) -> None:
     # io.case_to_dict writes the shape this module reads: the two must agree exactly.
-    from edl_solver.io import case_to_dict
+    from edl_solver.io.hdf5 import case_to_dict
 
     case = case_from_mapping(CASES[name])
     assert case_from_mapping(case_to_dict(case)) == case

@@ -1,4 +1,4 @@
-"""Finite channels between two reservoirs (``edl_solver.channel``) against published limits and closed forms.
+"""Finite channels between two reservoirs (``edl_solver.channel.model``) against published limits and closed forms.
 
 Conventions of the module: x from the left reservoir (0) to the right one (L); Delta V = V(L) - V(0);
 I, Q and J_s positive along +x. The power delivered to a load is I Delta V.
@@ -12,7 +12,7 @@ import numpy as np
 import pytest
 
 import edl_solver as edl
-from edl_solver import channel as ch
+from edl_solver.channel import model as ch
 from edl_solver.constants import FARADAY, GAS_CONSTANT
 
 SOLVENT = edl.Solvent(temperature=298.15, relative_permittivity=78.4, viscosity=0.89e-3)

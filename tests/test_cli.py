@@ -14,11 +14,11 @@ from hypothesis import HealthCheck, assume, given, settings
 from hypothesis import strategies as st
 
 import edl_solver as edl
-from edl_solver.casefile import load_case
 from edl_solver.cli import main
-from edl_solver.demo import DEMO_TOML, demo_case
+from edl_solver.cli.demo import DEMO_TOML, demo_case
 from edl_solver.errors import ConvergenceError, InputError
-from edl_solver.units import to_si
+from edl_solver.inputs.casefile import load_case
+from edl_solver.inputs.units import to_si
 
 CASE_TOML = """\
 field = "2 kV/m"
@@ -167,7 +167,7 @@ def test_unwritable_outputs_are_refused_before_the_solve(tmp_path: Path, monkeyp
     def must_not_run(case: edl.Case) -> None:
         raise AssertionError("solved although the output cannot be written")
 
-    monkeypatch.setattr("edl_solver.solver.solve", must_not_run)
+    monkeypatch.setattr("edl_solver.pipeline.solve", must_not_run)
     code, _, err = run(["solve", *QUICK, flag, where])
     assert code == 2
     assert_one_line_error(err, flag, repr(where))
@@ -214,7 +214,7 @@ def test_convergence_failure_exits_3_and_keeps_the_old_file(tmp_path: Path, monk
     def fail(case: edl.Case) -> None:
         raise ConvergenceError(f"{case.describe()}: Newton did not converge\n(residual 1e-2)")
 
-    monkeypatch.setattr("edl_solver.solver.solve", fail)
+    monkeypatch.setattr("edl_solver.pipeline.solve", fail)
     out = tmp_path / "out.h5"
     out.write_bytes(b"an earlier result")
     code, stdout, err = run(["solve", *QUICK, "-o", str(out), "--figure", str(tmp_path / "out.png")])
@@ -305,7 +305,7 @@ def test_a_failed_write_exits_1_after_the_report(tmp_path: Path, monkeypatch: py
     def disk_full(result: edl.Result, path: Path) -> None:
         raise OSError(28, "No space left on device", str(path))
 
-    monkeypatch.setattr("edl_solver.io.write_result", disk_full)
+    monkeypatch.setattr("edl_solver.io.hdf5.write_result", disk_full)
     code, stdout, err = run(["solve", *QUICK, "-o", str(out)])
     assert code == 1
     assert_one_line_error(err, f"cannot write {out}: No space left on device")

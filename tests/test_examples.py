@@ -16,7 +16,7 @@ from pathlib import Path
 import pytest
 
 import edl_solver as edl
-from edl_solver.casefile import load_case, loads_case
+from edl_solver.inputs.casefile import load_case, loads_case
 
 ROOT = Path(__file__).resolve().parent.parent
 EXAMPLES = ROOT / "examples"

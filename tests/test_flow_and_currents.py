@@ -10,7 +10,7 @@ import pytest
 from scipy import constants
 
 import edl_solver as edl
-from edl_solver.thin_layer import grahame_zeta, slip_velocity, verdict
+from edl_solver.model.thin_layer import grahame_zeta, slip_velocity, verdict
 
 SOLVENT = edl.Solvent(temperature=298.15, relative_permittivity=78.4, viscosity=0.89e-3)
 VT = SOLVENT.thermal_voltage

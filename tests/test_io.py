@@ -1,4 +1,4 @@
-"""Tests of edl_solver.io: result files (round trip, xarray layout, atomic writes, bad input) and the
+"""Tests of edl_solver.io.hdf5: result files (round trip, xarray layout, atomic writes, bad input) and the
 plain-dict form of a Case."""
 
 from __future__ import annotations
@@ -14,10 +14,10 @@ import numpy as np
 import pytest
 
 import edl_solver as edl
-from edl_solver import io
-from edl_solver.case import Site
 from edl_solver.errors import InputError
-from edl_solver.result import PROFILE_UNITS, SUMMARY_UNITS, summary_unit
+from edl_solver.inputs.case import Site
+from edl_solver.io import hdf5 as io
+from edl_solver.results.result import PROFILE_UNITS, SUMMARY_UNITS, summary_unit
 
 PROFILE_NAMES = ("potential", "charge_density", "velocity_eo", "velocity_pressure", "velocity",
                  "velocity_thin_layer", "eo_per_field")

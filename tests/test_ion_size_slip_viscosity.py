@@ -21,7 +21,7 @@ import numpy as np
 import pytest
 
 import edl_solver as edl
-from edl_solver import thin_layer, walls
+from edl_solver.model import thin_layer, walls
 
 try:  # tests as a package
     from . import reference_models as rm

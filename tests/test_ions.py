@@ -1,4 +1,4 @@
-"""Tests of edl_solver.ions."""
+"""Tests of edl_solver.inputs.ions."""
 
 from __future__ import annotations
 
@@ -7,10 +7,10 @@ import re
 
 import pytest
 
-from edl_solver import ions
 from edl_solver.constants import FARADAY, GAS_CONSTANT
 from edl_solver.errors import InputError
-from edl_solver.ions import IonData, ion_names, lookup_ion
+from edl_solver.inputs import ions
+from edl_solver.inputs.ions import IonData, ion_names, lookup_ion
 
 T25 = 298.15  # K
 

@@ -14,7 +14,9 @@ import numpy as np
 import pytest
 
 import edl_solver as edl
-from edl_solver import _adaptive, _kernels, grid, scaling
+from edl_solver.kernels import adaptive as _adaptive
+from edl_solver.kernels import fv1d as _kernels
+from edl_solver.model import grid, scaling
 
 SOLVENT = edl.Solvent(temperature=298.15, relative_permittivity=78.4, viscosity=0.89e-3)
 VT = SOLVENT.thermal_voltage

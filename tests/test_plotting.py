@@ -1,4 +1,4 @@
-"""Tests of edl_solver.plotting: the profile figure."""
+"""Tests of edl_solver.plot.profiles: the profile figure."""
 
 from __future__ import annotations
 
@@ -11,7 +11,7 @@ import pytest
 
 import edl_solver as edl
 from edl_solver.errors import InputError
-from edl_solver.plotting import profile_figure
+from edl_solver.plot.profiles import profile_figure
 
 PNG_SIGNATURE = b"\x89PNG\r\n\x1a\n"
 KCL_1MM = edl.Electrolyte.from_ions({"K+": "1 mM", "Cl-": "1 mM"})

@@ -1,4 +1,4 @@
-"""Tests of edl_solver.report: the plain-text report of a result."""
+"""Tests of edl_solver.report.text: the plain-text report of a result."""
 
 from __future__ import annotations
 
@@ -10,8 +10,8 @@ from typing import Any
 import pytest
 
 import edl_solver as edl
-from edl_solver.case import Site
-from edl_solver.report import close_packing, prefixed, text
+from edl_solver.inputs.case import Site
+from edl_solver.report.text import close_packing, prefixed, text
 
 KCL_1MM = edl.Electrolyte.from_ions({"K+": "1 mM", "Cl-": "1 mM"})
 
@@ -176,7 +176,7 @@ def test_viscoelectric_coefficient_is_given() -> None:
 
 
 def test_warnings_of_the_solve_are_printed() -> None:
-    # 0.5 M is above the dilute limit of edl_solver.validity: the solve itself notes it.
+    # 0.5 M is above the dilute limit of edl_solver.model.validity: the solve itself notes it.
     result = edl.solve(edl.Case(geometry=edl.Slit(height="20 nm"), wall=edl.Wall(zeta="-30 mV"),
                                 electrolyte=edl.Electrolyte.from_ions({"K+": "500 mM", "Cl-": "500 mM"})))
     assert result.warnings
@@ -197,7 +197,7 @@ def drawn_figure(result: edl.Result, path: Path, monkeypatch: pytest.MonkeyPatch
     """Draw ``result`` with plotting.profile_figure and return the matplotlib Figure it saved."""
     from matplotlib.figure import Figure
 
-    from edl_solver.plotting import profile_figure
+    from edl_solver.plot.profiles import profile_figure
 
     saved = []
     real = Figure.savefig

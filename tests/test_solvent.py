@@ -1,4 +1,4 @@
-"""Tests of edl_solver.solvent."""
+"""Tests of edl_solver.inputs.solvent."""
 
 from __future__ import annotations
 
@@ -9,7 +9,7 @@ import pytest
 
 from edl_solver.constants import VACUUM_PERMITTIVITY
 from edl_solver.errors import InputError
-from edl_solver.solvent import Solvent, Water, water_relative_permittivity, water_viscosity
+from edl_solver.inputs.solvent import Solvent, Water, water_relative_permittivity, water_viscosity
 
 C0 = 273.15  # K
 

@@ -1,4 +1,4 @@
-"""Sweep files (``edl_solver.sweepfile``) and the ``edl sweep`` command: values, errors, Ctrl-C and resume."""
+"""Sweep files (``edl_solver.sweeping.file``) and the ``edl sweep`` command: values, errors, Ctrl-C and resume."""
 
 from __future__ import annotations
 
@@ -17,7 +17,7 @@ from interrupting import interrupt_after_first_write
 import edl_solver as edl
 from edl_solver.cli import main
 from edl_solver.errors import InputError
-from edl_solver.sweepfile import load_sweep
+from edl_solver.sweeping.file import load_sweep
 
 ROOT = Path(__file__).resolve().parents[1]
 
@@ -259,11 +259,11 @@ def test_a_plugged_command_module_is_registered_and_dispatched(monkeypatch: pyte
         seen["level"] = args.level
         return 7
 
-    module = types.ModuleType("edl_solver.cli_map")
-    module.__spec__ = importlib.machinery.ModuleSpec("edl_solver.cli_map", loader=None)
+    module = types.ModuleType("edl_solver.cli.map")
+    module.__spec__ = importlib.machinery.ModuleSpec("edl_solver.cli.map", loader=None)
     module.add_map_command, module.run_map_command = add_map_command, run_map_command
     module.VALUE_FLAGS = ("--level",)
-    monkeypatch.setitem(sys.modules, "edl_solver.cli_map", module)
+    monkeypatch.setitem(sys.modules, "edl_solver.cli.map", module)
     code, _, err = run(["map", "--level", "-3mV"])  # a value starting with '-' is taken as the value
     assert (code, err, seen) == (7, "", {"level": "-3mV"})
     code, out, _ = run(["--help"])

@@ -14,10 +14,12 @@ import numpy as np
 import pytest
 
 import edl_solver as edl
-from edl_solver import _batch, _summary, packing
-from edl_solver.io import case_to_dict
-from edl_solver.sweep_plan import make_plan
-from edl_solver.sweeps import case_at, make_axes
+from edl_solver.io.hdf5 import case_to_dict
+from edl_solver.kernels import batch as _batch
+from edl_solver.kernels import summary as _summary
+from edl_solver.model import packing
+from edl_solver.sweeping.plan import make_plan
+from edl_solver.sweeping.run import case_at, make_axes
 
 SILICA = edl.Case(geometry=edl.Slit(height="30 nm"),
                   electrolyte=edl.Electrolyte.from_ions({"Na+": "1 mM", "Cl-": "1 mM"}, pH=7.0),

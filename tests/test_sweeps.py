@@ -21,8 +21,8 @@ import xarray as xr
 
 import edl_solver as edl
 from edl_solver.errors import ConvergenceError, InputError
-from edl_solver.result import SUMMARY_UNITS, summary_unit
-from edl_solver.sweeps import PATH_UNITS
+from edl_solver.results.result import SUMMARY_UNITS, summary_unit
+from edl_solver.sweeping.run import PATH_UNITS
 
 ROOT = Path(__file__).resolve().parents[1]
 
@@ -277,7 +277,7 @@ def test_bad_sweep_arguments_name_the_argument() -> None:
 def test_a_large_sweep_to_a_file_is_returned_lazily(slit_sweep: xr.Dataset, tmp_path: Path,
                                                     monkeypatch: pytest.MonkeyPatch) -> None:
     # Beyond the load limit the values stay in the file and are read on access (memory stays flat).
-    import edl_solver.sweep_store as sweep_store
+    import edl_solver.sweeping.store as sweep_store
 
     monkeypatch.setattr(sweep_store, "LOAD_LIMIT_BYTES", 0)
     path = tmp_path / "sweep.h5"
@@ -292,7 +292,7 @@ def test_file_chunks_hold_whole_lines_of_about_a_thousand_cases(tmp_path: Path) 
     # times larger and writing four times slower; common practice is chunks of 10 kB to 1 MB.
     import h5py
 
-    from edl_solver.sweep_store import _chunks
+    from edl_solver.sweeping.store import _chunks
 
     assert _chunks((200, 100, 3), 1024) == (3, 100, 3)
     assert _chunks((10, 5000), 1024) == (1, 5000)

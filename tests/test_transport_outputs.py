@@ -1,7 +1,7 @@
-"""Transport outputs: the conductance curve and its limits (``edl_solver.conductance``), the figures
-(``edl_solver.transport_plots``) and the ``edl transport`` command.
+"""Transport outputs: the conductance curve and its limits (``edl_solver.channel.conductance``), the figures
+(``edl_solver.plot.transport``) and the ``edl transport`` command.
 
-Conventions of ``edl_solver.channel``: x from the left reservoir (0) to the right one (L); Delta V = V(L) - V(0);
+Conventions of ``edl_solver.channel.model``: x from the left reservoir (0) to the right one (L); Delta V = V(L) - V(0);
 currents positive along +x; slit values per unit width.
 """
 
@@ -19,17 +19,17 @@ import pytest
 import xarray as xr
 
 import edl_solver as edl
-from edl_solver import channel as ch
-from edl_solver.cli import main
-from edl_solver.conductance import (
+from edl_solver.channel import model as ch
+from edl_solver.channel.conductance import (
     channel_characteristics,
     conductance_curve,
     counterion_convection,
     crossover_concentration,
 )
+from edl_solver.cli import main
 from edl_solver.constants import FARADAY, GAS_CONSTANT
 from edl_solver.errors import InputError
-from edl_solver.transport_plots import conductance_figure, iv_figure, pump_curve_figure
+from edl_solver.plot.transport import conductance_figure, iv_figure, pump_curve_figure
 
 PNG_SIGNATURE = b"\x89PNG\r\n\x1a\n"
 SOLVENT = edl.Solvent(temperature=298.15, relative_permittivity=78.4, viscosity=0.89e-3)

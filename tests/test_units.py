@@ -1,4 +1,4 @@
-"""Tests of edl_solver.units.to_si."""
+"""Tests of edl_solver.inputs.units.to_si."""
 
 from __future__ import annotations
 
@@ -12,7 +12,7 @@ from hypothesis import given
 from hypothesis import strategies as st
 
 from edl_solver.errors import InputError
-from edl_solver.units import _registry, to_si
+from edl_solver.inputs.units import _registry, to_si
 
 # Expected SI values follow from the SI prefix and unit definitions (BIPM SI Brochure, 9th ed.,
 # 2019; from memory): 1 M = 1 mol/L = 1000 mol/m^3, 1 bar = 1e5 Pa, 0 degC = 273.15 K.
@@ -139,7 +139,7 @@ def test_parsing_is_fast_after_the_registry_exists() -> None:
 
 
 def test_import_does_not_import_pint() -> None:
-    code = "import sys, edl_solver.units; print('pint' in sys.modules)"
+    code = "import sys, edl_solver.inputs.units; print('pint' in sys.modules)"
     out = subprocess.run([sys.executable, "-c", code], capture_output=True, text=True, check=True)
     assert out.stdout.strip() == "False"
 

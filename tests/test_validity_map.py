@@ -1,5 +1,5 @@
-"""Validity maps of the thin-layer model (edl_solver.validity_map) and the ``edl map`` command
-(edl_solver.cli_map): root-found boundaries against published closed forms, the map's dataset and file,
+"""Validity maps of the thin-layer model (edl_solver.analysis.validity_map) and the ``edl map`` command
+(edl_solver.cli.map): root-found boundaries against published closed forms, the map's dataset and file,
 the figure, and bad input."""
 
 from __future__ import annotations
@@ -23,9 +23,7 @@ from scipy.optimize import brentq
 from scipy.special import i0e, i1e
 
 import edl_solver as edl
-from edl_solver.cli_map import add_map_command, parse_axis
-from edl_solver.errors import InputError
-from edl_solver.validity_map import (
+from edl_solver.analysis.validity_map import (
     boundary,
     boundary_curve,
     check_axes,
@@ -33,6 +31,8 @@ from edl_solver.validity_map import (
     thin_layer_current_per_field,
     validity_map,
 )
+from edl_solver.cli.map import add_map_command, parse_axis
+from edl_solver.errors import InputError
 
 KCL = edl.Electrolyte.from_ions({"K+": "1 mM", "Cl-": "1 mM"})
 TOLERANCES = (0.01, 0.05, 0.10)

@@ -1,0 +1,1 @@
+"""Analyses built on many solves: thin-layer validity maps and their root-found boundaries."""

@@ -1,0 +1,287 @@
+"""The ``edl map`` command: a validity map of the thin-layer model over two inputs of a case file.
+
+Registered by ``edl_solver.cli.app`` through :func:`add_map_command`; :func:`run_map_command` runs it.
+Exit codes as for the other commands: 0 done, 2 bad input (one line ``edl: error: ...`` on stderr and
+no output file), 3 no convergence. Everything is checked before the first solve; the files are written
+last, each atomically.
+"""
+
+from __future__ import annotations
+
+import argparse
+import math
+import os
+import sys
+from pathlib import Path
+from typing import Any
+
+__all__ = ["add_map_command", "parse_axis", "run_map_command"]
+
+EXIT_OK = 0
+EXIT_INPUT = 2
+EXIT_CONVERGENCE = 3
+EXIT_INTERRUPTED = 130
+
+#: Tolerances always drawn as contour lines, besides the one of --tolerance.
+_CONTOUR_TOLERANCES = (0.01, 0.05, 0.10)
+
+_EPILOG = """\
+axes:
+  An axis is PATH:FROM:TO:COUNT[:log|lin], COUNT values from FROM to TO, evenly spaced in log
+  (the default; FROM and TO of one sign) or linearly. PATH is an input of the case file
+  (geometry.height, geometry.radius, electrolyte.concentration, wall.zeta, wall.charge_density,
+  solvent.temperature, ...) or a dimensionless axis measured against the case file's electrolyte
+  and solvent: kappa_h (half-height or radius over the Debye length) or zeta_kT (zeta over kT/e).
+  electrolyte.concentration scales every ion so that the first ion has the value.
+  Values carry their units, without a space: 2nm, 0.1mM (millimolar), -50mV, -2mC/m^2.
+
+examples:
+  edl map case.toml --x electrolyte.concentration:0.1mM:100mM:40 --y geometry.height:2nm:2um:60 \\
+      --tolerance 5% -o map.h5 --figure map.png
+  edl map case.toml --x kappa_h:0.3:300:50 --y zeta_kT:-8:-0.5:30:lin --figure map.png
+  edl map case.toml --x wall.charge_density:-50mC/m^2:-0.5mC/m^2:30 --y geometry.height:5nm:1um:30
+
+The map file opens with xarray.open_dataset(path, engine="h5netcdf"): the errors
+thin_layer_flow_rate_error and thin_layer_current_error ((thin - full)/full) on the two axes, every
+summary value, the status of each case and the root-found boundary at --tolerance.
+"""
+
+
+def add_map_command(subparsers: Any) -> None:
+    """Add the ``map`` sub-command to the ``edl`` command's sub-parsers.
+
+    Parameters
+    ----------
+    subparsers : argparse._SubParsersAction
+        The return of ``ArgumentParser.add_subparsers``; the new parser sets ``run`` to
+        :func:`run_map_command`.
+    """
+    parser = subparsers.add_parser(
+        "map", help="map the thin-layer model's error over two inputs of a case", allow_abbrev=False,
+        formatter_class=argparse.RawDescriptionHelpFormatter, epilog=_EPILOG,
+        description="Solve a case over a plane of two inputs and map the error of the thin-layer slip model\n"
+                    "for the EO flow rate and for the current, with the boundary where it equals the\n"
+                    "tolerance found by root-finding. Prints where the boundary lies.")
+    parser.add_argument("case", metavar="CASE.toml", help="the base case file (see 'edl demo --print-case')")
+    parser.add_argument("--x", dest="x_axis", metavar="AXIS", required=True,
+                        help="the horizontal axis, PATH:FROM:TO:COUNT[:log|lin]")
+    parser.add_argument("--y", dest="y_axis", metavar="AXIS", required=True,
+                        help="the vertical axis, PATH:FROM:TO:COUNT[:log|lin]")
+    parser.add_argument("--tolerance", metavar="TOL", default="5%",
+                        help="error at which the boundary is found, e.g. 5%% or 0.05 (default: %(default)s)")
+    parser.add_argument("-o", "--output", metavar="MAP.h5", help="write the map (HDF5/netCDF, read by xarray)")
+    parser.add_argument("--figure", metavar="MAP.png", help="write a figure of the map (PNG)")
+    parser.add_argument("--workers", metavar="N", default="1", help="local worker processes (default: 1)")
+    parser.add_argument("--resume", action="store_true",
+                        help="finish a map interrupted by Ctrl-C or a crash (its cases are kept next to -o MAP.h5)")
+    parser.add_argument("-q", "--quiet", action="store_true", help="print nothing but errors")
+    parser.set_defaults(run=run_map_command)
+
+
+def parse_axis(text: str, flag: str) -> tuple[str, list[float]]:
+    """``PATH:FROM:TO:COUNT[:log|lin]`` -> ``(path, values)``, values SI (dimensionless for a pseudo-axis).
+
+    Raises
+    ------
+    InputError
+        Wrong shape, an unknown path, a value with wrong units, a count below 2, or a log scale over
+        values of both signs or zero.
+    """
+    import numpy as np
+
+    from edl_solver.analysis.validity_map import PSEUDO_AXES
+    from edl_solver.errors import InputError
+    from edl_solver.inputs.paths import PATH_UNITS
+    from edl_solver.inputs.units import to_si
+
+    shape = f"expected PATH:FROM:TO:COUNT[:log|lin], e.g. {flag} geometry.height:2nm:2um:60"
+    parts = text.split(":")
+    if len(parts) not in (4, 5) or not all(part.strip() for part in parts):
+        raise InputError(f"{flag}: {text!r} is not an axis, {shape}")
+    path, start, stop, count = (part.strip() for part in parts[:4])
+    scale = parts[4].strip().lower() if len(parts) == 5 else "log"
+    if path in PSEUDO_AXES:
+        unit = "dimensionless"
+    elif path in PATH_UNITS:
+        unit = PATH_UNITS[path]
+    else:
+        import difflib
+
+        known = (*PSEUDO_AXES, *PATH_UNITS)
+        close = difflib.get_close_matches(path, known, n=1, cutoff=0.6)
+        hint = f"did you mean {close[0]!r}?" if close else f"expected one of {', '.join(known)}"
+        raise InputError(f"{flag}: {path!r} is not an axis input, {hint}")
+    low, high = to_si(start, unit, f"{flag} {path} FROM"), to_si(stop, unit, f"{flag} {path} TO")
+    if not count.isdigit() or not 2 <= int(count) <= 100_000:
+        raise InputError(f"{flag}: COUNT {count!r} is not allowed, expected a whole number from 2 to 100000")
+    if low == high:
+        raise InputError(f"{flag}: FROM and TO are both {start!r}, expected two different values")
+    if scale == "log":
+        if not low * high > 0.0:
+            raise InputError(f"{flag}: a log axis from {start!r} to {stop!r} crosses or touches zero, expected "
+                             f"FROM and TO of one sign, or ':lin' at the end ({path}:{start}:{stop}:{count}:lin)")
+        values = np.geomspace(low, high, int(count))
+    elif scale == "lin":
+        values = np.linspace(low, high, int(count))
+    else:
+        raise InputError(f"{flag}: scale {parts[4]!r} is not log or lin, {shape}")
+    return path, [float(v) for v in values]
+
+
+def run_map_command(args: argparse.Namespace) -> int:
+    """Run ``edl map`` with parsed arguments; return the exit code (errors go to stderr as one line)."""
+    from edl_solver.errors import ConvergenceError, InputError
+
+    try:
+        return _run(args)
+    except InputError as exc:
+        return _fail(str(exc), EXIT_INPUT)
+    except ConvergenceError as exc:
+        return _fail(str(exc), EXIT_CONVERGENCE)
+
+
+def _fail(message: str, code: int) -> int:
+    print(f"edl: error: {' '.join(message.split())}", file=sys.stderr)
+    return code
+
+
+def _run(args: argparse.Namespace) -> int:
+    from edl_solver.analysis.validity_map import check_axes, map_figure, validity_map
+    from edl_solver.errors import ConvergenceError, InputError
+    from edl_solver.inputs.casefile import load_case
+    from edl_solver.inputs.units import to_si
+
+    base = load_case(args.case)
+    x_axis, y_axis = parse_axis(args.x_axis, "--x"), parse_axis(args.y_axis, "--y")
+    try:
+        check_axes(base, x_axis, y_axis)
+    except InputError as exc:  # name the flags rather than the Python arguments
+        raise InputError(str(exc).replace("x_axis", "--x").replace("y_axis", "--y")) from None
+    tolerance = to_si(args.tolerance, "dimensionless", "--tolerance")
+    if not 0.0 < tolerance < 1.0:
+        raise InputError(f"--tolerance: {args.tolerance!r} is out of range, expected a fraction between 0 and 1, "
+                         "e.g. 5% or 0.05")
+    workers = args.workers.strip() if isinstance(args.workers, str) else str(args.workers)
+    if not workers.isdigit() or int(workers) < 1:
+        raise InputError(f"--workers: {args.workers!r} is not allowed, expected a positive whole number")
+    outputs = _outputs(args)
+    partial = _interrupted_sweep(args, outputs)
+    try:
+        data = validity_map(base, x_axis, y_axis, tolerances=sorted({*_CONTOUR_TOLERANCES, tolerance}),
+                            path=outputs.get("map"), boundary_tolerance=tolerance, workers=int(workers),
+                            resume=args.resume)
+    except KeyboardInterrupt:
+        if partial is None or not partial.exists():
+            return _fail("interrupted before any case was kept", EXIT_INTERRUPTED)
+        return _fail(f"interrupted; the finished cases are kept in {partial}; to finish the map, run the same "
+                     "command with --resume", EXIT_INTERRUPTED)
+    converged = int((data["status"].values == 0).sum())
+    if converged == 0:
+        first = str(data["message"].values.flat[0])
+        where = f"; every case's reason is in {outputs['map']}" if "map" in outputs else ""
+        raise ConvergenceError(f"{args.case}: none of the {data['status'].size} cases of the map converged "
+                               f"(the first: {first}){where}")
+    written = []
+    if "map" in outputs:
+        written.append(("map", outputs["map"]))
+    if "figure" in outputs:
+        written.append(("figure", map_figure(data, outputs["figure"])))
+    if not args.quiet:
+        print(_summary(data, tolerance))
+        for what, path in written:
+            print(f"wrote the {what} to {Path(path).resolve()}")
+    return EXIT_OK
+
+
+def _outputs(args: argparse.Namespace) -> dict[str, Path]:
+    """Check the output paths before any solve, so that a bad one costs nothing and writes nothing."""
+    from edl_solver.errors import InputError
+
+    outputs: dict[str, Path] = {}
+    for what, flag, value in (("map", "-o", args.output), ("figure", "--figure", args.figure)):
+        if value is None:
+            continue
+        if not value.strip():
+            raise InputError(f"{flag}: {value!r} is empty, expected a file name")
+        path = Path(value).expanduser()
+        if path.is_dir():
+            raise InputError(f"{flag}: {value!r} is a directory, expected a file name")
+        if not path.parent.is_dir():
+            raise InputError(f"{flag}: {value!r} cannot be written, its directory {str(path.parent)!r} does not exist")
+        if not os.access(path.parent, os.W_OK | os.X_OK):
+            raise InputError(f"{flag}: {value!r} cannot be written, its directory {str(path.parent)!r} is not "
+                             "writable")
+        outputs[what] = path
+    if len(outputs) == 2 and outputs["map"].resolve() == outputs["figure"].resolve():
+        raise InputError(f"--figure: {args.figure!r} is also the map file (-o), expected another file name")
+    return outputs
+
+
+def _interrupted_sweep(args: argparse.Namespace, outputs: dict[str, Path]) -> Path | None:
+    """Where the map's sweep keeps its finished cases (None without -o); refuse to start afresh over an
+    interrupted one, and to resume without a file."""
+    from edl_solver.errors import InputError
+
+    if "map" not in outputs:
+        if args.resume:
+            raise InputError("--resume: a map keeps its finished cases only next to its file, expected -o MAP.h5 "
+                             "as in the interrupted run")
+        return None
+    partial = outputs["map"].with_name(outputs["map"].name + ".sweep.partial")
+    if partial.exists() and not args.resume:
+        raise InputError(f"{partial}: an interrupted map is kept there; add --resume to finish it (or delete the "
+                         "file to start afresh)")
+    if args.resume and not partial.exists() and not args.quiet:
+        print(f"note: no {partial.name} to resume, so the map starts from the beginning")
+    return partial
+
+
+#: Short symbols of the axes for the printed boundary ("{ion}": the first ion of the case).
+_SYMBOLS = {"geometry.height": "H", "geometry.radius": "a", "electrolyte.concentration": "c({ion})",
+            "wall.zeta": "zeta", "wall.charge_density": "sigma", "solvent.temperature": "T",
+            "zeta_kT": "zeta/(kT/e)"}
+
+
+def _shown(name: str, value: float, table: dict[str, Any], digits: int) -> str:
+    """``symbol = value unit`` in the units of the figure (nm, mM, mV, ...)."""
+    from edl_solver.analysis.validity_map import axis_display
+
+    scale, offset, label = axis_display(name, table)
+    unit = label.rsplit("(", 1)[1].rstrip(")") if label.endswith(")") and "(" in label else ""
+    if name == "kappa_h":
+        symbol = "kappa*a" if table["geometry"]["kind"] == "capillary" else "kappa*h"
+    else:
+        symbol = _SYMBOLS.get(name, name).format(ion=table["electrolyte"]["ions"][0]["name"])
+    text = f"{value * scale + offset:.{digits}g}"
+    return f"{symbol} = {text} {unit}".rstrip() if unit and not unit.startswith("kT") else f"{symbol} = {text}"
+
+
+def _summary(data: Any, tolerance: float) -> str:
+    """A few lines: cases, how many are within the tolerance, and where the boundary lies."""
+    import json
+
+    status = data["status"].values
+    table = json.loads(data.attrs["case_json"])
+    total, converged = status.size, int((status == 0).sum())
+    lines = [f"validity map of {data.attrs['y_axis']} x {data.attrs['x_axis']}: {total} cases, {converged} converged"
+             + (f", {total - converged} did not (status 1 in the map)" if converged < total else "")]
+    percent = f"{tolerance * 100:g} %"
+    errors = (("EO flow rate", "thin_layer_flow_rate_error"), ("current per field", "thin_layer_current_error"))
+    for name, key in errors:
+        within = int((abs(data[key].values[status == 0]) <= tolerance).sum())
+        lines.append(f"thin-layer {name} within {percent} in {within} of {converged} cases")
+    if "boundary" in data.variables:
+        curve = data["boundary"]
+        other, axis = curve.dims[0], curve.attrs["axis"]
+        found = [(float(o), float(b)) for o, b in zip(curve[other].values, curve.values) if math.isfinite(b)]
+        side = {"above": "larger", "below": "smaller"}.get(curve.attrs.get("valid_side", ""))
+        lines.append(f"boundary where |EO flow-rate error| = {percent}, root-found along {axis}"
+                     + (f" (thin-layer model valid at {side} {axis}):" if side else ":"))
+        if not found:
+            lines.append(f"  outside the map for every {other}")
+        # a long curve is shown at five evenly spread points, ends included
+        picks = sorted({round(i * (len(found) - 1) / 4) for i in range(5)}) if len(found) > 6 else range(len(found))
+        for i in picks:
+            o, b = found[i]
+            lines.append(f"  at {_shown(other, o, table, 4)}: {_shown(axis, b, table, 6)}")
+    return "\n".join(lines)

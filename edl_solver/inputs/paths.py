@@ -1,0 +1,235 @@
+"""The axes of a sweep: which case inputs can be swept, their units, and the case at a point.
+
+An axis is a dotted path of a case input (the keys of a TOML case file, ``casefile.CASE_KEYS``: e.g.
+"geometry.height", "wall.zeta", "wall.top.charge_density", "solvent.temperature", "field") plus two
+special paths: "electrolyte.concentration" scales every ion's bulk concentration so that the first ion's
+equals the value (the salt concentration for a single salt listed cation first), and "electrolyte.valence"
+gives every ion that valence with its own sign (a z:z salt of equal concentrations stays neutral; the
+ions keep their names and diffusivities, as model ions of another valence). The cases are the
+cartesian product of the axes in the given order; axes can also be zipped (varied together along one
+dimension, named after the first of them).
+"""
+
+from __future__ import annotations
+
+import difflib
+import json
+from collections.abc import Iterable, Mapping, Sequence
+from dataclasses import dataclass
+from typing import Any
+
+from edl_solver.errors import InputError
+from edl_solver.inputs.case import Case
+
+#: Paths that are not keys of a case file but are understood by sweeps.
+SPECIAL_PATHS = ("electrolyte.concentration", "electrolyte.valence")
+
+_WALL_UNITS = {"zeta": "V", "charge_density": "C/m^2", "slip_length": "m", "stern_capacitance": "F/m^2",
+               "gate_voltage": "V", "gate_capacitance": "F/m^2"}
+_SITE_UNITS = {"pK": "dimensionless", "density": "1/m^2"}
+
+#: SI unit of each sweepable path (for parsing values with units and for the file's attributes). Walls:
+#: "wall.<key>" sets every wall, "wall.bottom.<key>" / "wall.top.<key>" one slit wall; sites as
+#: "wall.site[0].pK" (first kind of site; "wall.top.site[0].density" and so on).
+PATH_UNITS = {
+    "geometry.height": "m", "geometry.radius": "m",
+    "electrolyte.concentration": "mol/m^3", "electrolyte.pH": "dimensionless", "electrolyte.valence": "dimensionless",
+    **{f"wall.{key}": unit for key, unit in _WALL_UNITS.items()},
+    **{f"wall.{side}.{key}": unit for side in ("bottom", "top") for key, unit in _WALL_UNITS.items()},
+    **{f"wall.site[{j}].{key}": unit for j in range(4) for key, unit in _SITE_UNITS.items()},
+    **{f"wall.{side}.site[{j}].{key}": unit for side in ("bottom", "top") for j in range(4)
+       for key, unit in _SITE_UNITS.items()},
+    "solvent.temperature": "K", "solvent.relative_permittivity": "dimensionless", "solvent.viscosity": "Pa*s",
+    "solvent.viscoelectric_coefficient": "m^2/V^2",
+    "field": "V/m", "pressure_gradient": "Pa/m", "tolerance": "dimensionless",
+    "numerics.accuracy": "dimensionless",
+}
+#: Paths whose values are words, not numbers.
+WORD_PATHS = ("model",)
+#: Keys of a wall table that set its electrical condition (a fixed zeta excludes the others).
+_CHARGE_KEYS = ("charge_density", "site", "stern_capacitance", "gate_voltage", "gate_capacitance")
+
+
+@dataclass(frozen=True)
+class Axis:
+    """One dimension of a sweep: its name (the first path) and the paths varied along it."""
+
+    name: str
+    paths: tuple[str, ...]
+    values: tuple[tuple[Any, ...], ...]  # per path, its values (same length for zipped paths)
+
+    @property
+    def size(self) -> int:
+        return len(self.values[0])
+
+
+def _check_path(path: str) -> str:
+    known = tuple(PATH_UNITS) + WORD_PATHS
+    if path not in known:
+        close = difflib.get_close_matches(path, known, n=1, cutoff=0.6)
+        hint = f" (did you mean {close[0]!r}?)" if close else f" (sweepable inputs: {', '.join(known)})"
+        raise InputError(f"axes: {path!r} is not a sweepable input{hint}")
+    return path
+
+
+def _axis_values(path: str, values: Any) -> tuple[Any, ...]:
+    """The values of one axis as SI floats (or words), checked."""
+    from edl_solver.inputs.units import to_si
+
+    if isinstance(values, (str, bytes)) or not isinstance(values, Iterable):
+        raise InputError(f"axes.{path}: {values!r} is not a list of values, expected a sequence")
+    items = list(values)
+    if not items:
+        raise InputError(f"axes.{path}: the list of values is empty, expected at least one value")
+    if path in WORD_PATHS:
+        return tuple(str(v) for v in items)
+    return tuple(to_si(v, PATH_UNITS[path], f"axes.{path}") for v in items)
+
+
+def check_conflicts(axes: Iterable[str], where: str = "axes") -> None:
+    """Reject two axes of which the later would overwrite the other's input (the sweep applies the axes
+    in order, so one of them would silently have no effect)."""
+    paths = list(axes)
+    for i, first in enumerate(paths):
+        for second in paths[i + 1:]:
+            if {first, second} == {"geometry.height", "geometry.radius"}:
+                raise InputError(f'{where}: "{first}" and "{second}" are two geometries, expected one of them')
+            if first.startswith("wall.") and second.startswith("wall.") and _walls_clash(first, second):
+                raise InputError(f'{where}: "{first}" and "{second}" both set the same input, expected one '
+                                 f"of them{_other_wall_hint(first, second)}")
+
+
+def _wall_scope(path: str) -> tuple[str, str]:
+    """("bottom" | "top" | "every", the key within the wall) of a "wall..." path."""
+    rest = path[len("wall."):]
+    side, _, key = rest.partition(".")
+    return (side, key) if side in ("bottom", "top") else ("every", rest)
+
+
+def _walls_clash(first: str, second: str) -> bool:
+    (scope1, key1), (scope2, key2) = _wall_scope(first), _wall_scope(second)
+    if scope1 != scope2 and "every" not in (scope1, scope2):
+        return False  # the two walls of a slit are independent
+    kinds = {key.split("[")[0].split(".")[0] for key in (key1, key2)}
+    return key1 == key2 or ("zeta" in kinds and bool(kinds & set(_CHARGE_KEYS)))
+
+
+def _other_wall_hint(first: str, second: str) -> str:
+    """For every wall against one wall: how to vary the other wall instead."""
+    scopes = {_wall_scope(first)[0]: first, _wall_scope(second)[0]: second}
+    if "every" not in scopes or len(scopes) != 2:
+        return ""
+    side = next(scope for scope in scopes if scope != "every")
+    other = "bottom" if side == "top" else "top"
+    return f" (vary the {other} wall with 'wall.{other}.{_wall_scope(scopes['every'])[1]}')"
+
+
+def make_axes(axes: Mapping[str, Any], zipped: Sequence[Sequence[str]] = ()) -> tuple[Axis, ...]:
+    """Axes in the given order; paths named together in ``zipped`` share one dimension.
+
+    Raises
+    ------
+    InputError
+        Unknown path, empty or non-list values, zipped paths of different lengths or not in ``axes``.
+    """
+    if not isinstance(axes, Mapping) or not axes:
+        raise InputError(f"axes: {axes!r} is not a mapping of input paths to values, expected e.g. "
+                         "{'geometry.height': [...]}")
+    values = {_check_path(path): _axis_values(path, v) for path, v in axes.items()}
+    check_conflicts(values)
+    group_of: dict[str, tuple[str, ...]] = {}
+    for group in zipped:
+        group = tuple(group)
+        for path in group:
+            if path not in values:
+                raise InputError(f"zip: {path!r} is not one of the axes, expected one of {', '.join(values)}")
+            if path in group_of:
+                raise InputError(f"zip: {path!r} is zipped twice, expected each axis in at most one group")
+            group_of[path] = group
+        lengths = {len(values[p]) for p in group}
+        if len(lengths) > 1:
+            shown = ", ".join(f"{p} has {len(values[p])}" for p in group)
+            raise InputError(f"zip: zipped axes must have equal lengths, but {shown}")
+    result, seen = [], set()
+    for path in values:
+        if path in seen:
+            continue
+        group = group_of.get(path, (path,))
+        seen.update(group)
+        result.append(Axis(name=group[0], paths=group, values=tuple(values[p] for p in group)))
+    return tuple(result)
+
+
+def _set_wall(wall: dict[str, Any], key: str, value: Any) -> None:
+    """Set one key of a wall table; a fixed zeta and the charge keys exclude each other."""
+    if key == "zeta":
+        for other in _CHARGE_KEYS:
+            wall.pop(other, None)
+    elif key in ("charge_density", "stern_capacitance", "gate_voltage", "gate_capacitance"):
+        wall.pop("zeta", None)
+    if key.startswith("site["):
+        index, leaf = int(key[5:key.index("]")]), key.split(".")[-1]
+        sites = wall.get("site", [])
+        if index >= len(sites):
+            raise InputError(f"axes: wall.{key} names site {index}, but the wall has {len(sites)} kind(s) of site")
+        sites[index][leaf] = value
+        return
+    wall[key] = value
+
+
+def _set_path(table: dict[str, Any], path: str, value: Any) -> None:
+    """Set one input in the plain-dict form of a case (``io.case_to_dict``)."""
+    electrolyte = table["electrolyte"]
+    if path in ("electrolyte.concentration", "electrolyte.pH", "electrolyte.valence") and any(
+            ion["name"] in ("H+", "OH-") for ion in electrolyte["ions"]):
+        raise InputError(f"axes: {path!r} cannot be swept when H+ or OH- are among the ions, expected the pH given "
+                         "on its own (Electrolyte(..., pH=...) without water_ions)")
+    if path == "electrolyte.concentration":
+        ions = electrolyte["ions"]
+        factor = value / ions[0]["concentration"]
+        for ion in ions:
+            ion["concentration"] *= factor
+        return
+    if path == "electrolyte.valence":
+        if not (value >= 1 and value == int(value)):
+            raise InputError(f"axes: electrolyte.valence {value:g} is not a valence, expected a whole number of at "
+                             "least 1 (every ion takes it, with its own sign)")
+        for ion in electrolyte["ions"]:
+            ion["valence"] = int(value) if ion["valence"] > 0 else -int(value)
+        return
+    if path.startswith("wall."):
+        rest = path[len("wall."):]
+        wall = table["wall"]
+        paired = "bottom" in wall
+        side = rest.split(".")[0]
+        if side in ("bottom", "top"):
+            if not paired:  # one condition for both walls becomes a pair
+                table["wall"] = wall = {"bottom": wall, "top": json.loads(json.dumps(wall))}
+            _set_wall(wall[side], rest[len(side) + 1:], value)
+        else:
+            for one in ([wall["bottom"], wall["top"]] if paired else [wall]):
+                _set_wall(one, rest, value)
+        return
+    if path == "solvent.temperature" and table["solvent"].get("name") == "water":
+        # water's permittivity and viscosity follow the temperature (its correlations)
+        coefficient = table["solvent"].get("viscoelectric_coefficient")
+        table["solvent"] = {"temperature": value, "name": "water"}
+        if coefficient:
+            table["solvent"]["viscoelectric_coefficient"] = coefficient
+        return
+    node = table
+    *parents, leaf = path.split(".")
+    for key in parents:
+        node = node[key]
+    node[leaf] = value
+
+
+def case_at(base_table: Mapping[str, Any], axes: Sequence[Axis], index: Sequence[int]) -> Case:
+    """The case at one multi-index of the sweep."""
+    from edl_solver.inputs.casefile import case_from_mapping
+
+    table = json.loads(json.dumps(base_table))  # a deep copy of plain data
+    for axis, i in zip(axes, index):
+        for path, values in zip(axis.paths, axis.values):
+            _set_path(table, path, values[i])
+    return case_from_mapping(table)

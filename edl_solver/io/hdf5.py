@@ -1,0 +1,507 @@
+"""Results on disk: one netCDF-4 (HDF5) file per solve, written atomically, readable by xarray.
+
+Layout of schema version 1 (all in the root group, so ``xarray.open_dataset(path, engine="h5netcdf")``
+shows everything at once)::
+
+    dimensions   y (slit, 0 at the bottom wall .. H) or r (capillary, 0 on the axis .. a); ion;
+                 wall = ["bottom", "top"] (only when a summary value differs between the two walls)
+    coordinates  y or r (m), ion (names), wall
+    profiles     potential, charge_density, velocity_eo, velocity_pressure, velocity,
+                 velocity_thin_layer, eo_per_field on (y|r); concentration on (ion, y|r)
+    inputs       valence, bulk_concentration, diffusivity on (ion); diameter on (ion) when an ion
+                 has one (NaN for those without)
+    summary      one variable per summary key, named as the key: 0-d, or on (wall) for a
+                 (bottom, top) pair (NaN where a wall has no such value, e.g. the stern_potential of
+                 a wall without Stern layer); the attribute ``summary_keys`` lists them in order
+    group transport   response_matrix (flux x force: volume flow, current, salt flux against solvent force,
+                 field, salt force) and ion_response_matrix (ion_flux x ion_force), per unit length
+    attributes   every variable has ``units`` and ``long_name``; global attributes hold the case as
+                 JSON (``case_json``, the source of truth on reading) and as readable scalars with
+                 the unit in the name (``height_m``, ``field_V_per_m``, ``pH``,
+                 ``viscoelectric_coefficient_m2_per_V2``; per wall, prefixed ``wall_`` or
+                 ``wall_bottom_``/``wall_top_``: ``kind``, ``zeta_V`` or ``charge_density_C_per_m2``,
+                 ``stern_capacitance_F_per_m2``, ``gate_voltage_V``, ``gate_capacitance_F_per_m2``,
+                 ``slip_length_m`` and, per site n = 1, 2, ..., ``siten_name``, ``siten_density_per_m2``,
+                 ``siten_pK`` and ``siten_charges`` (arrays)), the verdict, status, message,
+                 iterations, residual, warnings (``warning_count``, ``warning_1``, ...),
+                 ``schema_version`` and ``edl_solver_version``
+
+The regulated walls, slip, steric model and viscoelectric solvent added keys to ``case_json`` and new
+variables and attributes, but changed none of version 1's, so files written before them read as before
+and the version stays 1 (a reader that predates those keys refuses such a file's ``case_json`` with an
+error naming the unknown key, rather than misreading it).
+
+Arrays are gzip-compressed with the shuffle filter (readable everywhere, unlike lzf); there are no
+bool, complex or enum types, which would break netCDF readers.
+
+``case_to_dict`` writes the plain-dict form of a Case that the JSON attribute and the TOML case files
+share; ``case_from_dict`` reads it back through the case-file parser (``edl_solver.inputs.casefile``).
+"""
+
+from __future__ import annotations
+
+import json
+import math
+import os
+import secrets
+from collections.abc import Iterator, Mapping, Sequence
+from contextlib import contextmanager, suppress
+from numbers import Integral, Real
+from pathlib import Path
+from typing import Any
+
+import numpy as np
+
+from edl_solver.errors import InputError
+from edl_solver.inputs.case import Capillary, Case, Slit, Wall
+from edl_solver.inputs.casefile import case_from_mapping, case_to_mapping
+from edl_solver.results.result import PROFILE_UNITS, SUMMARY_UNITS, Profiles, Result, summary_unit
+
+__all__ = ["SCHEMA_VERSION", "atomic_output", "case_from_dict", "case_to_dict", "read_result", "write_result"]
+
+#: Version of the file layout; bump it when a reader of the old layout would misread the new one.
+SCHEMA_VERSION = "1"
+
+_COMPRESSION = {"compression": "gzip", "compression_opts": 4, "shuffle": True}
+
+_COORDINATE_LONG_NAMES = {
+    "y": "distance across the slit from the bottom wall",
+    "r": "radial distance from the capillary axis",
+}
+
+#: Profile variables on the cross-section coordinate alone, with their long names.
+_PROFILE_LONG_NAMES = {
+    "potential": "electric potential relative to the reservoir",
+    "charge_density": "space charge density of the liquid",
+    "velocity_eo": "electroosmotic axial velocity",
+    "velocity_pressure": "pressure-driven axial velocity",
+    "velocity": "total axial velocity",
+    "velocity_thin_layer": "electroosmotic axial velocity of the thin-layer slip model",
+    "eo_per_field": "electroosmotic axial velocity per unit field",
+}
+
+
+# ----------------------------------------------------------------------------------------------
+# Atomic output
+
+
+def checked_output_path(path: object) -> Path:
+    """Check that ``path`` names a file that can be created; return it as a Path."""
+    if not isinstance(path, (str, os.PathLike)) or not os.fspath(path):
+        raise InputError(f"path: {path!r} is not a file path, expected a str or pathlib.Path")
+    target = Path(os.fspath(path)).expanduser()
+    if target.is_dir():
+        raise InputError(f"path: {str(path)!r} is a directory, expected a file name")
+    if not target.parent.is_dir():
+        raise InputError(f"path: {str(path)!r} is in a directory that does not exist ({str(target.parent)!r})")
+    return target
+
+
+@contextmanager
+def atomic_output(path: str | os.PathLike[str]) -> Iterator[Path]:
+    """Give a temporary file beside ``path``; move it onto ``path`` only if the block succeeds.
+
+    The temporary file lives in the target's directory, so ``os.replace`` is an atomic rename and a
+    reader never sees a half-written file under the final name. On any exception (including
+    KeyboardInterrupt) the temporary file is removed and an existing file at ``path`` is untouched.
+
+    Parameters
+    ----------
+    path : str or PathLike
+        Final file name; its directory must exist.
+
+    Yields
+    ------
+    Path
+        The temporary file (already created, empty) to write to.
+
+    Raises
+    ------
+    InputError
+        If ``path`` is not a path, is a directory, or its directory does not exist or is not writable.
+    """
+    target = checked_output_path(path)
+    temporary = target.with_name(f".{target.name}.{secrets.token_hex(6)}.tmp")
+    try:
+        # os.open with 0o666 lets the umask decide the final permissions (mkstemp would force 0o600).
+        os.close(os.open(temporary, os.O_WRONLY | os.O_CREAT | os.O_EXCL, 0o666))
+    except OSError as exc:
+        raise InputError(f"path: {str(path)!r} cannot be written ({exc.strerror})") from None
+    try:
+        yield temporary
+        descriptor = os.open(temporary, os.O_RDONLY)
+        try:
+            os.fsync(descriptor)  # data on disk before the rename makes it visible
+        finally:
+            os.close(descriptor)
+        os.replace(temporary, target)
+    except BaseException:
+        with suppress(OSError):
+            temporary.unlink()
+        raise
+
+
+# ----------------------------------------------------------------------------------------------
+# Case <-> plain dict (JSON attribute here, TOML case files in the CLI)
+
+
+def case_to_dict(case: Case) -> dict[str, Any]:
+    """The case as a plain dict of SI numbers, strings and lists (JSON- and TOML-compatible, no None).
+
+    The shape of the TOML case files (``casefile.case_to_mapping``, which this is), so that one parser
+    reads both.
+
+    Parameters
+    ----------
+    case : Case
+
+    Returns
+    -------
+    dict
+        ``{"geometry": {"kind": "slit", "height": H} | {"kind": "capillary", "radius": a},
+        "electrolyte": {"ions": [{"name", "valence", "concentration", "diffusivity"[, "diameter"]}, ...][,
+        "pH"]}, "wall": {...} | {"bottom": {...}, "top": {...}}, "solvent": {"temperature",
+        "relative_permittivity", "viscosity", "name"[, "viscoelectric_coefficient"]}, "field",
+        "pressure_gradient", "model", "tolerance", "numerics": {"accuracy", "max_iterations",
+        "max_intervals"[, "intervals"]}}``; a wall table holds what is set of ``zeta``,
+        ``charge_density``, ``stern_capacitance``, ``gate_voltage``, ``gate_capacitance``,
+        ``slip_length`` and ``site`` (a list of ``{"name", "density", "pK", "charges"}``).
+        ``case_from_dict`` inverts it exactly, except that H+ and OH- added by ``water_ions=True`` come
+        back as plain ions with ``water_ions=False`` (the same physical case; reading the flag again
+        would add them twice).
+
+    Raises
+    ------
+    InputError
+        If ``case`` is not a Case.
+    """
+    return case_to_mapping(case)
+
+
+def case_from_dict(table: Mapping[str, Any]) -> Case:
+    """Build a Case from its plain-dict form (the shape ``case_to_dict`` writes).
+
+    The dict shape is the one of the TOML case files, so this is ``casefile.case_from_mapping``:
+    one parser for both, which also takes strings with units, optional sections and the short
+    forms of a case file (``ions = {"K+" = "1 mM", ...}``).
+
+    Parameters
+    ----------
+    table : mapping
+
+    Returns
+    -------
+    Case
+
+    Raises
+    ------
+    InputError
+        On a missing or unknown key (with a "did you mean" hint) or an invalid value.
+    """
+    return case_from_mapping(table)
+
+
+# ----------------------------------------------------------------------------------------------
+# Writing
+
+
+def _add_array(file: Any, name: str, dims: tuple[str, ...], data: Any, units: str, long_name: str) -> None:
+    data = np.asarray(data)
+    options = _COMPRESSION if data.ndim else {}  # HDF5 cannot chunk (so cannot filter) a scalar
+    variable = file.create_variable(name, dims, data.dtype, data=data, **options)
+    variable.attrs["units"] = units
+    variable.attrs["long_name"] = long_name
+
+
+def _add_strings(file: Any, name: str, values: Sequence[str], long_name: str) -> None:
+    import h5py
+
+    variable = file.create_variable(name, (name,), h5py.string_dtype(), data=np.array(values, dtype=object))
+    variable.attrs["long_name"] = long_name
+
+
+def _summary_array(key: str, value: Any) -> np.ndarray:
+    """A summary value as float64 (int64 for counts), rejecting what a netCDF reader cannot take."""
+    items = value if isinstance(value, tuple) else (value,)
+    if isinstance(value, tuple) and len(value) != 2:
+        raise ValueError(f"summary[{key!r}]: {value!r} is not a (bottom, top) pair")
+    if any(isinstance(v, (bool, np.bool_)) or not isinstance(v, Real) for v in items):
+        raise ValueError(f"summary[{key!r}]: {value!r} is not a real number (bool and complex break netCDF)")
+    integral = all(isinstance(v, Integral) for v in items)
+    data = np.array(items, dtype=np.int64 if integral else np.float64)
+    return data if isinstance(value, tuple) else data.reshape(())
+
+
+def _wall_attributes(prefix: str, wall: Wall) -> dict[str, Any]:
+    """A wall's inputs as attributes named ``<prefix>_<field>_<unit>``; sites numbered from 1."""
+    attrs: dict[str, Any] = {f"{prefix}_kind": wall.kind}
+    for name, unit in (("zeta", "V"), ("charge_density", "C_per_m2"), ("stern_capacitance", "F_per_m2"),
+                       ("gate_voltage", "V"), ("gate_capacitance", "F_per_m2")):
+        if getattr(wall, name) is not None:
+            attrs[f"{prefix}_{name}_{unit}"] = getattr(wall, name)
+    attrs[f"{prefix}_slip_length_m"] = wall.slip_length
+    for number, site in enumerate(wall.sites, start=1):
+        attrs[f"{prefix}_site{number}_name"] = site.name
+        attrs[f"{prefix}_site{number}_density_per_m2"] = site.density
+        attrs[f"{prefix}_site{number}_pK"] = np.array(site.pks, dtype=np.float64)
+        attrs[f"{prefix}_site{number}_charges"] = np.array(site.charges, dtype=np.int32)
+    return attrs
+
+
+def _case_attributes(case: Case) -> dict[str, Any]:
+    """Readable scalar inputs; the unit is in the name because attributes carry no attributes."""
+    g, s = case.geometry, case.solvent
+    attrs: dict[str, Any] = {"geometry": "slit" if isinstance(g, Slit) else "capillary"}
+    if isinstance(g, Slit):
+        attrs["height_m"] = g.height
+    else:
+        attrs["radius_m"] = g.radius
+    walls = (("wall", case.wall),) if isinstance(case.wall, Wall) else \
+        (("wall_bottom", case.wall[0]), ("wall_top", case.wall[1]))
+    for prefix, wall in walls:
+        attrs.update(_wall_attributes(prefix, wall))
+    if case.electrolyte.pH is not None:
+        attrs["pH"] = case.electrolyte.pH
+    attrs.update({
+        "model": case.model,
+        "solvent": s.name,
+        "temperature_K": s.temperature,
+        "relative_permittivity": s.relative_permittivity,
+        "viscosity_Pa_s": s.viscosity,
+        "viscoelectric_coefficient_m2_per_V2": s.viscoelectric_coefficient,
+        "field_V_per_m": case.field,
+        "pressure_gradient_Pa_per_m": case.pressure_gradient,
+        "tolerance": case.tolerance,
+        "numerics_accuracy": case.numerics.accuracy,
+        "numerics_max_iterations": case.numerics.max_iterations,
+        "numerics_max_intervals": case.numerics.max_intervals,
+    })
+    if case.numerics.intervals is not None:
+        attrs["numerics_intervals"] = case.numerics.intervals
+    return attrs
+
+
+def _write(file: Any, result: Result) -> None:
+    from edl_solver import __version__
+
+    case, p = result.case, result.profiles
+    capillary = isinstance(case.geometry, Capillary)
+    coordinate = p.coordinate_name
+    if coordinate != ("r" if capillary else "y"):
+        raise ValueError(f"profiles.coordinate_name: {coordinate!r} does not fit a "
+                         f"{'capillary' if capillary else 'slit'}")
+    file.dimensions[coordinate] = p.coordinate.size
+    file.dimensions["ion"] = len(p.ion_names)
+    if any(isinstance(value, tuple) for value in result.summary.values()):
+        file.dimensions["wall"] = 2
+        _add_strings(file, "wall", ("bottom", "top"), "wall of the slit")
+    _add_array(file, coordinate, (coordinate,), p.coordinate, PROFILE_UNITS["coordinate"],
+               _COORDINATE_LONG_NAMES[coordinate])
+    _add_strings(file, "ion", p.ion_names, "ion species")
+
+    for name, long_name in _PROFILE_LONG_NAMES.items():
+        _add_array(file, name, (coordinate,), getattr(p, name), PROFILE_UNITS[name], long_name)
+    _add_array(file, "concentration", ("ion", coordinate), p.concentration, PROFILE_UNITS["concentration"],
+               "ion concentration")
+
+    ions = case.electrolyte.ions
+    _add_array(file, "valence", ("ion",), np.array([ion.valence for ion in ions], dtype=np.int32), "1",
+               "charge number of the ion")
+    _add_array(file, "bulk_concentration", ("ion",), [ion.concentration for ion in ions], "mol/m^3",
+               "ion concentration in the reservoir (bulk)")
+    _add_array(file, "diffusivity", ("ion",), [ion.diffusivity for ion in ions], "m^2/s",
+               "ion diffusion coefficient")
+    if any(ion.diameter is not None for ion in ions):
+        _add_array(file, "diameter", ("ion",), [math.nan if ion.diameter is None else ion.diameter for ion in ions],
+                   "m", "ion diameter (steric model; NaN where not given)")
+
+    for key, value in result.summary.items():
+        if key not in SUMMARY_UNITS:
+            raise ValueError(f"summary[{key!r}]: no unit in edl_solver.results.result.SUMMARY_UNITS; add it there")
+        if key in file.variables:
+            raise ValueError(f"summary[{key!r}]: clashes with the variable of the same name in the file")
+        data = _summary_array(key, value)
+        _add_array(file, key, ("wall",) if data.ndim else (), data, summary_unit(key, capillary),
+                   SUMMARY_UNITS[key][1])
+
+    if result.response_matrix is not None:
+        _write_transport(file.create_group("transport"), result, capillary)
+
+    attrs = {
+        "title": f"edl_solver result: {case.describe()}",
+        "schema_version": SCHEMA_VERSION,
+        "edl_solver_version": __version__,
+        "case_json": json.dumps(case_to_dict(case)),
+        **_case_attributes(case),
+        "verdict": result.verdict,
+        "status": result.status,
+        "message": result.message,
+        "iterations": int(result.iterations),
+        "residual": float(result.residual),
+        "summary_keys": " ".join(result.summary),
+        # One attribute per warning: an empty list attribute would come back as a float array.
+        "warning_count": len(result.warnings),
+        **{f"warning_{n}": text for n, text in enumerate(result.warnings, start=1)},
+    }
+    for name, value in attrs.items():
+        file.attrs[name] = value
+
+
+#: Rows (fluxes) and columns (forces) of the 3 x 3 response matrix, with their units (slit, capillary).
+_FLUXES = (("volume_flow", "m^2/s", "m^3/s"), ("current", "A/m", "A"), ("salt_flux", "mol/(m*s)", "mol/s"))
+_FORCES = (("solvent_force", "Pa/m"), ("field", "V/m"), ("salt_force", "J/(mol*m)"))
+
+
+def _write_transport(group: Any, result: Result, capillary: bool) -> None:
+    """Group "transport": the response matrices, per unit length (slit: per unit width)."""
+    ions = result.profiles.ion_names
+    group.dimensions = {"flux": 3, "force": 3, "ion_flux": len(ions) + 1, "ion_force": len(ions) + 1}
+    _add_strings_on(group, "flux", "flux", [f for f, *_ in _FLUXES], "conjugate flux (row)")
+    _add_strings_on(group, "force", "force", [f for f, _ in _FORCES], "driving force (column)")
+    _add_strings_on(group, "ion_flux", "ion_flux", ["volume_flow", *ions], "flux: volume flow, then each ion")
+    _add_strings_on(group, "ion_force", "ion_force", ["solvent_force", *ions], "force: solvent, then each ion")
+    units = ", ".join(f"{f} [{c if capillary else s}]" for f, s, c in _FLUXES) + " per " + ", ".join(
+        f"{f} [{u}]" for f, u in _FORCES)
+    _add_array(group, "response_matrix", ("flux", "force"), result.response_matrix, "mixed (see units_by_entry)",
+               "linear-response matrix of the section per unit length (space-charge model)")
+    group.variables["response_matrix"].attrs["units_by_entry"] = units
+    _add_array(group, "ion_response_matrix", ("ion_flux", "ion_force"), result.ion_response_matrix,
+               "mixed (volume flow m^3/s or m^2/s, ion flux mol/s or mol/(m s); forces Pa/m and J/(mol m))",
+               "linear-response matrix resolved per ion (solvent force, then the ions' electrochemical forces)")
+
+
+def _add_strings_on(group: Any, name: str, dim: str, values: Sequence[str], long_name: str) -> None:
+    import h5py
+
+    variable = group.create_variable(name, (dim,), h5py.string_dtype(), data=np.array(values, dtype=object))
+    variable.attrs["long_name"] = long_name
+
+
+def write_result(result: Result, path: str | os.PathLike[str]) -> Path:
+    """Write ``result`` to a netCDF-4 (HDF5) file, atomically (layout in the module docstring).
+
+    Parameters
+    ----------
+    result : Result
+    path : str or PathLike
+        File to create or replace; its directory must exist.
+
+    Returns
+    -------
+    Path
+        ``path`` as a Path.
+
+    Raises
+    ------
+    InputError
+        If ``result`` is not a Result or ``path`` cannot be written. On any failure an existing
+        file at ``path`` is left as it was and no temporary file remains.
+    """
+    if not isinstance(result, Result):
+        raise InputError(f"result: {type(result).__name__} is not a Result, expected the return of solve()")
+    import h5netcdf
+
+    with atomic_output(path) as temporary, h5netcdf.File(temporary, "w") as file:
+        _write(file, result)
+    return Path(os.fspath(path)).expanduser()
+
+
+# ----------------------------------------------------------------------------------------------
+# Reading
+
+
+def _text(value: Any) -> str:
+    return value.decode() if isinstance(value, bytes) else str(value)
+
+
+def _number(value: Any) -> float | int:
+    return int(value) if isinstance(value, (Integral, np.integer)) else float(value)
+
+
+def _read(file: Any, shown: str) -> Result:
+    attrs = dict(file.attrs)
+    if "schema_version" not in attrs or "case_json" not in attrs:
+        raise InputError(f"path: {shown} is not an edl_solver result (no schema_version or case_json attribute)")
+    version = _text(attrs["schema_version"])
+    if not version.isdigit():
+        raise InputError(f"path: {shown} is not an edl_solver result (schema_version {version!r})")
+    if int(version) > int(SCHEMA_VERSION):
+        from edl_solver import __version__
+
+        raise InputError(f"path: {shown} has schema_version {version}, newer than edl_solver {__version__} "
+                         f"reads (up to {SCHEMA_VERSION}); upgrade edl_solver")
+    try:
+        case = case_from_dict(json.loads(_text(attrs["case_json"])))
+    except (ValueError, TypeError) as exc:  # InputError and JSONDecodeError are ValueErrors
+        raise InputError(f"path: {shown} has an unreadable case_json ({exc})") from None
+    coordinate = "r" if isinstance(case.geometry, Capillary) else "y"
+    variables = file.variables
+    missing = [name for name in (coordinate, "ion", "concentration", *_PROFILE_LONG_NAMES) if name not in variables]
+    if missing:
+        raise InputError(f"path: {shown} is not a complete edl_solver result (no variable {missing[0]!r})")
+    profiles = Profiles(
+        coordinate=np.asarray(variables[coordinate][...], dtype=float),
+        coordinate_name=coordinate,
+        ion_names=tuple(_text(name) for name in variables["ion"][...]),
+        concentration=np.asarray(variables["concentration"][...], dtype=float),
+        **{name: np.asarray(variables[name][...], dtype=float) for name in _PROFILE_LONG_NAMES},
+    )
+    summary: dict[str, Any] = {}
+    for key in _text(attrs.get("summary_keys", "")).split():
+        if key not in variables:
+            raise InputError(f"path: {shown} is not a complete edl_solver result (no summary value {key!r})")
+        data = variables[key][...]
+        summary[key] = tuple(_number(v) for v in data) if np.ndim(data) else _number(data[()])
+    warnings = tuple(_text(attrs[f"warning_{n}"]) for n in range(1, int(attrs.get("warning_count", 0)) + 1))
+    matrices: dict[str, Any] = {}
+    if "transport" in file.groups:
+        transport = file.groups["transport"].variables
+        matrices = {name: np.asarray(transport[name][...], dtype=float)
+                    for name in ("response_matrix", "ion_response_matrix") if name in transport}
+    return Result(
+        case=case,
+        profiles=profiles,
+        summary=summary,
+        verdict=_text(attrs.get("verdict", "")),
+        status=_text(attrs.get("status", "")),
+        message=_text(attrs.get("message", "")),
+        iterations=int(attrs.get("iterations", 0)),
+        residual=float(attrs.get("residual", math.nan)),
+        warnings=warnings,
+        **matrices,
+    )
+
+
+def read_result(path: str | os.PathLike[str]) -> Result:
+    """Read a result written by ``write_result``.
+
+    Parameters
+    ----------
+    path : str or PathLike
+
+    Returns
+    -------
+    Result
+        Case rebuilt from the ``case_json`` attribute (equal to the written one), profiles as float
+        arrays, summary values as python floats or (bottom, top) tuples.
+
+    Raises
+    ------
+    InputError
+        If the file does not exist, is not an edl_solver result, or has a newer schema version.
+    """
+    if not isinstance(path, (str, os.PathLike)) or not os.fspath(path):
+        raise InputError(f"path: {path!r} is not a file path, expected a str or pathlib.Path")
+    source = Path(os.fspath(path)).expanduser()
+    shown = repr(str(path))
+    if not source.is_file():
+        what = "is a directory" if source.is_dir() else "does not exist"
+        raise InputError(f"path: {shown} {what}, expected an edl_solver result file")
+    import h5netcdf
+
+    try:
+        file = h5netcdf.File(os.fspath(source), "r")
+    except OSError:  # h5py's message is several lines about the HDF5 signature; one line is enough
+        raise InputError(f"path: {shown} is not an edl_solver result (not an HDF5 file)") from None
+    with file:
+        return _read(file, shown)

@@ -1,0 +1,1 @@
+"""Compiled (numba) arithmetic: nothing here imports anything of the package above ``constants``."""

@@ -1,0 +1,288 @@
+"""Compiled nested-grid driver: Richardson extrapolation and error control.
+
+One case: solve on four nested grids (each halving the spacing of the previous), extrapolate the
+section integrals from the three finest (h^2 and h^4 error terms removed) and from the three coarsest;
+their difference, divided by 8, is the error estimate, and the grid is doubled until it meets the
+requested accuracy. Batches of cases run in ``_batch.py``.
+
+Takes only arrays and scalars; see _kernels.py for the single-grid arithmetic and equilibrium.py for
+the Python side.
+"""
+
+from __future__ import annotations
+
+import numpy as np
+from numba import njit
+
+from edl_solver.kernels.fv1d import (
+    I_FLUX_LEFT,
+    I_FLUX_RIGHT,
+    I_PSI,
+    I_PSI_CENTRE,
+    I_PSI_LEFT,
+    I_PSI_RIGHT,
+    I_RHO,
+    I_RHO_UEO,
+    I_RHO_UP,
+    I_UEO,
+    I_UP,
+    ION_INTEGRALS,
+    finite_volume_metric,
+    pb_newton,
+    section_integrals,
+)
+
+LEVELS = 4
+#: Newton stops when a full step is below this (kT/e).
+NEWTON_TOLERANCE = 1e-11
+#: Newton steps are capped at this size (kT/e) before the line search.
+MAX_STEP = 5.0
+
+#: Potentials below this (kT/e) count as zero when errors are measured (and in the identity checks).
+POTENTIAL_FLOOR = 1e-6
+
+# status codes of a case
+CONVERGED = 0
+NEWTON_FAILED = 1
+ACCURACY_MISSED = 2
+
+
+@njit(cache=True)
+def stretching(inner_length):
+    """Stretching beta of the tanh map whose wall cells resolve ``inner_length`` (units of L).
+
+    Near a wall the map gives d ~ 2 exp(-2 beta) (exp(2 beta t) - 1), t = 1 - s: the geometric growth
+    starts at d ~ 2 exp(-2 beta), set equal to the smallest physical scale of the layer.
+    """
+    return max(0.5 * np.log1p(2.0 / inner_length), 1e-3)
+
+
+@njit(cache=True)
+def computational_nodes(intervals, half):
+    """Uniform nodes s in [0, 1] (half section) or [-1, 1] (full slit section), centre node exact."""
+    if half:
+        return np.linspace(0.0, 1.0, intervals + 1)
+    s = np.linspace(-1.0, 1.0, 2 * intervals + 1)
+    s[intervals] = 0.0
+    return s
+
+
+@njit(cache=True)
+def inner_length(kappa2, wall_guess, counter):
+    """Smallest scale of the layer in units of L: lambda_D shrunk by the Gouy-Chapman factor
+    2 exp(-z |psi_w| / 2) of the steep innermost part at high wall potentials."""
+    worst = max(abs(wall_guess[0]) * counter[0], abs(wall_guess[1]) * counter[1])
+    return min(1.0, 2.0 * np.exp(-0.5 * worst)) / np.sqrt(kappa2)
+
+
+@njit(cache=True)
+def gouy_chapman_guess(x, kappa2, half, wall_guess, counter, psi):
+    """Superposed Gouy-Chapman profiles (Gouy 1910; Chapman 1913) from the walls, in place on ``psi``:
+    psi_w(d) = (4/z) artanh[tanh(z psi_w / 4) exp(-kappa d)], z the counter-ion valence; the mirror wall
+    of a half section counts as the second wall."""
+    kappa = np.sqrt(kappa2)
+    left, z_left = wall_guess[0], counter[0]
+    right, z_right = wall_guess[1], counter[1]
+    if half:
+        left, z_left = right, z_right
+    for i in range(x.size):
+        a = 4.0 / z_left * np.arctanh(np.tanh(z_left * left / 4.0) * np.exp(-kappa * (x[i] + 1.0)))
+        b = 4.0 / z_right * np.arctanh(np.tanh(z_right * right / 4.0) * np.exp(-kappa * (1.0 - x[i])))
+        psi[i] = a + b
+
+
+@njit(cache=True)
+def prolong(coarse, fine):
+    """Linear interpolation (in grid index) onto the grid with every interval halved."""
+    m = coarse.size
+    for i in range(m):
+        fine[2 * i] = coarse[i]
+    for i in range(m - 1):
+        fine[2 * i + 1] = 0.5 * (coarse[i] + coarse[i + 1])
+
+
+@njit(cache=True)
+def correct_profile(fine, medium):
+    """Richardson-correct a fine-grid profile in place with the next coarser one: psi + (psi - psi_2h)/3
+    at the shared nodes, the correction interpolated (cubic in s, one-sided at the ends) between them.
+    Removes the h^2 error term, so profiles are fourth-order accurate like the summary's building blocks."""
+    m = medium.size
+    d = np.empty(m)
+    for i in range(m):
+        d[i] = (fine[2 * i] - medium[i]) / 3.0
+    for i in range(m - 1):
+        if m < 4:
+            mid = 0.5 * (d[i] + d[i + 1])
+        elif i == 0:
+            mid = (5.0 * d[0] + 15.0 * d[1] - 5.0 * d[2] + d[3]) / 16.0
+        elif i == m - 2:
+            mid = (5.0 * d[m - 1] + 15.0 * d[m - 2] - 5.0 * d[m - 3] + d[m - 4]) / 16.0
+        else:
+            mid = (-d[i - 1] + 9.0 * d[i] + 9.0 * d[i + 1] - d[i + 2]) / 16.0
+        fine[2 * i + 1] += mid
+    for i in range(m):
+        fine[2 * i] += d[i]
+
+
+@njit(cache=True)
+def extrapolate(fine, medium, coarse, out):
+    """Richardson extrapolation removing the h^2 and h^4 error terms (spacing halves per grid)."""
+    for j in range(out.size):
+        out[j] = (64.0 * fine[j] - 20.0 * medium[j] + coarse[j]) / 45.0
+
+
+@njit(cache=True)
+def error_scale(values, measure, n_ions, kappa, scale):
+    """Magnitudes the errors of the integrals are measured against: the value itself, or, where it may
+    vanish (the centre potential of a wide channel, flows between walls of opposite sign), the natural
+    size built from the wall potential, the wall charge and the pressure-flow scale."""
+    # Floors: 1e-6 kT/e for potentials and the charge such a potential holds on a Debye-Hueckel wall, so that
+    # walls at (or near) zero potential or charge, e.g. at their point of zero charge, are measured against
+    # a physical size rather than their own round-off.
+    psi_scale = max(abs(values[I_PSI_LEFT]), abs(values[I_PSI_RIGHT]), POTENTIAL_FLOOR)
+    wall_charge = abs(values[I_FLUX_LEFT]) + abs(values[I_FLUX_RIGHT]) + POTENTIAL_FLOOR * max(1.0, kappa)
+    up_scale = abs(values[I_UP]) / measure
+    for j in range(values.size):
+        scale[j] = abs(values[j])
+    scale[I_PSI] = max(scale[I_PSI], psi_scale * measure)
+    scale[I_UEO] = max(scale[I_UEO], psi_scale * measure)
+    scale[I_PSI_LEFT] = max(scale[I_PSI_LEFT], psi_scale)
+    scale[I_PSI_RIGHT] = max(scale[I_PSI_RIGHT], psi_scale)
+    scale[I_PSI_CENTRE] = max(scale[I_PSI_CENTRE], psi_scale)
+    scale[I_RHO] = max(scale[I_RHO], wall_charge)
+    scale[I_FLUX_LEFT] = max(scale[I_FLUX_LEFT], wall_charge)
+    scale[I_FLUX_RIGHT] = max(scale[I_FLUX_RIGHT], wall_charge)
+    scale[I_RHO_UEO] = max(scale[I_RHO_UEO], wall_charge * psi_scale)
+    scale[I_RHO_UP] = max(scale[I_RHO_UP], wall_charge * up_scale)
+    for k in range(n_ions):
+        scale[ION_INTEGRALS + k] = max(scale[ION_INTEGRALS + k], measure)
+    for j in range(values.size):
+        scale[j] = max(scale[j], 1e-300)
+
+
+@njit(cache=True)
+def starting_intervals(beta, accuracy):
+    """Cells per half section of the first try: more for stiff layers and tight accuracy."""
+    wanted = max(32.0, 8.0 * beta) * max(1.0, (1e-6 / accuracy) ** (1.0 / 6.0))
+    return int(2 ** np.ceil(np.log2(wanted)))
+
+
+@njit(cache=True)
+def nested_solve(s, beta, metric, kappa2, ions, model, walls, flow_walls, visco, psi, u_eo, u_p, max_iter,
+                 integrals, first_level, coarse):
+    """Solve on nested grids and fill ``integrals[level]`` (LEVELS grids, finest last).
+
+    ``s`` are the finest computational nodes and ``psi`` holds the start guess there. The coarsest grid
+    starts from its subsample, each finer one from the prolonged coarser solution (nested iteration), so
+    fine grids need one or two Newton steps. Levels below ``first_level`` are taken as already solved (after
+    a refinement they are the previous grids); ``coarse`` then holds the raw (psi, u_eo, u_p) rows of the
+    level just below. The finest profiles, Richardson-corrected with the next coarser grid
+    (``correct_profile``), are returned in psi, u_eo, u_p.
+
+    Returns status (0 converged), total Newton iterations, final scaled residual, and the raw finest
+    (psi, u_eo, u_p) as a 3-row array (for the next refinement).
+    """
+    total = 0
+    residual = 0.0
+    start = psi.copy()
+    guess = coarse[0].copy()
+    ue_previous = coarse[1].copy()
+    up_previous = coarse[2].copy()
+    half = s[0] == 0.0
+    raw = np.empty((3, s.size))
+    for level in range(first_level, LEVELS):
+        stride = 2 ** (LEVELS - 1 - level)
+        sl = s[::stride].copy()
+        n = sl.size
+        xl = np.empty(n)
+        link = np.empty(n - 1)
+        volume = np.empty(n)
+        spacing = np.empty(n - 1)
+        finite_volume_metric(sl, beta, metric, xl, link, volume, spacing)
+        if level == first_level and first_level == 0:
+            p = start[::stride].copy()
+        else:
+            p = np.empty(n)
+            prolong(guess, p)
+        status, its, residual = pb_newton(p, link, volume, kappa2, ions, model, walls, NEWTON_TOLERANCE,
+                                          max_iter, MAX_STEP)
+        total += its
+        if status != 0:
+            return status, total, residual, raw
+        ue = np.empty(n)
+        up = np.empty(n)
+        centre = 0 if half else (n - 1) // 2
+        section_integrals(p, link, volume, spacing, kappa2, ions, model, walls, centre, flow_walls, visco,
+                          ue, up, integrals[level])
+        if level == LEVELS - 1:
+            raw[0], raw[1], raw[2] = p, ue, up
+            correct_profile(p, guess)
+            correct_profile(ue, ue_previous)
+            correct_profile(up, up_previous)
+            psi[:] = p
+            u_eo[:] = ue
+            u_p[:] = up
+        guess, ue_previous, up_previous = p, ue, up
+    return 0, total, residual, raw
+
+
+@njit(cache=True)
+def solve_adaptive(metric, half, kappa2, ions, model, walls, flow_walls, visco, wall_guess, counter, accuracy,
+                   intervals, max_intervals, max_iter, guess, out):
+    """One case to the requested accuracy; fills ``out`` with the extrapolated integrals.
+
+    ``intervals`` > 0 fixes the finest grid (no refinement); 0 chooses it from the stiffness and refines,
+    each refinement solving only the new finest grid (the coarser three are the previous ones).
+    ``guess`` is a start profile on the first grid's nodes, or empty for the Gouy-Chapman guess.
+
+    Returns
+    -------
+    status, iterations, estimate, residual, intervals, s, beta, psi, u_eo, u_p
+        Status CONVERGED, NEWTON_FAILED or ACCURACY_MISSED; the finest grid's nodes and profiles.
+    """
+    n_ions = ions.shape[0]
+    beta = stretching(inner_length(kappa2, wall_guess, counter))
+    n_half = intervals if intervals > 0 else min(starting_intervals(beta, accuracy), max_intervals)
+    s = computational_nodes(n_half, half)
+    psi = np.empty(s.size)
+    if guess.size == s.size:
+        psi[:] = guess
+    elif guess.size > s.size and (guess.size - 1) % (s.size - 1) == 0:
+        psi[:] = guess[::(guess.size - 1) // (s.size - 1)]
+    else:
+        x = np.tanh(beta * s) / np.tanh(beta)
+        gouy_chapman_guess(x, kappa2, half, wall_guess, counter, psi)
+    levels = np.zeros((LEVELS, out.size))
+    lower = np.empty(out.size)
+    scale = np.empty(out.size)
+    iterations = 0
+    first_level = 0
+    coarse = np.empty((3, 0))
+    while True:
+        u_eo = np.empty(s.size)
+        u_p = np.empty(s.size)
+        status, its, residual, raw = nested_solve(s, beta, metric, kappa2, ions, model, walls, flow_walls,
+                                                  visco, psi, u_eo, u_p, max_iter, levels, first_level, coarse)
+        iterations += its
+        if status != 0:
+            return NEWTON_FAILED, iterations, np.inf, residual, n_half, s, beta, psi, u_eo, u_p
+        extrapolate(levels[3], levels[2], levels[1], out)
+        extrapolate(levels[2], levels[1], levels[0], lower)
+        measure = 1.0 if (half and metric == 0) else (2.0 if metric == 0 else 0.5)
+        error_scale(out, measure, n_ions, np.sqrt(kappa2), scale)
+        estimate = 0.0
+        for j in range(out.size):
+            estimate = max(estimate, abs(out[j] - lower[j]) / scale[j])
+        estimate /= 8.0
+        if estimate <= accuracy or intervals > 0:
+            return CONVERGED, iterations, estimate, residual, n_half, s, beta, psi, u_eo, u_p
+        if 2 * n_half > max_intervals:
+            return ACCURACY_MISSED, iterations, estimate, residual, n_half, s, beta, psi, u_eo, u_p
+        # refine: the three finer grids become the coarser three of the new set
+        for level in range(LEVELS - 1):
+            levels[level, :] = levels[level + 1, :]
+        first_level = LEVELS - 1
+        coarse = raw
+        n_half *= 2
+        s = computational_nodes(n_half, half)
+        psi = np.empty(s.size)  # the finest guess is prolonged from the raw coarse solution inside

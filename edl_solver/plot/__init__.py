@@ -1,0 +1,1 @@
+"""Figures (matplotlib, imported only when a figure is asked for)."""

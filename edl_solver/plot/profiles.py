@@ -1,0 +1,237 @@
+"""Figures of one result: potential, ion concentrations and velocity across the section.
+
+matplotlib is imported only when a figure is asked for. The figure is built on
+``matplotlib.figure.Figure`` with an explicit Agg canvas, so no pyplot figure is created and the
+process-wide backend is left alone (``matplotlib.use`` would switch, and close, the figures of a
+user's interactive session).
+"""
+
+from __future__ import annotations
+
+import os
+from pathlib import Path
+from typing import Any
+
+import numpy as np
+
+from edl_solver.constants import ZERO_CELSIUS
+from edl_solver.errors import InputError
+from edl_solver.inputs.case import Capillary, Case, Slit, Wall
+from edl_solver.io.hdf5 import atomic_output
+from edl_solver.report.text import MODEL_NAMES, close_packing, prefixed
+from edl_solver.results.result import Result
+
+__all__ = ["profile_figure"]
+
+_WALL_COLOUR = "0.85"
+#: Width of the wall zoom panels, in Debye lengths: the double layer and the start of the outer region.
+_ZOOM_DEBYE_LENGTHS = 8.0
+
+
+def _condition(wall: Wall) -> str:
+    """A wall in brief: ζ, σ, or its regulation (sites, Stern layer, gate); and its slip length."""
+    if wall.kind == "potential":
+        text = f"ζ = {wall.zeta * 1e3:.3g} mV"
+    elif wall.kind == "charge":
+        text = f"σ = {wall.charge_density * 1e3:.3g} mC/m²"
+    else:
+        parts = [f"{site.name} pK {'/'.join(f'{pk:g}' for pk in site.pks)}" for site in wall.sites]
+        if wall.charge_density is not None:
+            parts.append(f"σ_fixed {wall.charge_density * 1e3:.3g} mC/m²")
+        if wall.stern_capacitance is not None:
+            parts.append(f"C_S {wall.stern_capacitance:.3g} F/m²")
+        if wall.gate_voltage is not None:
+            parts.append(f"gate {wall.gate_voltage:.3g} V")
+        text = f"regulated ({', '.join(parts)})"
+    return text + (f", slip b = {wall.slip_length * 1e9:.3g} nm" if wall.slip_length > 0.0 else "")
+
+
+def _title(case: Case) -> str:
+    """The case in brief, in the units of the field: section and liquid; the walls (one line each when they
+    differ); drives and model."""
+    g = case.geometry
+    size = f"Slit H = {g.height * 1e9:.4g} nm" if isinstance(g, Slit) else f"Capillary a = {g.radius * 1e9:.4g} nm"
+    electrolyte = case.electrolyte
+    liquid = ", ".join(f"{ion.name} {ion.concentration:.3g} mM" for ion in electrolyte.ions)
+    if electrolyte.pH is not None:
+        liquid += f", pH {electrolyte.pH:.3g}"
+    liquid += f"; {case.solvent.temperature - ZERO_CELSIUS:.3g} °C"
+    if case.solvent.viscoelectric_coefficient > 0.0:
+        liquid += f", viscoelectric f = {case.solvent.viscoelectric_coefficient:.2g} m²/V²"
+    if case.symmetric:
+        walls = f"wall {_condition(case.walls[0])}"
+    else:
+        walls = f"bottom wall {_condition(case.walls[0])}\ntop wall {_condition(case.walls[1])}"
+    drives = f"E = {prefixed(case.field, 'V/m')}"
+    if case.pressure_gradient != 0.0:
+        drives += f", dp/dx = {prefixed(case.pressure_gradient, 'Pa/m')}"
+    model = MODEL_NAMES.get(case.model, case.model)
+    if case.model == "steric":
+        model += f", d = {case.electrolyte.ions[0].diameter * 1e9:.3g} nm"
+    return f"{size}; {liquid}\n{walls}\n{drives}; {model}"
+
+
+def _mark_walls(axes: Any, low: float, high: float, capillary: bool, margin: float, label: bool) -> None:
+    """Shade the solid beyond each wall and draw the wall line, so the channel's extent is plain."""
+    bands = [(high, high + margin, high)] if capillary else [(low - margin, low, low), (high, high + margin, high)]
+    for start, end, wall in bands:
+        axes.axvspan(start, end, color=_WALL_COLOUR, zorder=0, lw=0)
+        axes.axvline(wall, color="0.35", lw=1.2, zorder=1)
+        if label:
+            axes.text(0.5 * (start + end), 0.5, "wall", transform=axes.get_xaxis_transform(), rotation=90,
+                      ha="center", va="center", fontsize="small", color="0.3")
+
+
+def _draw_column(column: Any, x: np.ndarray, result: Result, label: bool) -> None:
+    """Potential, concentrations and velocities on one column of three axes; legends when ``label``."""
+    from matplotlib.lines import Line2D
+    from matplotlib.ticker import FuncFormatter
+
+    case, p = result.case, result.profiles
+    capillary = isinstance(case.geometry, Capillary)
+    potential_axes, concentration_axes, velocity_axes = column
+
+    potential_axes.axhline(0.0, color="0.6", lw=0.6)
+    potential_axes.plot(x, p.potential * 1e3, color="C0", label="potential φ (at the wall: ζ)")
+    stern = result.summary.get("stern_potential")
+    if stern is not None:  # the charge plane behind each Stern layer, drawn on its wall
+        values = stern if isinstance(stern, tuple) else (stern, stern)
+        sides = ((x[-1], values[1]),) if capillary else ((x[0], values[0]), (x[-1], values[1]))
+        shown = [(where, value * 1e3) for where, value in sides if np.isfinite(value)]
+        potential_axes.plot([w for w, _ in shown], [v for _, v in shown], ls="none", marker="D", color="C4",
+                            clip_on=False, label="charge-plane potential ψ0 = ζ + σ/C_S (behind the Stern layer)")
+
+    # The Debye-Hueckel model linearises the Boltzmann factor and can give c <= 0, which a log axis
+    # cannot show: mask those points and say so.
+    concentration = np.where(p.concentration > 0.0, p.concentration, np.nan)
+    handles = []
+    for number, (name, row) in enumerate(zip(p.ion_names, concentration)):
+        colour = f"C{number + 1}"
+        handles += concentration_axes.plot(x, row, color=colour, label=name)
+        concentration_axes.axhline(case.electrolyte.ions[number].concentration, color=colour, lw=0.8, ls=":")
+    handles.append(Line2D([], [], color="0.4", lw=0.8, ls=":", label="reservoir value"))
+    top = np.nanmax(concentration)
+    if case.model == "steric":  # the lattice-gas ceiling of the total ion concentration
+        ceiling = close_packing(case.electrolyte.ions[0].diameter)
+        top = max(top, ceiling)
+        handles.append(concentration_axes.axhline(ceiling, color="k", lw=1.0, ls="--",
+                                                  label="close packing 1/(N_A d³) (steric limit)"))
+    concentration_axes.set_yscale("log")
+    plain = FuncFormatter(lambda value, _: f"{value:g}")  # 0.5, 2, 10 rather than 5x10^-1
+    concentration_axes.yaxis.set_major_formatter(plain)
+    # Within a few decades no or one power of ten shows: label the minor ticks at 2 and 5 as well.
+    decades = np.log10(top / np.nanmin(concentration))
+
+    def minor(value: float, _: Any) -> str:
+        mantissa = round(value / 10.0 ** np.floor(np.log10(value) + 1e-9))
+        return f"{value:g}" if decades < 3.0 and mantissa in (2, 5) else ""
+
+    concentration_axes.yaxis.set_minor_formatter(FuncFormatter(minor))
+    concentration_axes.tick_params(axis="y", which="minor", labelsize="x-small")
+
+    velocity_axes.axhline(0.0, color="0.6", lw=0.6)
+    pressure = bool(np.any(p.velocity_pressure != 0.0))
+    if pressure:  # drawn first and broad, so the EO line stays visible where the two coincide
+        velocity_axes.plot(x, p.velocity * 1e6, color="0.2", lw=3.0, alpha=0.35, label="total")
+    velocity_axes.plot(x, p.velocity_eo * 1e6, color="C0",
+                       label="electroosmotic" if pressure else "electroosmotic (= total)")
+    if pressure:
+        velocity_axes.plot(x, p.velocity_pressure * 1e6, color="C2", label="pressure-driven")
+    velocity_axes.plot(x, p.velocity_thin_layer * 1e6, color="C3", ls="--", label="thin-layer slip model (EO)")
+
+    if label:
+        if stern is not None:
+            potential_axes.legend(fontsize="small", loc="best")
+        concentration_axes.legend(handles=handles, fontsize="small", loc="best")
+        velocity_axes.legend(fontsize="small", loc="best")
+        if np.isnan(concentration).any():
+            concentration_axes.text(0.5, 0.03, "c ≤ 0 of the linearised (Debye-Hückel) model not shown",
+                                    transform=concentration_axes.transAxes, ha="center", fontsize="small")
+
+
+def profile_figure(result: Result, path: str | os.PathLike[str]) -> Path:
+    """Write a PNG of the potential, the ion concentrations and the velocity across the section.
+
+    Three stacked panels share the cross-section axis in nm (slit: y from the bottom wall;
+    capillary: r from the axis): potential (mV); concentrations (mM, log scale, one line per ion,
+    reservoir values dotted; for the steric model the close-packing limit 1/(N_A d³) dashed); axial
+    velocity (µm/s) of the full electroosmotic flow, the
+    pressure-driven flow when there is one, their sum, and the thin-layer slip profile dashed.
+    Walls are shaded grey; a wall with a Stern layer carries a marker at its charge-plane potential
+    ψ0 = ζ + σ/C_S on the potential panel. The title gives the case in brief and the verdict.
+
+    Parameters
+    ----------
+    result : Result
+    path : str or PathLike
+        PNG file to create or replace (atomically); its directory must exist.
+
+    Returns
+    -------
+    Path
+        ``path`` as a Path.
+
+    Raises
+    ------
+    InputError
+        If ``result`` is not a Result or ``path`` cannot be written.
+    """
+    if not isinstance(result, Result):
+        raise InputError(f"result: {type(result).__name__} is not a Result, expected the return of solve()")
+    import textwrap
+
+    from matplotlib.backends.backend_agg import FigureCanvasAgg
+    from matplotlib.figure import Figure
+
+    case, p = result.case, result.profiles
+    capillary = isinstance(case.geometry, Capillary)
+    x = p.coordinate * 1e9
+    low, high = float(x[0]), float(x[-1])
+    margin = 0.05 * (high - low)
+    # Thin double layers vanish at the scale of the section: add a column that zooms on each wall
+    # (the bottom one only when both walls are the same), ZOOM_DEBYE_LENGTHS wide.
+    width = _ZOOM_DEBYE_LENGTHS * case.debye_length * 1e9
+    zooms: list[tuple[str, float, float]] = []
+    if width < 0.2 * (high - low):
+        if capillary:
+            zooms.append(("near the wall", high - width, high + 0.15 * width))
+        else:
+            zooms.append(("near the bottom wall", low - 0.15 * width, low + width))
+            if not case.symmetric:
+                zooms.append(("near the top wall", high - width, high + 0.15 * width))
+
+    figure = Figure(figsize=(7.5 + 2.6 * len(zooms), 9.0), dpi=110, layout="constrained")
+    FigureCanvasAgg(figure)
+    grid = figure.subplots(3, 1 + len(zooms), sharey="row", squeeze=False,
+                           gridspec_kw={"width_ratios": [3.0] + [1.1] * len(zooms)})
+    for column in range(1 + len(zooms)):
+        _draw_column(grid[:, column], x, result, label=column == 0)
+        for axes in grid[:, column]:
+            _mark_walls(axes, low, high, capillary, margin, label=axes is grid[0, 0])
+            axes.grid(True, lw=0.4, alpha=0.5)
+        for axes in grid[:-1, column]:
+            axes.tick_params(labelbottom=False)
+    full = grid[:, 0]
+    for axes in full:
+        axes.set_xlim(low - (0.0 if capillary else margin), high + margin)
+    full[2].set_xlabel("r, distance from the axis (nm)" if capillary else "y, distance from the bottom wall (nm)")
+    for column, (where, start, end) in enumerate(zooms, start=1):
+        for axes in grid[:, column]:
+            axes.set_xlim(start, end)
+            axes.tick_params(labelleft=False)
+        grid[0, column].set_title(f"zoom {where}", fontsize="small")
+        grid[2, column].set_xlabel(f"{'r' if capillary else 'y'} (nm)")
+    full[0].set_ylabel("potential φ (mV)\n(0 in the reservoir)")
+    full[1].set_ylabel("concentration (mM)")
+    full[2].set_ylabel("axial velocity u (µm/s)\n(> 0 along E)")
+
+    # About 13 characters of medium text per inch: long lines (many ions, regulated walls) wrap, not clip.
+    columns = int(13 * figure.get_figwidth())
+    figure.suptitle("\n".join(textwrap.fill(line, columns) for line in _title(case).splitlines()),
+                    fontsize="medium")
+    full[0].set_title(textwrap.fill(f"Verdict: {result.verdict}", 100 if not zooms else 90), fontsize="small",
+                      loc="left")
+
+    with atomic_output(path) as temporary:
+        figure.savefig(temporary, format="png")
+    return Path(os.fspath(path)).expanduser()

@@ -1,0 +1,440 @@
+"""Figures of the transport coefficients: the electroosmotic pump curve, the conductance against salt
+concentration, and the I-V curve of a finite channel.
+
+matplotlib is imported only when a figure is asked for; each figure is a ``matplotlib.figure.Figure`` on its
+own Agg canvas (no pyplot state, the process-wide backend untouched) and is written atomically.
+Axes are in the units of the field with an SI prefix picked from the data (mV, nA, kPa, µm²/s, fL/s);
+slit values are per unit width, said so on the axis.
+"""
+
+from __future__ import annotations
+
+import json
+import math
+import os
+from pathlib import Path
+from typing import Any
+
+import numpy as np
+
+from edl_solver.channel.conductance import checked_length, crossover_concentration
+from edl_solver.constants import ZERO_CELSIUS
+from edl_solver.errors import InputError
+from edl_solver.inputs.case import Capillary, Case, Wall
+from edl_solver.results.result import Result
+
+__all__ = ["conductance_figure", "iv_figure", "pump_curve_figure"]
+
+_PREFIXES = {-18: "a", -15: "f", -12: "p", -9: "n", -6: "µ", -3: "m", 0: "", 3: "k", 6: "M", 9: "G", 12: "T"}
+_FULL, _THIN, _BULK, _PLATEAU, _MARK = "C0", "C3", "0.45", "C2", "C1"
+
+
+def _prefix(largest: float, unit: str) -> tuple[float, str]:
+    """(scale, prefixed unit) that puts ``largest`` (in ``unit``) in [1, 1000): 2e-11, "A" -> (1e12, "pA")."""
+    if not math.isfinite(largest) or largest <= 0.0:
+        return 1.0, unit
+    exponent = min(max(3 * math.floor(math.log10(largest) / 3), -18), 12)
+    return 10.0 ** (-exponent), f"{_PREFIXES[exponent]}{unit}"
+
+
+def _number(value: float, digits: int = 3) -> str:
+    text = f"{value:.{digits}g}"
+    return f"{float(text):.0f}" if "e+" in text and abs(value) < 1e6 else text
+
+
+def _wall_text(wall: Wall) -> str:
+    if wall.kind == "potential":
+        return f"ζ = {wall.zeta * 1e3:.3g} mV"
+    if wall.kind == "charge":
+        return f"σ = {wall.charge_density * 1e3:.3g} mC/m²"
+    return "regulated (" + ", ".join(f"{site.name} pK {'/'.join(f'{pk:g}' for pk in site.pks)}"
+                                     for site in wall.sites) + ")"
+
+
+def _section_text(case: Case, concentrations: bool = True) -> str:
+    """The section in brief: geometry, walls, electrolyte (with or without its concentrations), temperature."""
+    g = case.geometry
+    size = f"capillary radius a = {g.radius * 1e9:.4g} nm" if isinstance(g, Capillary) \
+        else f"slit height H = {g.height * 1e9:.4g} nm"
+    walls = f"wall {_wall_text(case.walls[0])}" if case.symmetric else \
+        f"walls {_wall_text(case.walls[0])} (bottom), {_wall_text(case.walls[1])} (top)"
+    ions = case.electrolyte.ions
+    liquid = ", ".join(f"{ion.name} {ion.concentration:.3g} mM" for ion in ions) if concentrations else \
+        "/".join(ion.name for ion in ions)
+    return f"{size}, {walls}; {liquid}, {case.solvent.temperature - ZERO_CELSIUS:.3g} °C"
+
+
+def _case_of(dataset: Any) -> Case | None:
+    """The case stored in a dataset's ``case_json`` attribute, if any."""
+    from edl_solver.io.hdf5 import case_from_dict
+
+    text = dataset.attrs.get("case_json")
+    return case_from_dict(json.loads(text)) if isinstance(text, str) else None
+
+
+def _new_figure(width: float, height: float) -> Any:
+    from matplotlib.backends.backend_agg import FigureCanvasAgg
+    from matplotlib.figure import Figure
+
+    figure = Figure(figsize=(width, height), dpi=110, layout="constrained")
+    FigureCanvasAgg(figure)
+    return figure
+
+
+def _save(figure: Any, path: str | os.PathLike[str]) -> Path:
+    from edl_solver.io.hdf5 import atomic_output
+
+    with atomic_output(path) as temporary:
+        figure.savefig(temporary, format="png")
+    return Path(os.fspath(path)).expanduser()
+
+
+def _require(dataset: Any, names: tuple[str, ...], what: str, source: str) -> None:
+    import xarray as xr
+
+    if not isinstance(dataset, xr.Dataset):
+        raise InputError(f"dataset: {type(dataset).__name__} is not an xarray.Dataset, expected {source}")
+    missing = [name for name in names if name not in dataset.variables]
+    if missing:
+        raise InputError(f"dataset: no {missing[0]!r}, expected {what} ({source})")
+
+
+# ----------------------------------------------------------------------------------------------
+# The EO pump curve
+
+
+def _pick(largest: float, candidates: tuple[tuple[str, float], ...]) -> tuple[str, float]:
+    """The first (unit, scale) that puts ``largest`` in [1, 1000), else in [0.01, 1e5), else the first."""
+    for low, high in ((1.0, 1e3), (1e-2, 1e5)):
+        for unit, scale in candidates:
+            if low <= largest * scale < high:
+                return unit, scale
+    return candidates[0]
+
+
+def _flow_display(capillary: bool, largest: float) -> tuple[float, str, str]:
+    """Scale, unit and axis label of a flow rate: litres with a prefix for a capillary (1 fL = 1 µm³); per
+    unit width of a slit, µm²/s (µm³/s per µm of width) unless far off."""
+    if capillary:
+        unit, scale = _pick(largest, (("fL/s", 1e18), ("aL/s", 1e21), ("pL/s", 1e15), ("nL/s", 1e12)))
+        note = {"fL/s": "1 fL = 1 µm³", "aL/s": "1 aL = 10⁻³ µm³", "pL/s": "1 pL = 1000 µm³",
+                "nL/s": "1 nL = 10⁶ µm³"}[unit]
+        return scale, unit, f"flow rate Q ({unit}, {note})"
+    unit, scale = _pick(largest, (("µm²/s", 1e12), ("nm²/s", 1e18), ("mm²/s", 1e6)))
+    per = unit.split("²")[0]
+    return scale, unit, f"flow rate per unit width Q/W ({unit},\ni.e. {per}³/s per {per} of width)"
+
+
+def pump_curve_figure(result: Result, path: str | os.PathLike[str], length: float | str | None = None) -> Path:
+    """Write a PNG of the linear electroosmotic pump curve at the case's field: flow against back pressure.
+
+    The section's response matrix gives, per unit length, Q = M_QE E - M_QP dp/dx (``_summary.lab_quantities``):
+    with a back pressure Delta p rising along the flow over a channel of length L, the flow falls linearly
+    from the free flow Q_0 = M_QE E (``eo_pump_flow_per_field`` times E) to zero at the stall pressure
+    Delta p_0 = (M_QE / M_QP) E L (``eo_pump_pressure_per_voltage`` times the voltage E L). The thin-layer
+    model's line joins its plug flow at the Helmholtz-Smoluchowski slip (``thin_layer_flow_rate_eo``) and its
+    stall pressure (``thin_layer_eo_pump_pressure_per_voltage`` times E L). Without a length the abscissa is the
+    back-pressure gradient Delta p / L. The legend gives both ends of each line and the thin-layer errors.
+
+    Parameters
+    ----------
+    result : Result
+        A solve of a case with a field.
+    path : str or PathLike
+        PNG file to create or replace (atomically); its directory must exist.
+    length : float or str, optional
+        Channel length L, m (or "10 um").
+
+    Returns
+    -------
+    Path
+
+    Raises
+    ------
+    InputError
+        If ``result`` is not a Result, its case has no field, ``length`` is not a positive length, or ``path``
+        cannot be written.
+    """
+    if not isinstance(result, Result):
+        raise InputError(f"result: {type(result).__name__} is not a Result, expected the return of solve()")
+    case, s = result.case, result.summary
+    if case.field == 0.0:
+        raise InputError("result: its case has no field (E = 0), expected a case with a field for the pump curve, "
+                         "e.g. field = '10 kV/m'")
+    channel_length = checked_length(length)
+    capillary = isinstance(case.geometry, Capillary)
+    field = case.field
+    over = channel_length if channel_length is not None else 1.0
+    full = (s["eo_pump_flow_per_field"] * field, s["eo_pump_pressure_per_voltage"] * field * over)
+    thin = (s["thin_layer_flow_rate_eo"], s["thin_layer_eo_pump_pressure_per_voltage"] * field * over)
+    # counted along the full model's flow, so that the curve sits in the first quadrant
+    direction = math.copysign(1.0, full[0]) if full[0] != 0.0 else math.copysign(1.0, thin[0] or 1.0)
+    full = (direction * full[0], direction * full[1])
+    thin = (direction * thin[0], direction * thin[1])
+    lines = [("full model", full, _FULL, "-")]
+    if all(math.isfinite(v) for v in thin):
+        lines.append(("thin-layer slip model", thin, _THIN, "--"))
+
+    flow_scale, flow_unit, flow_label = _flow_display(capillary, max(abs(v[0]) for _, v, _, _ in lines))
+    largest_pressure = max(abs(v[1]) for _, v, _, _ in lines)
+    if channel_length is not None:
+        pressure_scale, unit = _prefix(largest_pressure, "Pa")
+        pressure_label = f"back pressure Δp against the flow ({unit})"
+    else:
+        pressure_scale, unit = _prefix(largest_pressure * 1e-6, "Pa")  # per µm of channel
+        pressure_scale *= 1e-6
+        unit += "/µm"
+        pressure_label = f"back-pressure gradient Δp/L against the flow ({unit})"
+
+    figure = _new_figure(7.4, 5.4)
+    axes = figure.subplots()
+    for name, (flow, stall), colour, style in lines:
+        x = np.array([0.0, stall]) * pressure_scale
+        y = np.array([flow, 0.0]) * flow_scale
+        text = f"{name}: free flow {_number(y[0])} {flow_unit}, stall {_number(x[1])} {unit}"
+        axes.plot(x, y, color=colour, ls=style, lw=2.0, marker="o", ms=6, label=text)
+    if len(lines) == 2 and full[0] != 0.0 and full[1] != 0.0:
+        axes.plot([], [], " ", label=f"thin-layer error: free flow {100 * (thin[0] / full[0] - 1):+.3g} %, "
+                                     f"stall {100 * (thin[1] / full[1] - 1):+.3g} %")
+    if full[0] == 0.0 and (len(lines) == 1 or thin[0] == 0.0):
+        axes.text(0.5, 0.5, "no electroosmotic flow: the walls are uncharged", transform=axes.transAxes,
+                  ha="center")
+    axes.axhline(0.0, color="0.6", lw=0.8)
+    axes.axvline(0.0, color="0.6", lw=0.8)
+    axes.set_xlabel(pressure_label)
+    along = "the field's direction, +x" if direction * field > 0 else "against the field, -x"
+    axes.set_ylabel(f"{flow_label}\nalong the pump's flow ({along})")
+    axes.grid(True, lw=0.4, alpha=0.5)
+    axes.legend(fontsize="small", loc="upper right")
+    drive = f"E = {_number(field / 1e3)} kV/m" if abs(field) >= 1e3 else f"E = {_number(field)} V/m"
+    if channel_length is not None:
+        drive += f" over L = {_number(channel_length * 1e6)} µm (ΔV = {_number(abs(field) * channel_length)} V)"
+    figure.suptitle(f"Electroosmotic pump curve at {drive}\n{_section_text(case)}", fontsize="medium")
+    return _save(figure, path)
+
+
+# ----------------------------------------------------------------------------------------------
+# Conductance against concentration
+
+
+def _conductance_display(capillary: bool, per_length: bool, largest: float) -> tuple[float, str]:
+    """Scale and axis label of a conductance in its dataset unit (S*m, S or S/m; see
+    ``conductance.conductance_units``)."""
+    if per_length and capillary:  # S m
+        scale, unit = _prefix(largest * 1e6, "S")
+        return scale * 1e6, f"conductance × length, G·L ({unit}·µm)"
+    if per_length:  # S, per unit width
+        scale, unit = _prefix(largest, "S")
+        return scale, f"conductance × length per unit width, G·L/W ({unit})"
+    if capillary:  # S
+        scale, unit = _prefix(largest, "S")
+        return scale, f"conductance G ({unit})"
+    scale, unit = _prefix(largest * 1e-6, "S")  # S/m -> per µm of width
+    return scale * 1e-6, f"conductance per unit width G/W ({unit} per µm of width)"
+
+
+def conductance_figure(dataset: Any, path: str | os.PathLike[str]) -> Path:
+    """Write a PNG of the conductance against salt concentration, log-log, with its two limits.
+
+    The full model (points and line), the bulk line K(c) A and the counter-ion plateau of
+    ``conductance.conductance_curve``: conduction by the counter-ions alone, mu |q| (dotted), and with
+    their electroosmotic convection (dash-dot) where the closed form exists. Where the bulk line crosses the
+    plateau a vertical line marks the concentration at which the counter-ions of the double layers carry as
+    much current as the bulk does. Failed solves are left out (and counted on the figure).
+
+    Parameters
+    ----------
+    dataset : xarray.Dataset
+        The return of ``conductance.conductance_curve`` (or its group of an ``edl transport`` file).
+    path : str or PathLike
+        PNG file to create or replace (atomically).
+
+    Returns
+    -------
+    Path
+
+    Raises
+    ------
+    InputError
+        If ``dataset`` lacks the curve's variables or ``path`` cannot be written.
+    """
+    names = ("concentration", "conductance", "bulk_conductance", "plateau_conduction", "plateau_estimate")
+    _require(dataset, names, "a conductance curve", "the return of conductance_curve()")
+    data = dataset.sortby("concentration")
+    c = data["concentration"].values.astype(float)
+    status = data["status"].values if "status" in data.variables else np.zeros(c.size, dtype=int)
+    ok = status == 0
+    full = np.where(ok, data["conductance"].values.astype(float), np.nan)
+    bulk = data["bulk_conductance"].values.astype(float)
+    conduction = np.where(ok, data["plateau_conduction"].values.astype(float), np.nan)
+    estimate = np.where(ok, data["plateau_estimate"].values.astype(float), np.nan)
+    capillary = dataset.attrs.get("geometry") == "capillary"
+    per_length = "length_m" not in dataset.attrs
+    shown = np.concatenate([v[np.isfinite(v) & (v > 0)] for v in (full, bulk, conduction, estimate)])
+    scale, label = _conductance_display(capillary, per_length, float(shown.max()) if shown.size else math.nan)
+
+    figure = _new_figure(7.4, 5.6)
+    axes = figure.subplots()
+    axes.set_xscale("log")
+    axes.set_yscale("log")
+
+    def positive(values: np.ndarray) -> np.ndarray:
+        return np.where(np.isfinite(values) & (values > 0), values * scale, np.nan)
+
+    axes.plot(c, positive(full), color=_FULL, ls="-", lw=2.0, marker="o", ms=4, label="full model")
+    axes.plot(c, positive(bulk), color=_BULK, ls="--", lw=1.6, label="bulk line K(c)·A (thin-layer model)")
+    # the estimates are drawn over the full model, so that where they agree both stay visible
+    if np.isfinite(positive(estimate)).any():
+        axes.plot(c, positive(estimate), color=_PLATEAU, ls="-.", lw=1.6, zorder=3,
+                  label="counter-ions only: conduction + their EO convection")
+    formula = "2πaμ|σ|" if capillary else ("2μ|σ|" if np.ndim(dataset["wall_charge_density"]) == 1
+                                           else "μ|σ_bottom + σ_top|")
+    axes.plot(c, positive(conduction), color=_PLATEAU, ls=":", lw=1.6, zorder=3,
+              label=f"counter-ions only: conduction {formula}, μ = |z|eD/kT")
+    crossing = crossover_concentration(data)
+    if math.isfinite(crossing):
+        axes.axvline(crossing, color=_MARK, lw=1.0, ls=(0, (2, 2)))
+        axes.annotate(f"bulk line = counter-ion estimate\nat c ≈ {_number(crossing)} mM", (crossing, 0.04),
+                      xycoords=("data", "axes fraction"), xytext=(6, 0), textcoords="offset points",
+                      fontsize="small", color=_MARK)
+    notes = []
+    case = _case_of(dataset)
+    if case is not None and any(wall.kind == "potential" for wall in case.walls):
+        notes.append("a wall of fixed ζ: its charge σ falls with c, so there is no plateau")
+    failed = int(np.count_nonzero(~ok))
+    if failed:
+        notes.append(f"{failed} solve(s) failed, not shown")
+    first = dataset.attrs.get("first_ion", "first ion")
+    axes.set_xlabel(f"salt concentration c (mM, of {first})")
+    axes.set_ylabel(label)
+    axes.grid(True, which="major", lw=0.4, alpha=0.5)
+    axes.grid(True, which="minor", lw=0.3, alpha=0.2)
+    axes.legend(fontsize="small", loc="upper left")
+    title = "Conductance against salt concentration"
+    if not per_length:
+        title += f", channel length L = {_number(float(dataset.attrs['length_m']) * 1e6)} µm"
+    if case is not None:
+        title += f"\n{_section_text(case, concentrations=False)}"
+    figure.suptitle("\n".join([title, *(f"({note})" for note in notes)]), fontsize="medium")
+    return _save(figure, path)
+
+
+# ----------------------------------------------------------------------------------------------
+# The I-V curve of a finite channel
+
+
+def _zero_crossing(v: np.ndarray, i: np.ndarray) -> float:
+    """The voltage where the current changes sign, linearly interpolated; NaN if it does not."""
+    for k in range(len(v) - 1):
+        if i[k] == 0.0:
+            return float(v[k])
+        if i[k] * i[k + 1] < 0.0:
+            return float(v[k] - i[k] * (v[k + 1] - v[k]) / (i[k + 1] - i[k]))
+    return math.nan
+
+
+def iv_figure(dataset: Any, path: str | os.PathLike[str]) -> Path:
+    """Write a PNG of the I-V curve of a finite channel, with its zero-current and short-circuit points.
+
+    The current I (positive from the left reservoir to the right one) against the applied voltage
+    Delta V = V(right) - V(left) (``channel.current_voltage``). Marked: the membrane potential (zero current;
+    the dataset's ``membrane_potential``, else interpolated between the points) and, when the reservoirs
+    differ, the short-circuit current (Delta V = 0) and the maximum-power point; between them the channel
+    delivers power to a load (I Delta V > 0, shaded). The uncharged channel's curve (``bulk_current``,
+    free-solution electrodiffusion) is dashed when the dataset has it. Failed points are left out.
+
+    Parameters
+    ----------
+    dataset : xarray.Dataset
+        The return of ``conductance.channel_characteristics`` (or of ``channel.current_voltage``).
+    path : str or PathLike
+        PNG file to create or replace (atomically).
+
+    Returns
+    -------
+    Path
+
+    Raises
+    ------
+    InputError
+        If ``dataset`` has no I-V curve or ``path`` cannot be written.
+    """
+    _require(dataset, ("voltage", "current"), "an I-V curve", "the return of channel_characteristics() with "
+             "voltages, or of channel.current_voltage()")
+    data = dataset.sortby("voltage")
+    v = data["voltage"].values.astype(float)
+    ok = data["status"].values == 0 if "status" in data.variables else np.ones(v.size, dtype=bool)
+    current = np.where(ok, data["current"].values.astype(float), np.nan)
+    capillary = str(data["current"].attrs.get("units", "A")) == "A"
+    equal = math.isclose(float(dataset.attrs.get("left_concentration", 1.0)),
+                         float(dataset.attrs.get("right_concentration", 1.0)), rel_tol=1e-12)
+    finite = np.abs(current[np.isfinite(current)])
+    largest = float(finite.max()) if finite.size and finite.max() > 0 else 1.0
+    if capillary:
+        i_scale, i_unit = _prefix(largest, "A")
+        i_label = f"current I, positive from left to right ({i_unit})"
+    else:
+        i_scale, amperes = _prefix(largest * 1e-6, "A")
+        i_scale *= 1e-6
+        i_unit = f"{amperes}/µm"
+        i_label = f"current per unit width I/W, positive from left to right\n({amperes} per µm of width)"
+    millivolts = float(np.max(np.abs(v))) < 2.0
+    v_scale, v_unit = (1e3, "mV") if millivolts else (1.0, "V")
+
+    figure = _new_figure(7.6, 5.6)
+    axes = figure.subplots()
+    axes.axhline(0.0, color="0.6", lw=0.8)
+    axes.axvline(0.0, color="0.6", lw=0.8)
+    if "bulk_current" in data.variables:
+        access = " without access resistance" if float(dataset.attrs.get("access_resistance", 0.0)) > 0 else ""
+        axes.plot(v * v_scale, data["bulk_current"].values * i_scale, color=_BULK, ls="--", lw=1.6,
+                  label=f"uncharged channel (free-solution electrodiffusion){access}")
+    axes.plot(v * v_scale, current * i_scale, color=_FULL, lw=2.0, marker="o", ms=3.5, label="full model")
+
+    if "membrane_potential" in data.variables:
+        v_oc, how = float(data["membrane_potential"]), ""
+    else:
+        v_oc, how = _zero_crossing(v[ok], current[ok]), " (interpolated)"
+    if math.isfinite(v_oc):
+        text = "zero current at ΔV = 0 (equal reservoirs)" if equal else \
+            f"zero current: membrane potential {v_oc * v_scale:+.4g} {v_unit}{how}"
+        axes.plot([v_oc * v_scale], [0.0], ls="none", marker="D", ms=8, color=_THIN, zorder=5, label=text)
+    if not equal:
+        if "short_circuit_current" in data.variables:
+            i_sc, how = float(data["short_circuit_current"]), ""
+        else:
+            i_sc, how = float(np.interp(0.0, v[ok], current[ok])), " (interpolated)"
+        if math.isfinite(i_sc):
+            axes.plot([0.0], [i_sc * i_scale], ls="none", marker="s", ms=8, color=_MARK, zorder=5,
+                      label=f"short circuit (ΔV = 0): I = {i_sc * i_scale:+.4g} {i_unit}{how}")
+        if math.isfinite(v_oc) and v_oc != 0.0:
+            axes.axvspan(0.0, v_oc * v_scale, color=_MARK, alpha=0.08, lw=0,
+                         label="the channel delivers power to a load here (I·ΔV > 0)")
+        if "max_power" in data.variables and math.isfinite(float(data["max_power"])):
+            v_max = float(data["voltage_at_max_power"])
+            power = float(data["max_power"])
+            if capillary:
+                p_scale, p_unit = _prefix(abs(power), "W")
+            else:  # per unit width: W/m -> per µm of width
+                p_scale, p_unit = _prefix(abs(power) * 1e-6, "W")
+                p_scale, p_unit = p_scale * 1e-6, f"{p_unit} per µm of width"
+            axes.plot([v_max * v_scale], [power / v_max * i_scale if v_max else 0.0], ls="none", marker="*",
+                      ms=12, color=_PLATEAU, zorder=5,
+                      label=f"maximum power {power * p_scale:.3g} {p_unit} at ΔV = {v_max * v_scale:+.3g} {v_unit}")
+    failed = int(np.count_nonzero(~ok))
+    if failed:
+        axes.text(0.02, 0.02, f"{failed} point(s) did not converge, not shown", transform=axes.transAxes,
+                  fontsize="small")
+    axes.set_xlabel(f"applied voltage ΔV = V(right) − V(left) ({v_unit})")
+    axes.set_ylabel(i_label)
+    axes.grid(True, lw=0.4, alpha=0.5)
+    axes.legend(fontsize="small", loc="best")
+    left, right = (float(dataset.attrs.get(k, math.nan)) for k in ("left_concentration", "right_concentration"))
+    length = float(dataset.attrs.get("length", math.nan))
+    title = (f"I–V curve of a channel of length {_number(length * 1e6)} µm between reservoirs of "
+             f"{_number(left)} mM (left) and {_number(right)} mM (right)")
+    case = _case_of(dataset)
+    if case is not None:
+        title += f"\n{_section_text(case, concentrations=False)}"
+    figure.suptitle(title, fontsize="medium")
+    return _save(figure, path)

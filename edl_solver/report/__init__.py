@@ -1,0 +1,1 @@
+"""Text reports of results, and the number formatting they share."""
