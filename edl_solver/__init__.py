@@ -17,8 +17,11 @@ import os
 from typing import TYPE_CHECKING, Any
 
 from edl_solver.errors import ConvergenceError, InputError
-from edl_solver.inputs.case import Capillary, Case, Electrolyte, Ion, Numerics, Site, Slit, Wall
+from edl_solver.inputs.case import Case, Numerics
+from edl_solver.inputs.electrolyte import Electrolyte, Ion
+from edl_solver.inputs.geometry import Capillary, Slit
 from edl_solver.inputs.solvent import Solvent, Water
+from edl_solver.inputs.wall import Site, Wall
 from edl_solver.results.result import Profiles, Result
 
 if TYPE_CHECKING:

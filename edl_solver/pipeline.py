@@ -13,7 +13,8 @@ import numpy as np
 
 from edl_solver.constants import AVOGADRO, ELEMENTARY_CHARGE
 from edl_solver.errors import ConvergenceError
-from edl_solver.inputs.case import Capillary, Case
+from edl_solver.inputs.case import Case
+from edl_solver.inputs.geometry import Capillary
 from edl_solver.kernels import summary as _summary
 from edl_solver.model import equilibrium, flow, scaling, thin_layer, transport, validity
 from edl_solver.model.equilibrium import SectionSolution

@@ -13,7 +13,6 @@ from hypothesis import strategies as st
 import edl_solver as edl
 from edl_solver.cli.demo import DEMO_TOML, demo_case
 from edl_solver.errors import InputError
-from edl_solver.inputs.case import Site
 from edl_solver.inputs.casefile import (
     CASE_KEYS,
     case_from_mapping,
@@ -23,6 +22,7 @@ from edl_solver.inputs.casefile import (
     loads_case,
     read_mapping,
 )
+from edl_solver.inputs.wall import Site
 
 if sys.version_info >= (3, 11):
     import tomllib

@@ -15,7 +15,7 @@ import pytest
 
 import edl_solver as edl
 from edl_solver.errors import InputError
-from edl_solver.inputs.case import Site
+from edl_solver.inputs.wall import Site
 from edl_solver.io import hdf5 as io
 from edl_solver.results.result import PROFILE_UNITS, SUMMARY_UNITS, summary_unit
 

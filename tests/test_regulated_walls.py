@@ -30,7 +30,7 @@ from scipy import constants as sc
 from scipy.special import i0e, i1e
 
 import edl_solver as edl
-from edl_solver.inputs.case import Site
+from edl_solver.inputs.wall import Site
 
 T = 298.15  # K
 EPS_R = 78.4  # water at 25 C (from memory; an input here, so any value would do)

@@ -10,7 +10,7 @@ from typing import Any
 import pytest
 
 import edl_solver as edl
-from edl_solver.inputs.case import Site
+from edl_solver.inputs.wall import Site
 from edl_solver.report.text import close_packing, prefixed, text
 
 KCL_1MM = edl.Electrolyte.from_ions({"K+": "1 mM", "Cl-": "1 mM"})

@@ -42,7 +42,8 @@ import numpy as np
 
 from edl_solver.constants import FARADAY
 from edl_solver.errors import ConvergenceError, InputError
-from edl_solver.inputs.case import Capillary, Case
+from edl_solver.inputs.case import Case
+from edl_solver.inputs.geometry import Capillary
 from edl_solver.io.hdf5 import atomic_output, checked_output_path
 
 __all__ = [

@@ -89,7 +89,8 @@ import numpy as np
 
 from edl_solver.constants import FARADAY, GAS_CONSTANT
 from edl_solver.errors import ConvergenceError, InputError
-from edl_solver.inputs.case import Capillary, Case
+from edl_solver.inputs.case import Case
+from edl_solver.inputs.geometry import Capillary
 from edl_solver.inputs.units import to_positive_si, to_si
 from edl_solver.model import transport
 

@@ -709,7 +709,7 @@ def _channel_lines(data: Any, result: Any) -> str:
     import math
 
     from edl_solver.constants import FARADAY, GAS_CONSTANT
-    from edl_solver.inputs.case import Capillary
+    from edl_solver.inputs.geometry import Capillary
     from edl_solver.report.text import prefixed
 
     case = result.case

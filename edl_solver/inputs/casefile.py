@@ -64,8 +64,11 @@ from pathlib import Path
 from typing import Any, TypeVar
 
 from edl_solver.errors import InputError
-from edl_solver.inputs.case import Capillary, Case, Electrolyte, Ion, Numerics, Site, Slit, Wall
+from edl_solver.inputs.case import Case, Numerics
+from edl_solver.inputs.electrolyte import Electrolyte, Ion
+from edl_solver.inputs.geometry import Capillary, Slit
 from edl_solver.inputs.solvent import Solvent, Water
+from edl_solver.inputs.wall import Site, Wall
 
 __all__ = ["CASE_KEYS", "WALL_PRESETS", "case_from_mapping", "case_to_mapping", "dumps_case", "load_case",
            "loads_case", "read_mapping"]

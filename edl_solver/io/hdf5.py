@@ -53,8 +53,10 @@ from typing import Any
 import numpy as np
 
 from edl_solver.errors import InputError
-from edl_solver.inputs.case import Capillary, Case, Slit, Wall
+from edl_solver.inputs.case import Case
 from edl_solver.inputs.casefile import case_from_mapping, case_to_mapping
+from edl_solver.inputs.geometry import Capillary, Slit
+from edl_solver.inputs.wall import Wall
 from edl_solver.results.result import PROFILE_UNITS, SUMMARY_UNITS, Profiles, Result, summary_unit
 
 __all__ = ["SCHEMA_VERSION", "atomic_output", "case_from_dict", "case_to_dict", "read_result", "write_result"]

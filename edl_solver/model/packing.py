@@ -13,7 +13,10 @@ import math
 
 import numpy as np
 
-from edl_solver.inputs.case import Capillary, Case, Electrolyte, Wall
+from edl_solver.inputs.case import Case
+from edl_solver.inputs.electrolyte import Electrolyte
+from edl_solver.inputs.geometry import Capillary
+from edl_solver.inputs.wall import Wall
 from edl_solver.kernels import fv1d as k
 
 P_LENGTH = 0  # half-size L: slit half-height or capillary radius, m

@@ -15,8 +15,10 @@ from __future__ import annotations
 
 import math
 
-from edl_solver.inputs.case import Capillary, Electrolyte, Slit, Wall
+from edl_solver.inputs.electrolyte import Electrolyte
+from edl_solver.inputs.geometry import Capillary, Slit
 from edl_solver.inputs.solvent import Solvent
+from edl_solver.inputs.wall import Wall
 from edl_solver.model.walls import isolated_wall
 
 

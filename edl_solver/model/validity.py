@@ -10,7 +10,8 @@ from __future__ import annotations
 import numpy as np
 
 from edl_solver.constants import AVOGADRO
-from edl_solver.inputs.case import Capillary, Case
+from edl_solver.inputs.case import Case
+from edl_solver.inputs.geometry import Capillary
 from edl_solver.results.result import Profiles
 
 #: Below this channel size (slit height or capillary diameter), m, water and ions are not a continuum

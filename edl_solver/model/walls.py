@@ -17,8 +17,9 @@ from __future__ import annotations
 
 import numpy as np
 
-from edl_solver.inputs.case import Electrolyte, Wall
+from edl_solver.inputs.electrolyte import Electrolyte
 from edl_solver.inputs.solvent import Solvent
+from edl_solver.inputs.wall import Wall
 from edl_solver.kernels import walls as _walls
 from edl_solver.model import packing
 

@@ -16,7 +16,9 @@ import numpy as np
 
 from edl_solver.constants import ZERO_CELSIUS
 from edl_solver.errors import InputError
-from edl_solver.inputs.case import Capillary, Case, Slit, Wall
+from edl_solver.inputs.case import Case
+from edl_solver.inputs.geometry import Capillary, Slit
+from edl_solver.inputs.wall import Wall
 from edl_solver.io.hdf5 import atomic_output
 from edl_solver.report.text import MODEL_NAMES, close_packing, prefixed
 from edl_solver.results.result import Result

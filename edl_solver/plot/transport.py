@@ -20,7 +20,9 @@ import numpy as np
 from edl_solver.channel.conductance import checked_length, crossover_concentration
 from edl_solver.constants import ZERO_CELSIUS
 from edl_solver.errors import InputError
-from edl_solver.inputs.case import Capillary, Case, Wall
+from edl_solver.inputs.case import Case
+from edl_solver.inputs.geometry import Capillary
+from edl_solver.inputs.wall import Wall
 from edl_solver.results.result import Result
 
 __all__ = ["conductance_figure", "iv_figure", "pump_curve_figure"]

@@ -10,7 +10,9 @@ import math
 from typing import Any
 
 from edl_solver.constants import AVOGADRO, ZERO_CELSIUS
-from edl_solver.inputs.case import Capillary, Case, Site, Slit, Wall
+from edl_solver.inputs.case import Case
+from edl_solver.inputs.geometry import Capillary, Slit
+from edl_solver.inputs.wall import Site, Wall
 from edl_solver.results.result import Result
 
 __all__ = ["MODEL_NAMES", "close_packing", "prefixed", "text"]

@@ -24,7 +24,8 @@ from typing import Any
 import numpy as np
 
 from edl_solver.errors import ConvergenceError, InputError
-from edl_solver.inputs.case import Capillary, Case
+from edl_solver.inputs.case import Case
+from edl_solver.inputs.geometry import Capillary
 from edl_solver.inputs.paths import PATH_UNITS, WORD_PATHS, Axis, case_at, check_conflicts, make_axes
 from edl_solver.results.result import SUMMARY_UNITS
 from edl_solver.sweeping import profiles as sweep_profiles

@@ -1,0 +1,169 @@
+"""The bulk (reservoir) electrolyte: ions with valence, concentration, diffusivity and size.
+
+Every object is a frozen dataclass, SI after construction; strings with units are parsed once, here.
+"""
+
+from __future__ import annotations
+
+import math
+from collections.abc import Mapping, Sequence
+from dataclasses import dataclass
+
+from edl_solver.constants import AVOGADRO, ELEMENTARY_CHARGE
+from edl_solver.errors import InputError
+from edl_solver.inputs.frozen import assign as _set
+from edl_solver.inputs.ions import lookup_ion
+from edl_solver.inputs.solvent import Solvent
+from edl_solver.inputs.units import to_positive_si, to_si
+
+#: Ionic product of water at 25 degC, pK_w = 14 (common practice; its temperature dependence is neglected).
+WATER_PK = 14.0
+
+#: Relative imbalance of the bulk charge accepted as neutral: sum z c <= this * sum |z| c.
+NEUTRALITY_TOLERANCE = 1e-6
+
+
+@dataclass(frozen=True)
+class Ion:
+    """One ionic species of the electrolyte.
+
+    Parameters
+    ----------
+    name : str
+        Label of the ion; names in the built-in table (``edl_solver.inputs.ions``) fill in ``valence`` and
+        ``diffusivity`` when they are not given.
+    valence : int, optional
+        Charge number z (nonzero integer).
+    concentration : float or str
+        Bulk (reservoir) concentration, mol/m^3 (1 mol/m^3 = 1 mM), or a string such as "1 mM".
+    diffusivity : float or str, optional
+        Diffusion coefficient, m^2/s; sets the ion's mobility through Nernst-Einstein, D/(kT).
+    diameter : float or str, optional
+        Ion (hydrated) diameter, m, for the steric model (``Case(model="steric")``).
+    """
+
+    name: str
+    valence: int | None = None
+    concentration: float | str | None = None
+    diffusivity: float | str | None = None
+    diameter: float | str | None = None
+
+    def __post_init__(self) -> None:
+        if not isinstance(self.name, str) or not self.name.strip():
+            raise InputError(f"ion.name: {self.name!r} is not a name, expected a non-empty string like 'K+'")
+        label = f"ion {self.name}"
+        known = None
+        if self.valence is None or self.diffusivity is None:
+            known = lookup_ion(self.name)
+        valence = known.valence if self.valence is None else self.valence
+        if isinstance(valence, bool) or not isinstance(valence, (int, float)) or valence != int(valence) \
+                or valence == 0:
+            raise InputError(f"{label}.valence: {self.valence!r} is not a charge number, "
+                             "expected a nonzero integer")
+        _set(self, "valence", int(valence))
+        if self.concentration is None:
+            raise InputError(f"{label}.concentration: missing, expected a bulk concentration like '1 mM'")
+        _set(self, "concentration", to_positive_si(self.concentration, "mol/m^3", f"{label}.concentration",
+                                              "a positive concentration in mol/m^3 (or '1 mM')"))
+        diffusivity = known.diffusivity if self.diffusivity is None else self.diffusivity
+        _set(self, "diffusivity", to_positive_si(diffusivity, "m^2/s", f"{label}.diffusivity",
+                                            "a positive diffusivity in m^2/s"))
+        if self.diameter is not None:
+            _set(self, "diameter", to_positive_si(self.diameter, "m", f"{label}.diameter", "a positive diameter in m"))
+
+
+@dataclass(frozen=True)
+class Electrolyte:
+    """The bulk (reservoir) electrolyte: any number of ions, electroneutral.
+
+    Parameters
+    ----------
+    ions : sequence of Ion
+        At least one cation and one anion; sum_i z_i c_i = 0 within ``NEUTRALITY_TOLERANCE``.
+    pH : float, optional
+        Bulk pH, for walls whose charge regulates by proton exchange. Without H+ among the ions the protons
+        only set the wall chemistry (their contribution to the ionic strength is neglected); with
+        ``water_ions=True`` H+ and OH- are added as ions (see below).
+    water_ions : bool
+        Add H+ (10^-pH M) and OH- (10^(pH - 14) M) to the ions; their net charge is balanced by the most
+        concentrated monovalent counter-ion already present (as if the pH had been set with that ion's
+        acid or base, e.g. HCl or KOH in KCl).
+    """
+
+    ions: tuple[Ion, ...]
+    pH: float | None = None
+    water_ions: bool = False
+
+    def __post_init__(self) -> None:
+        ions = tuple(self.ions) if isinstance(self.ions, Sequence) and not isinstance(self.ions, str) \
+            else None
+        if not ions or not all(isinstance(ion, Ion) for ion in ions):
+            raise InputError(f"electrolyte.ions: {self.ions!r} is not a list of Ion, expected at least "
+                             "one cation and one anion")
+        if self.pH is not None:
+            ph = to_si(self.pH, "dimensionless", "electrolyte.pH")
+            if not -1.0 <= ph <= 15.0:
+                raise InputError(f"electrolyte.pH: {self.pH!r} is out of range, expected a pH between -1 and 15")
+            _set(self, "pH", ph)
+            if self.water_ions:
+                ions = _with_water_ions(ions, ph)
+        elif self.water_ions:
+            raise InputError("electrolyte.water_ions: True without a pH, expected electrolyte.pH as well")
+        names = [ion.name for ion in ions]
+        for name in names:
+            if names.count(name) > 1:
+                raise InputError(f"electrolyte.ions: {name!r} is given twice, expected each ion once")
+        net = sum(ion.valence * ion.concentration for ion in ions)
+        total = sum(abs(ion.valence) * ion.concentration for ion in ions)
+        if abs(net) > NEUTRALITY_TOLERANCE * total:
+            raise InputError(f"electrolyte: bulk charge sum(z*c) = {net:.6g} mol/m^3 is not neutral, "
+                             "expected cation and anion charges to balance")
+        _set(self, "ions", ions)
+
+    @classmethod
+    def from_ions(cls, concentrations: Mapping[str, float | str], pH: float | None = None,
+                  water_ions: bool = False) -> Electrolyte:
+        """Electrolyte from table ions and their concentrations, e.g. ``{"K+": "1 mM", "Cl-": "1 mM"}``."""
+        if not isinstance(concentrations, Mapping) or not concentrations:
+            raise InputError(f"electrolyte: {concentrations!r} is not a mapping of ion names to "
+                             "concentrations, expected e.g. {'K+': '1 mM', 'Cl-': '1 mM'}")
+        return cls(tuple(Ion(name=name, concentration=c) for name, c in concentrations.items()), pH=pH,
+                   water_ions=water_ions)
+
+    @property
+    def proton_concentration(self) -> float | None:
+        """Bulk H+ concentration, mol/m^3: the H+ ion's if present, else from the pH (None if neither)."""
+        for ion in self.ions:
+            if ion.name == "H+":
+                return ion.concentration
+        return None if self.pH is None else 1000.0 * 10.0 ** (-self.pH)
+
+    @property
+    def ionic_strength(self) -> float:
+        """Ionic strength I = (1/2) sum z_i^2 c_i, mol/m^3."""
+        return 0.5 * sum(ion.valence**2 * ion.concentration for ion in self.ions)
+
+    def debye_length(self, solvent: Solvent) -> float:
+        """Debye length lambda_D = sqrt(eps kT / (e^2 N_A sum z_i^2 c_i)), m (e.g. Israelachvili,
+        Intermolecular and Surface Forces)."""
+        return math.sqrt(solvent.permittivity * solvent.thermal_voltage
+                         / (ELEMENTARY_CHARGE * AVOGADRO * 2.0 * self.ionic_strength))
+
+
+def _with_water_ions(ions: tuple[Ion, ...], ph: float) -> tuple[Ion, ...]:
+    """Add H+ and OH- at the pH and balance their net charge with the main monovalent counter-ion."""
+    if any(ion.name in ("H+", "OH-") for ion in ions):
+        raise InputError("electrolyte.water_ions: H+ or OH- is already among the ions, expected either the "
+                         "ions or water_ions=True")
+    proton = 1000.0 * 10.0 ** (-ph)
+    hydroxide = 1000.0 * 10.0 ** (ph - WATER_PK)
+    excess = proton - hydroxide  # net positive charge brought in, mol/m^3
+    sign = -1 if excess > 0 else 1  # balanced by an anion (acid added) or a cation (base added)
+    candidates = [ion for ion in ions if ion.valence == sign]
+    if not candidates:
+        raise InputError(f"electrolyte.water_ions: no monovalent {'anion' if sign < 0 else 'cation'} to balance "
+                         "the pH, expected one among the ions")
+    partner = max(candidates, key=lambda ion: ion.concentration)
+    balanced = tuple(Ion(name=i.name, valence=i.valence, concentration=i.concentration + abs(excess),
+                         diffusivity=i.diffusivity, diameter=i.diameter) if i is partner else i for i in ions)
+    return (*balanced, Ion(name="H+", concentration=proton), Ion(name="OH-", concentration=hydroxide))
