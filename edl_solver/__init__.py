@@ -22,7 +22,8 @@ from edl_solver.inputs.electrolyte import Electrolyte, Ion
 from edl_solver.inputs.geometry import Capillary, Slit
 from edl_solver.inputs.solvent import Solvent, Water
 from edl_solver.inputs.wall import Site, Wall
-from edl_solver.results.result import Profiles, Result
+from edl_solver.results.profiles import Profiles
+from edl_solver.results.result import Result
 
 if TYPE_CHECKING:
     from edl_solver.channel.model import Channel

@@ -19,7 +19,8 @@ from edl_solver.kernels import summary as _summary
 from edl_solver.model import equilibrium, flow, scaling, thin_layer, transport, validity
 from edl_solver.model.equilibrium import SectionSolution
 from edl_solver.model.scaling import Scales
-from edl_solver.results.result import Profiles, Result
+from edl_solver.results.profiles import Profiles
+from edl_solver.results.result import Result
 
 
 def solve(case: Case) -> Result:

@@ -172,11 +172,11 @@ CASES = {
 
 @pytest.mark.parametrize("name", CASES)
 def test_the_dict_form_of_io_reads_back_to_the_same_case(name: str) -> None:
-    # io.case_to_dict writes the shape this module reads: the two must agree exactly.
-    from edl_solver.io.hdf5 import case_to_dict
+    # case_to_mapping writes the shape this module reads: the two must agree exactly.
+    from edl_solver.inputs.casefile import case_to_mapping
 
     case = case_from_mapping(CASES[name])
-    assert case_from_mapping(case_to_dict(case)) == case
+    assert case_from_mapping(case_to_mapping(case)) == case
 
 
 def test_none_means_not_given() -> None:

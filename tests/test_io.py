@@ -15,9 +15,10 @@ import pytest
 
 import edl_solver as edl
 from edl_solver.errors import InputError
+from edl_solver.inputs.casefile import case_from_mapping, case_to_mapping
 from edl_solver.inputs.wall import Site
 from edl_solver.io import hdf5 as io
-from edl_solver.results.result import PROFILE_UNITS, SUMMARY_UNITS, summary_unit
+from edl_solver.results.schema import PROFILE_UNITS, SUMMARY_UNITS, summary_unit
 
 PROFILE_NAMES = ("potential", "charge_density", "velocity_eo", "velocity_pressure", "velocity",
                  "velocity_thin_layer", "eo_per_field")
@@ -155,7 +156,7 @@ def test_xarray_sees_coordinates_and_units(results: dict[str, edl.Result], name:
         assert ds.attrs["verdict"] == result.verdict
         assert ds.attrs["field_V_per_m"] == result.case.field
         assert ("radius_m" if capillary else "height_m") in ds.attrs
-        assert io.case_from_dict(json.loads(ds.attrs["case_json"])) == as_stored(result.case)
+        assert case_from_mapping(json.loads(ds.attrs["case_json"])) == as_stored(result.case)
 
 
 def test_arrays_compressed_and_netcdf_safe(results: dict[str, edl.Result], tmp_path: Path) -> None:
@@ -299,8 +300,8 @@ def test_incomplete_file_is_input_error(results: dict[str, edl.Result], tmp_path
 @pytest.mark.parametrize("name", CASES)
 def test_case_dict_round_trip_through_json(name: str) -> None:
     case = CASES[name]
-    table = io.case_to_dict(case)
-    assert io.case_from_dict(json.loads(json.dumps(table))) == as_stored(case)
+    table = case_to_mapping(case)
+    assert case_from_mapping(json.loads(json.dumps(table))) == as_stored(case)
     assert None not in _leaves(table)  # TOML has no null
 
 
@@ -314,7 +315,7 @@ def _leaves(table: object) -> list[object]:
 
 def test_case_from_dict_accepts_units_and_defaults() -> None:
     # The TOML case files share this shape: strings with units and optional sections.
-    case = io.case_from_dict({
+    case = case_from_mapping({
         "geometry": {"kind": "slit", "height": "50 nm"},
         "electrolyte": {"ions": [{"name": "K+", "concentration": "1 mM"}, {"name": "Cl-", "concentration": 1.0}]},
         "wall": {"bottom": {"zeta": "-50 mV"}, "top": {"charge_density": "-2 mC/m^2"}},
@@ -333,9 +334,9 @@ def test_case_from_dict_accepts_units_and_defaults() -> None:
     ({"numerics": {"intervals": 7}}, "intervals"),
 ])
 def test_case_from_dict_bad_input(change: dict[str, object], named: str) -> None:
-    table = {**io.case_to_dict(CASES["slit"]), **change}
+    table = {**case_to_mapping(CASES["slit"]), **change}
     with pytest.raises(InputError, match=named) as info:
-        io.case_from_dict(table)
+        case_from_mapping(table)
     assert "\n" not in str(info.value)
 
 
@@ -397,7 +398,7 @@ def test_stern_potential_pair_round_trips_with_nan(results: dict[str, edl.Result
 def test_water_ions_are_stored_once(results: dict[str, edl.Result], tmp_path: Path) -> None:
     case = CASES["regulated slit"]
     assert [ion.name for ion in case.electrolyte.ions] == ["K+", "Cl-", "H+", "OH-"]
-    table = io.case_to_dict(case)
+    table = case_to_mapping(case)
     assert [ion["name"] for ion in table["electrolyte"]["ions"]] == ["K+", "Cl-", "H+", "OH-"]
     assert table["electrolyte"]["pH"] == 5.0 and "water_ions" not in table["electrolyte"]
     # The stored case is the same physical case: solving it gives the very same numbers.
@@ -412,7 +413,7 @@ def test_version_1_shape_is_unchanged_for_inputs_it_had() -> None:
     # Files of schema version 1 written before regulated walls, slip, the steric model and viscoelectric
     # solvents must still read the same: a case without them has the very dict the first writer wrote.
     assert io.SCHEMA_VERSION == "1"
-    assert io.case_to_dict(CASES["slit"]) == {
+    assert case_to_mapping(CASES["slit"]) == {
         "geometry": {"kind": "slit", "height": 5e-08},
         "electrolyte": {"ions": [{"name": "K+", "valence": 1, "concentration": 1.0, "diffusivity": 1.957e-09},
                                  {"name": "Cl-", "valence": -1, "concentration": 1.0, "diffusivity": 2.032e-09}]},
@@ -425,16 +426,16 @@ def test_version_1_shape_is_unchanged_for_inputs_it_had() -> None:
 
 
 def test_regulated_case_dict_lists_sites_in_full() -> None:
-    table = io.case_to_dict(CASES["regulated slit"])
+    table = case_to_mapping(CASES["regulated slit"])
     # A preset is written out in full, so a file keeps its meaning if the preset's values change.
     assert table["wall"]["bottom"] == {"stern_capacitance": 2.9, "slip_length": 1e-9, "site": [
         {"name": "silanol", "density": 8e18, "pK": 7.5, "charges": [0, -1]}]}
     assert table["wall"]["top"] == {"charge_density": -1e-3, "gate_voltage": 1.0, "gate_capacitance": 0.01,
                                     "site": [{"name": "amphoteric", "density": 2e18, "pK": [4.0, 9.0],
                                               "charges": [1, 0, -1]}]}
-    steric = io.case_to_dict(CASES["steric capillary"])
+    steric = case_to_mapping(CASES["steric capillary"])
     assert [ion["diameter"] for ion in steric["electrolyte"]["ions"]] == [0.7e-9, 0.7e-9]
-    assert io.case_to_dict(CASES["viscoelectric slit"])["solvent"]["viscoelectric_coefficient"] == 1e-15
+    assert case_to_mapping(CASES["viscoelectric slit"])["solvent"]["viscoelectric_coefficient"] == 1e-15
 
 
 def test_transport_group_round_trips_the_response_matrices(tmp_path: Path) -> None:

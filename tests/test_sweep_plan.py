@@ -14,7 +14,7 @@ import numpy as np
 import pytest
 
 import edl_solver as edl
-from edl_solver.io.hdf5 import case_to_dict
+from edl_solver.inputs.casefile import case_to_mapping
 from edl_solver.kernels import batch as _batch
 from edl_solver.kernels import summary as _summary
 from edl_solver.model import packing
@@ -52,7 +52,7 @@ def every_point(axes: Any) -> list[tuple[int, ...]]:
 @pytest.mark.parametrize(("base", "axes"), [(SILICA, SILICA_AXES), (TWO_WALLS, TWO_WALL_AXES)],
                          ids=["regulated silica", "two walls"])
 def test_packed_vectors_equal_points_built_in_full(base: edl.Case, axes: dict[str, list[Any]]) -> None:
-    table, sweep_axes = case_to_dict(base), make_axes(axes)
+    table, sweep_axes = case_to_mapping(base), make_axes(axes)
     plan = make_plan(table, sweep_axes)
     assert plan is not None
     points = every_point(sweep_axes)
@@ -64,20 +64,20 @@ def test_packed_vectors_equal_points_built_in_full(base: edl.Case, axes: dict[st
 
 
 def test_symmetric_points_of_a_two_wall_sweep_are_flagged() -> None:
-    table, sweep_axes = case_to_dict(TWO_WALLS), make_axes({k: TWO_WALL_AXES[k] for k in
+    table, sweep_axes = case_to_mapping(TWO_WALLS), make_axes({k: TWO_WALL_AXES[k] for k in
                                                             ("wall.bottom.zeta", "wall.top.zeta")})
     plan = make_plan(table, sweep_axes)
     vectors, _ = plan.vectors(np.arange(4))
     np.testing.assert_array_equal(vectors[:, packing.P_SYMMETRIC], [1.0, 0.0, 0.0, 1.0])
     slipping = edl.Case(geometry=TWO_WALLS.geometry, electrolyte=TWO_WALLS.electrolyte,
                         wall=(edl.Wall(zeta="-30 mV"), edl.Wall(zeta="-50 mV", slip_length="1 nm")), field="1 kV/m")
-    plan = make_plan(case_to_dict(slipping), sweep_axes)
+    plan = make_plan(case_to_mapping(slipping), sweep_axes)
     vectors, _ = plan.vectors(np.arange(4))
     assert not vectors[:, packing.P_SYMMETRIC].any()  # a slipping top wall differs even at equal potentials
 
 
 def test_batch_summaries_equal_single_solves_exactly() -> None:
-    table, sweep_axes = case_to_dict(SILICA), make_axes(SILICA_AXES)
+    table, sweep_axes = case_to_mapping(SILICA), make_axes(SILICA_AXES)
     plan = make_plan(table, sweep_axes)
     points = every_point(sweep_axes)
     vectors, _ = plan.vectors(np.ravel_multi_index(np.array(points).T, plan.shape))
@@ -99,7 +99,7 @@ def test_batch_summaries_equal_single_solves_exactly() -> None:
 def test_two_wall_sweep_with_model_and_accuracy_axes_equals_single_solves() -> None:
     axes = {key: TWO_WALL_AXES[key] for key in ("wall.bottom.zeta", "wall.top.zeta", "model", "numerics.accuracy")}
     ds = edl.sweep(TWO_WALLS, axes)
-    table, sweep_axes = case_to_dict(TWO_WALLS), make_axes(axes)
+    table, sweep_axes = case_to_mapping(TWO_WALLS), make_axes(axes)
     for index in every_point(sweep_axes):
         result = edl.solve(case_at(table, sweep_axes, index))
         at = ds.isel(dict(zip(ds["status"].dims, index)))
@@ -111,7 +111,7 @@ def test_two_wall_sweep_with_model_and_accuracy_axes_equals_single_solves() -> N
 def test_axes_that_set_the_same_input_are_solved_case_by_case() -> None:
     # water's temperature sets its permittivity, which the second axis sets too: no plan, same values
     axes = {"solvent.temperature": ["15 degC", "35 degC"], "solvent.relative_permittivity": [70.0, 80.0]}
-    table, sweep_axes = case_to_dict(TWO_WALLS), make_axes(axes)
+    table, sweep_axes = case_to_mapping(TWO_WALLS), make_axes(axes)
     assert make_plan(table, sweep_axes) is None
     ds = edl.sweep(TWO_WALLS, axes)
     for index in every_point(sweep_axes):
@@ -123,7 +123,7 @@ def test_axes_that_set_the_same_input_are_solved_case_by_case() -> None:
 def test_an_axis_value_that_makes_no_valid_case_is_recorded_per_point() -> None:
     axes = {"wall.site[0].density": ["-1 nm^-2", "8 nm^-2"], "electrolyte.concentration": ["1 mM", "2 mM"]}
     ds = edl.sweep(SILICA, axes)
-    table, sweep_axes = case_to_dict(SILICA), make_axes(axes)
+    table, sweep_axes = case_to_mapping(SILICA), make_axes(axes)
     outcomes = []
     for index in every_point(sweep_axes):
         at = ds.isel(dict(zip(ds["status"].dims, index)))

@@ -21,7 +21,7 @@ import xarray as xr
 
 import edl_solver as edl
 from edl_solver.errors import ConvergenceError, InputError
-from edl_solver.results.result import SUMMARY_UNITS, summary_unit
+from edl_solver.results.schema import SUMMARY_UNITS, summary_unit
 from edl_solver.sweeping.run import PATH_UNITS
 
 ROOT = Path(__file__).resolve().parents[1]

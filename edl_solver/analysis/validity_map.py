@@ -40,11 +40,11 @@ from typing import Any, Literal
 
 import numpy as np
 
-from edl_solver.constants import FARADAY
 from edl_solver.errors import ConvergenceError, InputError
 from edl_solver.inputs.case import Case
 from edl_solver.inputs.geometry import Capillary
 from edl_solver.io.hdf5 import atomic_output, checked_output_path
+from edl_solver.model.bulk import bulk_conductivity
 
 __all__ = [
     "PSEUDO_AXES",
@@ -245,11 +245,7 @@ def thin_layer_current_per_field(case: Case) -> float:
     float
         S per unit width (slit, "S") or S·m (capillary).
     """
-    conductivity = FARADAY / case.solvent.thermal_voltage * sum(
-        ion.valence**2 * ion.diffusivity * ion.concentration for ion in case.electrolyte.ions)
-    g = case.geometry
-    area = math.pi * g.radius**2 if isinstance(g, Capillary) else g.height
-    return conductivity * area
+    return bulk_conductivity(case) * case.geometry.area
 
 
 def _thin_layer_error(case: Case, summary: Mapping[str, Any], quantity: str) -> float:
@@ -352,8 +348,8 @@ def _axis_units(axis: _MapAxis) -> str:
 def _map_dataset(data: Any, base: Case, x: _MapAxis, y: _MapAxis, tolerances: tuple[float, ...]) -> Any:
     """Rename pseudo-axis dimensions, add the current errors and the map's attributes."""
     from edl_solver import __version__
-    from edl_solver.io.hdf5 import case_to_dict
-    from edl_solver.results.result import summary_unit
+    from edl_solver.inputs.casefile import case_to_mapping
+    from edl_solver.results.schema import summary_unit
 
     for axis in (x, y):
         if axis.pseudo:
@@ -376,7 +372,7 @@ def _map_dataset(data: Any, base: Case, x: _MapAxis, y: _MapAxis, tolerances: tu
         "x_axis": x.name, "y_axis": y.name,
         "x_input": x.path, "y_input": y.path,
         "tolerances": list(tolerances),
-        "case_json": json.dumps(case_to_dict(base), sort_keys=True),
+        "case_json": json.dumps(case_to_mapping(base), sort_keys=True),
         "thin_layer_current_model": "bulk conduction only: I/E = K A, K = (F^2/RT) sum z^2 D c",
         "schema_version": "1",
         "edl_solver_version": __version__,
@@ -392,10 +388,10 @@ def _thin_layer_currents(base: Case, x: _MapAxis, y: _MapAxis) -> np.ndarray:
     leaves it alone), so the plane is the outer product of its two edges. The far corner is checked
     against a direct evaluation; should an input ever break the product form, every case is built.
     """
+    from edl_solver.inputs.casefile import case_to_mapping
     from edl_solver.inputs.paths import case_at, make_axes
-    from edl_solver.io.hdf5 import case_to_dict
 
-    table = case_to_dict(base)
+    table = case_to_mapping(base)
     plane = make_axes({y.path: list(y.inputs), x.path: list(x.inputs)})
 
     def direct(i: int, j: int) -> float:
@@ -487,7 +483,7 @@ def boundary(base: Case, axis: str, tolerance: float | str = 0.05, quantity: Qua
     """
     from scipy.optimize import brentq
 
-    from edl_solver.io.hdf5 import case_to_dict
+    from edl_solver.inputs.casefile import case_to_mapping
     from edl_solver.pipeline import solve
 
     _check_base(base)
@@ -497,7 +493,7 @@ def boundary(base: Case, axis: str, tolerance: float | str = 0.05, quantity: Qua
     low, high = _bracket(base, axis, bracket)
     accuracy = max(min(base.numerics.accuracy, _ACCURACY_PER_TOLERANCE * tau), _SMALLEST_ACCURACY)
     tight = replace(base, numerics=replace(base.numerics, accuracy=accuracy))
-    table = case_to_dict(tight)
+    table = case_to_mapping(tight)
 
     def error(value: float) -> float:
         resolved = _resolve(tight, axis, [value], "axis")
@@ -584,7 +580,7 @@ def boundary_curve(base: Case, axis: str, other_axis: str, other_values: Sequenc
     """
     import xarray as xr
 
-    from edl_solver.io.hdf5 import case_to_dict
+    from edl_solver.inputs.casefile import case_to_mapping
 
     _check_base(base)
     tau = _tolerance(tolerance)
@@ -594,7 +590,7 @@ def boundary_curve(base: Case, axis: str, other_axis: str, other_values: Sequenc
     _check_pair(probe, other, ("axis", "other_axis"))
     if bracket is not None:
         _bracket(base, axis, bracket)  # a bad bracket is an input error once, not a NaN per point
-    table = case_to_dict(base)
+    table = case_to_mapping(base)
     found = np.full(other.values.size, np.nan)
     side = ""
     for i, value in enumerate(other.inputs):
@@ -622,14 +618,14 @@ def boundary_curve(base: Case, axis: str, other_axis: str, other_values: Sequenc
 def _valid_side(case: Case, axis: str, root: float, quantity: str, tau: float, bracket: object) -> str:
     """"above" if the thin-layer model holds at values of ``axis`` just above ``root``, else "below";
     one solve 1 % of the way from the root to the top of the bracket ("" if that solve fails)."""
-    from edl_solver.io.hdf5 import case_to_dict
+    from edl_solver.inputs.casefile import case_to_mapping
     from edl_solver.pipeline import solve
 
     high = _bracket(case, axis, bracket)[1]
     value = root + 0.01 * (high - root)
     try:
         resolved = _resolve(case, axis, [value], "axis")
-        probe = _case_at(case_to_dict(case), resolved.path, float(resolved.inputs[0]))
+        probe = _case_at(case_to_mapping(case), resolved.path, float(resolved.inputs[0]))
         error = _thin_layer_error(probe, solve(probe).summary, quantity)
     except (InputError, ConvergenceError):
         return ""
@@ -677,7 +673,7 @@ def axis_display(name: str, table: Mapping[str, Any]) -> tuple[float, float, str
     name : str
         An axis path or pseudo-axis.
     table : mapping
-        The base case as a plain dict (``io.case_to_dict``), for the geometry and the first ion.
+        The base case as a plain dict (``case_to_mapping``), for the geometry and the first ion.
     """
     if name == "kappa_h":
         capillary = table["geometry"]["kind"] == "capillary"
@@ -942,8 +938,8 @@ def _draw_curve(axes: Any, curve: Any, x_name: str, shown_x: _Shown, shown_y: _S
 
 def _reference_scales(table: Mapping[str, Any]) -> str:
     """The Debye length and kT/e the pseudo-axes are measured against."""
-    from edl_solver.io.hdf5 import case_from_dict
+    from edl_solver.inputs.casefile import case_from_mapping
 
-    case = case_from_dict(table)
+    case = case_from_mapping(table)
     return (f"\ndimensionless axes against the base case: Debye length {case.debye_length * 1e9:.3g} nm, "
             f"kT/e = {case.solvent.thermal_voltage * 1e3:.4g} mV")

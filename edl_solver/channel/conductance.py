@@ -28,6 +28,7 @@ from edl_solver.errors import ConvergenceError, InputError
 from edl_solver.inputs.case import Case
 from edl_solver.inputs.geometry import Capillary
 from edl_solver.inputs.units import to_positive_si, to_si
+from edl_solver.model.bulk import bulk_conductivity, henderson_potential
 
 __all__ = [
     "bulk_conductivity",
@@ -49,16 +50,6 @@ _SLOPE_STEP = 1e-3
 
 # ----------------------------------------------------------------------------------------------
 # Closed forms
-
-
-def bulk_conductivity(case: Case) -> float:
-    """Bulk conductivity of the case's electrolyte, S/m.
-
-    K = (F^2 / RT) sum_i z_i^2 D_i c_i (Nernst-Einstein mobilities D_i / kT, dilute limit; common practice).
-    """
-    rt = GAS_CONSTANT * case.solvent.temperature
-    return FARADAY**2 / rt * sum(ion.valence**2 * ion.diffusivity * ion.concentration
-                                 for ion in case.electrolyte.ions)
 
 
 def counterion_mobility(case: Case, wall_sign: float) -> tuple[float, int]:
@@ -203,10 +194,10 @@ def cases_at(case: Case, concentrations: Sequence[float]) -> list[Case]:
         If the electrolyte cannot be scaled (H+ or OH- among the ions) or a case is invalid.
     """
     from edl_solver.inputs import paths as sweep_axes
-    from edl_solver.io.hdf5 import case_to_dict
+    from edl_solver.inputs.casefile import case_to_mapping
 
     axes = sweep_axes.make_axes({"electrolyte.concentration": list(concentrations)})
-    table = case_to_dict(case)
+    table = case_to_mapping(case)
     return [sweep_axes.case_at(table, axes, (i,)) for i in range(len(concentrations))]
 
 
@@ -284,7 +275,7 @@ def conductance_curve(case: Case, concentrations: Sequence[float | str], length:
     """
     import xarray as xr
 
-    from edl_solver.io.hdf5 import case_to_dict
+    from edl_solver.inputs.casefile import case_to_mapping
     from edl_solver.sweeping.run import sweep
 
     if not isinstance(case, Case):
@@ -343,7 +334,7 @@ def conductance_curve(case: Case, concentrations: Sequence[float | str], length:
         "title": "edl_solver conductance against salt concentration",
         "geometry": "capillary" if capillary else "slit",
         "first_ion": case.electrolyte.ions[0].name,
-        "case_json": json.dumps(case_to_dict(case)),
+        "case_json": json.dumps(case_to_mapping(case)),
     }
     if channel_length is not None:
         attrs["length_m"] = channel_length
@@ -411,24 +402,13 @@ def planck_current(case: Case, left: float, right: float, length: float, voltage
     if plus.valence < 0:
         plus, minus = minus, plus
     rt = GAS_CONSTANT * case.solvent.temperature
-    area = math.pi * case.geometry.radius**2 if isinstance(case.geometry, Capillary) else case.geometry.height
+    area = case.geometry.area
     phi = np.asarray(voltages, dtype=float) * FARADAY / rt
     difference = right - left
     log_mean = difference / math.log(right / left) if not math.isclose(left, right, rel_tol=1e-12) else left
     d = -2.0 * z * log_mean * phi / length
     s = -2.0 * difference / length
     return z * FARADAY * area * (plus.diffusivity * (s + d) - minus.diffusivity * (s - d)) / 2.0
-
-
-def henderson_potential(case: Case, left: float, right: float) -> float:
-    """Zero-current voltage Delta V = V(L) - V(0) of an uncharged channel, V: the free-solution diffusion
-    potential of a mixture whose ions all scale with the salt concentration,
-    -(kT/e) (sum z_i D_i c_i / sum z_i^2 D_i c_i) ln(c_R/c_L) (Henderson 1907, from memory; for a 1:1 salt
-    -(kT/e) (D_+ - D_-)/(D_+ + D_-) ln(c_R/c_L))."""
-    ions = case.electrolyte.ions
-    ratio = sum(i.valence * i.diffusivity * i.concentration for i in ions) / sum(
-        i.valence**2 * i.diffusivity * i.concentration for i in ions)
-    return -GAS_CONSTANT * case.solvent.temperature / FARADAY * ratio * math.log(right / left)
 
 
 def channel_characteristics(channel: Any, voltages: Any = None, pressure_difference: float | str = 0.0) -> Any:
@@ -462,7 +442,7 @@ def channel_characteristics(channel: Any, voltages: Any = None, pressure_differe
     import xarray as xr
 
     from edl_solver.channel import model as ch
-    from edl_solver.io.hdf5 import case_to_dict
+    from edl_solver.inputs.casefile import case_to_mapping
 
     table = channel if isinstance(channel, ch.ChannelTable) else ch.tabulate(channel)
     dp = to_si(pressure_difference, "Pa", "pressure_difference")
@@ -510,7 +490,7 @@ def channel_characteristics(channel: Any, voltages: Any = None, pressure_differe
                                       "input (salt and osmotic flow), at maximum power")
     data["henderson_potential"] = scalar(henderson_potential(case, left, right), "V",
                                          "zero-current voltage of an uncharged channel (Henderson)")
-    data.attrs["case_json"] = json.dumps(case_to_dict(case))
+    data.attrs["case_json"] = json.dumps(case_to_mapping(case))
     data.attrs["equal_reservoirs"] = int(spec.equal_reservoirs)
     data.attrs["osmotic_power_status"] = power.status
     return data

@@ -93,6 +93,7 @@ from edl_solver.inputs.case import Case
 from edl_solver.inputs.geometry import Capillary
 from edl_solver.inputs.units import to_positive_si, to_si
 from edl_solver.model import transport
+from edl_solver.model.bulk import bulk_conductivity
 
 __all__ = [
     "Channel",
@@ -195,10 +196,10 @@ class Channel:
 def _cases_at(case: Case, concentrations: np.ndarray) -> list[Case]:
     """The case at each salt concentration, built exactly as the sweep path "electrolyte.concentration"."""
     from edl_solver.inputs import paths as sweep_axes
-    from edl_solver.io.hdf5 import case_to_dict
+    from edl_solver.inputs.casefile import case_to_mapping
 
     axes = sweep_axes.make_axes({"electrolyte.concentration": [float(c) for c in concentrations]})
-    table = case_to_dict(case)
+    table = case_to_mapping(case)
     return [sweep_axes.case_at(table, axes, (i,)) for i in range(len(concentrations))]
 
 
@@ -297,9 +298,7 @@ def _access_resistance(channel: Channel, rt: float) -> float:
     memory; Kohlrausch-free dilute limit, Nernst-Einstein)."""
     if not channel.access_resistance:
         return 0.0
-    ions = channel.case.electrolyte.ions
-    per_salt = FARADAY**2 / rt * sum(i.valence**2 * i.diffusivity * i.concentration for i in ions) \
-        / ions[0].concentration
+    per_salt = bulk_conductivity(channel.case) / channel.case.electrolyte.ions[0].concentration
     radius = channel.case.geometry.radius
     return sum(1.0 / (4.0 * per_salt * c * radius) for c in (channel.left_concentration,
                                                              channel.right_concentration))

@@ -49,7 +49,7 @@ overrides and parameter sweeps share::
 
 :func:`case_from_mapping` is the one place where a nested dict becomes a ``Case``; the objects of
 ``edl_solver.inputs.case`` do the value checks, this module checks the shape (sections, keys, tables).
-:func:`case_to_mapping` writes the same shape back (the form of ``io.case_to_dict``), and
+:func:`case_to_mapping` writes the same shape back (the form of ``case_to_mapping``), and
 :func:`dumps_case` writes it as TOML text.
 """
 

@@ -178,7 +178,7 @@ def _set_wall(wall: dict[str, Any], key: str, value: Any) -> None:
 
 
 def _set_path(table: dict[str, Any], path: str, value: Any) -> None:
-    """Set one input in the plain-dict form of a case (``io.case_to_dict``)."""
+    """Set one input in the plain-dict form of a case (``case_to_mapping``)."""
     electrolyte = table["electrolyte"]
     if path in ("electrolyte.concentration", "electrolyte.pH", "electrolyte.valence") and any(
             ion["name"] in ("H+", "OH-") for ion in electrolyte["ions"]):

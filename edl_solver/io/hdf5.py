@@ -34,8 +34,8 @@ error naming the unknown key, rather than misreading it).
 Arrays are gzip-compressed with the shuffle filter (readable everywhere, unlike lzf); there are no
 bool, complex or enum types, which would break netCDF readers.
 
-``case_to_dict`` writes the plain-dict form of a Case that the JSON attribute and the TOML case files
-share; ``case_from_dict`` reads it back through the case-file parser (``edl_solver.inputs.casefile``).
+``case_to_mapping`` writes the plain-dict form of a Case that the JSON attribute and the TOML case files
+share; ``case_from_mapping`` reads it back through the case-file parser (``edl_solver.inputs.casefile``).
 """
 
 from __future__ import annotations
@@ -44,7 +44,7 @@ import json
 import math
 import os
 import secrets
-from collections.abc import Iterator, Mapping, Sequence
+from collections.abc import Iterator, Sequence
 from contextlib import contextmanager, suppress
 from numbers import Integral, Real
 from pathlib import Path
@@ -57,9 +57,11 @@ from edl_solver.inputs.case import Case
 from edl_solver.inputs.casefile import case_from_mapping, case_to_mapping
 from edl_solver.inputs.geometry import Capillary, Slit
 from edl_solver.inputs.wall import Wall
-from edl_solver.results.result import PROFILE_UNITS, SUMMARY_UNITS, Profiles, Result, summary_unit
+from edl_solver.results.profiles import Profiles
+from edl_solver.results.result import Result
+from edl_solver.results.schema import PROFILE_UNITS, SUMMARY_UNITS, summary_unit
 
-__all__ = ["SCHEMA_VERSION", "atomic_output", "case_from_dict", "case_to_dict", "read_result", "write_result"]
+__all__ = ["SCHEMA_VERSION", "atomic_output", "case_from_mapping", "case_to_mapping", "read_result", "write_result"]
 
 #: Version of the file layout; bump it when a reader of the old layout would misread the new one.
 SCHEMA_VERSION = "1"
@@ -141,66 +143,6 @@ def atomic_output(path: str | os.PathLike[str]) -> Iterator[Path]:
         with suppress(OSError):
             temporary.unlink()
         raise
-
-
-# ----------------------------------------------------------------------------------------------
-# Case <-> plain dict (JSON attribute here, TOML case files in the CLI)
-
-
-def case_to_dict(case: Case) -> dict[str, Any]:
-    """The case as a plain dict of SI numbers, strings and lists (JSON- and TOML-compatible, no None).
-
-    The shape of the TOML case files (``casefile.case_to_mapping``, which this is), so that one parser
-    reads both.
-
-    Parameters
-    ----------
-    case : Case
-
-    Returns
-    -------
-    dict
-        ``{"geometry": {"kind": "slit", "height": H} | {"kind": "capillary", "radius": a},
-        "electrolyte": {"ions": [{"name", "valence", "concentration", "diffusivity"[, "diameter"]}, ...][,
-        "pH"]}, "wall": {...} | {"bottom": {...}, "top": {...}}, "solvent": {"temperature",
-        "relative_permittivity", "viscosity", "name"[, "viscoelectric_coefficient"]}, "field",
-        "pressure_gradient", "model", "tolerance", "numerics": {"accuracy", "max_iterations",
-        "max_intervals"[, "intervals"]}}``; a wall table holds what is set of ``zeta``,
-        ``charge_density``, ``stern_capacitance``, ``gate_voltage``, ``gate_capacitance``,
-        ``slip_length`` and ``site`` (a list of ``{"name", "density", "pK", "charges"}``).
-        ``case_from_dict`` inverts it exactly, except that H+ and OH- added by ``water_ions=True`` come
-        back as plain ions with ``water_ions=False`` (the same physical case; reading the flag again
-        would add them twice).
-
-    Raises
-    ------
-    InputError
-        If ``case`` is not a Case.
-    """
-    return case_to_mapping(case)
-
-
-def case_from_dict(table: Mapping[str, Any]) -> Case:
-    """Build a Case from its plain-dict form (the shape ``case_to_dict`` writes).
-
-    The dict shape is the one of the TOML case files, so this is ``casefile.case_from_mapping``:
-    one parser for both, which also takes strings with units, optional sections and the short
-    forms of a case file (``ions = {"K+" = "1 mM", ...}``).
-
-    Parameters
-    ----------
-    table : mapping
-
-    Returns
-    -------
-    Case
-
-    Raises
-    ------
-    InputError
-        On a missing or unknown key (with a "did you mean" hint) or an invalid value.
-    """
-    return case_from_mapping(table)
 
 
 # ----------------------------------------------------------------------------------------------
@@ -333,7 +275,7 @@ def _write(file: Any, result: Result) -> None:
         "title": f"edl_solver result: {case.describe()}",
         "schema_version": SCHEMA_VERSION,
         "edl_solver_version": __version__,
-        "case_json": json.dumps(case_to_dict(case)),
+        "case_json": json.dumps(case_to_mapping(case)),
         **_case_attributes(case),
         "verdict": result.verdict,
         "status": result.status,
@@ -433,7 +375,7 @@ def _read(file: Any, shown: str) -> Result:
         raise InputError(f"path: {shown} has schema_version {version}, newer than edl_solver {__version__} "
                          f"reads (up to {SCHEMA_VERSION}); upgrade edl_solver")
     try:
-        case = case_from_dict(json.loads(_text(attrs["case_json"])))
+        case = case_from_mapping(json.loads(_text(attrs["case_json"])))
     except (ValueError, TypeError) as exc:  # InputError and JSONDecodeError are ValueErrors
         raise InputError(f"path: {shown} has an unreadable case_json ({exc})") from None
     coordinate = "r" if isinstance(case.geometry, Capillary) else "y"

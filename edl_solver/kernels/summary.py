@@ -55,7 +55,7 @@ from edl_solver.model.packing import (
     P_TEMPERATURE,
     P_VISCOSITY,
 )
-from edl_solver.results.result import SUMMARY_UNITS
+from edl_solver.results.schema import SUMMARY_UNITS
 
 #: Summary keys that hold a (bottom, top) pair: two slots each (equal for a symmetric case).
 PAIR_KEYS = ("zeta", "wall_charge_density", "stern_potential", "hs_velocity", "thin_layer_zeta")

@@ -12,7 +12,7 @@ import numpy as np
 from edl_solver.constants import AVOGADRO
 from edl_solver.inputs.case import Case
 from edl_solver.inputs.geometry import Capillary
-from edl_solver.results.result import Profiles
+from edl_solver.results.profiles import Profiles
 
 #: Below this channel size (slit height or capillary diameter), m, water and ions are not a continuum
 #: (common practice: about 1-2 nm).

@@ -68,10 +68,10 @@ def _section_text(case: Case, concentrations: bool = True) -> str:
 
 def _case_of(dataset: Any) -> Case | None:
     """The case stored in a dataset's ``case_json`` attribute, if any."""
-    from edl_solver.io.hdf5 import case_from_dict
+    from edl_solver.inputs.casefile import case_from_mapping
 
     text = dataset.attrs.get("case_json")
-    return case_from_dict(json.loads(text)) if isinstance(text, str) else None
+    return case_from_mapping(json.loads(text)) if isinstance(text, str) else None
 
 
 def _new_figure(width: float, height: float) -> Any:

@@ -397,11 +397,11 @@ def _check_cases(case: Case, axes: Mapping[str, list[Any]], raw: Mapping[str, An
 
     For a range only its bounds are built: the checks are intervals, which hold between the bounds.
     """
+    from edl_solver.inputs.casefile import case_to_mapping
     from edl_solver.inputs.paths import case_at, make_axes
-    from edl_solver.io.hdf5 import case_to_dict
 
     sweep_axes = make_axes(axes, zipped)
-    table = case_to_dict(case)
+    table = case_to_mapping(case)
     for a, axis in enumerate(sweep_axes):
         ranged = all(isinstance(raw[path], Mapping) for path in axis.paths)
         indices = sorted({0, axis.size - 1}) if ranged else range(axis.size)

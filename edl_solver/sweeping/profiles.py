@@ -15,7 +15,8 @@ from typing import Any
 import numpy as np
 
 from edl_solver.errors import InputError
-from edl_solver.results.result import PROFILE_UNITS, Profiles
+from edl_solver.results.profiles import Profiles
+from edl_solver.results.schema import PROFILE_UNITS
 
 #: Default number of positions across the section.
 DEFAULT_POINTS = 101

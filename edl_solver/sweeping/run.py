@@ -27,7 +27,7 @@ from edl_solver.errors import ConvergenceError, InputError
 from edl_solver.inputs.case import Case
 from edl_solver.inputs.geometry import Capillary
 from edl_solver.inputs.paths import PATH_UNITS, WORD_PATHS, Axis, case_at, check_conflicts, make_axes
-from edl_solver.results.result import SUMMARY_UNITS
+from edl_solver.results.schema import SUMMARY_UNITS
 from edl_solver.sweeping import profiles as sweep_profiles
 from edl_solver.sweeping.plan import SweepPlan, make_plan
 from edl_solver.sweeping.store import CONVERGED, FAILED, PENDING, SweepStore, rows_todo
@@ -169,14 +169,14 @@ def sweep(base: Case, axes: Mapping[str, Any], *, zipped: Sequence[Sequence[str]
         profiles, ``profile_<field>`` variables on an extra ``position`` dimension (and ``ion`` for the
         concentrations).
     """
-    from edl_solver.io.hdf5 import case_to_dict
+    from edl_solver.inputs.casefile import case_to_mapping
 
     if not isinstance(base, Case):
         raise InputError(f"base: {type(base).__name__} is not a Case, expected edl_solver.Case(...)")
     if isinstance(workers, bool) or not isinstance(workers, int) or workers < 1:
         raise InputError(f"workers: {workers!r} is not allowed, expected a positive integer")
     sweep_axes = make_axes(axes, zipped)
-    base_table = case_to_dict(base)
+    base_table = case_to_mapping(base)
     pair = isinstance(base.wall, tuple) or any(p.startswith(("wall.bottom", "wall.top"))
                                                for axis in sweep_axes for p in axis.paths)
     profile_points = sweep_profiles.check_points(profiles)

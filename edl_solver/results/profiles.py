@@ -1,0 +1,48 @@
+"""Fields across the section, SI."""
+
+from __future__ import annotations
+
+from dataclasses import dataclass
+
+import numpy as np
+
+
+@dataclass(frozen=True)
+class Profiles:
+    """Fields across the whole section on the (wall-clustered) finest grid; second-order accurate.
+
+    Attributes
+    ----------
+    coordinate : ndarray
+        Slit: y from 0 (bottom wall) to H (top wall), m. Capillary: r from 0 (axis) to a, m.
+    coordinate_name : str
+        "y" (slit) or "r" (capillary).
+    potential : ndarray
+        phi relative to the reservoir, V.
+    concentration : ndarray
+        Ion concentrations, shape (ions, nodes), mol/m^3.
+    charge_density : ndarray
+        rho_e = sum_i z_i e N_A c_i, C/m^3.
+    velocity_eo, velocity_pressure, velocity : ndarray
+        Electroosmotic, pressure-driven and total axial velocity, m/s.
+    velocity_thin_layer : ndarray
+        The thin-layer (slip) EO velocity profile for the same case, m/s.
+    ion_names : tuple of str
+    eo_per_field : ndarray
+        EO velocity per unit field, m^2/(V s) (defined also when the case has no field).
+    """
+
+    coordinate: np.ndarray
+    coordinate_name: str
+    potential: np.ndarray
+    concentration: np.ndarray
+    charge_density: np.ndarray
+    velocity_eo: np.ndarray
+    velocity_pressure: np.ndarray
+    velocity: np.ndarray
+    velocity_thin_layer: np.ndarray
+    ion_names: tuple[str, ...]
+    eo_per_field: np.ndarray
+
+
+#: Units and one-line meanings of the summary values.
