@@ -18,6 +18,7 @@ from bench_models import timed  # the same median-of-5 timer (this folder is on 
 
 import edl_solver as edl
 from edl_solver.kernels import fv1d as _kernels
+from edl_solver.kernels import layout as _layout
 from edl_solver.kernels import summary as _summary
 from edl_solver.model import equilibrium, scaling
 
@@ -36,7 +37,7 @@ def main() -> None:
         prepared = scaling.prepare(case)
         problem = prepared.problem
         section = equilibrium.solve_section(problem, case.numerics.accuracy)
-        values = np.empty(_summary.SUMMARY_SIZE)
+        values = np.empty(_layout.SUMMARY_SIZE)
         slip = _summary.thin_slip(prepared.vector, prepared.isolated_array)
         arguments = (prepared.vector, prepared.scale_vector, prepared.isolated_array, slip, section.integrals,
                      problem.kappa2, 0.0, 0.0, values)

@@ -65,7 +65,7 @@ import numba  # noqa: E402
 
 import edl_solver as edl  # noqa: E402
 from edl_solver.kernels import batch as _batch  # noqa: E402
-from edl_solver.kernels import summary as _summary  # noqa: E402
+from edl_solver.kernels import layout as _layout  # noqa: E402
 from edl_solver.model import (  # noqa: E402
     equilibrium,
     packing,
@@ -209,7 +209,7 @@ class Batch:
         self.problems = [scaling.prepare(c).problem for c in self.cases]  # for the single-case kernel race
         self.accuracy = self.cases[0].numerics.accuracy
         n = grid.size
-        self.summaries = np.empty((n, _summary.SUMMARY_SIZE))
+        self.summaries = np.empty((n, _layout.SUMMARY_SIZE))
         self.status = np.zeros(n, dtype=np.int64)
         self.iterations = np.zeros(n, dtype=np.int64)
 

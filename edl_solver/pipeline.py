@@ -15,6 +15,7 @@ from edl_solver.constants import AVOGADRO, ELEMENTARY_CHARGE
 from edl_solver.errors import ConvergenceError
 from edl_solver.inputs.case import Case
 from edl_solver.inputs.geometry import Capillary
+from edl_solver.kernels import layout as _layout
 from edl_solver.kernels import summary as _summary
 from edl_solver.model import equilibrium, flow, scaling, thin_layer, transport, validity
 from edl_solver.model.equilibrium import SectionSolution
@@ -50,7 +51,7 @@ def solve(case: Case) -> Result:
     numerics = case.numerics
     section = equilibrium.solve_section(problem, numerics.accuracy, numerics.intervals,
                                         numerics.max_iterations, numerics.max_intervals, case.describe)
-    values = np.empty(_summary.SUMMARY_SIZE)
+    values = np.empty(_layout.SUMMARY_SIZE)
     ion_matrix, matrix = _summary.summarize_solution(
         prepared.vector, prepared.scale_vector, prepared.isolated_array, section.integrals, problem.kappa2,
         section.grid.s, section.grid.beta, section.u_eo, section.error_estimate, values)
@@ -83,15 +84,15 @@ def _plain(value: float) -> float:
 
 
 def summary_dict(values: np.ndarray, case: Case) -> dict[str, Any]:
-    """The summary of a case from its compiled summary vector (``_summary.SLOTS``): pair keys as a float
+    """The summary of a case from its compiled summary vector (``_layout.SLOTS``): pair keys as a float
     when one condition holds on every wall, else (bottom, top); the Stern-plane potential only when a wall
     has a Stern layer."""
     flat = values.tolist()
     stern = any(wall.stern_capacitance is not None for wall in case.walls)
     symmetric = case.symmetric
     summary: dict[str, Any] = {}
-    for key, at in _summary.SLOTS.items():
-        if key in _summary.PAIR_KEYS:
+    for key, at in _layout.SLOTS.items():
+        if key in _layout.PAIR_KEYS:
             if key == "stern_potential" and not stern:
                 continue
             summary[key] = _plain(flat[at + 1]) if symmetric else (_plain(flat[at]), _plain(flat[at + 1]))

@@ -16,7 +16,7 @@ import pytest
 import edl_solver as edl
 from edl_solver.inputs.casefile import case_to_mapping
 from edl_solver.kernels import batch as _batch
-from edl_solver.kernels import summary as _summary
+from edl_solver.kernels import layout as _layout
 from edl_solver.model import packing
 from edl_solver.sweeping.plan import make_plan
 from edl_solver.sweeping.run import case_at, make_axes
@@ -81,7 +81,7 @@ def test_batch_summaries_equal_single_solves_exactly() -> None:
     plan = make_plan(table, sweep_axes)
     points = every_point(sweep_axes)
     vectors, _ = plan.vectors(np.ravel_multi_index(np.array(points).T, plan.shape))
-    summaries = np.full((len(points), _summary.SUMMARY_SIZE), np.nan)
+    summaries = np.full((len(points), _layout.SUMMARY_SIZE), np.nan)
     status = np.empty(len(points), dtype=np.int64)
     iterations = np.empty(len(points), dtype=np.int64)
     _batch.solve_cases(vectors, summaries, status, iterations)
@@ -90,8 +90,8 @@ def test_batch_summaries_equal_single_solves_exactly() -> None:
         case = case_at(table, sweep_axes, index)
         result = edl.solve(case)
         for key, value in result.summary.items():
-            at = _summary.SLOTS[key]
-            got = (row[at], row[at + 1]) if isinstance(value, tuple) else row[at + 1 if key in _summary.PAIR_KEYS
+            at = _layout.SLOTS[key]
+            got = (row[at], row[at + 1]) if isinstance(value, tuple) else row[at + 1 if key in _layout.PAIR_KEYS
                                                                                 else at]
             np.testing.assert_array_equal(got, value, err_msg=f"{key} at {index}")
 

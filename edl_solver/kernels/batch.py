@@ -44,7 +44,7 @@ def solve_one(p, out):
 @njit(cache=True, parallel=True)
 def solve_cases(vectors, summaries, status, iterations):
     """Row i of ``vectors`` (packed cases, all with the same number of ions) -> row i of ``summaries``
-    (``_summary.SLOTS`` layout), ``status`` and ``iterations``; the rows run in parallel."""
+    (``_layout.SLOTS`` layout), ``status`` and ``iterations``; the rows run in parallel."""
     for i in prange(vectors.shape[0]):
         st, its = solve_one(vectors[i], summaries[i])
         status[i] = st

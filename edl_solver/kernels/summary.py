@@ -32,6 +32,7 @@ from edl_solver.kernels.fv1d import (
     W_TYPE,
     response_offsets,
 )
+from edl_solver.kernels.layout import SLOTS
 from edl_solver.kernels.prepare import (
     S_AREA,
     S_CHARGE_DENSITY,
@@ -55,23 +56,6 @@ from edl_solver.model.packing import (
     P_TEMPERATURE,
     P_VISCOSITY,
 )
-from edl_solver.results.schema import SUMMARY_UNITS
-
-#: Summary keys that hold a (bottom, top) pair: two slots each (equal for a symmetric case).
-PAIR_KEYS = ("zeta", "wall_charge_density", "stern_potential", "hs_velocity", "thin_layer_zeta")
-
-
-def _slots() -> dict[str, int]:
-    slots, at = {}, 0
-    for key in SUMMARY_UNITS:
-        slots[key] = at
-        at += 2 if key in PAIR_KEYS else 1
-    return slots
-
-
-#: Where each summary key starts in the summary vector.
-SLOTS = _slots()
-SUMMARY_SIZE = max(SLOTS.values()) + 1
 
 #: Discrete identities (charge balance, Onsager reciprocity) hold to round-off; beyond this a solve is
 #: declared failed rather than returned.

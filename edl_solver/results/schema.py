@@ -5,6 +5,10 @@ Units that differ between geometries are written "per unit width|per channel" (s
 
 from __future__ import annotations
 
+from edl_solver.kernels.layout import PAIR_KEYS, SUMMARY_KEYS
+
+__all__ = ["PAIR_KEYS", "PROFILE_UNITS", "SUMMARY_KEYS", "SUMMARY_UNITS", "summary_unit"]
+
 #: Units of the profile arrays, for reports and files.
 PROFILE_UNITS: dict[str, str] = {
     "coordinate": "m",
@@ -19,7 +23,7 @@ PROFILE_UNITS: dict[str, str] = {
 }
 
 
-SUMMARY_UNITS: dict[str, tuple[str, str]] = {
+_UNITS: dict[str, tuple[str, str]] = {
     "debye_length": ("m", "Debye length of the bulk electrolyte"),
     "kappa_h": ("1", "half-height (slit) or radius (capillary) over the Debye length"),
     "zeta": ("V", "wall potential relative to the reservoir"),
@@ -77,6 +81,12 @@ SUMMARY_UNITS: dict[str, tuple[str, str]] = {
     "reciprocity_residual": ("1", "relative mismatch of streaming current per gradient and EO flow per field"),
     "error_estimate": ("1", "estimated relative discretisation error of the summary values"),
 }
+
+
+#: Unit and long name of every summary value, in the order of the summary vector (``kernels.layout``).
+SUMMARY_UNITS: dict[str, tuple[str, str]] = {key: _UNITS[key] for key in SUMMARY_KEYS}
+if set(_UNITS) != set(SUMMARY_KEYS):  # a key added on one side only
+    raise ImportError(f"results.schema and kernels.layout disagree on {sorted(set(_UNITS) ^ set(SUMMARY_KEYS))}")
 
 
 def summary_unit(key: str, capillary: bool) -> str:

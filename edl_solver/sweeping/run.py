@@ -27,6 +27,7 @@ from edl_solver.errors import ConvergenceError, InputError
 from edl_solver.inputs.case import Case
 from edl_solver.inputs.geometry import Capillary
 from edl_solver.inputs.paths import PATH_UNITS, WORD_PATHS, Axis, case_at, check_conflicts, make_axes
+from edl_solver.kernels.layout import PAIR_KEYS, SLOTS, SUMMARY_SIZE
 from edl_solver.results.schema import SUMMARY_UNITS
 from edl_solver.sweeping import profiles as sweep_profiles
 from edl_solver.sweeping.plan import SweepPlan, make_plan
@@ -77,11 +78,10 @@ def _solve_batch(plan: SweepPlan, points: np.ndarray, values: dict[str, np.ndarr
     """Solve the valid points in one compiled batch, filling ``values`` and ``status`` (rows, last axis);
     returns which points are left to the case-by-case path."""
     from edl_solver.kernels import batch as _batch
-    from edl_solver.kernels import summary as _summary
 
     vectors, valid = plan.vectors(points)
     chosen = np.nonzero(valid)[0]
-    summaries = np.full((chosen.size, _summary.SUMMARY_SIZE), np.nan)
+    summaries = np.full((chosen.size, SUMMARY_SIZE), np.nan)
     codes = np.empty(chosen.size, dtype=np.int64)
     iterations = np.empty(chosen.size, dtype=np.int64)
     _batch.solve_cases(np.ascontiguousarray(vectors[chosen]), summaries, codes, iterations)
@@ -90,8 +90,8 @@ def _solve_batch(plan: SweepPlan, points: np.ndarray, values: dict[str, np.ndarr
     last = status.shape[1]
     r, j = np.divmod(done, last)
     status[r, j] = CONVERGED
-    for key, at in _summary.SLOTS.items():
-        pair = key in _summary.PAIR_KEYS
+    for key, at in SLOTS.items():
+        pair = key in PAIR_KEYS
         values[key][r, j, 0] = finished[:, at]
         values[key][r, j, 1] = finished[:, at + 1] if pair else finished[:, at]
     left = np.ones(points.size, dtype=bool)

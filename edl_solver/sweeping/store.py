@@ -17,8 +17,7 @@ import numpy as np
 
 from edl_solver.errors import InputError
 from edl_solver.inputs.paths import PATH_UNITS, WORD_PATHS, Axis
-from edl_solver.kernels.summary import PAIR_KEYS
-from edl_solver.results.schema import SUMMARY_UNITS, summary_unit
+from edl_solver.results.schema import PAIR_KEYS, SUMMARY_UNITS, summary_unit
 from edl_solver.sweeping import profiles as sweep_profiles
 
 #: Status codes stored per case.
