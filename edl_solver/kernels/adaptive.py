@@ -31,6 +31,7 @@ from edl_solver.kernels.fv1d import (
     pb_newton,
     section_integrals,
 )
+from edl_solver.kernels.layout import ACCURACY_MISSED, CONVERGED, NEWTON_FAILED
 
 LEVELS = 4
 #: Newton stops when a full step is below this (kT/e).
@@ -40,11 +41,6 @@ MAX_STEP = 5.0
 
 #: Potentials below this (kT/e) count as zero when errors are measured (and in the identity checks).
 POTENTIAL_FLOOR = 1e-6
-
-# status codes of a case
-CONVERGED = 0
-NEWTON_FAILED = 1
-ACCURACY_MISSED = 2
 
 
 @njit(cache=True)

@@ -15,15 +15,13 @@ from numba import njit, prange
 
 from edl_solver.kernels import adaptive as _adaptive
 from edl_solver.kernels.fv1d import response_offsets
+from edl_solver.kernels.layout import CONVERGED, IDENTITY_FAILED
 from edl_solver.kernels.prepare import section_inputs
 from edl_solver.kernels.summary import identities_hold, summarize_solution
 from edl_solver.model.packing import P_ACCURACY, P_INTERVALS, P_MAX_INTERVALS, P_MAX_ITERATIONS
 
 # status codes of a case (the first three as _adaptive's)
-CONVERGED = _adaptive.CONVERGED
-NEWTON_FAILED = _adaptive.NEWTON_FAILED
 ACCURACY_MISSED = _adaptive.ACCURACY_MISSED
-IDENTITY_FAILED = 3
 
 
 @njit(cache=True)

@@ -42,3 +42,11 @@ def _slots() -> dict[str, int]:
 #: Where each summary key starts in the summary vector.
 SLOTS = _slots()
 SUMMARY_SIZE = max(SLOTS.values()) + 1
+
+
+# Status codes of the compiled solve of one case (``kernels.adaptive``, ``kernels.batch``); what they mean to a
+# user is ``results.schema.STATUS``.
+CONVERGED = 0
+NEWTON_FAILED = 1
+ACCURACY_MISSED = 2
+IDENTITY_FAILED = 3

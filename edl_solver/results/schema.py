@@ -5,9 +5,32 @@ Units that differ between geometries are written "per unit width|per channel" (s
 
 from __future__ import annotations
 
+from edl_solver.kernels import layout
 from edl_solver.kernels.layout import PAIR_KEYS, SUMMARY_KEYS
 
-__all__ = ["PAIR_KEYS", "PROFILE_UNITS", "SUMMARY_KEYS", "SUMMARY_UNITS", "summary_unit"]
+__all__ = ["CONVERGED", "FAILED", "KERNEL_FAILURES", "PAIR_KEYS", "PENDING", "PROFILE_UNITS", "STATUS", "SUMMARY_KEYS",
+           "SUMMARY_UNITS", "status_word", "summary_unit"]
+
+#: Status of a case, the one vocabulary of results, sweeps, maps and channels: the code stored in files
+#: (``status`` variables), the word a ``Result`` or an operating point carries, and what it means.
+PENDING, CONVERGED, FAILED = -1, 0, 1
+STATUS: dict[int, tuple[str, str]] = {
+    PENDING: ("pending", "not solved yet (an interrupted sweep; resume it)"),
+    CONVERGED: ("converged", "solved to the requested accuracy, conservation identities checked"),
+    FAILED: ("failed", "not solved: the reason is in the message"),
+}
+#: Why the compiled solve of a case failed (``kernels.layout`` codes), in words; any of them is FAILED.
+KERNEL_FAILURES: dict[int, str] = {
+    layout.NEWTON_FAILED: "Newton's method did not converge",
+    layout.ACCURACY_MISSED: "the grid refinement limit was reached before the requested accuracy",
+    layout.IDENTITY_FAILED: "the discrete solution violates charge balance or reciprocity",
+}
+
+
+def status_word(code: int) -> str:
+    """The word of a status code ("pending", "converged", "failed")."""
+    return STATUS[int(code)][0]
+
 
 #: Units of the profile arrays, for reports and files.
 PROFILE_UNITS: dict[str, str] = {

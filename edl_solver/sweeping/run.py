@@ -28,10 +28,10 @@ from edl_solver.inputs.case import Case
 from edl_solver.inputs.geometry import Capillary
 from edl_solver.inputs.paths import PATH_UNITS, WORD_PATHS, Axis, case_at, check_conflicts, make_axes
 from edl_solver.kernels.layout import PAIR_KEYS, SLOTS, SUMMARY_SIZE
-from edl_solver.results.schema import SUMMARY_UNITS
+from edl_solver.results.schema import CONVERGED, FAILED, PENDING, SUMMARY_UNITS
 from edl_solver.sweeping import profiles as sweep_profiles
 from edl_solver.sweeping.plan import SweepPlan, make_plan
-from edl_solver.sweeping.store import CONVERGED, FAILED, PENDING, SweepStore, rows_todo
+from edl_solver.sweeping.store import SweepStore, rows_todo
 
 
 def solve_rows(base_table: Mapping[str, Any], axes: Sequence[Axis], rows: Sequence[int],

@@ -17,11 +17,10 @@ import numpy as np
 
 from edl_solver.errors import InputError
 from edl_solver.inputs.paths import PATH_UNITS, WORD_PATHS, Axis
-from edl_solver.results.schema import PAIR_KEYS, SUMMARY_UNITS, summary_unit
+from edl_solver.results.schema import PAIR_KEYS, PENDING, SUMMARY_UNITS, summary_unit
 from edl_solver.sweeping import profiles as sweep_profiles
 
 #: Status codes stored per case.
-PENDING, CONVERGED, FAILED = -1, 0, 1
 STATUS_MEANING = "0 converged, 1 failed (see message), -1 not computed yet"
 
 
