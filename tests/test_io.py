@@ -138,7 +138,7 @@ def test_xarray_sees_coordinates_and_units(results: dict[str, edl.Result], name:
             assert ds[variable].attrs["long_name"], variable
             assert ds[variable].dims[-1] == coordinate
         for key, value in result.summary.items():
-            assert ds[key].attrs["units"] == summary_unit(key, capillary), key
+            assert ds[key].attrs["units"] == summary_unit(key, result.case.geometry), key
             assert ds[key].attrs["long_name"] == SUMMARY_UNITS[key][1], key
             if isinstance(value, tuple):
                 assert ds[key].dims == ("wall",)

@@ -147,7 +147,7 @@ def test_dataset_has_one_dimension_per_axis_in_order_and_units_everywhere(slit_s
     np.testing.assert_allclose(ds["solvent.temperature"], [288.15, 298.15, 308.15], rtol=1e-15)
     assert ds["solvent.temperature"].dims == ("wall.top.zeta",)
     for key in SUMMARY_UNITS:
-        assert ds[key].attrs["units"] == summary_unit(key, capillary=False), key
+        assert ds[key].attrs["units"] == summary_unit(key, edl.Slit(height=1e-8)), key
         assert ds[key].attrs["long_name"], key
     assert np.issubdtype(ds["status"].dtype, np.integer)
     # The order of the axes is the order of the dimensions.

@@ -361,9 +361,8 @@ def _map_dataset(data: Any, base: Case, x: _MapAxis, y: _MapAxis, tolerances: tu
     with np.errstate(divide="ignore", invalid="ignore"):
         error = np.where(converged & (full != 0.0), (thin - full) / full, np.nan)
     dims = (y.name, x.name)
-    capillary = isinstance(base.geometry, Capillary)
     data["thin_layer_current_per_field"] = (dims, thin, {
-        "units": summary_unit("current_per_field", capillary),
+        "units": summary_unit("current_per_field", base.geometry),
         "long_name": "current per field of the thin-layer model: bulk conduction K A (Nernst-Einstein K)"})
     data["thin_layer_current_error"] = (dims, error, {
         "units": "1", "long_name": "(thin-layer - full) / full current per field"})

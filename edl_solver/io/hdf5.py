@@ -265,7 +265,7 @@ def _write(file: Any, result: Result) -> None:
         if key in file.variables:
             raise ValueError(f"summary[{key!r}]: clashes with the variable of the same name in the file")
         data = _summary_array(key, value)
-        _add_array(file, key, ("wall",) if data.ndim else (), data, summary_unit(key, capillary),
+        _add_array(file, key, ("wall",) if data.ndim else (), data, summary_unit(key, case.geometry),
                    SUMMARY_UNITS[key][1])
 
     if result.response_matrix is not None:

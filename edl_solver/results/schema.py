@@ -1,10 +1,12 @@
 """The schema of what a solve returns: the unit and long name of every summary value and profile.
 
-Units that differ between geometries are written "per unit width|per channel" (slit | capillary).
+Units of extensive values (flow rates, currents, conductances) are a pair (per unit width, per channel);
+the geometry's ``extent`` picks one (``inputs.geometry.extent_unit``).
 """
 
 from __future__ import annotations
 
+from edl_solver.inputs.geometry import Geometry, extent_unit
 from edl_solver.kernels import layout
 from edl_solver.kernels.layout import PAIR_KEYS, SUMMARY_KEYS
 
@@ -46,7 +48,7 @@ PROFILE_UNITS: dict[str, str] = {
 }
 
 
-_UNITS: dict[str, tuple[str, str]] = {
+_UNITS: dict[str, tuple[str | tuple[str, str], str]] = {
     "debye_length": ("m", "Debye length of the bulk electrolyte"),
     "kappa_h": ("1", "half-height (slit) or radius (capillary) over the Debye length"),
     "zeta": ("V", "wall potential relative to the reservoir"),
@@ -54,30 +56,30 @@ _UNITS: dict[str, tuple[str, str]] = {
     "stern_potential": ("V", "potential of the charge plane behind the Stern layer (zeta + sigma / C_S)"),
     "centre_potential": ("V", "potential at the slit mid-plane or capillary axis"),
     "mean_potential": ("V", "cross-section mean potential"),
-    "flow_rate_eo": ("m^2/s|m^3/s", "electroosmotic flow rate (per unit width for a slit)"),
-    "flow_rate_pressure": ("m^2/s|m^3/s", "pressure-driven flow rate (per unit width for a slit)"),
+    "flow_rate_eo": (("m^2/s", "m^3/s"), "electroosmotic flow rate (per unit width for a slit)"),
+    "flow_rate_pressure": (("m^2/s", "m^3/s"), "pressure-driven flow rate (per unit width for a slit)"),
     "mean_velocity_eo": ("m/s", "mean electroosmotic velocity"),
     "mean_velocity_pressure": ("m/s", "mean pressure-driven velocity"),
     "hs_velocity": ("m/s", "Helmholtz-Smoluchowski slip velocity -eps zeta E / eta of the thin-layer model"),
     "eo_ratio": ("1", "mean EO velocity over the thin-layer mean velocity"),
-    "conduction_current": ("A/m|A", "ionic conduction current (per unit width for a slit)"),
-    "streaming_current": ("A/m|A", "convection current of the space charge in the pressure-driven flow"),
-    "eo_convection_current": ("A/m|A", "convection current of the space charge in the EO flow"),
-    "current": ("A/m|A", "total electric current"),
-    "current_per_field": ("S|S*m", "total current per unit field at zero pressure gradient"),
+    "conduction_current": (("A/m", "A"), "ionic conduction current (per unit width for a slit)"),
+    "streaming_current": (("A/m", "A"), "convection current of the space charge in the pressure-driven flow"),
+    "eo_convection_current": (("A/m", "A"), "convection current of the space charge in the EO flow"),
+    "current": (("A/m", "A"), "total electric current"),
+    "current_per_field": (("S", "S*m"), "total current per unit field at zero pressure gradient"),
     "thin_layer_zeta": ("V", "zeta used by the thin-layer model (Grahame value for a charged wall)"),
-    "thin_layer_flow_rate_eo": ("m^2/s|m^3/s", "EO flow rate of the thin-layer model"),
+    "thin_layer_flow_rate_eo": (("m^2/s", "m^3/s"), "EO flow rate of the thin-layer model"),
     "thin_layer_flow_rate_error": ("1", "(thin-layer - full) / full EO flow rate"),
     "thin_layer_mean_velocity_error": ("1", "(thin-layer - full) / full mean EO velocity"),
     "thin_layer_max_outer_deviation": (
         "1", "largest |thin-layer - full| EO velocity outside the double layers over the largest slip speed"),
-    "conductance_per_length": ("S|S*m", "current per unit field at no pressure or salt gradient"),
-    "streaming_conductance": ("A/Pa|A*m/Pa", "streaming current per unit -dp/dx"),
+    "conductance_per_length": (("S", "S*m"), "current per unit field at no pressure or salt gradient"),
+    "streaming_conductance": (("A/Pa", "A*m/Pa"), "streaming current per unit -dp/dx"),
     "streaming_potential_coefficient": ("V/Pa", "streaming potential per pressure difference, at zero current"),
     "electroviscous_ratio": ("1", "apparent over true viscosity for pressure-driven flow at zero current"),
-    "eo_pump_flow_per_field": ("m^3/(V*s)|m^4/(V*s)", "EO pump flow rate per unit field at no back pressure"),
+    "eo_pump_flow_per_field": (("m^3/(V*s)", "m^4/(V*s)"), "EO pump flow rate per unit field at no back pressure"),
     "eo_pump_pressure_per_voltage": ("Pa/V", "EO pump pressure rise per applied voltage at no flow"),
-    "diffusioosmotic_flow": ("m^3/s|m^4/s", "flow rate per unit d ln c/dx at zero current and no pressure "
+    "diffusioosmotic_flow": (("m^3/s", "m^4/s"), "flow rate per unit d ln c/dx at zero current and no pressure "
                              "difference (positive: toward higher concentration)"),
     "diffusion_potential": ("V", "potential change per unit change of ln c along the channel, at zero current"),
     "cation_transference": ("1", "share of the current carried by cations under a field"),
@@ -85,13 +87,13 @@ _UNITS: dict[str, tuple[str, str]] = {
     "figure_of_merit": ("1", "q^2 / (1 - q^2) of pressure-to-electrical energy conversion"),
     "max_efficiency": ("1", "maximum efficiency of pressure-to-electrical energy conversion"),
     "efficiency_at_max_power": ("1", "efficiency of pressure-to-electrical conversion at maximum power"),
-    "max_power_per_length": ("W/m^2|W/m", "maximum electrical power per channel length at this pressure gradient"),
+    "max_power_per_length": (("W/m^2", "W/m"), "maximum electrical power per channel length at this pressure gradient"),
     **{f"thin_layer_{key}": (unit, f"thin-layer model: {text}") for key, (unit, text) in {
-        "conductance_per_length": ("S|S*m", "conductance per length (bulk conductivity)"),
+        "conductance_per_length": (("S", "S*m"), "conductance per length (bulk conductivity)"),
         "streaming_potential_coefficient": ("V/Pa", "streaming potential coefficient (Smoluchowski)"),
         "electroviscous_ratio": ("1", "electroviscous ratio"),
         "eo_pump_pressure_per_voltage": ("Pa/V", "EO pump pressure per voltage"),
-        "diffusioosmotic_flow": ("m^3/s|m^4/s", "diffusio-osmotic flow per unit d ln c/dx (z:z only)"),
+        "diffusioosmotic_flow": (("m^3/s", "m^4/s"), "diffusio-osmotic flow per unit d ln c/dx (z:z only)"),
         "diffusion_potential": ("V", "diffusion potential per unit ln c (bulk transference)"),
         "cation_transference": ("1", "cation transference of the bulk electrolyte"),
         "max_efficiency": ("1", "maximum energy-conversion efficiency"),
@@ -107,15 +109,11 @@ _UNITS: dict[str, tuple[str, str]] = {
 
 
 #: Unit and long name of every summary value, in the order of the summary vector (``kernels.layout``).
-SUMMARY_UNITS: dict[str, tuple[str, str]] = {key: _UNITS[key] for key in SUMMARY_KEYS}
+SUMMARY_UNITS: dict[str, tuple[str | tuple[str, str], str]] = {key: _UNITS[key] for key in SUMMARY_KEYS}
 if set(_UNITS) != set(SUMMARY_KEYS):  # a key added on one side only
     raise ImportError(f"results.schema and kernels.layout disagree on {sorted(set(_UNITS) ^ set(SUMMARY_KEYS))}")
 
 
-def summary_unit(key: str, capillary: bool) -> str:
-    """Unit string of a summary value; slit and capillary units are separated by '|'."""
-    unit = SUMMARY_UNITS[key][0]
-    if "|" in unit:
-        slit_unit, capillary_unit = unit.split("|")
-        return capillary_unit if capillary else slit_unit
-    return unit
+def summary_unit(key: str, geometry: Geometry) -> str:
+    """Unit string of a summary value for this geometry (per unit width for a slit, per channel else)."""
+    return extent_unit(SUMMARY_UNITS[key][0], geometry)

@@ -58,8 +58,6 @@ def variable_name(field: str) -> str:
     return f"profile_{field}"
 
 
-def position_name(capillary: bool) -> str:
-    return "r/a (0 axis, 1 wall)" if capillary else "y/H (0 bottom wall, 1 top wall)"
 
 
 def long_name(field: str) -> str:

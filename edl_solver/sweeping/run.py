@@ -25,7 +25,6 @@ import numpy as np
 
 from edl_solver.errors import ConvergenceError, InputError
 from edl_solver.inputs.case import Case
-from edl_solver.inputs.geometry import Capillary
 from edl_solver.inputs.paths import PATH_UNITS, WORD_PATHS, Axis, case_at, check_conflicts, make_axes
 from edl_solver.kernels.layout import PAIR_KEYS, SLOTS, SUMMARY_SIZE
 from edl_solver.results.schema import CONVERGED, FAILED, PENDING, SUMMARY_UNITS
@@ -184,7 +183,7 @@ def sweep(base: Case, axes: Mapping[str, Any], *, zipped: Sequence[Sequence[str]
     if profile_points:
         spec["profile_points"] = profile_points
     out_path = Path(path) if path is not None else None
-    store = SweepStore(spec, sweep_axes, isinstance(base.geometry, Capillary), pair, out_path, resume,
+    store = SweepStore(spec, sweep_axes, base.geometry, pair, out_path, resume,
                        ions=[ion.name for ion in base.electrolyte.ions], profile_points=profile_points)
     try:
         # profiles come from single solves, so a sweep that stores them needs no compiled batch

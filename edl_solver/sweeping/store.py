@@ -16,6 +16,7 @@ from typing import Any
 import numpy as np
 
 from edl_solver.errors import InputError
+from edl_solver.inputs.geometry import Geometry
 from edl_solver.inputs.paths import PATH_UNITS, WORD_PATHS, Axis
 from edl_solver.results.schema import PAIR_KEYS, PENDING, SUMMARY_UNITS, summary_unit
 from edl_solver.sweeping import profiles as sweep_profiles
@@ -24,9 +25,9 @@ from edl_solver.sweeping import profiles as sweep_profiles
 STATUS_MEANING = "0 converged, 1 failed (see message), -1 not computed yet"
 
 
-def _summary_layout(capillary: bool) -> dict[str, tuple[str, str]]:
+def _summary_layout(geometry: Geometry) -> dict[str, tuple[str, str]]:
     """Units and long names of every summary key for this geometry."""
-    return {key: (summary_unit(key, capillary), text) for key, (_, text) in SUMMARY_UNITS.items()}
+    return {key: (summary_unit(key, geometry), text) for key, (_, text) in SUMMARY_UNITS.items()}
 
 
 def check_resumable(partial: Path, spec_json: str) -> None:
@@ -56,11 +57,11 @@ def rows_todo(status: np.ndarray) -> list[int]:
 class SweepStore:
     """The sweep's results: in memory, or streamed row by row to a netCDF-4 file (h5netcdf)."""
 
-    def __init__(self, spec: dict[str, Any], axes: Sequence[Axis], capillary: bool, pair: bool,
+    def __init__(self, spec: dict[str, Any], axes: Sequence[Axis], geometry: Geometry, pair: bool,
                  path: Path | None, resume: bool, ions: Sequence[str] = (), profile_points: int = 0):
-        self.axes, self.spec, self.capillary, self.pair = axes, spec, capillary, pair
+        self.axes, self.spec, self.geometry, self.pair = axes, spec, geometry, pair
         self.shape = tuple(axis.size for axis in axes)
-        self.layout = _summary_layout(capillary)
+        self.layout = _summary_layout(geometry)
         self.ions, self.profile_points = tuple(ions), profile_points
         self.profile_names = [sweep_profiles.variable_name(f) for f in sweep_profiles.PROFILE_FIELDS] \
             if profile_points else []
@@ -163,7 +164,7 @@ class SweepStore:
         position = f.create_variable(sweep_profiles.POSITION, (sweep_profiles.POSITION,), float,
                                      data=sweep_profiles.positions(points))
         position.attrs["units"] = "1"
-        position.attrs["long_name"] = sweep_profiles.position_name(self.capillary)
+        position.attrs["long_name"] = self.geometry.coordinate_text
         f.create_variable(sweep_profiles.ION, (sweep_profiles.ION,), h5py.string_dtype(),
                           data=np.array(self.ions, dtype=object))
         for field in sweep_profiles.PROFILE_FIELDS:
@@ -265,7 +266,7 @@ class SweepStore:
         """The profile variables and their coordinates, as the file holds them."""
         position, ion = sweep_profiles.POSITION, sweep_profiles.ION
         coords[position] = ((position,), sweep_profiles.positions(self.profile_points),
-                            {"units": "1", "long_name": sweep_profiles.position_name(self.capillary)})
+                            {"units": "1", "long_name": self.geometry.coordinate_text})
         coords[ion] = ((ion,), np.array(self.ions))
         for field in sweep_profiles.PROFILE_FIELDS:
             name = sweep_profiles.variable_name(field)
