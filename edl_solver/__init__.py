@@ -34,10 +34,25 @@ __version__ = "0.1.0"
 
 
 def load(path: str | os.PathLike[str]) -> Result:
-    """Read a result written by ``Result.to_hdf5``."""
-    from edl_solver.io import hdf5 as io
+    """Read a result written by ``Result.to_hdf5``.
 
-    return io.read_result(path)
+    Parameters
+    ----------
+    path : str or PathLike
+
+    Returns
+    -------
+    Result
+        Equal to the written one (its case rebuilt from the file's ``case_json``).
+
+    Raises
+    ------
+    InputError
+        If the file does not exist, is not an edl_solver result, or has a newer schema version.
+    """
+    from edl_solver.io.hdf5 import read_result_fields
+
+    return Result(**read_result_fields(path))
 
 
 def __getattr__(name: str) -> Any:

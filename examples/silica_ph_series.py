@@ -81,7 +81,7 @@ def figure(points: Sequence[Point], path: str | os.PathLike[str]) -> None:
     from matplotlib.backends.backend_agg import FigureCanvasAgg
     from matplotlib.figure import Figure
 
-    from edl_solver.io.hdf5 import atomic_output
+    from edl_solver.io.files import atomic_output
 
     fig = Figure(figsize=(6.0, 6.5), dpi=100, layout="constrained")
     FigureCanvasAgg(fig)

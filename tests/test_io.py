@@ -1,5 +1,5 @@
-"""Tests of edl_solver.io.hdf5: result files (round trip, xarray layout, atomic writes, bad input) and the
-plain-dict form of a Case."""
+"""Tests of edl_solver.io.hdf5 and io.files: result files (round trip, xarray layout, atomic writes, bad input)
+and the plain-dict form of a Case."""
 
 from __future__ import annotations
 
@@ -102,7 +102,7 @@ def test_round_trip_restores_everything(results: dict[str, edl.Result], name: st
 def test_asymmetric_slit_keeps_pairs(results: dict[str, edl.Result], tmp_path: Path) -> None:
     result = results["asymmetric slit"]
     assert isinstance(result.summary["zeta"], tuple)  # the case this test is about
-    loaded = io.read_result(io.write_result(result, tmp_path / "pair.h5"))
+    loaded = edl.load(io.write_result(result, tmp_path / "pair.h5"))
     for key in ("zeta", "wall_charge_density", "hs_velocity", "thin_layer_zeta"):
         assert loaded.summary[key] == tuple(float(v) for v in result.summary[key])
 
@@ -248,7 +248,7 @@ def test_directory_as_path_is_input_error(results: dict[str, edl.Result], tmp_pa
     with pytest.raises(InputError, match="is a directory"):
         io.write_result(results["slit"], tmp_path)
     with pytest.raises(InputError, match="is a directory"):
-        io.read_result(tmp_path)
+        edl.load(tmp_path)
 
 
 def test_non_result_is_input_error(tmp_path: Path) -> None:

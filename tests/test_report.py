@@ -1,4 +1,4 @@
-"""Tests of edl_solver.report.text: the plain-text report of a result."""
+"""Tests of edl_solver.report (text and formatting): the plain-text report of a result."""
 
 from __future__ import annotations
 
@@ -10,8 +10,10 @@ from typing import Any
 import pytest
 
 import edl_solver as edl
+from edl_solver.inputs.ion_size import close_packing
 from edl_solver.inputs.wall import Site
-from edl_solver.report.text import close_packing, prefixed, text
+from edl_solver.report.formatting import prefixed
+from edl_solver.report.text import text
 
 KCL_1MM = edl.Electrolyte.from_ions({"K+": "1 mM", "Cl-": "1 mM"})
 

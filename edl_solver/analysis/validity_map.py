@@ -43,7 +43,7 @@ import numpy as np
 from edl_solver.errors import ConvergenceError, InputError
 from edl_solver.inputs.case import Case
 from edl_solver.inputs.geometry import Capillary
-from edl_solver.io.hdf5 import atomic_output, checked_output_path
+from edl_solver.io.files import atomic_output, checked_output_path
 from edl_solver.model.bulk import bulk_conductivity
 
 __all__ = [
@@ -709,7 +709,7 @@ def _percent(value: float) -> str:
 
 def _case_brief(table: Mapping[str, Any], swept: set[str]) -> str:
     """The fixed part of the base case in one line (inputs set by the axes are left out)."""
-    from edl_solver.report.text import MODEL_NAMES
+    from edl_solver.report.formatting import MODEL_NAMES
 
     parts = []
     g = table["geometry"]

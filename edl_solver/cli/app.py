@@ -635,7 +635,8 @@ def _run_transport(args: argparse.Namespace) -> int:
 def _write_transport_file(path: Path, result: Any, curve: Any, channel: Any) -> Path:
     """The Result, then the groups "conductance" and "channel", all in one temporary file renamed at the end:
     the final name never holds a file without its groups."""
-    from edl_solver.io.hdf5 import atomic_output, write_result
+    from edl_solver.io.files import atomic_output
+    from edl_solver.io.hdf5 import write_result
 
     try:
         with atomic_output(path) as temporary:
@@ -676,7 +677,7 @@ def _conductance_lines(curve: Any) -> str:
     import numpy as np
 
     from edl_solver.channel.conductance import crossover_concentration
-    from edl_solver.report.text import prefixed
+    from edl_solver.report.formatting import prefixed
 
     data = curve.sortby("concentration")
     c = data["concentration"].values
@@ -710,7 +711,7 @@ def _channel_lines(data: Any, result: Any) -> str:
 
     from edl_solver.constants import FARADAY, GAS_CONSTANT
     from edl_solver.inputs.geometry import Capillary
-    from edl_solver.report.text import prefixed
+    from edl_solver.report.formatting import prefixed
 
     case = result.case
     capillary = isinstance(case.geometry, Capillary)

@@ -1,5 +1,9 @@
 """Results on disk: one netCDF-4 (HDF5) file per solve, written atomically, readable by xarray.
 
+This module knows the layout; the atomic write is ``edl_solver.io.files.atomic_output``. It works on the
+Result passed in and builds none: reading gives the keyword arguments of ``Result`` (``read_result_fields``),
+and ``edl_solver.load`` makes the Result of them, so that io stays below results.result.
+
 Layout of schema version 1 (all in the root group, so ``xarray.open_dataset(path, engine="h5netcdf")``
 shows everything at once)::
 
@@ -43,31 +47,34 @@ from __future__ import annotations
 import json
 import math
 import os
-import secrets
-from collections.abc import Iterator, Sequence
-from contextlib import contextmanager, suppress
+from collections.abc import Sequence
 from numbers import Integral, Real
 from pathlib import Path
-from typing import Any
+from typing import TYPE_CHECKING, Any
 
 import numpy as np
 
 from edl_solver.errors import InputError
 from edl_solver.inputs.case import Case
 from edl_solver.inputs.casefile import case_from_mapping, case_to_mapping
-from edl_solver.inputs.geometry import Capillary, Slit
+from edl_solver.inputs.geometry import extent_unit
 from edl_solver.inputs.wall import Wall
+from edl_solver.io.files import atomic_output, checked_input_path
 from edl_solver.results.profiles import Profiles
-from edl_solver.results.result import Result
 from edl_solver.results.schema import PROFILE_UNITS, SUMMARY_UNITS, summary_unit
 
-__all__ = ["SCHEMA_VERSION", "atomic_output", "case_from_mapping", "case_to_mapping", "read_result", "write_result"]
+if TYPE_CHECKING:
+    from edl_solver.results.result import Result
+
+__all__ = ["SCHEMA_VERSION", "read_result_fields", "write_result"]
 
 #: Version of the file layout; bump it when a reader of the old layout would misread the new one.
 SCHEMA_VERSION = "1"
 
 _COMPRESSION = {"compression": "gzip", "compression_opts": 4, "shuffle": True}
 
+#: Long names of the coordinate across the section, by its name (a geometry without an entry here gets its
+#: ``coordinate_text``).
 _COORDINATE_LONG_NAMES = {
     "y": "distance across the slit from the bottom wall",
     "r": "radial distance from the capillary axis",
@@ -84,65 +91,10 @@ _PROFILE_LONG_NAMES = {
     "eo_per_field": "electroosmotic axial velocity per unit field",
 }
 
-
-# ----------------------------------------------------------------------------------------------
-# Atomic output
-
-
-def checked_output_path(path: object) -> Path:
-    """Check that ``path`` names a file that can be created; return it as a Path."""
-    if not isinstance(path, (str, os.PathLike)) or not os.fspath(path):
-        raise InputError(f"path: {path!r} is not a file path, expected a str or pathlib.Path")
-    target = Path(os.fspath(path)).expanduser()
-    if target.is_dir():
-        raise InputError(f"path: {str(path)!r} is a directory, expected a file name")
-    if not target.parent.is_dir():
-        raise InputError(f"path: {str(path)!r} is in a directory that does not exist ({str(target.parent)!r})")
-    return target
-
-
-@contextmanager
-def atomic_output(path: str | os.PathLike[str]) -> Iterator[Path]:
-    """Give a temporary file beside ``path``; move it onto ``path`` only if the block succeeds.
-
-    The temporary file lives in the target's directory, so ``os.replace`` is an atomic rename and a
-    reader never sees a half-written file under the final name. On any exception (including
-    KeyboardInterrupt) the temporary file is removed and an existing file at ``path`` is untouched.
-
-    Parameters
-    ----------
-    path : str or PathLike
-        Final file name; its directory must exist.
-
-    Yields
-    ------
-    Path
-        The temporary file (already created, empty) to write to.
-
-    Raises
-    ------
-    InputError
-        If ``path`` is not a path, is a directory, or its directory does not exist or is not writable.
-    """
-    target = checked_output_path(path)
-    temporary = target.with_name(f".{target.name}.{secrets.token_hex(6)}.tmp")
-    try:
-        # os.open with 0o666 lets the umask decide the final permissions (mkstemp would force 0o600).
-        os.close(os.open(temporary, os.O_WRONLY | os.O_CREAT | os.O_EXCL, 0o666))
-    except OSError as exc:
-        raise InputError(f"path: {str(path)!r} cannot be written ({exc.strerror})") from None
-    try:
-        yield temporary
-        descriptor = os.open(temporary, os.O_RDONLY)
-        try:
-            os.fsync(descriptor)  # data on disk before the rename makes it visible
-        finally:
-            os.close(descriptor)
-        os.replace(temporary, target)
-    except BaseException:
-        with suppress(OSError):
-            temporary.unlink()
-        raise
+#: Rows (fluxes) and columns (forces) of the 3 x 3 response matrix, with their units (per unit width, per
+#: channel).
+_FLUXES = (("volume_flow", ("m^2/s", "m^3/s")), ("current", ("A/m", "A")), ("salt_flux", ("mol/(m*s)", "mol/s")))
+_FORCES = (("solvent_force", "Pa/m"), ("field", "V/m"), ("salt_force", "J/(mol*m)"))
 
 
 # ----------------------------------------------------------------------------------------------
@@ -158,6 +110,7 @@ def _add_array(file: Any, name: str, dims: tuple[str, ...], data: Any, units: st
 
 
 def _add_strings(file: Any, name: str, values: Sequence[str], long_name: str) -> None:
+    """A coordinate of words on its own dimension ``name`` (which must exist)."""
     import h5py
 
     variable = file.create_variable(name, (name,), h5py.string_dtype(), data=np.array(values, dtype=object))
@@ -195,11 +148,7 @@ def _wall_attributes(prefix: str, wall: Wall) -> dict[str, Any]:
 def _case_attributes(case: Case) -> dict[str, Any]:
     """Readable scalar inputs; the unit is in the name because attributes carry no attributes."""
     g, s = case.geometry, case.solvent
-    attrs: dict[str, Any] = {"geometry": "slit" if isinstance(g, Slit) else "capillary"}
-    if isinstance(g, Slit):
-        attrs["height_m"] = g.height
-    else:
-        attrs["radius_m"] = g.radius
+    attrs: dict[str, Any] = {"geometry": g.kind, f"{g.size_name}_m": g.size}  # height_m or radius_m
     walls = (("wall", case.wall),) if isinstance(case.wall, Wall) else \
         (("wall_bottom", case.wall[0]), ("wall_top", case.wall[1]))
     for prefix, wall in walls:
@@ -225,29 +174,28 @@ def _case_attributes(case: Case) -> dict[str, Any]:
     return attrs
 
 
-def _write(file: Any, result: Result) -> None:
-    from edl_solver import __version__
-
-    case, p = result.case, result.profiles
-    capillary = isinstance(case.geometry, Capillary)
+def _write_profiles(file: Any, result: Result) -> None:
+    """Dimensions and coordinates (section coordinate, ion, wall when values come in pairs) and the profiles."""
+    geometry, p = result.case.geometry, result.profiles
     coordinate = p.coordinate_name
-    if coordinate != ("r" if capillary else "y"):
-        raise ValueError(f"profiles.coordinate_name: {coordinate!r} does not fit a "
-                         f"{'capillary' if capillary else 'slit'}")
+    if coordinate != geometry.coordinate_name:
+        raise ValueError(f"profiles.coordinate_name: {coordinate!r} does not fit a {geometry.kind}")
     file.dimensions[coordinate] = p.coordinate.size
     file.dimensions["ion"] = len(p.ion_names)
     if any(isinstance(value, tuple) for value in result.summary.values()):
         file.dimensions["wall"] = 2
         _add_strings(file, "wall", ("bottom", "top"), "wall of the slit")
     _add_array(file, coordinate, (coordinate,), p.coordinate, PROFILE_UNITS["coordinate"],
-               _COORDINATE_LONG_NAMES[coordinate])
+               _COORDINATE_LONG_NAMES.get(coordinate, geometry.coordinate_text))
     _add_strings(file, "ion", p.ion_names, "ion species")
-
     for name, long_name in _PROFILE_LONG_NAMES.items():
         _add_array(file, name, (coordinate,), getattr(p, name), PROFILE_UNITS[name], long_name)
     _add_array(file, "concentration", ("ion", coordinate), p.concentration, PROFILE_UNITS["concentration"],
                "ion concentration")
 
+
+def _write_ions(file: Any, case: Case) -> None:
+    """The ions' inputs on the ion dimension; diameters only when an ion has one."""
     ions = case.electrolyte.ions
     _add_array(file, "valence", ("ion",), np.array([ion.valence for ion in ions], dtype=np.int32), "1",
                "charge number of the ion")
@@ -259,19 +207,44 @@ def _write(file: Any, result: Result) -> None:
         _add_array(file, "diameter", ("ion",), [math.nan if ion.diameter is None else ion.diameter for ion in ions],
                    "m", "ion diameter (steric model; NaN where not given)")
 
+
+def _write_summary(file: Any, result: Result) -> None:
+    """One variable per summary key: 0-d, or on (wall) for a (bottom, top) pair."""
     for key, value in result.summary.items():
         if key not in SUMMARY_UNITS:
-            raise ValueError(f"summary[{key!r}]: no unit in edl_solver.results.result.SUMMARY_UNITS; add it there")
+            raise ValueError(f"summary[{key!r}]: no unit in edl_solver.results.schema.SUMMARY_UNITS; add it there")
         if key in file.variables:
             raise ValueError(f"summary[{key!r}]: clashes with the variable of the same name in the file")
         data = _summary_array(key, value)
-        _add_array(file, key, ("wall",) if data.ndim else (), data, summary_unit(key, case.geometry),
+        _add_array(file, key, ("wall",) if data.ndim else (), data, summary_unit(key, result.case.geometry),
                    SUMMARY_UNITS[key][1])
 
-    if result.response_matrix is not None:
-        _write_transport(file.create_group("transport"), result, capillary)
 
-    attrs = {
+def _write_transport(group: Any, result: Result) -> None:
+    """Group "transport": the response matrices, per unit length (slit: per unit width)."""
+    ions = result.profiles.ion_names
+    group.dimensions = {"flux": 3, "force": 3, "ion_flux": len(ions) + 1, "ion_force": len(ions) + 1}
+    _add_strings(group, "flux", [f for f, _ in _FLUXES], "conjugate flux (row)")
+    _add_strings(group, "force", [f for f, _ in _FORCES], "driving force (column)")
+    _add_strings(group, "ion_flux", ["volume_flow", *ions], "flux: volume flow, then each ion")
+    _add_strings(group, "ion_force", ["solvent_force", *ions], "force: solvent, then each ion")
+    geometry = result.case.geometry
+    units = ", ".join(f"{f} [{extent_unit(u, geometry)}]" for f, u in _FLUXES) + " per " + ", ".join(
+        f"{f} [{u}]" for f, u in _FORCES)
+    _add_array(group, "response_matrix", ("flux", "force"), result.response_matrix, "mixed (see units_by_entry)",
+               "linear-response matrix of the section per unit length (space-charge model)")
+    group.variables["response_matrix"].attrs["units_by_entry"] = units
+    _add_array(group, "ion_response_matrix", ("ion_flux", "ion_force"), result.ion_response_matrix,
+               "mixed (volume flow m^3/s or m^2/s, ion flux mol/s or mol/(m s); forces Pa/m and J/(mol m))",
+               "linear-response matrix resolved per ion (solvent force, then the ions' electrochemical forces)")
+
+
+def _global_attributes(result: Result) -> dict[str, Any]:
+    """The case (as JSON and readable scalars), the solver's outcome and the versions."""
+    from edl_solver import __version__
+
+    case = result.case
+    return {
         "title": f"edl_solver result: {case.describe()}",
         "schema_version": SCHEMA_VERSION,
         "edl_solver_version": __version__,
@@ -287,38 +260,16 @@ def _write(file: Any, result: Result) -> None:
         "warning_count": len(result.warnings),
         **{f"warning_{n}": text for n, text in enumerate(result.warnings, start=1)},
     }
-    for name, value in attrs.items():
+
+
+def _write(file: Any, result: Result) -> None:
+    _write_profiles(file, result)
+    _write_ions(file, result.case)
+    _write_summary(file, result)
+    if result.response_matrix is not None:
+        _write_transport(file.create_group("transport"), result)
+    for name, value in _global_attributes(result).items():
         file.attrs[name] = value
-
-
-#: Rows (fluxes) and columns (forces) of the 3 x 3 response matrix, with their units (slit, capillary).
-_FLUXES = (("volume_flow", "m^2/s", "m^3/s"), ("current", "A/m", "A"), ("salt_flux", "mol/(m*s)", "mol/s"))
-_FORCES = (("solvent_force", "Pa/m"), ("field", "V/m"), ("salt_force", "J/(mol*m)"))
-
-
-def _write_transport(group: Any, result: Result, capillary: bool) -> None:
-    """Group "transport": the response matrices, per unit length (slit: per unit width)."""
-    ions = result.profiles.ion_names
-    group.dimensions = {"flux": 3, "force": 3, "ion_flux": len(ions) + 1, "ion_force": len(ions) + 1}
-    _add_strings_on(group, "flux", "flux", [f for f, *_ in _FLUXES], "conjugate flux (row)")
-    _add_strings_on(group, "force", "force", [f for f, _ in _FORCES], "driving force (column)")
-    _add_strings_on(group, "ion_flux", "ion_flux", ["volume_flow", *ions], "flux: volume flow, then each ion")
-    _add_strings_on(group, "ion_force", "ion_force", ["solvent_force", *ions], "force: solvent, then each ion")
-    units = ", ".join(f"{f} [{c if capillary else s}]" for f, s, c in _FLUXES) + " per " + ", ".join(
-        f"{f} [{u}]" for f, u in _FORCES)
-    _add_array(group, "response_matrix", ("flux", "force"), result.response_matrix, "mixed (see units_by_entry)",
-               "linear-response matrix of the section per unit length (space-charge model)")
-    group.variables["response_matrix"].attrs["units_by_entry"] = units
-    _add_array(group, "ion_response_matrix", ("ion_flux", "ion_force"), result.ion_response_matrix,
-               "mixed (volume flow m^3/s or m^2/s, ion flux mol/s or mol/(m s); forces Pa/m and J/(mol m))",
-               "linear-response matrix resolved per ion (solvent force, then the ions' electrochemical forces)")
-
-
-def _add_strings_on(group: Any, name: str, dim: str, values: Sequence[str], long_name: str) -> None:
-    import h5py
-
-    variable = group.create_variable(name, (dim,), h5py.string_dtype(), data=np.array(values, dtype=object))
-    variable.attrs["long_name"] = long_name
 
 
 def write_result(result: Result, path: str | os.PathLike[str]) -> Path:
@@ -341,7 +292,9 @@ def write_result(result: Result, path: str | os.PathLike[str]) -> Path:
         If ``result`` is not a Result or ``path`` cannot be written. On any failure an existing
         file at ``path`` is left as it was and no temporary file remains.
     """
-    if not isinstance(result, Result):
+    # A Result is known by what it holds (a Case and its Profiles): results.result is a layer above io.
+    if not (isinstance(getattr(result, "case", None), Case)
+            and isinstance(getattr(result, "profiles", None), Profiles)):
         raise InputError(f"result: {type(result).__name__} is not a Result, expected the return of solve()")
     import h5netcdf
 
@@ -362,8 +315,8 @@ def _number(value: Any) -> float | int:
     return int(value) if isinstance(value, (Integral, np.integer)) else float(value)
 
 
-def _read(file: Any, shown: str) -> Result:
-    attrs = dict(file.attrs)
+def _read_case(attrs: dict[str, Any], shown: str) -> Case:
+    """The case of a result file, after checking that it is one this version reads."""
     if "schema_version" not in attrs or "case_json" not in attrs:
         raise InputError(f"path: {shown} is not an edl_solver result (no schema_version or case_json attribute)")
     version = _text(attrs["schema_version"])
@@ -375,49 +328,65 @@ def _read(file: Any, shown: str) -> Result:
         raise InputError(f"path: {shown} has schema_version {version}, newer than edl_solver {__version__} "
                          f"reads (up to {SCHEMA_VERSION}); upgrade edl_solver")
     try:
-        case = case_from_mapping(json.loads(_text(attrs["case_json"])))
+        return case_from_mapping(json.loads(_text(attrs["case_json"])))
     except (ValueError, TypeError) as exc:  # InputError and JSONDecodeError are ValueErrors
         raise InputError(f"path: {shown} has an unreadable case_json ({exc})") from None
-    coordinate = "r" if isinstance(case.geometry, Capillary) else "y"
-    variables = file.variables
+
+
+def _read_profiles(variables: Any, coordinate: str, shown: str) -> Profiles:
     missing = [name for name in (coordinate, "ion", "concentration", *_PROFILE_LONG_NAMES) if name not in variables]
     if missing:
         raise InputError(f"path: {shown} is not a complete edl_solver result (no variable {missing[0]!r})")
-    profiles = Profiles(
+    return Profiles(
         coordinate=np.asarray(variables[coordinate][...], dtype=float),
         coordinate_name=coordinate,
         ion_names=tuple(_text(name) for name in variables["ion"][...]),
         concentration=np.asarray(variables["concentration"][...], dtype=float),
         **{name: np.asarray(variables[name][...], dtype=float) for name in _PROFILE_LONG_NAMES},
     )
+
+
+def _read_summary(variables: Any, keys: str, shown: str) -> dict[str, Any]:
+    """Summary values in the order of ``keys``: python numbers, or (bottom, top) tuples of them."""
     summary: dict[str, Any] = {}
-    for key in _text(attrs.get("summary_keys", "")).split():
+    for key in keys.split():
         if key not in variables:
             raise InputError(f"path: {shown} is not a complete edl_solver result (no summary value {key!r})")
         data = variables[key][...]
         summary[key] = tuple(_number(v) for v in data) if np.ndim(data) else _number(data[()])
+    return summary
+
+
+def _read(file: Any, shown: str) -> dict[str, Any]:
+    attrs = dict(file.attrs)
+    case = _read_case(attrs, shown)
+    variables = file.variables
+    profiles = _read_profiles(variables, case.geometry.coordinate_name, shown)
+    summary = _read_summary(variables, _text(attrs.get("summary_keys", "")), shown)
     warnings = tuple(_text(attrs[f"warning_{n}"]) for n in range(1, int(attrs.get("warning_count", 0)) + 1))
-    matrices: dict[str, Any] = {}
+    matrices: dict[str, Any] = {"response_matrix": None, "ion_response_matrix": None}
     if "transport" in file.groups:
         transport = file.groups["transport"].variables
-        matrices = {name: np.asarray(transport[name][...], dtype=float)
-                    for name in ("response_matrix", "ion_response_matrix") if name in transport}
-    return Result(
-        case=case,
-        profiles=profiles,
-        summary=summary,
-        verdict=_text(attrs.get("verdict", "")),
-        status=_text(attrs.get("status", "")),
-        message=_text(attrs.get("message", "")),
-        iterations=int(attrs.get("iterations", 0)),
-        residual=float(attrs.get("residual", math.nan)),
-        warnings=warnings,
+        matrices.update({name: np.asarray(transport[name][...], dtype=float)
+                         for name in matrices if name in transport})
+    return {
+        "case": case,
+        "profiles": profiles,
+        "summary": summary,
+        "verdict": _text(attrs.get("verdict", "")),
+        "status": _text(attrs.get("status", "")),
+        "message": _text(attrs.get("message", "")),
+        "iterations": int(attrs.get("iterations", 0)),
+        "residual": float(attrs.get("residual", math.nan)),
+        "warnings": warnings,
         **matrices,
-    )
+    }
 
 
-def read_result(path: str | os.PathLike[str]) -> Result:
-    """Read a result written by ``write_result``.
+def read_result_fields(path: str | os.PathLike[str]) -> dict[str, Any]:
+    """Read a result written by ``write_result``, as the keyword arguments of ``Result``.
+
+    ``edl_solver.load`` builds the Result: ``Result(**read_result_fields(path))``.
 
     Parameters
     ----------
@@ -425,22 +394,19 @@ def read_result(path: str | os.PathLike[str]) -> Result:
 
     Returns
     -------
-    Result
-        Case rebuilt from the ``case_json`` attribute (equal to the written one), profiles as float
-        arrays, summary values as python floats or (bottom, top) tuples.
+    dict
+        ``case`` (rebuilt from the ``case_json`` attribute, equal to the written one), ``profiles`` (float
+        arrays), ``summary`` (python floats or (bottom, top) tuples), ``verdict``, ``status``, ``message``,
+        ``iterations``, ``residual``, ``warnings``, ``response_matrix`` and ``ion_response_matrix`` (None
+        when the file has no transport group).
 
     Raises
     ------
     InputError
         If the file does not exist, is not an edl_solver result, or has a newer schema version.
     """
-    if not isinstance(path, (str, os.PathLike)) or not os.fspath(path):
-        raise InputError(f"path: {path!r} is not a file path, expected a str or pathlib.Path")
-    source = Path(os.fspath(path)).expanduser()
+    source = checked_input_path(path, "an edl_solver result file")
     shown = repr(str(path))
-    if not source.is_file():
-        what = "is a directory" if source.is_dir() else "does not exist"
-        raise InputError(f"path: {shown} {what}, expected an edl_solver result file")
     import h5netcdf
 
     try:

@@ -18,9 +18,10 @@ from edl_solver.constants import ZERO_CELSIUS
 from edl_solver.errors import InputError
 from edl_solver.inputs.case import Case
 from edl_solver.inputs.geometry import Capillary, Slit
+from edl_solver.inputs.ion_size import close_packing
 from edl_solver.inputs.wall import Wall
-from edl_solver.io.hdf5 import atomic_output
-from edl_solver.report.text import MODEL_NAMES, close_packing, prefixed
+from edl_solver.io.files import atomic_output
+from edl_solver.report.formatting import MODEL_NAMES, prefixed
 from edl_solver.results.result import Result
 
 __all__ = ["profile_figure"]

@@ -84,7 +84,7 @@ def _new_figure(width: float, height: float) -> Any:
 
 
 def _save(figure: Any, path: str | os.PathLike[str]) -> Path:
-    from edl_solver.io.hdf5 import atomic_output
+    from edl_solver.io.files import atomic_output
 
     with atomic_output(path) as temporary:
         figure.savefig(temporary, format="png")

@@ -26,6 +26,7 @@ import numpy as np
 from edl_solver.errors import ConvergenceError, InputError
 from edl_solver.inputs.case import Case
 from edl_solver.inputs.paths import PATH_UNITS, WORD_PATHS, Axis, case_at, check_conflicts, make_axes
+from edl_solver.kernels import layout
 from edl_solver.kernels.layout import PAIR_KEYS, SLOTS, SUMMARY_SIZE
 from edl_solver.results.schema import CONVERGED, FAILED, PENDING, SUMMARY_UNITS
 from edl_solver.sweeping import profiles as sweep_profiles
@@ -84,8 +85,9 @@ def _solve_batch(plan: SweepPlan, points: np.ndarray, values: dict[str, np.ndarr
     codes = np.empty(chosen.size, dtype=np.int64)
     iterations = np.empty(chosen.size, dtype=np.int64)
     _batch.solve_cases(np.ascontiguousarray(vectors[chosen]), summaries, codes, iterations)
-    done = chosen[codes == _batch.CONVERGED]
-    finished = summaries[codes == _batch.CONVERGED]
+    solved = codes == layout.CONVERGED  # kernel codes; the others are KERNEL_FAILURES, re-solved one by one
+    done = chosen[solved]
+    finished = summaries[solved]
     last = status.shape[1]
     r, j = np.divmod(done, last)
     status[r, j] = CONVERGED
@@ -170,38 +172,63 @@ def sweep(base: Case, axes: Mapping[str, Any], *, zipped: Sequence[Sequence[str]
     """
     from edl_solver.inputs.casefile import case_to_mapping
 
-    if not isinstance(base, Case):
-        raise InputError(f"base: {type(base).__name__} is not a Case, expected edl_solver.Case(...)")
-    if isinstance(workers, bool) or not isinstance(workers, int) or workers < 1:
-        raise InputError(f"workers: {workers!r} is not allowed, expected a positive integer")
+    _check_options(base, workers)
     sweep_axes = make_axes(axes, zipped)
     base_table = case_to_mapping(base)
-    pair = isinstance(base.wall, tuple) or any(p.startswith(("wall.bottom", "wall.top"))
-                                               for axis in sweep_axes for p in axis.paths)
     profile_points = sweep_profiles.check_points(profiles)
-    spec = {"base": base_table, "axes": [[a.name, list(a.paths), [list(v) for v in a.values]] for a in sweep_axes]}
-    if profile_points:
-        spec["profile_points"] = profile_points
-    out_path = Path(path) if path is not None else None
-    store = SweepStore(spec, sweep_axes, base.geometry, pair, out_path, resume,
-                       ions=[ion.name for ion in base.electrolyte.ions], profile_points=profile_points)
+    store = _open_store(base, base_table, sweep_axes, profile_points, path, resume)
     try:
-        # profiles come from single solves, so a sweep that stores them needs no compiled batch
-        plan = None if profile_points else make_plan(base_table, sweep_axes)
-        todo = rows_todo(store.status)
-        last = sweep_axes[-1].size
-        per_task = rows_per_task or max(1, _cases_per_task(plan, workers, dask) // last)
-        tasks = [todo[i:i + per_task] for i in range(0, len(todo), per_task)]
-        total = len(todo) * last
-        with _progress_bar(total, progress) as bar, _interruptible():
-            for part in _run(tasks, (base_table, sweep_axes, plan, profile_points), workers, dask):
-                store.write(part)
-                bar.update(len(part["rows"]) * last)
-                _stop_if_asked()
+        _fill(store, (base_table, sweep_axes, profile_points), workers, dask, rows_per_task, progress)
     except BaseException:
         store.abandon()
         raise
     return store.finish()
+
+
+def _check_options(base: Case, workers: int) -> None:
+    """One-line InputErrors for a base that is not a Case and a worker count that is not a positive integer."""
+    if not isinstance(base, Case):
+        raise InputError(f"base: {type(base).__name__} is not a Case, expected edl_solver.Case(...)")
+    if isinstance(workers, bool) or not isinstance(workers, int) or workers < 1:
+        raise InputError(f"workers: {workers!r} is not allowed, expected a positive integer")
+
+
+def _open_store(base: Case, base_table: dict[str, Any], sweep_axes: Sequence[Axis], profile_points: int,
+                path: str | os.PathLike[str] | None, resume: bool) -> SweepStore:
+    """The store of the sweep: in memory, or a new (or, with ``resume``, the interrupted) file.
+
+    The sweep's specification (base case and axes) goes into the file, so that a resume can check that it
+    finishes the same sweep; a ``wall`` dimension is made when the walls differ or a swept path names one.
+    """
+    pair = isinstance(base.wall, tuple) or any(p.startswith(("wall.bottom", "wall.top"))
+                                               for axis in sweep_axes for p in axis.paths)
+    spec = {"base": base_table, "axes": [[a.name, list(a.paths), [list(v) for v in a.values]] for a in sweep_axes]}
+    if profile_points:
+        spec["profile_points"] = profile_points
+    out_path = Path(path) if path is not None else None
+    return SweepStore(spec, sweep_axes, base.geometry, pair, out_path, resume,
+                      ions=[ion.name for ion in base.electrolyte.ions], profile_points=profile_points)
+
+
+def _fill(store: SweepStore, job: tuple[Mapping[str, Any], Sequence[Axis], int], workers: int, dask: Any,
+          rows_per_task: int | None, progress: bool | None) -> None:
+    """Solve the rows the store still lacks, task by task, writing each task's results as it completes.
+
+    ``job`` is the base table, the axes and the profile points; Ctrl-C stops the sweep between cases
+    (``_interruptible``), keeping what was written.
+    """
+    base_table, sweep_axes, profile_points = job
+    # profiles come from single solves, so a sweep that stores them needs no compiled batch
+    plan = None if profile_points else make_plan(base_table, sweep_axes)
+    todo = rows_todo(store.status)
+    last = sweep_axes[-1].size
+    per_task = rows_per_task or max(1, _cases_per_task(plan, workers, dask) // last)
+    tasks = [todo[i:i + per_task] for i in range(0, len(todo), per_task)]
+    with _progress_bar(len(todo) * last, progress) as bar, _interruptible():
+        for part in _run(tasks, (base_table, sweep_axes, plan, profile_points), workers, dask):
+            store.write(part)
+            bar.update(len(part["rows"]) * last)
+            _stop_if_asked()
 
 
 def _cases_per_task(plan: SweepPlan | None, workers: int, dask: Any) -> int:

@@ -18,11 +18,13 @@ import numpy as np
 from edl_solver.errors import InputError
 from edl_solver.inputs.geometry import Geometry
 from edl_solver.inputs.paths import PATH_UNITS, WORD_PATHS, Axis
-from edl_solver.results.schema import PAIR_KEYS, PENDING, SUMMARY_UNITS, summary_unit
+from edl_solver.results.schema import CONVERGED, FAILED, PAIR_KEYS, PENDING, SUMMARY_UNITS, status_word, summary_unit
 from edl_solver.sweeping import profiles as sweep_profiles
 
-#: Status codes stored per case.
-STATUS_MEANING = "0 converged, 1 failed (see message), -1 not computed yet"
+#: Long name of the ``status`` variable: the codes of ``results.schema.STATUS`` with their words
+#: ("0 converged, 1 failed (see message), -1 not computed yet", as files have always said).
+STATUS_MEANING = (f"{CONVERGED} {status_word(CONVERGED)}, {FAILED} {status_word(FAILED)} (see message), "
+                  f"{PENDING} not computed yet")
 
 
 def _summary_layout(geometry: Geometry) -> dict[str, tuple[str, str]]:
@@ -50,6 +52,7 @@ def check_resumable(partial: Path, spec_json: str) -> None:
 
 
 def rows_todo(status: np.ndarray) -> list[int]:
+    """Rows (lines along the last axis) with a case still PENDING, in order."""
     flat = status.reshape(-1, status.shape[-1])
     return [int(i) for i in np.nonzero(np.any(flat == PENDING, axis=1))[0]]
 
