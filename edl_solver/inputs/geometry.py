@@ -38,6 +38,9 @@ class Slit:
     #: Name of the size input, and its dotted path (sweeps, maps, case files).
     size_name: ClassVar[str] = "height"
     size_path: ClassVar[str] = "geometry.height"
+    #: Symbol of the size, and where the coordinate across the section runs (reports).
+    size_symbol: ClassVar[str] = "H"
+    range_text: ClassVar[str] = "y from 0 (bottom wall) to H (top wall)"
     #: Coordinate across the section and its range.
     coordinate_name: ClassVar[str] = "y"
     coordinate_text: ClassVar[str] = "y/H (0 bottom wall, 1 top wall)"
@@ -119,6 +122,8 @@ class Capillary:
     kind: ClassVar[str] = "capillary"
     size_name: ClassVar[str] = "radius"
     size_path: ClassVar[str] = "geometry.radius"
+    size_symbol: ClassVar[str] = "a"
+    range_text: ClassVar[str] = "r from 0 (axis) to a (wall)"
     coordinate_name: ClassVar[str] = "r"
     coordinate_text: ClassVar[str] = "r/a (0 axis, 1 wall)"
     metric: ClassVar[int] = 1

@@ -103,7 +103,7 @@ def _solvent_text(case: Case) -> str:
 def _case_lines(case: Case) -> list[str]:
     g = case.geometry
     return [
-        f"{g.label()} ({g.size_name}), position across it {g.coordinate_text}",
+        f"{g.kind.capitalize()} of {g.size_name} {g.size_symbol} = {scaled(g.size, 1e9, 'nm', 4)}, {g.range_text}",
         _electrolyte_text(case),
         _solvent_text(case),
         *_wall_lines(case),
