@@ -38,7 +38,8 @@ ROOT = Path(__file__).resolve().parents[1]
 sys.path.insert(0, str(ROOT))  # run from a checkout without installing
 
 import edl_solver as edl  # noqa: E402
-from edl_solver.channel import model as ch  # noqa: E402
+from edl_solver import channel as ch  # noqa: E402
+from edl_solver.channel.model import cases_at  # noqa: E402
 
 SOLVENT = edl.Solvent(temperature=298.15, relative_permittivity=78.4, viscosity=0.89e-3)
 
@@ -81,7 +82,7 @@ def timed(function: Callable[[], Any], repeat: int) -> tuple[list[float], Any]:
 
 def measure(channel: ch.Channel, largest: float, points: int, repeat: int, solves: int) -> dict[str, Any]:
     voltages = np.linspace(-largest, largest, points)
-    at_right = ch._cases_at(channel.case, np.array([channel.right_concentration]))[0]
+    at_right = cases_at(channel.case, np.array([channel.right_concentration]))[0]
     solve_times, _ = timed(lambda: edl.solve(at_right), solves)
     table_times, table = timed(lambda: ch.tabulate(channel), 3)
     curve_times, curve = timed(lambda: ch.current_voltage(table, voltages), repeat)

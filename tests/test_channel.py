@@ -1,4 +1,4 @@
-"""Finite channels between two reservoirs (``edl_solver.channel.model``) against published limits and closed forms.
+"""Finite channels between two reservoirs (``edl_solver.channel``) against published limits and closed forms.
 
 Conventions of the module: x from the left reservoir (0) to the right one (L); Delta V = V(L) - V(0);
 I, Q and J_s positive along +x. The power delivered to a load is I Delta V.
@@ -12,7 +12,8 @@ import numpy as np
 import pytest
 
 import edl_solver as edl
-from edl_solver.channel import model as ch
+from edl_solver import channel as ch
+from edl_solver.channel.model import cases_at
 from edl_solver.constants import FARADAY, GAS_CONSTANT
 
 SOLVENT = edl.Solvent(temperature=298.15, relative_permittivity=78.4, viscosity=0.89e-3)
@@ -47,7 +48,7 @@ def test_nernst_potential_of_an_ideally_selective_channel(selective: ch.ChannelT
     check is at 1e-3; the interpolation error of the potential gradient (stored, < 1e-6) is far below it."""
     case = selective.channel.case
     for c in (0.1, 1.0):  # the selectivity t+ - t- at both ends exceeds 0.999
-        ends = edl.solve(ch._cases_at(case, np.array([c]))[0])
+        ends = edl.solve(cases_at(case, np.array([c]))[0])
         assert ends.summary["selectivity"] > 0.999
     nernst = -VT * math.log(10.0)
     potential = ch.membrane_potential(selective)

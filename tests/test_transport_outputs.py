@@ -19,7 +19,7 @@ import pytest
 import xarray as xr
 
 import edl_solver as edl
-from edl_solver.channel import model as ch
+from edl_solver import channel as ch
 from edl_solver.channel.conductance import (
     channel_characteristics,
     conductance_curve,

@@ -3,11 +3,16 @@
 The public face: ``Channel`` and the operating functions (``current_voltage``, ``membrane_potential``,
 ``osmotic_power``, ``operating_point``, ``salt_flux``, ``tabulate``); ``edl_solver.channel.conductance``
 holds the conductance-against-concentration helpers.
+
+Modules, from the bottom up: ``relations`` (the salt's ratios, the reduced matrix), ``point`` (the
+OperatingPoint), ``quadrature`` (the along-channel conditions in ln c), ``path`` (their solution),
+``model`` (Channel, the table of cross-section solves), ``operating`` (the operating functions),
+``plateau`` (closed forms of the counter-ion limit), ``characteristics`` (a channel's lab landmarks) and
+``conductance`` (conductance against concentration).
 """
 
-from edl_solver.channel.model import (
-    Channel,
-    ChannelTable,
+from edl_solver.channel.model import Channel, ChannelTable, tabulate
+from edl_solver.channel.operating import (
     OperatingPoint,
     OsmoticPower,
     current_voltage,
@@ -15,7 +20,6 @@ from edl_solver.channel.model import (
     operating_point,
     osmotic_power,
     salt_flux,
-    tabulate,
 )
 
 __all__ = [

@@ -102,6 +102,11 @@ class Slit:
         c = h * (h + 2.0 * b2) / (h + b1 + b2)
         return (-h**3 / 3.0 + c * (h * h / 2.0 + b1 * h)) / (2.0 * viscosity)
 
+    def access_resistance(self, conductivity: float) -> float | None:
+        """Access resistance of one end opening into a reservoir: None, since a slit's grows without bound with
+        the reservoir's size (two-dimensional spreading)."""
+        return None
+
     def to_mapping(self) -> dict[str, object]:
         """The case-file table of this geometry."""
         return {"kind": self.kind, "height": self.height}
@@ -174,6 +179,11 @@ class Capillary:
         ``slip``), m^4/(Pa s): Q = pi a^4 G (1 + 4 b / a) / (8 eta)."""
         a = self.radius
         return math.pi * a**4 * (1.0 + 4.0 * slip[1] / a) / (8.0 * viscosity)
+
+    def access_resistance(self, conductivity: float) -> float | None:
+        """Access resistance of one end opening into a reservoir of conductivity K (S/m), 1/(4 K a) ohm (Hall
+        1975, J. Gen. Physiol. 66, 531, from memory)."""
+        return 1.0 / (4.0 * conductivity * self.radius)
 
     def to_mapping(self) -> dict[str, object]:
         """The case-file table of this geometry."""

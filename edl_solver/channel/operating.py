@@ -1,0 +1,289 @@
+"""The operating functions of a finite channel: one steady state, the I-V curve, the membrane potential,
+the salt flux and the osmotic (reverse-electrodialysis) power.
+
+Signs as in ``edl_solver.channel.model``: x from the left reservoir (0) to the right one (L),
+Delta V = V(L) - V(0), flows positive along +x, P = I Delta V the power delivered to a load; slit values
+per unit width. A Channel is tabulated on first use (and cached); pass ``tabulate(channel)`` to control when.
+"""
+
+from __future__ import annotations
+
+import math
+from dataclasses import dataclass
+from typing import Any
+
+import numpy as np
+
+from edl_solver.channel.model import Channel, ChannelTable, table_of
+from edl_solver.channel.path import Path, Uniform
+from edl_solver.channel.point import CONVENTIONS, CONVERGED_WORD, FAILED_WORD, STATUS_TEXT, OperatingPoint
+from edl_solver.channel.relations import SaltRatios
+from edl_solver.constants import GAS_CONSTANT
+from edl_solver.errors import ConvergenceError, InputError
+from edl_solver.inputs.geometry import extent_unit
+from edl_solver.inputs.units import to_si
+from edl_solver.results.schema import CONVERGED, FAILED
+
+__all__ = [
+    "OperatingPoint",
+    "OsmoticPower",
+    "current_voltage",
+    "membrane_potential",
+    "operating_point",
+    "osmotic_power",
+    "salt_flux",
+]
+
+
+def _guess(point: OperatingPoint | None) -> np.ndarray | None:
+    if point is None or point.status != CONVERGED_WORD:
+        return None
+    return np.array([point.volume_flow, point.current, point.voltage, point.unknown_t])
+
+
+def operating_point(channel: Channel | ChannelTable, voltage: float | str | None = None,
+                    current: float | str | None = None, pressure_difference: float | str = 0.0,
+                    guess: OperatingPoint | None = None) -> OperatingPoint:
+    """The steady state at an applied voltage or an imposed current (exactly one of them).
+
+    Parameters
+    ----------
+    channel : Channel or ChannelTable
+        A Channel is tabulated on first use (and cached); pass ``tabulate(channel)`` to control when.
+    voltage : float or str, optional
+        Delta V = V(L) - V(0), V.
+    current : float or str, optional
+        I along +x, A (A/m for a slit).
+    pressure_difference : float or str
+        Delta p = p(L) - p(0), Pa.
+    guess : OperatingPoint, optional
+        A nearby solution to start Newton's method from.
+
+    Returns
+    -------
+    OperatingPoint
+        Its ``status`` is "failed" (not raised) when Newton's method does not converge.
+    """
+    table = table_of(channel)
+    if (voltage is None) == (current is None):
+        raise InputError(f"operating_point: voltage={voltage!r} and current={current!r}, expected exactly one")
+    dp = to_si(pressure_difference, "Pa", "pressure_difference")
+    if voltage is not None:
+        voltage = to_si(voltage, "V", "voltage")
+    else:
+        current = to_si(current, "A", "current")
+    return table._path.solve(dp, voltage, current, _guess(guess))
+
+
+def membrane_potential(channel: Channel | ChannelTable, pressure_difference: float | str = 0.0) -> float:
+    """The zero-current (open-circuit) voltage Delta V = V(L) - V(0), V.
+
+    An ideally cation-selective channel gives the Nernst value -(kT/ze) ln(c_R/c_L); an uncharged one the
+    free-solution diffusion potential (Henderson 1907; Planck 1890), for a 1:1 salt
+    -(kT/e) (D+ - D-)/(D+ + D-) ln(c_R/c_L).
+
+    Raises
+    ------
+    ConvergenceError
+        If the operating point does not converge.
+    """
+    point = operating_point(channel, current=0.0, pressure_difference=pressure_difference)
+    _raise_failed(point, "membrane_potential")
+    return point.voltage
+
+
+def salt_flux(channel: Channel | ChannelTable, voltage: float | str | None = None,
+              pressure_difference: float | str = 0.0) -> float:
+    """Salt flux J_s along +x (mol/s of formula units; mol/(m s) for a slit) at the applied voltage, or at
+    zero current (open circuit) when ``voltage`` is None.
+
+    Raises
+    ------
+    ConvergenceError
+        If the operating point does not converge.
+    """
+    point = operating_point(channel, voltage=voltage, current=0.0 if voltage is None else None,
+                            pressure_difference=pressure_difference)
+    _raise_failed(point, "salt_flux")
+    return point.salt_flux
+
+
+def _raise_failed(point: OperatingPoint, what: str) -> None:
+    if point.status != CONVERGED_WORD:
+        raise ConvergenceError(f"{what}: {point.message}")
+
+
+def current_voltage(channel: Channel | ChannelTable, voltages: Any, pressure_difference: float | str = 0.0) -> Any:
+    """The I-V curve: the steady state at each applied voltage.
+
+    Parameters
+    ----------
+    channel : Channel or ChannelTable
+    voltages : sequence of float
+        Delta V = V(L) - V(0), V.
+    pressure_difference : float or str
+        Delta p = p(L) - p(0), Pa.
+
+    Returns
+    -------
+    xarray.Dataset
+        Dimension ``voltage``; ``current``, ``volume_flow``, ``salt_flux``, ``power`` (I Delta V, delivered to
+        the external circuit), ``channel_voltage``, ``status`` (0 converged, 1 failed), ``message``,
+        ``iterations`` and ``quadrature_error`` per voltage, each with ``units`` and ``long_name``; the
+        channel and the table's interpolation error as attributes. Points are solved in order of voltage,
+        each Newton solve starting from the previous solution.
+    """
+    table = table_of(channel)
+    values = np.atleast_1d(np.asarray([to_si(v, "V", "voltages") for v in np.ravel(np.asarray(voltages, dtype=object))],
+                                      dtype=float))
+    dp = to_si(pressure_difference, "Pa", "pressure_difference")
+    return _curve_dataset(table, values, dp, _solve_curve(table._path, values, dp))
+
+
+def _solve_curve(path: Path | Uniform, values: np.ndarray, dp: float) -> list[OperatingPoint]:
+    """The points of an I-V curve in the order of ``values``, solved outward from the smallest voltage."""
+    points: list[OperatingPoint] = [None] * values.size  # type: ignore[list-item]
+    order = np.argsort(values, kind="stable")
+    centre = int(np.argmin(np.abs(values[order])))
+    first = path.solve(dp, float(values[order[centre]]), None, None)
+    points[order[centre]] = first
+    for direction in (1, -1):  # outward from the smallest voltage, each point continued from the last two
+        anchors = [] if first.status != CONVERGED_WORD else [(first.voltage, dp, path.unknowns(first))]
+        k = centre + direction
+        while 0 <= k < values.size:
+            v = float(values[order[k]])
+            point = path.continue_to("voltage", anchors, v, dp) if anchors else path.solve(dp, v, None, None)
+            points[order[k]] = point
+            if point.status == CONVERGED_WORD:
+                anchors = [*anchors, (v, dp, path.unknowns(point))][-2:]
+            k += direction
+    return points
+
+
+def _curve_dataset(table: ChannelTable, values: np.ndarray, dp: float, points: list[OperatingPoint]) -> Any:
+    """The I-V curve as an ``xarray.Dataset`` (see ``current_voltage``)."""
+    import xarray as xr
+
+    geometry = table.channel.case.geometry
+
+    def column(name: str, units: str | tuple[str, str], text: str,
+               dtype: Any = float) -> tuple[tuple[str], np.ndarray, dict[str, str]]:
+        data = np.array([getattr(p, name) for p in points], dtype=dtype)
+        return ("voltage",), data, {"units": extent_unit(units, geometry), "long_name": text}
+
+    status = np.array([CONVERGED if p.status == CONVERGED_WORD else FAILED for p in points], dtype=np.int8)
+    data = {
+        "current": column("current", ("A/m", "A"), "electric current along +x (left to right)"),
+        "volume_flow": column("volume_flow", ("m^2/s", "m^3/s"), "volume flow along +x"),
+        "salt_flux": column("salt_flux", ("mol/(m*s)", "mol/s"), "salt flux (formula units) along +x"),
+        "power": column("power", ("W/m", "W"), "electrical power delivered to the external circuit, I dV"),
+        "channel_voltage": column("channel_voltage", "V", "voltage across the channel proper, dV + R_access I"),
+        "iterations": column("iterations", "1", "Newton iterations", int),
+        "quadrature_error": column("quadrature_error", "1", "estimated relative error of the quadrature along x"),
+        "status": (("voltage",), status, {"units": "1", "long_name": STATUS_TEXT}),
+        "message": (("voltage",), np.array([p.message for p in points], dtype=object),
+                    {"long_name": "solver message"}),
+    }
+    ch = table.channel
+    attrs = {
+        "length": ch.length, "left_concentration": ch.left_concentration,
+        "right_concentration": ch.right_concentration, "pressure_difference": dp,
+        "access_resistance": table.access_resistance,
+        "interpolation_error": table.interpolation_error,
+        "potential_interpolation_error": table.potential_interpolation_error,
+        "conventions": CONVENTIONS,
+        "case": ch.case.describe(),
+    }
+    coords = {"voltage": ("voltage", values, {"units": "V", "long_name": "applied voltage V(L) - V(0)"})}
+    return xr.Dataset(data, coords=coords, attrs=attrs)
+
+
+@dataclass(frozen=True)
+class OsmoticPower:
+    """Reverse-electrodialysis power of a channel between reservoirs of different salt concentration.
+
+    Attributes
+    ----------
+    max_power : float
+        Largest electrical power P = I Delta V delivered to a load, over the load, W (W/m for a slit).
+    voltage_at_max_power, current_at_max_power : float
+        The operating point there, V and A (A/m).
+    open_circuit_voltage, short_circuit_current : float
+        The membrane potential (V) and the current at Delta V = 0 (A, A/m).
+    linear_estimate : float
+        I_sc V_oc / 4, the maximum power of a linear source (common practice), W (W/m).
+    efficiency : float
+        P / (J_s Delta mu_s) at maximum power: electrical power out over the Gibbs energy released by the salt
+        flux, Delta mu_s = mu_s(left) - mu_s(right) = RT sum(nu) ln(c_L/c_R) per formula unit.
+    efficiency_total : float
+        P over the whole free-energy input J_s Delta mu_s + Q (Delta pi - Delta p), Delta pi = RT sum_i
+        (c_iR - c_iL) (van 't Hoff), which the second law bounds by 1.
+    salt_flux, volume_flow : float
+        J_s and Q at maximum power.
+    status : str
+        "converged", or "failed" when a point did not converge.
+    message : str
+    """
+
+    max_power: float
+    voltage_at_max_power: float
+    current_at_max_power: float
+    open_circuit_voltage: float
+    short_circuit_current: float
+    linear_estimate: float
+    efficiency: float
+    efficiency_total: float
+    salt_flux: float
+    volume_flow: float
+    status: str
+    message: str
+
+
+def osmotic_power(channel: Channel | ChannelTable, pressure_difference: float | str = 0.0) -> OsmoticPower:
+    """Maximum electrical power over the load between short circuit and open circuit, and its efficiency.
+
+    P(Delta V) = I(Delta V) Delta V is maximised over Delta V between 0 and the open-circuit voltage
+    (bounded Brent search, each point a full channel solve). For a linear I-V curve the maximum is
+    I_sc V_oc / 4 at V_oc / 2 (common practice for a linear source).
+    """
+    from scipy.optimize import minimize_scalar
+
+    table = table_of(channel)
+    dp = to_si(pressure_difference, "Pa", "pressure_difference")
+    ch = table.channel
+    open_circuit = operating_point(table, current=0.0, pressure_difference=dp)
+    short = operating_point(table, voltage=0.0, pressure_difference=dp, guess=open_circuit)
+    salt = SaltRatios(ch.case)
+    rt = GAS_CONSTANT * ch.case.solvent.temperature
+    released = rt * salt.total_nu * math.log(ch.left_concentration / ch.right_concentration)
+    osmotic = rt * salt.total_concentration * (ch.right_concentration - ch.left_concentration)
+    failed = [p for p in (open_circuit, short) if p.status != CONVERGED_WORD]
+    if failed:
+        return OsmoticPower(*(math.nan,) * 10, status=FAILED_WORD, message=failed[0].message)
+    v_oc, i_sc = open_circuit.voltage, short.current
+    best = short
+    if v_oc != 0.0:
+        state = {"last": short}
+
+        def negative_power(v: float) -> float:
+            point = operating_point(table, voltage=v, pressure_difference=dp, guess=state["last"])
+            if point.status != CONVERGED_WORD:
+                raise ConvergenceError(point.message)
+            state["last"] = point
+            return -point.current * v
+
+        try:
+            found = minimize_scalar(negative_power, bounds=sorted((0.0, v_oc)), method="bounded",
+                                    options={"xatol": 1e-9 * abs(v_oc)})
+            best = operating_point(table, voltage=float(found.x), pressure_difference=dp, guess=state["last"])
+        except ConvergenceError as error:
+            return OsmoticPower(*(math.nan,) * 10, status=FAILED_WORD, message=str(error))
+    power = best.current * best.voltage
+    gibbs = best.salt_flux * released
+    total = gibbs + best.volume_flow * (osmotic - dp)
+    return OsmoticPower(max_power=power, voltage_at_max_power=best.voltage, current_at_max_power=best.current,
+                        open_circuit_voltage=v_oc, short_circuit_current=i_sc, linear_estimate=i_sc * v_oc / 4.0,
+                        efficiency=power / gibbs if gibbs != 0.0 else math.nan,
+                        efficiency_total=power / total if total != 0.0 else math.nan,
+                        salt_flux=best.salt_flux, volume_flow=best.volume_flow, status=best.status,
+                        message=best.message)
