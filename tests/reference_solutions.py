@@ -940,3 +940,21 @@ def dh_summary_si(
         "flow_rate_pressure": flow_p,
         "streaming_current": stream,
     }
+
+
+# ---------------------------------------------------------------------------
+# Thin-layer validity of a slit with thin nonlinear layers
+# ---------------------------------------------------------------------------
+
+
+def gouy_chapman_boundary(zeta_hat: float, tau: float) -> float:
+    """kh where the thin-layer EO error of a slit with thin nonlinear layers equals tau.
+
+    Gouy (1910), Chapman (1913): psi = 4 artanh(g exp(-kx)), g = tanh(zeta/4) (in kT/e, 1:1 salt). With
+    u_eo = -(eps E/eta)(zeta - psi) the error is <psi>/(zeta - <psi>), and for kh >> 1 the section mean
+    <psi> = (1/kh) int_0^inf 4 artanh(g e^-t) dt = 4 chi_2(g)/kh (substitute s = g e^-t; Legendre's chi
+    function chi_2(g) = (Li2(g) - Li2(-g))/2; derived here). Overlap corrections are O(exp(-kh)).
+    """
+    g = mp.tanh(mp.mpf(zeta_hat) / 4)
+    chi2 = (mp.polylog(2, g) - mp.polylog(2, -g)) / 2
+    return float(4 * chi2 * (1 + tau) / (tau * zeta_hat))

@@ -17,10 +17,9 @@ import pytest
 
 import edl_solver as edl
 from edl_solver.inputs.casefile import load_case, loads_case
+from tests.helpers import PNG_SIGNATURE, ROOT
 
-ROOT = Path(__file__).resolve().parent.parent
 EXAMPLES = ROOT / "examples"
-PNG_SIGNATURE = b"\x89PNG\r\n\x1a\n"
 # One table line: KCl (mM), pH, zeta (mV), sigma (mC/m^2), eo_ratio, verdict.
 ROW = re.compile(r"^\s*([\d.]+)\s+([\d.]+)\s+(-?[\d.]+)\s+(-?[\d.]+)\s+([\d.]+)\s+(valid|not valid) at ")
 

@@ -15,7 +15,8 @@ import nbformat
 import pytest
 from nbclient import NotebookClient
 
-ROOT = Path(__file__).resolve().parent.parent
+from tests.helpers import ROOT
+
 NOTEBOOKS = sorted((ROOT / "notebooks").glob("*.ipynb"))
 #: Seconds per cell; the slowest cell (a 300-case map with its boundary) takes a few seconds warm and a
 #: little longer when the numba kernels compile in the fresh kernel process.

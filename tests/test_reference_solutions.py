@@ -15,10 +15,7 @@ import pytest
 from scipy import constants as sc
 from scipy.integrate import quad, solve_bvp
 
-try:  # tests as a package
-    from . import reference_solutions as ref
-except ImportError:  # tests directory on sys.path (pytest's default rootdir-relative import)
-    import reference_solutions as ref
+from tests import reference_solutions as ref
 
 T, EPS_R = 298.15, 78.4
 

@@ -3,7 +3,7 @@
 Checks against the case-by-case route, which builds every point in full (``sweeps.case_at``) and solves it
 with ``edl.solve``: the packed vectors are equal entry by entry, and so are the solved summaries (the batch
 runs the same compiled steps, so equality is exact rather than to a tolerance). The physics of the values
-is checked against published references elsewhere (test_equilibrium_references.py and others).
+is checked against published references elsewhere (tests/model/test_equilibrium.py and others).
 """
 
 from __future__ import annotations

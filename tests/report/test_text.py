@@ -5,23 +5,13 @@ from __future__ import annotations
 import dataclasses
 import math
 from pathlib import Path
-from typing import Any
 
 import pytest
 
 import edl_solver as edl
-from edl_solver.inputs.ion_size import close_packing
-from edl_solver.inputs.wall import Site
 from edl_solver.report.formatting import prefixed
 from edl_solver.report.text import text
-
-KCL_1MM = edl.Electrolyte.from_ions({"K+": "1 mM", "Cl-": "1 mM"})
-
-
-@pytest.fixture(scope="module")
-def slit() -> edl.Result:
-    return edl.solve(edl.Case(geometry=edl.Slit(height="50 nm"), electrolyte=KCL_1MM, wall=edl.Wall(zeta="-50 mV"),
-                              field="10 kV/m", pressure_gradient=-1e5))
+from tests.helpers import KCL as KCL_1MM
 
 
 @pytest.fixture(scope="module")
@@ -115,25 +105,6 @@ def test_prefixed(value: float, unit: str, expected: str) -> None:
 # -- regulated walls, slip, steric model, pH, viscoelectric solvent ----------------------------------------
 
 
-@pytest.fixture(scope="module")
-def regulated() -> edl.Result:
-    # A silica wall with slip below; above, an amphoteric wall with fixed charge and a gate, no Stern layer.
-    top = edl.Wall(charge_density="-1 mC/m^2", gate_voltage="1 V", gate_capacitance="10 mF/m^2",
-                   sites=(Site(density="2 nm^-2", pK=(4.0, 9.0), charges=(1, 0, -1), name="amphoteric"),))
-    return edl.solve(edl.Case(geometry=edl.Slit(height="40 nm"), field="1 kV/m",
-                              electrolyte=edl.Electrolyte.from_ions({"K+": "1 mM", "Cl-": "1 mM"}, pH=5,
-                                                                    water_ions=True),
-                              wall=(edl.Wall.silica(slip_length="1 nm"), top)))
-
-
-@pytest.fixture(scope="module")
-def steric() -> edl.Result:
-    ions = (edl.Ion("K+", concentration="10 mM", diameter="0.7 nm"),
-            edl.Ion("Cl-", concentration="10 mM", diameter="0.7 nm"))
-    return edl.solve(edl.Case(geometry=edl.Capillary(radius="20 nm"), electrolyte=edl.Electrolyte(ions, pH=7),
-                              wall=edl.Wall(zeta="-100 mV", slip_length="5 nm"), field="10 kV/m", model="steric"))
-
-
 def test_regulated_walls_are_described(regulated: edl.Result) -> None:
     report = regulated.report()
     assert ("Bottom wall: charge-regulated; silanol sites 8 nm⁻², pK 7.5 (charge 0 → -1); Stern capacitance "
@@ -190,50 +161,3 @@ def test_warnings_of_the_solve_are_printed() -> None:
 def test_report_of_a_loaded_regulated_result_is_identical(regulated: edl.Result, tmp_path: Path) -> None:
     # The file stores the water ions as plain ions; the report reads the same.
     assert edl.load(regulated.to_hdf5(tmp_path / "r.h5")).report() == regulated.report()
-
-
-# -- the figure's wording for the new models (plotting shares the report's model names) --------------------
-
-
-def drawn_figure(result: edl.Result, path: Path, monkeypatch: pytest.MonkeyPatch) -> Any:
-    """Draw ``result`` with plotting.profile_figure and return the matplotlib Figure it saved."""
-    from matplotlib.figure import Figure
-
-    from edl_solver.plot.profiles import profile_figure
-
-    saved = []
-    real = Figure.savefig
-
-    def keep(self: Figure, *args: Any, **kwargs: Any) -> None:
-        saved.append(self)
-        real(self, *args, **kwargs)
-
-    monkeypatch.setattr(Figure, "savefig", keep)
-    profile_figure(result, path)
-    return saved[0]
-
-
-def test_figure_marks_close_packing_for_the_steric_model(steric: edl.Result, tmp_path: Path,
-                                                         monkeypatch: pytest.MonkeyPatch) -> None:
-    figure = drawn_figure(steric, tmp_path / "steric.png", monkeypatch)
-    title = " ".join(" ".join(text.get_text() for text in figure.texts).split())  # suptitle; wrapped lines joined
-    assert "d = 0.7 nm" in title and "slip b = 5 nm" in title
-    concentration_axes = figure.axes[1]
-    marks = [line for line in concentration_axes.get_lines() if "close packing" in str(line.get_label())]
-    assert len(marks) == 1
-    assert marks[0].get_ydata()[0] == pytest.approx(close_packing(0.7e-9)) == pytest.approx(4841.0, rel=1e-3)
-
-
-def test_figure_marks_the_charge_plane_of_a_stern_wall(regulated: edl.Result, tmp_path: Path,
-                                                       monkeypatch: pytest.MonkeyPatch) -> None:
-    figure = drawn_figure(regulated, tmp_path / "regulated.png", monkeypatch)
-    title = " ".join(" ".join(text.get_text() for text in figure.texts).split())
-    assert "pH 5" in title and "silanol pK 7.5" in title and "gate 1 V" in title
-    potential_axes = figure.axes[0]
-    marks = [line for line in potential_axes.get_lines() if "charge-plane" in str(line.get_label())]
-    assert len(marks) == 1
-    # Only the bottom wall has a Stern layer: one marker, on it, at psi_0.
-    assert list(marks[0].get_xdata()) == [0.0]
-    assert list(marks[0].get_ydata()) == [regulated.summary["stern_potential"][0] * 1e3]
-    closes = [line for axes in figure.axes for line in axes.get_lines() if "close packing" in str(line.get_label())]
-    assert not closes  # point ions: no ceiling

@@ -23,10 +23,8 @@ import edl_solver as edl
 from edl_solver.errors import ConvergenceError, InputError
 from edl_solver.results.schema import SUMMARY_UNITS, summary_unit
 from edl_solver.sweeping.run import PATH_UNITS
+from tests.helpers import KCL, ROOT
 
-ROOT = Path(__file__).resolve().parents[1]
-
-KCL = edl.Electrolyte.from_ions({"K+": "1 mM", "Cl-": "1 mM"})
 SLIT = edl.Case(geometry=edl.Slit(height="20 nm"), electrolyte=KCL, wall=edl.Wall(zeta="-40 mV"),
                 field="1 kV/m", pressure_gradient="-1 bar/mm")
 # Two walls: the bottom keeps the base value, the top is swept (zipped with the temperature).

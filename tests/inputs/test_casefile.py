@@ -23,6 +23,7 @@ from edl_solver.inputs.casefile import (
     read_mapping,
 )
 from edl_solver.inputs.wall import Site
+from tests.helpers import write
 
 if sys.version_info >= (3, 11):
     import tomllib
@@ -59,12 +60,6 @@ MINIMAL = {
     "electrolyte": {"ions": {"K+": "1 mM", "Cl-": "1 mM"}},
     "wall": {"zeta": "-50 mV"},
 }
-
-
-def write(tmp_path: Path, text: str, name: str = "case.toml") -> Path:
-    path = tmp_path / name
-    path.write_text(text, encoding="utf-8")
-    return path
 
 
 def with_change(path: str, value: object) -> dict:

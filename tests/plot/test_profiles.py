@@ -5,6 +5,7 @@ from __future__ import annotations
 import os
 import struct
 from pathlib import Path
+from typing import Any
 
 import matplotlib
 import pytest
@@ -12,9 +13,9 @@ import pytest
 import edl_solver as edl
 from edl_solver.errors import InputError
 from edl_solver.plot.profiles import profile_figure
-
-PNG_SIGNATURE = b"\x89PNG\r\n\x1a\n"
-KCL_1MM = edl.Electrolyte.from_ions({"K+": "1 mM", "Cl-": "1 mM"})
+from edl_solver.report.text import close_packing
+from tests.helpers import KCL as KCL_1MM
+from tests.helpers import PNG_SIGNATURE
 
 
 def png_size(path: Path) -> tuple[int, int]:
@@ -22,12 +23,6 @@ def png_size(path: Path) -> tuple[int, int]:
     header = path.read_bytes()[:24]
     assert header[:8] == PNG_SIGNATURE and header[12:16] == b"IHDR"
     return struct.unpack(">II", header[16:24])
-
-
-@pytest.fixture(scope="module")
-def slit() -> edl.Result:
-    return edl.solve(edl.Case(geometry=edl.Slit(height="50 nm"), electrolyte=KCL_1MM, wall=edl.Wall(zeta="-50 mV"),
-                              field="10 kV/m", pressure_gradient=-1e5))
 
 
 @pytest.mark.parametrize("case", [
@@ -86,3 +81,50 @@ def test_bad_inputs(slit: edl.Result, tmp_path: Path) -> None:
         profile_figure(slit, tmp_path / "missing" / "profile.png")
     with pytest.raises(InputError, match="result"):
         profile_figure("not a result", tmp_path / "profile.png")  # type: ignore[arg-type]
+
+
+# -- the figure's wording for the new models (plotting shares the report's model names) --------------------
+
+
+def drawn_figure(result: edl.Result, path: Path, monkeypatch: pytest.MonkeyPatch) -> Any:
+    """Draw ``result`` with plotting.profile_figure and return the matplotlib Figure it saved."""
+    from matplotlib.figure import Figure
+
+    from edl_solver.plot.profiles import profile_figure
+
+    saved = []
+    real = Figure.savefig
+
+    def keep(self: Figure, *args: Any, **kwargs: Any) -> None:
+        saved.append(self)
+        real(self, *args, **kwargs)
+
+    monkeypatch.setattr(Figure, "savefig", keep)
+    profile_figure(result, path)
+    return saved[0]
+
+
+def test_figure_marks_close_packing_for_the_steric_model(steric: edl.Result, tmp_path: Path,
+                                                         monkeypatch: pytest.MonkeyPatch) -> None:
+    figure = drawn_figure(steric, tmp_path / "steric.png", monkeypatch)
+    title = " ".join(" ".join(text.get_text() for text in figure.texts).split())  # suptitle; wrapped lines joined
+    assert "d = 0.7 nm" in title and "slip b = 5 nm" in title
+    concentration_axes = figure.axes[1]
+    marks = [line for line in concentration_axes.get_lines() if "close packing" in str(line.get_label())]
+    assert len(marks) == 1
+    assert marks[0].get_ydata()[0] == pytest.approx(close_packing(0.7e-9)) == pytest.approx(4841.0, rel=1e-3)
+
+
+def test_figure_marks_the_charge_plane_of_a_stern_wall(regulated: edl.Result, tmp_path: Path,
+                                                       monkeypatch: pytest.MonkeyPatch) -> None:
+    figure = drawn_figure(regulated, tmp_path / "regulated.png", monkeypatch)
+    title = " ".join(" ".join(text.get_text() for text in figure.texts).split())
+    assert "pH 5" in title and "silanol pK 7.5" in title and "gate 1 V" in title
+    potential_axes = figure.axes[0]
+    marks = [line for line in potential_axes.get_lines() if "charge-plane" in str(line.get_label())]
+    assert len(marks) == 1
+    # Only the bottom wall has a Stern layer: one marker, on it, at psi_0.
+    assert list(marks[0].get_xdata()) == [0.0]
+    assert list(marks[0].get_ydata()) == [regulated.summary["stern_potential"][0] * 1e3]
+    closes = [line for axes in figure.axes for line in axes.get_lines() if "close packing" in str(line.get_label())]
+    assert not closes  # point ions: no ceiling

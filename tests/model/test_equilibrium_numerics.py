@@ -2,7 +2,7 @@
 
 The references here are the scheme's own solutions on much finer grids (order measurements) and the
 stated promises of the issue (|zeta| <= 15 kT/e, kappa h in [0.01, 1000], valences up to 3); the
-comparisons with published closed forms live in test_equilibrium_references.py.
+comparisons with published closed forms live in tests/model/test_equilibrium.py.
 """
 
 from __future__ import annotations
@@ -17,8 +17,8 @@ import edl_solver as edl
 from edl_solver.kernels import adaptive as _adaptive
 from edl_solver.kernels import fv1d as _kernels
 from edl_solver.model import grid, scaling
+from tests.helpers import SOLVENT
 
-SOLVENT = edl.Solvent(temperature=298.15, relative_permittivity=78.4, viscosity=0.89e-3)
 VT = SOLVENT.thermal_voltage
 SALTS = {
     "KCl": {"K+": "1 mM", "Cl-": "1 mM"},

@@ -14,10 +14,9 @@ import pytest
 import edl_solver as edl
 from edl_solver import channel as ch
 from edl_solver.channel.model import cases_at
-from edl_solver.constants import FARADAY, GAS_CONSTANT
+from edl_solver.constants import FARADAY
+from tests.helpers import RT, SOLVENT
 
-SOLVENT = edl.Solvent(temperature=298.15, relative_permittivity=78.4, viscosity=0.89e-3)
-RT = GAS_CONSTANT * 298.15
 VT = RT / FARADAY  # kT/e
 
 

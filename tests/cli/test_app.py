@@ -2,8 +2,6 @@
 
 from __future__ import annotations
 
-import contextlib
-import io
 import os
 import subprocess
 import sys
@@ -14,11 +12,11 @@ from hypothesis import HealthCheck, assume, given, settings
 from hypothesis import strategies as st
 
 import edl_solver as edl
-from edl_solver.cli import main
 from edl_solver.cli.demo import DEMO_TOML, demo_case
 from edl_solver.errors import ConvergenceError, InputError
 from edl_solver.inputs.casefile import load_case
 from edl_solver.inputs.units import to_si
+from tests.helpers import run, write
 
 CASE_TOML = """\
 field = "2 kV/m"
@@ -37,18 +35,8 @@ zeta = "-30 mV"
 QUICK = ["--slit", "20nm", "--ion", "Na+=1mM", "--ion", "Cl-=1mM", "--zeta", "-40mV", "--field", "1kV/m"]
 
 
-def run(argv: list[str]) -> tuple[int, str, str]:
-    """Exit code, stdout and stderr of ``edl ARGV``."""
-    out, err = io.StringIO(), io.StringIO()
-    with contextlib.redirect_stdout(out), contextlib.redirect_stderr(err):
-        code = main(argv)
-    return code, out.getvalue(), err.getvalue()
-
-
 def case_file(tmp_path: Path, text: str = CASE_TOML) -> str:
-    path = tmp_path / "case.toml"
-    path.write_text(text, encoding="utf-8")
-    return str(path)
+    return str(write(tmp_path, text))
 
 
 def assert_one_line_error(err: str, *parts: str) -> None:

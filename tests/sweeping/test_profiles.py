@@ -17,8 +17,8 @@ from scipy.special import i0e
 import edl_solver as edl
 from edl_solver.cli import main
 from edl_solver.errors import InputError
+from tests.helpers import KCL
 
-KCL = edl.Electrolyte.from_ions({"K+": "1 mM", "Cl-": "1 mM"})
 ZETA = -1e-4  # V: deep in the linear regime (|zeta| << kT/e)
 
 

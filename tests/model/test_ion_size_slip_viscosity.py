@@ -22,11 +22,7 @@ import pytest
 
 import edl_solver as edl
 from edl_solver.model import thin_layer, walls
-
-try:  # tests as a package
-    from . import reference_models as rm
-except ImportError:  # tests directory on sys.path (pytest's default rootdir-relative import)
-    import reference_models as rm
+from tests import reference_models as rm
 
 T = 298.15  # K
 EPS_R = 78.4  # water at 25 degC (from memory)

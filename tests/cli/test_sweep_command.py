@@ -1,99 +1,23 @@
-"""Sweep files (``edl_solver.sweeping.file``) and the ``edl sweep`` command: values, errors, Ctrl-C and resume."""
+"""The ``edl sweep`` command and its sweep files: output, errors, Ctrl-C and resume (the file format itself:
+tests/sweeping/test_file.py)."""
 
 from __future__ import annotations
 
-import contextlib
 import importlib.machinery
-import io
 import sys
 import types
 from pathlib import Path
 
-import numpy as np
 import pytest
 import xarray as xr
-from interrupting import interrupt_after_first_write
 
 import edl_solver as edl
-from edl_solver.cli import main
 from edl_solver.errors import InputError
 from edl_solver.sweeping.file import load_sweep
-
-ROOT = Path(__file__).resolve().parents[1]
-
-BASE_TOML = """\
-field = "1 kV/m"
-pressure_gradient = "-1 bar/mm"
-
-[geometry]
-kind = "slit"
-height = "20 nm"
-
-[electrolyte]
-ions = { "K+" = "1 mM", "Cl-" = "1 mM" }
-
-[wall]
-zeta = "-40 mV"
-"""
-
-SWEEP_TOML = BASE_TOML + """
-[sweep]
-zip = [["geometry.height", "electrolyte.concentration"]]
-
-[sweep.axes]
-"geometry.height" = { log = ["5 nm", "500 nm"], points = 3 }
-"wall.zeta" = { linear = ["-150 mV", "-10 mV"], points = 4 }
-"electrolyte.concentration" = ["0.1 mM", "1 mM", "10 mM"]
-"""
-
-
-def run(argv: list[str]) -> tuple[int, str, str]:
-    """Exit code, stdout and stderr of ``edl ARGV``."""
-    out, err = io.StringIO(), io.StringIO()
-    with contextlib.redirect_stdout(out), contextlib.redirect_stderr(err):
-        code = main(argv)
-    return code, out.getvalue(), err.getvalue()
-
-
-def write(tmp_path: Path, text: str, name: str = "design.toml") -> Path:
-    path = tmp_path / name
-    path.write_text(text, encoding="utf-8")
-    return path
-
-
-# -- the file format ---------------------------------------------------------------------------------
-
-
-def test_sweep_file_gives_the_case_axes_and_zipped_groups(tmp_path: Path) -> None:
-    case, axes, zipped = load_sweep(write(tmp_path, SWEEP_TOML))
-    assert case.geometry.height == 20e-9 and case.wall.zeta == -0.040 and case.field == 1000.0
-    assert list(axes) == ["geometry.height", "wall.zeta", "electrolyte.concentration"]
-    assert axes["geometry.height"] == [5e-9, 5e-8, 5e-7]  # log range, both bounds included
-    np.testing.assert_allclose(axes["wall.zeta"], [-0.150, -0.150 + 0.140 / 3, -0.150 + 0.280 / 3, -0.010],
-                               rtol=1e-14)
-    assert axes["wall.zeta"][0] == -0.150 and axes["wall.zeta"][-1] == -0.010
-    assert axes["electrolyte.concentration"] == [0.1, 1.0, 10.0]
-    assert zipped == [["geometry.height", "electrolyte.concentration"]]
-
-
-def test_sweep_file_short_forms(tmp_path: Path) -> None:
-    # Unquoted dotted keys, a zip group without its outer brackets, numbers in SI, a one-point range,
-    # and a wall section left to the axis that sets it.
-    text = BASE_TOML.replace('[wall]\nzeta = "-40 mV"\n', "") + """
-[sweep]
-zip = ["wall.zeta", "field"]
-output_profiles = false
-
-[sweep.axes]
-wall.zeta = [-0.02, -0.05]
-field = ["1 kV/m", "2 kV/m"]
-geometry.height = { log = ["30 nm", "90 nm"], points = 1 }
-model = ["pb", "dh"]
-"""
-    case, axes, zipped = load_sweep(write(tmp_path, text))
-    assert axes == {"wall.zeta": [-0.02, -0.05], "field": [1000.0, 2000.0], "geometry.height": [3e-8],
-                    "model": ["pb", "dh"]}
-    assert zipped == [["wall.zeta", "field"]] and case.wall.zeta == -0.02
+from tests.helpers import SWEEP_BASE_TOML as BASE_TOML
+from tests.helpers import SWEEP_TOML, run
+from tests.helpers import write_sweep as write
+from tests.interrupting import interrupt_after_first_write
 
 
 def test_edl_sweep_writes_the_sweep_next_to_the_file_and_says_how_to_open_it(tmp_path: Path) -> None:

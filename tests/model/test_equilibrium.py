@@ -22,11 +22,7 @@ from scipy import constants as sc
 from scipy.interpolate import CubicSpline
 
 import edl_solver as edl
-
-try:  # tests as a package
-    from . import reference_solutions as ref
-except ImportError:  # tests directory on sys.path (pytest's default rootdir-relative import)
-    import reference_solutions as ref
+from tests import reference_solutions as ref
 
 T = 298.15  # K
 EPS_R = 78.4  # water at 25 C (from memory)

@@ -7,48 +7,18 @@ import math
 import mpmath
 import numpy as np
 import pytest
-from scipy import constants
 
 import edl_solver as edl
-from edl_solver.model.thin_layer import grahame_zeta, slip_velocity, verdict
+from edl_solver.model.thin_layer import grahame_zeta, slip_velocity
+from tests.helpers import SOLVENT, kcl
 
-SOLVENT = edl.Solvent(temperature=298.15, relative_permittivity=78.4, viscosity=0.89e-3)
 VT = SOLVENT.thermal_voltage
-
-
-def kcl(millimolar: float = 1.0) -> edl.Electrolyte:
-    return edl.Electrolyte.from_ions({"K+": millimolar, "Cl-": millimolar})
 
 
 def slit_case(height: float, wall, **kw) -> edl.Case:
     return edl.Case(geometry=edl.Slit(height=height), electrolyte=kw.pop("electrolyte", kcl()), wall=wall,
                     solvent=SOLVENT, field=kw.pop("field", 1e4), pressure_gradient=kw.pop("pressure_gradient", -1e5),
                     **kw)
-
-
-def test_debye_length_rule_for_one_to_one_electrolytes() -> None:
-    """lambda_D = 0.304 nm / sqrt(I / (mol/L)) for 1:1 in water at 25 degC (Israelachvili, Intermolecular
-    and Surface Forces); the rule's 3 digits allow ~0.3 %."""
-    water = edl.Water(temperature="25 degC")
-    for molar in (0.001, 0.01, 0.1):
-        debye = kcl(1000 * molar).debye_length(water)
-        assert debye == pytest.approx(0.304e-9 / math.sqrt(molar), rel=3e-3)
-
-
-def test_grahame_equation_value() -> None:
-    """sigma = sqrt(8 c N_A eps kT) sinh(e zeta / 2kT): -4.21 mC/m^2 at -50 mV, 1 mM 1:1, 25 degC,
-    eps_r = 78.4 (Grahame 1947, Chem. Rev. 41, 441; value computed in shared REFERENCES)."""
-    assert grahame_zeta(-4.21e-3, kcl(), SOLVENT) == pytest.approx(-0.050, rel=2e-3)
-    # and the general multi-ion form against the z:z closed form, to round-off
-    sigma = math.sqrt(8 * 1.0 * constants.N_A * SOLVENT.permittivity * constants.k * 298.15) * math.sinh(-2.0)
-    assert grahame_zeta(sigma, kcl(), SOLVENT) == pytest.approx(-4.0 * VT, rel=1e-12)
-
-
-def test_smoluchowski_mobility() -> None:
-    """|u/E| = eps zeta / eta = 3.90e-8 m^2/(V s) for |zeta| = 50 mV in water at 25 degC (Smoluchowski 1903;
-    value computed in shared REFERENCES)."""
-    assert abs(slip_velocity(-0.05, SOLVENT, 1.0)) == pytest.approx(3.90e-8, rel=2e-3)
-    assert slip_velocity(-0.05, SOLVENT, 1.0) > 0  # a negative wall drives flow along +E
 
 
 @pytest.mark.parametrize("geometry", ["slit", "capillary", "asymmetric"])
@@ -127,10 +97,3 @@ def test_onsager_reciprocity_and_charge_balance_reported() -> None:
         assert s["streaming_current"] / -case.pressure_gradient == pytest.approx(s["flow_rate_eo"] / case.field,
                                                                                 rel=1e-8)
         assert s["reciprocity_residual"] < 1e-12 and s["charge_balance"] < 1e-12
-
-
-def test_verdict_wording() -> None:
-    assert verdict(0.23, 0.05) == "thin-layer slip over-predicts the EO flow rate by 23 % here: not valid at 5 %"
-    assert verdict(-0.5, 0.05).startswith("thin-layer slip under-predicts the EO flow rate by 50 %")
-    assert verdict(0.012, 0.05) == "thin-layer slip is within 1.2 % of the full EO flow rate here: valid at 5 %"
-    assert "undefined" in verdict(float("nan"), 0.05)
