@@ -1,5 +1,5 @@
 """Validity maps of the thin-layer model (edl_solver.analysis.validity_map) and the ``edl map`` command
-(edl_solver.cli.map): root-found boundaries against published closed forms, the map's dataset and file,
+(edl_solver.cli.map_command): root-found boundaries against published closed forms, the map's dataset and file,
 the figure, and bad input."""
 
 from __future__ import annotations
@@ -31,7 +31,7 @@ from edl_solver.analysis.validity_map import (
     thin_layer_current_per_field,
     validity_map,
 )
-from edl_solver.cli.map import add_map_command, parse_axis
+from edl_solver.cli.map_command import add_map_command, parse_axis
 from edl_solver.errors import InputError
 
 KCL = edl.Electrolyte.from_ions({"K+": "1 mM", "Cl-": "1 mM"})
