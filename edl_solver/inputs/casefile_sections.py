@@ -37,7 +37,6 @@ EXAMPLES = {
 }
 
 
-
 def without_none(value: Any) -> Any:
     """``value`` with every None-valued key of its tables dropped, recursively."""
     if isinstance(value, Mapping):
