@@ -1,4 +1,5 @@
-"""The built-in demonstration case, as a TOML text a newcomer can copy and edit.
+"""``edl demo``: the built-in demonstration case, as a TOML text a newcomer can copy and edit, solved and
+written as ``edl solve`` does.
 
 A 30 nm slit with glass-like walls (zeta -60 mV) in 0.5 mM KCl: the Debye length (13.6 nm) is close
 to the half-height, the double layers overlap, and the thin-layer slip model over-predicts the
@@ -8,9 +9,29 @@ electroosmotic flow about three-fold; a scenario chosen to show why the full sol
 
 from __future__ import annotations
 
+import argparse
+import sys
+from typing import Any
+
+from edl_solver.cli.exit_codes import EXIT_OK
+from edl_solver.cli.output_files import OUTPUT_FLAGS, add_output_flags, result_and_figure
 from edl_solver.inputs.case import Case
 
-__all__ = ["DEMO_TOML", "demo_case"]
+__all__ = ["DEMO_FIGURE", "DEMO_RESULT", "DEMO_TOML", "VALUE_FLAGS", "add_demo_command", "demo_case",
+           "run_demo_command"]
+
+#: Flags of ``edl demo`` that take a value.
+VALUE_FLAGS = frozenset(OUTPUT_FLAGS)
+
+DEMO_RESULT = "edl_demo.h5"
+DEMO_FIGURE = "edl_demo.png"
+
+_EPILOG = f"""\
+examples:
+  edl demo                                   # writes {DEMO_RESULT} and {DEMO_FIGURE} here
+  edl demo -o run.h5 --figure run.png
+  edl demo --print-case > case.toml          # the demo as an editable case file
+"""
 
 DEMO_TOML = """\
 # edl demo: a 30 nm slit with glass-like walls in 0.5 mM KCl.
@@ -51,3 +72,26 @@ def demo_case() -> Case:
     from edl_solver.inputs.casefile import loads_case
 
     return loads_case(DEMO_TOML, "demo")
+
+
+def add_demo_command(commands: Any) -> None:
+    """Add ``demo`` to the sub-parsers ``commands`` (its ``run`` is :func:`run_demo_command`)."""
+    demo = commands.add_parser(
+        "demo", help="solve the built-in demonstration case", allow_abbrev=False,
+        formatter_class=argparse.RawDescriptionHelpFormatter, epilog=_EPILOG,
+        description="Solve the built-in case (a 30 nm slit with glass-like walls in 0.5 mM KCl), print\n"
+                    "the report and write the result file and the figure.")
+    demo.add_argument("--print-case", action="store_true",
+                      help="print the demo's case file (TOML) and stop; a starting point for your own")
+    add_output_flags(demo, result_default=DEMO_RESULT, figure_default=DEMO_FIGURE)
+    demo.set_defaults(run=run_demo_command)
+
+
+def run_demo_command(args: argparse.Namespace) -> int:
+    """Print the demo's case file (--print-case), or solve it and write its files."""
+    from edl_solver.cli.solve_command import solve_and_write
+
+    if args.print_case:
+        sys.stdout.write(DEMO_TOML)
+        return EXIT_OK
+    return solve_and_write(demo_case(), result_and_figure(args), args.quiet)

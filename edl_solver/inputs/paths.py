@@ -177,8 +177,47 @@ def _set_wall(wall: dict[str, Any], key: str, value: Any) -> None:
     wall[key] = value
 
 
+def set_input(table: dict[str, Any], path: str, value: Any) -> None:
+    """Set one input of a case mapping (the shape of a case file) at its dotted ``path``, as given.
+
+    "wall.<key>" sets every wall ("wall.bottom.<key>" / "wall.top.<key>" one wall of a slit, splitting one
+    condition for every wall into a pair); a fixed zeta and the charge keys exclude each other. Any other
+    path sets the value at that key, creating the tables on the way (a value that is not a table where a
+    table is needed is replaced). The sweep's own meanings (:func:`case_at`: scaled concentrations,
+    valences, water following its temperature) are not applied here.
+    """
+    if path.startswith("wall."):
+        _set_wall_path(table, path[len("wall."):], value)
+        return
+    node = table
+    *parents, leaf = path.split(".")
+    for key in parents:
+        child = node.get(key)
+        if not isinstance(child, dict):
+            child = node[key] = {}
+        node = child
+    node[leaf] = value
+
+
+def _set_wall_path(table: dict[str, Any], rest: str, value: Any) -> None:
+    """``rest`` of a "wall..." path: "<key>" on every wall, "bottom.<key>" or "top.<key>" on one."""
+    wall = table.get("wall")
+    if not isinstance(wall, dict):
+        wall = table["wall"] = {}
+    paired = "bottom" in wall or "top" in wall
+    side = rest.split(".")[0]
+    if side in ("bottom", "top"):
+        if not paired:  # one condition for both walls becomes a pair
+            table["wall"] = wall = {"bottom": wall, "top": json.loads(json.dumps(wall))}
+        _set_wall(wall[side], rest[len(side) + 1:], value)
+        return
+    for one in ([wall.get("bottom"), wall.get("top")] if paired else [wall]):
+        if isinstance(one, dict):
+            _set_wall(one, rest, value)
+
+
 def _set_path(table: dict[str, Any], path: str, value: Any) -> None:
-    """Set one input in the plain-dict form of a case (``case_to_mapping``)."""
+    """Set one swept input in the plain-dict form of a case (``case_to_mapping``)."""
     electrolyte = table["electrolyte"]
     if path in ("electrolyte.concentration", "electrolyte.pH", "electrolyte.valence") and any(
             ion["name"] in ("H+", "OH-") for ion in electrolyte["ions"]):
@@ -197,19 +236,6 @@ def _set_path(table: dict[str, Any], path: str, value: Any) -> None:
         for ion in electrolyte["ions"]:
             ion["valence"] = int(value) if ion["valence"] > 0 else -int(value)
         return
-    if path.startswith("wall."):
-        rest = path[len("wall."):]
-        wall = table["wall"]
-        paired = "bottom" in wall
-        side = rest.split(".")[0]
-        if side in ("bottom", "top"):
-            if not paired:  # one condition for both walls becomes a pair
-                table["wall"] = wall = {"bottom": wall, "top": json.loads(json.dumps(wall))}
-            _set_wall(wall[side], rest[len(side) + 1:], value)
-        else:
-            for one in ([wall["bottom"], wall["top"]] if paired else [wall]):
-                _set_wall(one, rest, value)
-        return
     if path == "solvent.temperature" and table["solvent"].get("name") == "water":
         # water's permittivity and viscosity follow the temperature (its correlations)
         coefficient = table["solvent"].get("viscoelectric_coefficient")
@@ -217,11 +243,7 @@ def _set_path(table: dict[str, Any], path: str, value: Any) -> None:
         if coefficient:
             table["solvent"]["viscoelectric_coefficient"] = coefficient
         return
-    node = table
-    *parents, leaf = path.split(".")
-    for key in parents:
-        node = node[key]
-    node[leaf] = value
+    set_input(table, path, value)
 
 
 def case_at(base_table: Mapping[str, Any], axes: Sequence[Axis], index: Sequence[int]) -> Case:

@@ -1,4 +1,5 @@
-"""The bulk (reservoir) electrolyte's own transport: conductivity and free-solution diffusion potential.
+"""The bulk (reservoir) electrolyte's own transport: conductivity, free-solution diffusion potential and the
+Nernst potential of an ideally selective channel between two reservoirs.
 
 Written once here for every Python caller (channel, conductance curves, validity maps); the compiled summary
 (``kernels.summary``) evaluates the same conductivity from the packed case.
@@ -10,6 +11,7 @@ import math
 
 from edl_solver.constants import FARADAY, GAS_CONSTANT
 from edl_solver.inputs.case import Case
+from edl_solver.inputs.electrolyte import Ion
 
 
 def bulk_conductivity(case: Case) -> float:
@@ -31,3 +33,23 @@ def henderson_potential(case: Case, left: float, right: float) -> float:
     ratio = sum(i.valence * i.diffusivity * i.concentration for i in ions) / sum(
         i.valence**2 * i.diffusivity * i.concentration for i in ions)
     return -GAS_CONSTANT * case.solvent.temperature / FARADAY * ratio * math.log(right / left)
+
+
+def counter_ion(case: Case, wall_charge: float) -> Ion | None:
+    """The counter-ion of a binary electrolyte for walls of total charge ``wall_charge``: the ion whose charge
+    is of the opposite sign; None for uncharged walls or more (or fewer) than two kinds of ion, where no single
+    ion carries the selectivity."""
+    ions = case.electrolyte.ions
+    if not wall_charge or len(ions) != 2:
+        return None
+    sign = math.copysign(1.0, wall_charge)
+    return next(ion for ion in ions if ion.valence * sign < 0)
+
+
+def nernst_potential(case: Case, valence: int, left: float, right: float) -> float:
+    """Zero-current voltage Delta V = V(L) - V(0), V, of a membrane (channel) that only ions of valence z pass,
+    between reservoirs of concentrations ``left`` and ``right``: the Nernst potential
+    -(kT/(ze)) ln(c_R/c_L) = -(RT/(zF)) ln(c_R/c_L) (Nernst 1889, from memory), the limit of an ideally
+    selective channel that the membrane potential approaches when the double layers fill it."""
+    thermal = GAS_CONSTANT * case.solvent.temperature / FARADAY
+    return -thermal / valence * math.log(right / left)

@@ -183,11 +183,11 @@ def test_a_plugged_command_module_is_registered_and_dispatched(monkeypatch: pyte
         seen["level"] = args.level
         return 7
 
-    module = types.ModuleType("edl_solver.cli.map")
-    module.__spec__ = importlib.machinery.ModuleSpec("edl_solver.cli.map", loader=None)
+    module = types.ModuleType("edl_solver.cli.map_command")
+    module.__spec__ = importlib.machinery.ModuleSpec("edl_solver.cli.map_command", loader=None)
     module.add_map_command, module.run_map_command = add_map_command, run_map_command
     module.VALUE_FLAGS = ("--level",)
-    monkeypatch.setitem(sys.modules, "edl_solver.cli.map", module)
+    monkeypatch.setitem(sys.modules, "edl_solver.cli.map_command", module)
     code, _, err = run(["map", "--level", "-3mV"])  # a value starting with '-' is taken as the value
     assert (code, err, seen) == (7, "", {"level": "-3mV"})
     code, out, _ = run(["--help"])

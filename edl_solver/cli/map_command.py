@@ -1,6 +1,7 @@
 """The ``edl map`` command: a validity map of the thin-layer model over two inputs of a case file.
 
-Registered by ``edl_solver.cli.app`` through :func:`add_map_command`; :func:`run_map_command` runs it.
+Registered by ``edl_solver.cli.app`` through :func:`add_map_command`; :func:`run_map_command` runs it (and
+reports its own errors, so that a parser built elsewhere can run it too).
 Exit codes as for the other commands: 0 done, 2 bad input (one line ``edl: error: ...`` on stderr and
 no output file), 3 no convergence. Everything is checked before the first solve; the files are written
 last, each atomically.
@@ -10,17 +11,16 @@ from __future__ import annotations
 
 import argparse
 import math
-import os
-import sys
 from pathlib import Path
 from typing import Any
 
-__all__ = ["add_map_command", "parse_axis", "run_map_command"]
+from edl_solver.cli.exit_codes import EXIT_CONVERGENCE, EXIT_INPUT, EXIT_INTERRUPTED, EXIT_OK, fail
+from edl_solver.cli.output_files import writable
 
-EXIT_OK = 0
-EXIT_INPUT = 2
-EXIT_CONVERGENCE = 3
-EXIT_INTERRUPTED = 130
+__all__ = ["VALUE_FLAGS", "add_map_command", "parse_axis", "run_map_command"]
+
+#: Flags of ``edl map`` that take a value (its axes never start with "-").
+VALUE_FLAGS = frozenset({"--tolerance", "-o", "--output", "--figure", "--workers"})
 
 #: Tolerances always drawn as contour lines, besides the one of --tolerance.
 _CONTOUR_TOLERANCES = (0.01, 0.05, 0.10)
@@ -135,14 +135,9 @@ def run_map_command(args: argparse.Namespace) -> int:
     try:
         return _run(args)
     except InputError as exc:
-        return _fail(str(exc), EXIT_INPUT)
+        return fail(str(exc), EXIT_INPUT)
     except ConvergenceError as exc:
-        return _fail(str(exc), EXIT_CONVERGENCE)
-
-
-def _fail(message: str, code: int) -> int:
-    print(f"edl: error: {' '.join(message.split())}", file=sys.stderr)
-    return code
+        return fail(str(exc), EXIT_CONVERGENCE)
 
 
 def _run(args: argparse.Namespace) -> int:
@@ -150,6 +145,7 @@ def _run(args: argparse.Namespace) -> int:
     from edl_solver.errors import ConvergenceError, InputError
     from edl_solver.inputs.casefile import load_case
     from edl_solver.inputs.units import to_si
+    from edl_solver.results.schema import CONVERGED
 
     base = load_case(args.case)
     x_axis, y_axis = parse_axis(args.x_axis, "--x"), parse_axis(args.y_axis, "--y")
@@ -172,10 +168,10 @@ def _run(args: argparse.Namespace) -> int:
                             resume=args.resume)
     except KeyboardInterrupt:
         if partial is None or not partial.exists():
-            return _fail("interrupted before any case was kept", EXIT_INTERRUPTED)
-        return _fail(f"interrupted; the finished cases are kept in {partial}; to finish the map, run the same "
-                     "command with --resume", EXIT_INTERRUPTED)
-    converged = int((data["status"].values == 0).sum())
+            return fail("interrupted before any case was kept", EXIT_INTERRUPTED)
+        return fail(f"interrupted; the finished cases are kept in {partial}; to finish the map, run the same "
+                    "command with --resume", EXIT_INTERRUPTED)
+    converged = int((data["status"].values == CONVERGED).sum())
     if converged == 0:
         first = str(data["message"].values.flat[0])
         where = f"; every case's reason is in {outputs['map']}" if "map" in outputs else ""
@@ -199,19 +195,8 @@ def _outputs(args: argparse.Namespace) -> dict[str, Path]:
 
     outputs: dict[str, Path] = {}
     for what, flag, value in (("map", "-o", args.output), ("figure", "--figure", args.figure)):
-        if value is None:
-            continue
-        if not value.strip():
-            raise InputError(f"{flag}: {value!r} is empty, expected a file name")
-        path = Path(value).expanduser()
-        if path.is_dir():
-            raise InputError(f"{flag}: {value!r} is a directory, expected a file name")
-        if not path.parent.is_dir():
-            raise InputError(f"{flag}: {value!r} cannot be written, its directory {str(path.parent)!r} does not exist")
-        if not os.access(path.parent, os.W_OK | os.X_OK):
-            raise InputError(f"{flag}: {value!r} cannot be written, its directory {str(path.parent)!r} is not "
-                             "writable")
-        outputs[what] = path
+        if value is not None:
+            outputs[what] = writable(flag, value)
     if len(outputs) == 2 and outputs["map"].resolve() == outputs["figure"].resolve():
         raise InputError(f"--figure: {args.figure!r} is also the map file (-o), expected another file name")
     return outputs
@@ -245,11 +230,12 @@ _SYMBOLS = {"geometry.height": "H", "geometry.radius": "a", "electrolyte.concent
 def _shown(name: str, value: float, table: dict[str, Any], digits: int) -> str:
     """``symbol = value unit`` in the units of the figure (nm, mM, mV, ...)."""
     from edl_solver.analysis.validity_map import axis_display
+    from edl_solver.inputs.geometry import GEOMETRIES
 
     scale, offset, label = axis_display(name, table)
     unit = label.rsplit("(", 1)[1].rstrip(")") if label.endswith(")") and "(" in label else ""
-    if name == "kappa_h":
-        symbol = "kappa*a" if table["geometry"]["kind"] == "capillary" else "kappa*h"
+    if name == "kappa_h":  # "kappa*h" or "kappa*a": the geometry's symbol in plain letters
+        symbol = GEOMETRIES[table["geometry"]["kind"]].kappa_symbol.replace("κ", "kappa*")
     else:
         symbol = _SYMBOLS.get(name, name).format(ion=table["electrolyte"]["ions"][0]["name"])
     text = f"{value * scale + offset:.{digits}g}"
@@ -260,15 +246,17 @@ def _summary(data: Any, tolerance: float) -> str:
     """A few lines: cases, how many are within the tolerance, and where the boundary lies."""
     import json
 
+    from edl_solver.results.schema import CONVERGED
+
     status = data["status"].values
     table = json.loads(data.attrs["case_json"])
-    total, converged = status.size, int((status == 0).sum())
+    total, converged = status.size, int((status == CONVERGED).sum())
     lines = [f"validity map of {data.attrs['y_axis']} x {data.attrs['x_axis']}: {total} cases, {converged} converged"
              + (f", {total - converged} did not (status 1 in the map)" if converged < total else "")]
     percent = f"{tolerance * 100:g} %"
     errors = (("EO flow rate", "thin_layer_flow_rate_error"), ("current per field", "thin_layer_current_error"))
     for name, key in errors:
-        within = int((abs(data[key].values[status == 0]) <= tolerance).sum())
+        within = int((abs(data[key].values[status == CONVERGED]) <= tolerance).sum())
         lines.append(f"thin-layer {name} within {percent} in {within} of {converged} cases")
     if "boundary" in data.variables:
         curve = data["boundary"]

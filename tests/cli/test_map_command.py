@@ -1,4 +1,4 @@
-"""The ``edl map`` command (edl_solver.cli.map): the map and figure it writes, bad input, Ctrl-C and resume.
+"""The ``edl map`` command (edl_solver.cli.map_command): the map and figure it writes, bad input, Ctrl-C and resume.
 The maps themselves are checked in tests/analysis/test_validity_map.py."""
 
 from __future__ import annotations
@@ -14,7 +14,7 @@ import numpy as np
 import pytest
 import xarray as xr
 
-from edl_solver.cli.map import add_map_command, parse_axis
+from edl_solver.cli.map_command import add_map_command, parse_axis
 from tests.helpers import PNG_SIGNATURE, write
 from tests.interrupting import interrupt_after_first_write
 from tests.reference_solutions import gouy_chapman_boundary

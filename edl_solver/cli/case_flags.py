@@ -1,0 +1,253 @@
+"""The case flags shared by ``edl solve`` and ``edl transport`` (--slit, --ion, --zeta, ...), and the case they
+give with a case file.
+
+One schema: the case file is read as a mapping (``casefile.read_mapping``), the flags are written into it in
+the shape of a case file (a flag that gives a whole section - the geometry, the ions, the wall conditions -
+replaces that section; a flag that gives one value sets it at its dotted path through
+``inputs.paths.set_input``, the paths that sweeps use), and ``casefile.case_from_mapping`` builds the case.
+An error is then blamed on the flag that gave the value, or else on the case file.
+"""
+
+from __future__ import annotations
+
+import argparse
+from pathlib import Path
+from typing import Any
+
+__all__ = ["CASE_FLAGS", "CASE_VALUE_FLAGS", "add_case_flags", "case_from_args"]
+
+#: Flags that set one input of the case: (flag, metavar, dotted field it sets, help).
+CASE_FLAGS: tuple[tuple[str, str, str, str], ...] = (
+    ("--slit", "HEIGHT", "geometry.height", "a slit of full wall-to-wall height HEIGHT, e.g. 50nm"),
+    ("--capillary", "RADIUS", "geometry.radius", "a cylindrical capillary of radius RADIUS, e.g. 20nm"),
+    ("--ion", "NAME=CONC", "electrolyte.ions",
+     "an ion of the built-in table and its bulk concentration, e.g. K+=1mM; repeat for each ion (the "
+     "ions given replace the case file's; a file ion given in full keeps its valence and diffusivity)"),
+    ("--zeta", "ZETA", "wall.zeta", "wall potential relative to the reservoir, e.g. -50mV (every wall)"),
+    ("--charge-density", "SIGMA", "wall.charge_density", "wall surface charge density, e.g. -2mC/m^2"),
+    ("--top-zeta", "ZETA", "wall.top.zeta", "a different potential for the top wall of a slit"),
+    ("--top-charge-density", "SIGMA", "wall.top.charge_density",
+     "a different charge density for the top wall of a slit"),
+    ("--temperature", "T", "solvent.temperature", "temperature of the water, e.g. 25degC or 298.15K"),
+    ("--field", "E", "field", "axial electric field, e.g. 10kV/m"),
+    ("--pressure-gradient", "G", "pressure_gradient",
+     "axial pressure gradient dp/dx, e.g. -1bar/mm (negative pushes the liquid along +x)"),
+    ("--tolerance", "TOL", "tolerance", "error up to which the thin-layer model counts as valid, e.g. 5%%"),
+    ("--accuracy", "ACC", "numerics.accuracy", "target relative error of the results, e.g. 1e-6"),
+)
+#: Flags that set one value each, put at their dotted field as given.
+_PLAIN_FLAGS = ("--temperature", "--field", "--pressure-gradient", "--tolerance", "--accuracy")
+#: Flags of the physical models that set one value each at their dotted field (switches set true).
+_MODEL_PATHS = (("--pH", "pH", "electrolyte.pH"), ("--diameter", "diameter", "electrolyte.diameter"))
+#: Every case flag that takes a value (a value after it may start with "-", as in "--zeta -40mV").
+CASE_VALUE_FLAGS = frozenset({flag for flag, *_ in CASE_FLAGS} | {"--model", "--pH", "--diameter", "--slip-length"})
+
+_CHARGE_SIGNS = ("+", "-", "\u207a", "\u207b", "\u2212")  # also superscript signs and the minus sign
+
+
+def add_case_flags(parser: argparse.ArgumentParser) -> None:
+    """The flags of ``CASE_FLAGS`` and the model flags, in groups (shared by solve and transport)."""
+    geometry = parser.add_argument_group("geometry (one of)").add_mutually_exclusive_group()
+    electrolyte = parser.add_argument_group("electrolyte")
+    walls = parser.add_argument_group("walls")
+    bottom, top = walls.add_mutually_exclusive_group(), walls.add_mutually_exclusive_group()
+    conditions = parser.add_argument_group("conditions and numerics")
+    group_of = {"--slit": geometry, "--capillary": geometry, "--ion": electrolyte, "--zeta": bottom,
+                "--charge-density": bottom, "--top-zeta": top, "--top-charge-density": top}
+    for flag, metavar, field, text in CASE_FLAGS:
+        group = group_of.get(flag, conditions)
+        action = "append" if flag == "--ion" else "store"
+        group.add_argument(flag, metavar=metavar, action=action, help=f"{text} [{field}]")
+    conditions.add_argument("--model", choices=("pb", "dh", "steric"),
+                            help="pb: Poisson-Boltzmann; dh: its linearisation (Debye-Hueckel); steric: finite "
+                                 "ion size, needs --diameter [model]")
+    electrolyte.add_argument("--pH", metavar="PH", help="bulk pH, for charge-regulating walls [electrolyte.pH]")
+    electrolyte.add_argument("--diameter", metavar="D",
+                             help="one ion diameter for every ion (steric model), e.g. 0.7nm [electrolyte.diameter]")
+    bottom.add_argument("--silica", action="store_true",
+                        help="silica walls: silanol sites (pK 7.5, 8/nm^2) and a 2.9 F/m^2 Stern layer; needs --pH "
+                             "[wall.preset]")
+    walls.add_argument("--slip-length", metavar="B", help="Navier slip length of every wall, e.g. 2nm "
+                                                          "[wall.slip_length]")
+    conditions.add_argument("--viscoelectric", action="store_true",
+                            help="viscosity rising with the field, water's coefficient [solvent.viscoelectric]")
+
+
+def case_from_args(args: argparse.Namespace) -> Any:
+    """The case of a case file (optional) with the case flags applied; errors name the flag or the file."""
+    from edl_solver.errors import InputError
+    from edl_solver.inputs.casefile import case_from_mapping, read_mapping
+
+    ions = _parse_ions(args.ion)  # its syntax first: "--ion K+ 1mM" would otherwise look like a file name
+    if args.case is not None:
+        _check_case_path(args.case)
+    data = read_mapping(args.case) if args.case is not None else {}
+    origins = _apply_flags(data, args, ions)
+    _require_sections(data, args.case)
+    try:
+        return case_from_mapping(data)
+    except InputError as exc:
+        raise InputError(_locate(str(exc), origins, args.case)) from None
+
+
+def _parse_ions(items: list[str] | None) -> list[tuple[str, str]] | None:
+    """``NAME=CONC`` of each --ion -> [(name, concentration text)]; None without --ion."""
+    from edl_solver.errors import InputError
+
+    if not items:
+        return None
+    ions = []
+    for item in items:
+        name, sep, concentration = item.partition("=")
+        if not sep or not name.strip():
+            raise InputError(f"--ion: {item!r} is not NAME=CONCENTRATION, expected e.g. --ion K+=1mM")
+        ions.append((name.strip(), concentration))
+    return ions
+
+
+def _check_case_path(path: str) -> None:
+    from edl_solver.errors import InputError
+
+    if not Path(path).exists() and not path.endswith(".toml"):
+        # Most often a unit split from its number: "--slit 20 nm" leaves "nm" as the case file.
+        raise InputError(f"{path!r}: no such case file (a value with a unit is written without a space or "
+                         "in quotes: --slit 20nm or --slit '20 nm')")
+
+
+def _apply_flags(data: dict[str, Any], args: argparse.Namespace, ions: list[tuple[str, str]] | None
+                 ) -> dict[str, str]:
+    """Write the flags' values into the case mapping ``data``; return {dotted field: flag} of what they set.
+
+    The order is that of the sections: geometry, electrolyte, walls, then the single values (so that a
+    section replaced by a flag takes the single values given with it).
+    """
+    from edl_solver.inputs.geometry import GEOMETRIES
+    from edl_solver.inputs.paths import set_input
+
+    origins: dict[str, str] = {}
+    for kind, shape in GEOMETRIES.items():  # --slit HEIGHT, --capillary RADIUS: one of them
+        size = getattr(args, kind, None)
+        if size is not None:
+            data["geometry"] = {"kind": kind, shape.size_name: size}
+            origins[shape.size_path] = f"--{kind}"
+            break
+    if ions is not None:
+        data["electrolyte"] = {"ions": _ion_entries(data, ions)}
+        origins.update({"electrolyte": "--ion", "electrolyte.ions": "--ion", "ion": "--ion"})
+        origins.update({f"ion {name}.concentration": f"--ion {name}" for name, _ in ions})
+        origins.update({f"electrolyte.ions[{i}].name": "--ion" for i in range(len(ions))})
+    _apply_wall_flags(data, args, origins)
+    fields = {flag: field for flag, _, field, _ in CASE_FLAGS}
+    for flag in _PLAIN_FLAGS:
+        value = getattr(args, flag[2:].replace("-", "_"))
+        if value is not None:
+            set_input(data, fields[flag], value)
+            origins[fields[flag]] = flag
+    if args.model is not None:
+        set_input(data, "model", args.model)
+    _apply_model_flags(data, args, origins)
+    return origins
+
+
+def _ion_entries(data: dict[str, Any], ions: list[tuple[str, str]]) -> list[dict[str, Any]]:
+    """The ion tables of the --ion flags (a file ion given in full keeps its valence and diffusivity)."""
+    from edl_solver.errors import InputError
+
+    entries = [{**_file_ion(data, name), "name": name, "concentration": c} for name, c in ions]
+    for entry in entries:
+        if "valence" not in entry and not entry["name"].rstrip(")").endswith(_CHARGE_SIGNS):
+            # A salt ("KCl") where an ion is meant: the table lookup would suggest a wrong ion.
+            raise InputError(f"--ion: {entry['name']!r} has no charge sign, expected one ion per flag, "
+                             "e.g. --ion K+=1mM --ion Cl-=1mM")
+    return entries
+
+
+def _file_ion(data: dict[str, Any], name: str) -> dict[str, Any]:
+    """Valence and diffusivity of an ion the case file gives in full, so a flag changes only its amount."""
+    electrolyte = data.get("electrolyte")
+    if not isinstance(electrolyte, dict):
+        return {}
+    for key in ("ions", "ion"):
+        entries = electrolyte.get(key)
+        for entry in entries if isinstance(entries, list) else ():
+            if isinstance(entry, dict) and entry.get("name") == name:
+                return {k: entry[k] for k in ("valence", "diffusivity") if k in entry}
+    return {}
+
+
+def _apply_wall_flags(data: dict[str, Any], args: argparse.Namespace, origins: dict[str, str]) -> None:
+    """--zeta/--charge-density replace the wall section (one condition for every wall); --top-* then set a
+    slit's top wall apart."""
+    from edl_solver.errors import InputError
+    from edl_solver.inputs.casefile_keys import single_wall
+
+    def condition(zeta: str | None, sigma: str | None) -> dict[str, str] | None:
+        return {"zeta": zeta} if zeta is not None else {"charge_density": sigma} if sigma is not None else None
+
+    every = condition(args.zeta, args.charge_density)
+    top = condition(args.top_zeta, args.top_charge_density)
+    if every is None and top is None:
+        return
+    wall = data.get("wall") if isinstance(data.get("wall"), dict) else {}
+    bottom_now = wall.get("bottom") if "bottom" in wall or "top" in wall else wall or None
+    bottom_flag = "--zeta" if args.zeta is not None else "--charge-density"
+    top_flag = "--top-zeta" if args.top_zeta is not None else "--top-charge-density"
+    if top is None:
+        data["wall"] = every
+        origins.update({f"wall.{key}": bottom_flag for key in ("zeta", "charge_density")})
+        return
+    if single_wall(data.get("geometry")):
+        raise InputError(f"{top_flag}: a capillary has one wall, expected --zeta or --charge-density alone")
+    bottom = every if every is not None else bottom_now
+    if not isinstance(bottom, dict):
+        raise InputError(f"{top_flag}: the bottom wall has no condition, expected --zeta or --charge-density "
+                         "(or a [wall] section in the case file) as well")
+    data["wall"] = {"bottom": bottom, "top": top}
+    origins.update({f"wall.top.{key}": top_flag for key in ("zeta", "charge_density")})
+    if every is not None:
+        origins.update({f"wall.bottom.{key}": bottom_flag for key in ("zeta", "charge_density")})
+
+
+def _apply_model_flags(data: dict[str, Any], args: argparse.Namespace, origins: dict[str, str]) -> None:
+    """--pH, --diameter, --silica, --slip-length and --viscoelectric into the case mapping."""
+    from edl_solver.inputs.paths import set_input
+
+    for flag, name, path in _MODEL_PATHS:
+        value = getattr(args, name)
+        if value is not None:
+            set_input(data, path, value)
+            origins[path] = flag
+    if args.silica:
+        data["wall"] = {"preset": "silica"}  # the whole wall: a preset admits only a slip length beside it
+        origins["wall.preset"] = "--silica"
+    if args.slip_length is not None:
+        set_input(data, "wall.slip_length", args.slip_length)  # every wall
+        origins["wall.slip_length"] = "--slip-length"
+    if args.viscoelectric:
+        set_input(data, "solvent.viscoelectric", True)
+        origins["solvent.viscoelectric"] = "--viscoelectric"
+
+
+def _require_sections(data: dict[str, Any], path: str | None) -> None:
+    """A missing part of the case, named with the flags that give it."""
+    from edl_solver.errors import InputError
+
+    needs = {"geometry": "--slit HEIGHT or --capillary RADIUS", "electrolyte": "--ion NAME=CONC for each ion",
+             "wall": "--zeta ZETA or --charge-density SIGMA"}
+    missing = [name for name in needs if name not in data]
+    if not missing:
+        return
+    if path is not None:
+        raise InputError(f"{path}: missing section [{missing[0]}]; add it or give {needs[missing[0]]}")
+    if len(missing) == len(needs):
+        raise InputError("no case given: pass a case file (try 'edl demo --print-case > case.toml') or the "
+                         "flags --slit/--capillary, --ion and --zeta/--charge-density (see 'edl solve --help')")
+    raise InputError(f"no {missing[0]} given: add {needs[missing[0]]}")
+
+
+def _locate(message: str, origins: dict[str, str], path: str | None) -> str:
+    """Say where a bad value came from: its flag (which replaces the field name) or the case file."""
+    field, sep, rest = message.partition(": ")
+    if sep and field in origins:
+        return f"{origins[field]}: {rest}"
+    return f"{path}: {message}" if path is not None else message

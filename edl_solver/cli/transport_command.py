@@ -1,0 +1,255 @@
+"""``edl transport``: a case solved as ``edl solve`` does, then what a lab measures on a channel - the
+electroosmotic pump curve, the conductance against salt concentration and, for a channel of a given length
+between two reservoirs, its I-V curve, membrane potential and osmotic power.
+
+Everything is checked before the first solve (the case, the flags against each other, the output paths);
+the files are written last, each atomically. The printed lines are in :mod:`edl_solver.cli.transport_text`.
+"""
+
+from __future__ import annotations
+
+import argparse
+from pathlib import Path
+from typing import Any
+
+from edl_solver.cli.case_flags import CASE_VALUE_FLAGS, add_case_flags, case_from_args
+from edl_solver.cli.exit_codes import EXIT_OK, EXIT_WRITE_FAILED, fail
+from edl_solver.cli.output_files import OUTPUT_FLAGS, add_output_flags, writable
+from edl_solver.cli.transport_text import channel_lines, conductance_lines
+
+__all__ = ["VALUE_FLAGS", "add_transport_command", "run_transport_command"]
+
+#: Flags of ``edl transport`` that take a value.
+VALUE_FLAGS = CASE_VALUE_FLAGS | frozenset(OUTPUT_FLAGS) | frozenset(
+    {"--length", "--pump-figure", "--conductance", "--conductance-figure", "--iv", "--left", "--right",
+     "--iv-figure"})
+
+_EPILOG = """\
+examples:
+  edl transport case.toml                                  # the report, with its transport block
+  edl transport case.toml --length 10um --pump-figure pump.png
+  edl transport case.toml --conductance 0.001mM:100mM:30 --conductance-figure conductance.png
+  edl transport case.toml --length 5um --left 1mM --right 10mM --iv -150mV:150mV:31 \\
+      --iv-figure iv.png -o channel.h5
+  edl transport --slit 20nm --ion K+=1mM --ion Cl-=1mM --charge-density -5mC/m^2 --length 2um \\
+      --left 0.1mM --right 1mM                             # membrane potential and osmotic power
+
+why a command of its own: 'edl solve' answers for one cross-section (one solve, milliseconds);
+'edl transport' answers for a whole channel as a lab measures it - a length, two reservoirs, curves
+over voltage or concentration - which takes from tens to hundreds of solves. Its case flags and
+report are those of 'edl solve'.
+
+--length L makes a finite channel: its conductance and, with --left C and --right C (the
+reservoirs' concentrations of the first ion; both or neither, default the case's), its membrane
+potential, short-circuit current, maximum osmotic power and efficiency. --iv V1:V2:N adds its I-V
+curve at N voltages V(right) - V(left), evenly spaced. --conductance C1:C2:N solves the section at
+N concentrations, evenly spaced in log (per unit length, or of the channel with --length).
+-o OUT.h5 holds the result (as 'edl solve' writes it) and the groups "conductance" and "channel":
+  xarray.open_dataset("OUT.h5", engine="h5netcdf", group="channel")
+"""
+
+
+def add_transport_command(commands: Any) -> None:
+    """Add ``transport`` to the sub-parsers ``commands`` (its ``run`` is :func:`run_transport_command`)."""
+    transport = commands.add_parser(
+        "transport", help="transport coefficients, conductance curve and a finite channel between reservoirs",
+        allow_abbrev=False, formatter_class=argparse.RawDescriptionHelpFormatter, epilog=_EPILOG,
+        description="Solve a case as 'edl solve' does, then what a lab measures on a channel: the\n"
+                    "electroosmotic pump curve, the conductance against salt concentration and, for a channel\n"
+                    "of a given length between two reservoirs, its I-V curve, membrane potential and osmotic\n"
+                    "power. Prints the report and writes the figures and the result file asked for.")
+    transport.add_argument("case", nargs="?", metavar="CASE.toml", help="case file (see 'edl demo --print-case')")
+    add_output_flags(transport, result_default=None, figure_default=None)
+    channel = transport.add_argument_group("finite channel")
+    channel.add_argument("--length", metavar="L", help="channel length, e.g. 10um")
+    channel.add_argument("--left", metavar="C", help="salt concentration of the left reservoir (x = 0), e.g. 1mM "
+                                                     "(of the first ion; needs --right and --length)")
+    channel.add_argument("--right", metavar="C", help="salt concentration of the right reservoir (x = L), e.g. 10mM")
+    channel.add_argument("--iv", metavar="V1:V2:N", help="I-V curve at N voltages V(right) - V(left) from V1 to V2, "
+                                                         "e.g. -150mV:150mV:31 (needs --length)")
+    channel.add_argument("--iv-figure", metavar="PNG", help="write a figure of the I-V curve (needs --iv)")
+    curves = transport.add_argument_group("pump curve and conductance curve")
+    curves.add_argument("--pump-figure", metavar="PNG",
+                        help="write the linear EO pump curve at the case's field, full and thin-layer model "
+                             "(back pressure over --length, or per unit length)")
+    curves.add_argument("--conductance", metavar="C1:C2:N",
+                        help="conductance at N salt concentrations from C1 to C2, evenly spaced in log, e.g. "
+                             "0.001mM:100mM:30")
+    curves.add_argument("--conductance-figure", metavar="PNG",
+                        help="write the conductance curve, log-log, with the bulk line and the counter-ion plateau "
+                             "(needs --conductance)")
+    add_case_flags(transport)
+    transport.set_defaults(run=run_transport_command)
+
+
+#: Most points of an I-V or conductance curve (each one or more solves).
+_MOST_POINTS = 1000
+
+
+def _parse_range(text: str, flag: str, unit: str, log: bool) -> list[float]:
+    """``FROM:TO:N`` -> N values (SI) from FROM to TO, evenly spaced (in log when ``log``)."""
+    import numpy as np
+
+    from edl_solver.errors import InputError
+    from edl_solver.inputs.units import to_si
+
+    example = "0.001mM:100mM:30" if log else "-150mV:150mV:31"
+    parts = text.split(":")
+    if len(parts) != 3 or not all(part.strip() for part in parts):
+        raise InputError(f"{flag}: {text!r} is not FROM:TO:N, expected e.g. {flag} {example}")
+    low, high = (to_si(part.strip(), unit, f"{flag} {name}") for part, name in zip(parts[:2], ("FROM", "TO")))
+    count = parts[2].strip()
+    if not count.isdigit() or not 2 <= int(count) <= _MOST_POINTS:
+        raise InputError(f"{flag}: N {count!r} is not allowed, expected a whole number from 2 to {_MOST_POINTS}")
+    if low == high:
+        raise InputError(f"{flag}: FROM and TO are both {parts[0].strip()!r}, expected two different values")
+    if log:
+        if not (low > 0.0 and high > 0.0):
+            raise InputError(f"{flag}: {text!r} has a concentration that is not positive, expected FROM and TO "
+                             "above zero")
+        return [float(v) for v in np.geomspace(low, high, int(count))]
+    return [float(v) for v in np.linspace(low, high, int(count))]
+
+
+def _positive(value: str, flag: str, unit: str, what: str) -> float:
+    from edl_solver.inputs.units import to_positive_si
+
+    return to_positive_si(value, unit, flag, what)
+
+
+def _transport_plan(args: argparse.Namespace, case: Any) -> dict[str, Any]:
+    """Check the transport flags against each other and the case; nothing is solved or written yet."""
+    from edl_solver.channel.conductance import cases_at
+    from edl_solver.errors import InputError
+
+    plan: dict[str, Any] = {"length": None, "reservoirs": None, "voltages": None, "concentrations": None}
+    for flag, value, needs, needed in (("--conductance-figure", args.conductance_figure, "--conductance",
+                                        args.conductance), ("--iv-figure", args.iv_figure, "--iv", args.iv)):
+        if value is not None and needed is None:
+            raise InputError(f"{flag}: needs {needs} too, expected e.g. {needs} "
+                             f"{'0.001mM:100mM:30' if needs == '--conductance' else '-150mV:150mV:31'}")
+    if (args.left is None) != (args.right is None):
+        given, missing = ("--left", "--right") if args.left is not None else ("--right", "--left")
+        raise InputError(f"{given}: given without {missing}, expected both reservoir concentrations (or neither, "
+                         "for reservoirs at the case's concentration)")
+    if args.length is None:
+        for flag, value in (("--left", args.left), ("--iv", args.iv)):
+            if value is not None:
+                raise InputError(f"{flag}: needs --length, the length of the channel, expected e.g. --length 10um")
+    else:
+        plan["length"] = _positive(args.length, "--length", "m", "a channel length, e.g. 10um")
+        first = case.electrolyte.ions[0].concentration
+        plan["reservoirs"] = (first, first) if args.left is None else (
+            _positive(args.left, "--left", "mol/m^3", "a concentration, e.g. 1mM"),
+            _positive(args.right, "--right", "mol/m^3", "a concentration, e.g. 10mM"))
+        cases_at(case, list(plan["reservoirs"]))  # an electrolyte that cannot be scaled fails here, not later
+    if args.iv is not None:
+        plan["voltages"] = _parse_range(args.iv, "--iv", "V", log=False)
+    if args.conductance is not None:
+        plan["concentrations"] = _parse_range(args.conductance, "--conductance", "mol/m^3", log=True)
+        cases_at(case, plan["concentrations"][:1])
+    if args.pump_figure is not None and case.field == 0.0:
+        raise InputError("--pump-figure: the case has no field, expected --field E (e.g. --field 10kV/m) or a "
+                         "field in the case file")
+    return plan
+
+
+def _transport_outputs(args: argparse.Namespace) -> dict[str, Path]:
+    """The output files, each checked to be writable and all different, before any solve."""
+    from edl_solver.errors import InputError
+
+    outputs: dict[str, Path] = {}
+    seen: dict[Path, str] = {}
+    for what, flag, value in (("result", "-o", args.output), ("figure", "--figure", args.figure),
+                              ("pump curve", "--pump-figure", args.pump_figure),
+                              ("conductance curve", "--conductance-figure", args.conductance_figure),
+                              ("I-V curve", "--iv-figure", args.iv_figure)):
+        if value is None:
+            continue
+        path = writable(flag, value)
+        if path.resolve() in seen:
+            raise InputError(f"{flag}: {value!r} is also the file of {seen[path.resolve()]}, expected another "
+                             "file name")
+        seen[path.resolve()] = flag
+        outputs[what] = path
+    return outputs
+
+
+def run_transport_command(args: argparse.Namespace) -> int:
+    """Check everything, solve, compute the curves, write the files (each atomically), print."""
+    from edl_solver import pipeline as solver
+    from edl_solver.errors import ConvergenceError
+
+    case = case_from_args(args)
+    plan = _transport_plan(args, case)
+    outputs = _transport_outputs(args)
+    result = solver.solve(case)
+    curve = channel = None
+    if plan["concentrations"] is not None:
+        from edl_solver.channel.conductance import conductance_curve
+
+        curve = conductance_curve(case, plan["concentrations"], plan["length"],
+                                  progress=False if args.quiet else None)
+        if not (curve["status"].values == 0).any():
+            raise ConvergenceError(f"--conductance: none of the {curve['status'].size} solves converged (the "
+                                   f"first: {curve['message'].values[0]})")
+    if plan["length"] is not None:
+        from edl_solver.channel.conductance import channel_characteristics
+        from edl_solver.channel.model import Channel
+
+        spec = Channel(case, plan["length"], *plan["reservoirs"])
+        channel = channel_characteristics(spec, plan["voltages"])
+    written: list[tuple[str, Path]] = []
+    failure = None
+    try:
+        if "result" in outputs:
+            written.append(("result", _write_transport_file(outputs["result"], result, curve, channel)))
+        written += _write_transport_figures(outputs, result, curve, channel, plan["length"])
+    except OSError as exc:
+        failure = f"cannot write {exc.filename or 'the output'}: {exc.strerror or exc}"
+    if not args.quiet:
+        print(result.report())
+        if curve is not None:
+            print(conductance_lines(curve))
+        if channel is not None:
+            print(channel_lines(channel, result))
+        for what, path in written:
+            print(f"wrote the {what} to {Path(path).resolve()}")
+    return fail(failure, EXIT_WRITE_FAILED) if failure else EXIT_OK
+
+
+def _write_transport_file(path: Path, result: Any, curve: Any, channel: Any) -> Path:
+    """The Result, then the groups "conductance" and "channel", all in one temporary file renamed at the end:
+    the final name never holds a file without its groups."""
+    from edl_solver.io.files import atomic_output
+    from edl_solver.io.hdf5 import write_result
+
+    try:
+        with atomic_output(path) as temporary:
+            write_result(result, temporary)
+            for group, data in (("conductance", curve), ("channel", channel)):
+                if data is not None:
+                    data.to_netcdf(temporary, group=group, mode="a", engine="h5netcdf")
+    except OSError as exc:  # name the file the user asked for, not the temporary one
+        raise OSError(exc.errno, exc.strerror or str(exc), str(path)) from exc
+    return path
+
+
+def _write_transport_figures(outputs: dict[str, Path], result: Any, curve: Any, channel: Any,
+                             length: float | None) -> list[tuple[str, Path]]:
+    written = []
+    if "figure" in outputs:
+        from edl_solver.plot import profiles as plotting
+
+        written.append(("figure", plotting.profile_figure(result, outputs["figure"])))
+    if not {"pump curve", "conductance curve", "I-V curve"} & outputs.keys():
+        return written
+    from edl_solver.plot import transport as transport_plots
+
+    if "pump curve" in outputs:
+        written.append(("pump curve", transport_plots.pump_curve_figure(result, outputs["pump curve"], length)))
+    if "conductance curve" in outputs:
+        written.append(("conductance curve", transport_plots.conductance_figure(curve, outputs["conductance curve"])))
+    if "I-V curve" in outputs:
+        written.append(("I-V curve", transport_plots.iv_figure(channel, outputs["I-V curve"])))
+    return written
