@@ -1,6 +1,6 @@
-"""Validity maps of the thin-layer model (edl_solver.analysis.validity_map) and the ``edl map`` command
-(edl_solver.cli.map): root-found boundaries against published closed forms, the map's dataset and file,
-the figure, and bad input."""
+"""Validity maps of the thin-layer model (edl_solver.analysis: validity_map, boundary, map_axes,
+thin_layer_errors; the figure of edl_solver.plot.validity) and the ``edl map`` command (edl_solver.cli.map):
+root-found boundaries against published closed forms, the map's dataset and file, the figure, and bad input."""
 
 from __future__ import annotations
 
@@ -23,16 +23,13 @@ from scipy.optimize import brentq
 from scipy.special import i0e, i1e
 
 import edl_solver as edl
-from edl_solver.analysis.validity_map import (
-    boundary,
-    boundary_curve,
-    check_axes,
-    map_figure,
-    thin_layer_current_per_field,
-    validity_map,
-)
+from edl_solver.analysis.boundary import boundary, boundary_curve
+from edl_solver.analysis.map_axes import check_axes
+from edl_solver.analysis.thin_layer_errors import thin_layer_current_per_field
+from edl_solver.analysis.validity_map import validity_map
 from edl_solver.cli.map import add_map_command, parse_axis
 from edl_solver.errors import InputError
+from edl_solver.plot.validity import map_figure
 
 KCL = edl.Electrolyte.from_ions({"K+": "1 mM", "Cl-": "1 mM"})
 TOLERANCES = (0.01, 0.05, 0.10)
