@@ -19,7 +19,7 @@ from edl_solver.errors import InputError
 from edl_solver.inputs.case import Case
 from edl_solver.inputs.geometry import Geometry
 from edl_solver.inputs.wall import Wall
-from edl_solver.io.hdf5 import atomic_output
+from edl_solver.plot.shared import new_figure, save_png
 from edl_solver.report.text import MODEL_NAMES, close_packing, prefixed
 from edl_solver.results.result import Result
 
@@ -216,9 +216,6 @@ def profile_figure(result: Result, path: str | os.PathLike[str]) -> Path:
     """
     if not isinstance(result, Result):
         raise InputError(f"result: {type(result).__name__} is not a Result, expected the return of solve()")
-    from matplotlib.backends.backend_agg import FigureCanvasAgg
-    from matplotlib.figure import Figure
-
     case = result.case
     x = result.profiles.coordinate * 1e9
     low, high = float(x[0]), float(x[-1])
@@ -226,8 +223,7 @@ def profile_figure(result: Result, path: str | os.PathLike[str]) -> Path:
     # Thin double layers vanish at the scale of the section: add a column that zooms on each wall.
     zooms = _zooms(case, low, high)
 
-    figure = Figure(figsize=(7.5 + 2.6 * len(zooms), 9.0), dpi=110, layout="constrained")
-    FigureCanvasAgg(figure)
+    figure = new_figure(7.5 + 2.6 * len(zooms), 9.0)
     grid = figure.subplots(3, 1 + len(zooms), sharey="row", squeeze=False,
                            gridspec_kw={"width_ratios": [3.0] + [1.1] * len(zooms)})
     for column in range(1 + len(zooms)):
@@ -240,9 +236,7 @@ def profile_figure(result: Result, path: str | os.PathLike[str]) -> Path:
     _frame(grid, case.geometry, zooms, low, high, margin)
     _write_titles(figure, grid[0, 0], result, zoomed=bool(zooms))
 
-    with atomic_output(path) as temporary:
-        figure.savefig(temporary, format="png")
-    return Path(os.fspath(path)).expanduser()
+    return save_png(figure, path)
 
 
 def _frame(grid: Any, geometry: Geometry, zooms: list[tuple[str, float, float]], low: float, high: float,

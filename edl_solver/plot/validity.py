@@ -21,7 +21,7 @@ import numpy as np
 from edl_solver.analysis.thin_layer_errors import QUANTITIES
 from edl_solver.errors import InputError
 from edl_solver.inputs.geometry import GEOMETRIES
-from edl_solver.io.hdf5 import atomic_output
+from edl_solver.plot.shared import new_figure, save_png
 
 __all__ = ["axis_display", "map_figure"]
 
@@ -168,17 +168,13 @@ def map_figure(ds: Any, path: str | os.PathLike[str], boundary: Any = None) -> P
         If ``ds`` is not a validity map, the boundary does not belong to its axes, or ``path`` cannot
         be written.
     """
-    from matplotlib.backends.backend_agg import FigureCanvasAgg
-    from matplotlib.figure import Figure
-
     x_name, y_name, table = _map_parts(ds)
     curve = _curve_for(ds, boundary, x_name, y_name)
     quantities = [q for q, key in QUANTITIES.items() if key in ds]
     plane = _Plane.of(ds, x_name, y_name, table)
     tolerances = [float(t) for t in np.atleast_1d(ds.attrs.get("tolerances", [0.05]))]
 
-    figure = Figure(figsize=(6.2 * len(quantities), 5.6), dpi=110, layout="constrained")
-    FigureCanvasAgg(figure)
+    figure = new_figure(6.2 * len(quantities), 5.6)
     panels = np.atleast_1d(figure.subplots(1, len(quantities), squeeze=False)[0])
     for axes, quantity in zip(panels, quantities):
         error = np.abs(ds[QUANTITIES[quantity]].transpose(y_name, x_name).values.astype(float))
@@ -187,9 +183,7 @@ def map_figure(ds: Any, path: str | os.PathLike[str], boundary: Any = None) -> P
         _draw_panel(figure, axes, plane, error, tolerances, overlaid)
         axes.set_title(_PANEL_TITLES[quantity], fontsize="medium")
     figure.suptitle(_figure_title(ds, table, x_name, y_name), fontsize="medium")
-    with atomic_output(path) as temporary:
-        figure.savefig(temporary, format="png")
-    return Path(os.fspath(path)).expanduser()
+    return save_png(figure, path)
 
 
 def _draw_panel(figure: Any, axes: Any, plane: _Plane, error: np.ndarray, tolerances: list[float],
