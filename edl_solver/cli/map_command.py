@@ -89,7 +89,7 @@ def parse_axis(text: str, flag: str) -> tuple[str, list[float]]:
     """
     import numpy as np
 
-    from edl_solver.analysis.validity_map import PSEUDO_AXES
+    from edl_solver.analysis.map_axes import PSEUDO_AXES
     from edl_solver.errors import InputError
     from edl_solver.inputs.paths import PATH_UNITS
     from edl_solver.inputs.units import to_si
@@ -141,10 +141,12 @@ def run_map_command(args: argparse.Namespace) -> int:
 
 
 def _run(args: argparse.Namespace) -> int:
-    from edl_solver.analysis.validity_map import check_axes, map_figure, validity_map
+    from edl_solver.analysis.map_axes import check_axes
+    from edl_solver.analysis.validity_map import validity_map
     from edl_solver.errors import ConvergenceError, InputError
     from edl_solver.inputs.casefile import load_case
     from edl_solver.inputs.units import to_si
+    from edl_solver.plot.validity import map_figure
     from edl_solver.results.schema import CONVERGED
 
     base = load_case(args.case)
@@ -229,8 +231,8 @@ _SYMBOLS = {"geometry.height": "H", "geometry.radius": "a", "electrolyte.concent
 
 def _shown(name: str, value: float, table: dict[str, Any], digits: int) -> str:
     """``symbol = value unit`` in the units of the figure (nm, mM, mV, ...)."""
-    from edl_solver.analysis.validity_map import axis_display
     from edl_solver.inputs.geometry import GEOMETRIES
+    from edl_solver.plot.validity import axis_display
 
     scale, offset, label = axis_display(name, table)
     unit = label.rsplit("(", 1)[1].rstrip(")") if label.endswith(")") and "(" in label else ""

@@ -53,6 +53,8 @@ class Slit:
     kappa_symbol: ClassVar[str] = "κh"
     kappa_text: ClassVar[str] = "κh (half-height / Debye length)"
     centre_text: ClassVar[str] = "potential at the mid-plane"
+    #: Where the coordinate across the section starts (its 0), for axis labels.
+    origin_text: ClassVar[str] = "the bottom wall"
 
     def __post_init__(self) -> None:
         assign(self, "height", to_positive_si(self.height, "m", "geometry.height", "a positive height in m"))
@@ -137,6 +139,7 @@ class Capillary:
     kappa_symbol: ClassVar[str] = "κa"
     kappa_text: ClassVar[str] = "κa (radius / Debye length)"
     centre_text: ClassVar[str] = "potential on the axis"
+    origin_text: ClassVar[str] = "the axis"
 
     def __post_init__(self) -> None:
         assign(self, "radius", to_positive_si(self.radius, "m", "geometry.radius", "a positive radius in m"))

@@ -17,10 +17,10 @@ import numpy as np
 from edl_solver.constants import ZERO_CELSIUS
 from edl_solver.errors import InputError
 from edl_solver.inputs.case import Case
-from edl_solver.inputs.geometry import Capillary, Slit
+from edl_solver.inputs.geometry import Geometry
 from edl_solver.inputs.ion_size import close_packing
 from edl_solver.inputs.wall import Wall
-from edl_solver.io.files import atomic_output
+from edl_solver.plot.shared import new_figure, save_png
 from edl_solver.report.formatting import MODEL_NAMES, prefixed
 from edl_solver.results.result import Result
 
@@ -52,8 +52,7 @@ def _condition(wall: Wall) -> str:
 def _title(case: Case) -> str:
     """The case in brief, in the units of the field: section and liquid; the walls (one line each when they
     differ); drives and model."""
-    g = case.geometry
-    size = f"Slit H = {g.height * 1e9:.4g} nm" if isinstance(g, Slit) else f"Capillary a = {g.radius * 1e9:.4g} nm"
+    size = case.geometry.label()
     electrolyte = case.electrolyte
     liquid = ", ".join(f"{ion.name} {ion.concentration:.3g} mM" for ion in electrolyte.ions)
     if electrolyte.pH is not None:
@@ -74,9 +73,15 @@ def _title(case: Case) -> str:
     return f"{size}; {liquid}\n{walls}\n{drives}; {model}"
 
 
-def _mark_walls(axes: Any, low: float, high: float, capillary: bool, margin: float, label: bool) -> None:
+def _wall_ends(geometry: Geometry, low: float, high: float) -> tuple[float, ...]:
+    """The ends of the coordinate that are walls: both (slit), or the far one when the coordinate starts on
+    the axis of symmetry (a geometry with one wall: capillary)."""
+    return (low, high)[-geometry.wall_count:]
+
+
+def _mark_walls(axes: Any, geometry: Geometry, low: float, high: float, margin: float, label: bool) -> None:
     """Shade the solid beyond each wall and draw the wall line, so the channel's extent is plain."""
-    bands = [(high, high + margin, high)] if capillary else [(low - margin, low, low), (high, high + margin, high)]
+    bands = ((low - margin, low, low), (high, high + margin, high))[-geometry.wall_count:]  # as _wall_ends
     for start, end, wall in bands:
         axes.axvspan(start, end, color=_WALL_COLOUR, zorder=0, lw=0)
         axes.axvline(wall, color="0.35", lw=1.2, zorder=1)
@@ -85,43 +90,48 @@ def _mark_walls(axes: Any, low: float, high: float, capillary: bool, margin: flo
                       ha="center", va="center", fontsize="small", color="0.3")
 
 
-def _draw_column(column: Any, x: np.ndarray, result: Result, label: bool) -> None:
-    """Potential, concentrations and velocities on one column of three axes; legends when ``label``."""
+def _draw_potential(axes: Any, x: np.ndarray, result: Result) -> bool:
+    """The potential, and the charge plane behind each Stern layer on its wall; True if there are such planes."""
+    p = result.profiles
+    axes.axhline(0.0, color="0.6", lw=0.6)
+    axes.plot(x, p.potential * 1e3, color="C0", label="potential φ (at the wall: ζ)")
+    stern = result.summary.get("stern_potential")
+    if stern is None:
+        return False
+    values = stern if isinstance(stern, tuple) else (stern, stern)  # (bottom, top) pair, or one value
+    # on the ends that are walls: both of a slit, the far one of a capillary (see _wall_ends)
+    sides = ((x[0], values[0]), (x[-1], values[1]))[-result.case.geometry.wall_count:]
+    shown = [(where, value * 1e3) for where, value in sides if np.isfinite(value)]
+    axes.plot([w for w, _ in shown], [v for _, v in shown], ls="none", marker="D", color="C4",
+              clip_on=False, label="charge-plane potential ψ0 = ζ + σ/C_S (behind the Stern layer)")
+    return True
+
+
+def _draw_concentrations(axes: Any, x: np.ndarray, result: Result) -> tuple[list[Any], bool]:
+    """One line per ion on a log axis, reservoir values dotted, the steric ceiling dashed; the legend's
+    handles, and whether points were masked (c <= 0)."""
     from matplotlib.lines import Line2D
     from matplotlib.ticker import FuncFormatter
 
     case, p = result.case, result.profiles
-    capillary = isinstance(case.geometry, Capillary)
-    potential_axes, concentration_axes, velocity_axes = column
-
-    potential_axes.axhline(0.0, color="0.6", lw=0.6)
-    potential_axes.plot(x, p.potential * 1e3, color="C0", label="potential φ (at the wall: ζ)")
-    stern = result.summary.get("stern_potential")
-    if stern is not None:  # the charge plane behind each Stern layer, drawn on its wall
-        values = stern if isinstance(stern, tuple) else (stern, stern)
-        sides = ((x[-1], values[1]),) if capillary else ((x[0], values[0]), (x[-1], values[1]))
-        shown = [(where, value * 1e3) for where, value in sides if np.isfinite(value)]
-        potential_axes.plot([w for w, _ in shown], [v for _, v in shown], ls="none", marker="D", color="C4",
-                            clip_on=False, label="charge-plane potential ψ0 = ζ + σ/C_S (behind the Stern layer)")
-
     # The Debye-Hueckel model linearises the Boltzmann factor and can give c <= 0, which a log axis
     # cannot show: mask those points and say so.
     concentration = np.where(p.concentration > 0.0, p.concentration, np.nan)
     handles = []
     for number, (name, row) in enumerate(zip(p.ion_names, concentration)):
         colour = f"C{number + 1}"
-        handles += concentration_axes.plot(x, row, color=colour, label=name)
-        concentration_axes.axhline(case.electrolyte.ions[number].concentration, color=colour, lw=0.8, ls=":")
+        handles += axes.plot(x, row, color=colour, label=name)
+        axes.axhline(case.electrolyte.ions[number].concentration, color=colour, lw=0.8, ls=":")
     handles.append(Line2D([], [], color="0.4", lw=0.8, ls=":", label="reservoir value"))
     top = np.nanmax(concentration)
     if case.model == "steric":  # the lattice-gas ceiling of the total ion concentration
         ceiling = close_packing(case.electrolyte.ions[0].diameter)
         top = max(top, ceiling)
-        handles.append(concentration_axes.axhline(ceiling, color="k", lw=1.0, ls="--",
-                                                  label="close packing 1/(N_A d³) (steric limit)"))
-    concentration_axes.set_yscale("log")
+        handles.append(axes.axhline(ceiling, color="k", lw=1.0, ls="--",
+                                    label="close packing 1/(N_A d³) (steric limit)"))
+    axes.set_yscale("log")
     plain = FuncFormatter(lambda value, _: f"{value:g}")  # 0.5, 2, 10 rather than 5x10^-1
-    concentration_axes.yaxis.set_major_formatter(plain)
+    axes.yaxis.set_major_formatter(plain)
     # Within a few decades no or one power of ten shows: label the minor ticks at 2 and 5 as well.
     decades = np.log10(top / np.nanmin(concentration))
 
@@ -129,27 +139,53 @@ def _draw_column(column: Any, x: np.ndarray, result: Result, label: bool) -> Non
         mantissa = round(value / 10.0 ** np.floor(np.log10(value) + 1e-9))
         return f"{value:g}" if decades < 3.0 and mantissa in (2, 5) else ""
 
-    concentration_axes.yaxis.set_minor_formatter(FuncFormatter(minor))
-    concentration_axes.tick_params(axis="y", which="minor", labelsize="x-small")
+    axes.yaxis.set_minor_formatter(FuncFormatter(minor))
+    axes.tick_params(axis="y", which="minor", labelsize="x-small")
+    return handles, bool(np.isnan(concentration).any())
 
-    velocity_axes.axhline(0.0, color="0.6", lw=0.6)
+
+def _draw_velocities(axes: Any, x: np.ndarray, result: Result) -> None:
+    """The EO velocity, the pressure-driven one and their sum when there is a pressure gradient, and the
+    thin-layer slip profile dashed."""
+    p = result.profiles
+    axes.axhline(0.0, color="0.6", lw=0.6)
     pressure = bool(np.any(p.velocity_pressure != 0.0))
     if pressure:  # drawn first and broad, so the EO line stays visible where the two coincide
-        velocity_axes.plot(x, p.velocity * 1e6, color="0.2", lw=3.0, alpha=0.35, label="total")
-    velocity_axes.plot(x, p.velocity_eo * 1e6, color="C0",
-                       label="electroosmotic" if pressure else "electroosmotic (= total)")
+        axes.plot(x, p.velocity * 1e6, color="0.2", lw=3.0, alpha=0.35, label="total")
+    axes.plot(x, p.velocity_eo * 1e6, color="C0", label="electroosmotic" if pressure else "electroosmotic (= total)")
     if pressure:
-        velocity_axes.plot(x, p.velocity_pressure * 1e6, color="C2", label="pressure-driven")
-    velocity_axes.plot(x, p.velocity_thin_layer * 1e6, color="C3", ls="--", label="thin-layer slip model (EO)")
+        axes.plot(x, p.velocity_pressure * 1e6, color="C2", label="pressure-driven")
+    axes.plot(x, p.velocity_thin_layer * 1e6, color="C3", ls="--", label="thin-layer slip model (EO)")
 
+
+def _draw_column(column: Any, x: np.ndarray, result: Result, label: bool) -> None:
+    """Potential, concentrations and velocities on one column of three axes; legends when ``label``."""
+    potential_axes, concentration_axes, velocity_axes = column
+    stern = _draw_potential(potential_axes, x, result)
+    handles, masked = _draw_concentrations(concentration_axes, x, result)
+    _draw_velocities(velocity_axes, x, result)
     if label:
-        if stern is not None:
+        if stern:
             potential_axes.legend(fontsize="small", loc="best")
         concentration_axes.legend(handles=handles, fontsize="small", loc="best")
         velocity_axes.legend(fontsize="small", loc="best")
-        if np.isnan(concentration).any():
+        if masked:
             concentration_axes.text(0.5, 0.03, "c ≤ 0 of the linearised (Debye-Hückel) model not shown",
                                     transform=concentration_axes.transAxes, ha="center", fontsize="small")
+
+
+def _zooms(case: Case, low: float, high: float) -> list[tuple[str, float, float]]:
+    """Columns that zoom on the walls, ``(where, start, end)`` in nm, when the double layers are thin at the
+    scale of the section: ZOOM_DEBYE_LENGTHS wide, on the one wall of a capillary, on the bottom wall of a
+    slit and on its top wall too when the two walls differ."""
+    width = _ZOOM_DEBYE_LENGTHS * case.debye_length * 1e9
+    if width >= 0.2 * (high - low):
+        return []
+    bottom = (low - 0.15 * width, low + width)
+    top = (high - width, high + 0.15 * width)
+    if case.geometry.wall_count == 1:
+        return [("near the wall", *top)]
+    return [("near the bottom wall", *bottom)] + ([] if case.symmetric else [("near the top wall", *top)])
 
 
 def profile_figure(result: Result, path: str | os.PathLike[str]) -> Path:
@@ -181,60 +217,55 @@ def profile_figure(result: Result, path: str | os.PathLike[str]) -> Path:
     """
     if not isinstance(result, Result):
         raise InputError(f"result: {type(result).__name__} is not a Result, expected the return of solve()")
-    import textwrap
-
-    from matplotlib.backends.backend_agg import FigureCanvasAgg
-    from matplotlib.figure import Figure
-
-    case, p = result.case, result.profiles
-    capillary = isinstance(case.geometry, Capillary)
-    x = p.coordinate * 1e9
+    case = result.case
+    x = result.profiles.coordinate * 1e9
     low, high = float(x[0]), float(x[-1])
     margin = 0.05 * (high - low)
-    # Thin double layers vanish at the scale of the section: add a column that zooms on each wall
-    # (the bottom one only when both walls are the same), ZOOM_DEBYE_LENGTHS wide.
-    width = _ZOOM_DEBYE_LENGTHS * case.debye_length * 1e9
-    zooms: list[tuple[str, float, float]] = []
-    if width < 0.2 * (high - low):
-        if capillary:
-            zooms.append(("near the wall", high - width, high + 0.15 * width))
-        else:
-            zooms.append(("near the bottom wall", low - 0.15 * width, low + width))
-            if not case.symmetric:
-                zooms.append(("near the top wall", high - width, high + 0.15 * width))
+    # Thin double layers vanish at the scale of the section: add a column that zooms on each wall.
+    zooms = _zooms(case, low, high)
 
-    figure = Figure(figsize=(7.5 + 2.6 * len(zooms), 9.0), dpi=110, layout="constrained")
-    FigureCanvasAgg(figure)
+    figure = new_figure(7.5 + 2.6 * len(zooms), 9.0)
     grid = figure.subplots(3, 1 + len(zooms), sharey="row", squeeze=False,
                            gridspec_kw={"width_ratios": [3.0] + [1.1] * len(zooms)})
     for column in range(1 + len(zooms)):
         _draw_column(grid[:, column], x, result, label=column == 0)
         for axes in grid[:, column]:
-            _mark_walls(axes, low, high, capillary, margin, label=axes is grid[0, 0])
+            _mark_walls(axes, case.geometry, low, high, margin, label=axes is grid[0, 0])
             axes.grid(True, lw=0.4, alpha=0.5)
         for axes in grid[:-1, column]:
             axes.tick_params(labelbottom=False)
+    _frame(grid, case.geometry, zooms, low, high, margin)
+    _write_titles(figure, grid[0, 0], result, zoomed=bool(zooms))
+
+    return save_png(figure, path)
+
+
+def _frame(grid: Any, geometry: Geometry, zooms: list[tuple[str, float, float]], low: float, high: float,
+           margin: float) -> None:
+    """Limits and labels: the full section in the first column (a margin of solid beyond each wall), the
+    zooms in the others."""
     full = grid[:, 0]
     for axes in full:
-        axes.set_xlim(low - (0.0 if capillary else margin), high + margin)
-    full[2].set_xlabel("r, distance from the axis (nm)" if capillary else "y, distance from the bottom wall (nm)")
+        # solid beyond the start only when it is a wall (see _wall_ends)
+        axes.set_xlim(low - (margin if geometry.wall_count == 2 else 0.0), high + margin)
+    full[2].set_xlabel(f"{geometry.coordinate_name}, distance from {geometry.origin_text} (nm)")
     for column, (where, start, end) in enumerate(zooms, start=1):
         for axes in grid[:, column]:
             axes.set_xlim(start, end)
             axes.tick_params(labelleft=False)
         grid[0, column].set_title(f"zoom {where}", fontsize="small")
-        grid[2, column].set_xlabel(f"{'r' if capillary else 'y'} (nm)")
+        grid[2, column].set_xlabel(f"{geometry.coordinate_name} (nm)")
     full[0].set_ylabel("potential φ (mV)\n(0 in the reservoir)")
     full[1].set_ylabel("concentration (mM)")
     full[2].set_ylabel("axial velocity u (µm/s)\n(> 0 along E)")
 
+
+def _write_titles(figure: Any, first: Any, result: Result, zoomed: bool) -> None:
+    """The case in brief over the figure, the verdict over the first panel."""
+    import textwrap
+
     # About 13 characters of medium text per inch: long lines (many ions, regulated walls) wrap, not clip.
     columns = int(13 * figure.get_figwidth())
-    figure.suptitle("\n".join(textwrap.fill(line, columns) for line in _title(case).splitlines()),
+    figure.suptitle("\n".join(textwrap.fill(line, columns) for line in _title(result.case).splitlines()),
                     fontsize="medium")
-    full[0].set_title(textwrap.fill(f"Verdict: {result.verdict}", 100 if not zooms else 90), fontsize="small",
-                      loc="left")
-
-    with atomic_output(path) as temporary:
-        figure.savefig(temporary, format="png")
-    return Path(os.fspath(path)).expanduser()
+    first.set_title(textwrap.fill(f"Verdict: {result.verdict}", 90 if zoomed else 100), fontsize="small", loc="left")

@@ -9,96 +9,23 @@ slit values are per unit width, said so on the axis.
 
 from __future__ import annotations
 
-import json
 import math
 import os
+from dataclasses import dataclass
 from pathlib import Path
 from typing import Any
 
 import numpy as np
 
 from edl_solver.channel.conductance import checked_length, crossover_concentration
-from edl_solver.constants import ZERO_CELSIUS
 from edl_solver.errors import InputError
-from edl_solver.inputs.case import Case
-from edl_solver.inputs.geometry import Capillary
-from edl_solver.inputs.wall import Wall
+from edl_solver.inputs.geometry import GEOMETRIES
+from edl_solver.plot.shared import case_of, new_figure, number, prefix, require_dataset, save_png, section_text
 from edl_solver.results.result import Result
 
 __all__ = ["conductance_figure", "iv_figure", "pump_curve_figure"]
 
-_PREFIXES = {-18: "a", -15: "f", -12: "p", -9: "n", -6: "µ", -3: "m", 0: "", 3: "k", 6: "M", 9: "G", 12: "T"}
 _FULL, _THIN, _BULK, _PLATEAU, _MARK = "C0", "C3", "0.45", "C2", "C1"
-
-
-def _prefix(largest: float, unit: str) -> tuple[float, str]:
-    """(scale, prefixed unit) that puts ``largest`` (in ``unit``) in [1, 1000): 2e-11, "A" -> (1e12, "pA")."""
-    if not math.isfinite(largest) or largest <= 0.0:
-        return 1.0, unit
-    exponent = min(max(3 * math.floor(math.log10(largest) / 3), -18), 12)
-    return 10.0 ** (-exponent), f"{_PREFIXES[exponent]}{unit}"
-
-
-def _number(value: float, digits: int = 3) -> str:
-    text = f"{value:.{digits}g}"
-    return f"{float(text):.0f}" if "e+" in text and abs(value) < 1e6 else text
-
-
-def _wall_text(wall: Wall) -> str:
-    if wall.kind == "potential":
-        return f"ζ = {wall.zeta * 1e3:.3g} mV"
-    if wall.kind == "charge":
-        return f"σ = {wall.charge_density * 1e3:.3g} mC/m²"
-    return "regulated (" + ", ".join(f"{site.name} pK {'/'.join(f'{pk:g}' for pk in site.pks)}"
-                                     for site in wall.sites) + ")"
-
-
-def _section_text(case: Case, concentrations: bool = True) -> str:
-    """The section in brief: geometry, walls, electrolyte (with or without its concentrations), temperature."""
-    g = case.geometry
-    size = f"capillary radius a = {g.radius * 1e9:.4g} nm" if isinstance(g, Capillary) \
-        else f"slit height H = {g.height * 1e9:.4g} nm"
-    walls = f"wall {_wall_text(case.walls[0])}" if case.symmetric else \
-        f"walls {_wall_text(case.walls[0])} (bottom), {_wall_text(case.walls[1])} (top)"
-    ions = case.electrolyte.ions
-    liquid = ", ".join(f"{ion.name} {ion.concentration:.3g} mM" for ion in ions) if concentrations else \
-        "/".join(ion.name for ion in ions)
-    return f"{size}, {walls}; {liquid}, {case.solvent.temperature - ZERO_CELSIUS:.3g} °C"
-
-
-def _case_of(dataset: Any) -> Case | None:
-    """The case stored in a dataset's ``case_json`` attribute, if any."""
-    from edl_solver.inputs.casefile import case_from_mapping
-
-    text = dataset.attrs.get("case_json")
-    return case_from_mapping(json.loads(text)) if isinstance(text, str) else None
-
-
-def _new_figure(width: float, height: float) -> Any:
-    from matplotlib.backends.backend_agg import FigureCanvasAgg
-    from matplotlib.figure import Figure
-
-    figure = Figure(figsize=(width, height), dpi=110, layout="constrained")
-    FigureCanvasAgg(figure)
-    return figure
-
-
-def _save(figure: Any, path: str | os.PathLike[str]) -> Path:
-    from edl_solver.io.files import atomic_output
-
-    with atomic_output(path) as temporary:
-        figure.savefig(temporary, format="png")
-    return Path(os.fspath(path)).expanduser()
-
-
-def _require(dataset: Any, names: tuple[str, ...], what: str, source: str) -> None:
-    import xarray as xr
-
-    if not isinstance(dataset, xr.Dataset):
-        raise InputError(f"dataset: {type(dataset).__name__} is not an xarray.Dataset, expected {source}")
-    missing = [name for name in names if name not in dataset.variables]
-    if missing:
-        raise InputError(f"dataset: no {missing[0]!r}, expected {what} ({source})")
 
 
 # ----------------------------------------------------------------------------------------------
@@ -114,10 +41,10 @@ def _pick(largest: float, candidates: tuple[tuple[str, float], ...]) -> tuple[st
     return candidates[0]
 
 
-def _flow_display(capillary: bool, largest: float) -> tuple[float, str, str]:
-    """Scale, unit and axis label of a flow rate: litres with a prefix for a capillary (1 fL = 1 µm³); per
-    unit width of a slit, µm²/s (µm³/s per µm of width) unless far off."""
-    if capillary:
+def _flow_display(per_channel: bool, largest: float) -> tuple[float, str, str]:
+    """Scale, unit and axis label of a flow rate: per channel (a capillary), litres with a prefix
+    (1 fL = 1 µm³); per unit width (a slit), µm²/s (µm³/s per µm of width) unless far off."""
+    if per_channel:
         unit, scale = _pick(largest, (("fL/s", 1e18), ("aL/s", 1e21), ("pL/s", 1e15), ("nL/s", 1e12)))
         note = {"fL/s": "1 fL = 1 µm³", "aL/s": "1 aL = 10⁻³ µm³", "pL/s": "1 pL = 1000 µm³",
                 "nL/s": "1 nL = 10⁶ µm³"}[unit]
@@ -125,6 +52,57 @@ def _flow_display(capillary: bool, largest: float) -> tuple[float, str, str]:
     unit, scale = _pick(largest, (("µm²/s", 1e12), ("nm²/s", 1e18), ("mm²/s", 1e6)))
     per = unit.split("²")[0]
     return scale, unit, f"flow rate per unit width Q/W ({unit},\ni.e. {per}³/s per {per} of width)"
+
+
+def _pressure_display(largest: float, length: float | None) -> tuple[float, str, str]:
+    """Scale, unit and axis label of the back pressure over a channel of ``length``, or (no length) of the
+    back-pressure gradient per µm of channel."""
+    if length is not None:
+        scale, unit = prefix(largest, "Pa")
+        return scale, unit, f"back pressure Δp against the flow ({unit})"
+    scale, unit = prefix(largest * 1e-6, "Pa")  # per µm of channel
+    unit += "/µm"
+    return scale * 1e-6, unit, f"back-pressure gradient Δp/L against the flow ({unit})"
+
+
+#: One line of the pump curve: name, (free flow, stall pressure), colour, line style.
+_PumpLine = tuple[str, tuple[float, float], str, str]
+
+
+def _pump_lines(result: Result, length: float | None) -> tuple[list[_PumpLine], float]:
+    """The full model's line and, where it is defined, the thin-layer model's, counted along the full model's
+    flow; and that direction (+1 along the field, -1 against it)."""
+    s, field = result.summary, result.case.field
+    over = length if length is not None else 1.0
+    full = (s["eo_pump_flow_per_field"] * field, s["eo_pump_pressure_per_voltage"] * field * over)
+    thin = (s["thin_layer_flow_rate_eo"], s["thin_layer_eo_pump_pressure_per_voltage"] * field * over)
+    # counted along the full model's flow, so that the curve sits in the first quadrant
+    direction = math.copysign(1.0, full[0]) if full[0] != 0.0 else math.copysign(1.0, thin[0] or 1.0)
+    full = (direction * full[0], direction * full[1])
+    thin = (direction * thin[0], direction * thin[1])
+    lines: list[_PumpLine] = [("full model", full, _FULL, "-")]
+    if all(math.isfinite(v) for v in thin):
+        lines.append(("thin-layer slip model", thin, _THIN, "--"))
+    return lines, direction
+
+
+def _draw_pump_lines(axes: Any, lines: list[_PumpLine], flow: tuple[float, str], pressure: tuple[float, str]) -> None:
+    """Each line from its free flow to its stall pressure, both in the legend; the thin-layer errors; a note
+    when there is no flow at all."""
+    (flow_scale, flow_unit), (pressure_scale, unit) = flow, pressure
+    for name, (free, stall), colour, style in lines:
+        x = np.array([0.0, stall]) * pressure_scale
+        y = np.array([free, 0.0]) * flow_scale
+        text = f"{name}: free flow {number(y[0])} {flow_unit}, stall {number(x[1])} {unit}"
+        axes.plot(x, y, color=colour, ls=style, lw=2.0, marker="o", ms=6, label=text)
+    full = lines[0][1]
+    thin = lines[1][1] if len(lines) == 2 else None
+    if thin is not None and full[0] != 0.0 and full[1] != 0.0:
+        axes.plot([], [], " ", label=f"thin-layer error: free flow {100 * (thin[0] / full[0] - 1):+.3g} %, "
+                                     f"stall {100 * (thin[1] / full[1] - 1):+.3g} %")
+    if full[0] == 0.0 and (thin is None or thin[0] == 0.0):
+        axes.text(0.5, 0.5, "no electroosmotic flow: the walls are uncharged", transform=axes.transAxes,
+                  ha="center")
 
 
 def pump_curve_figure(result: Result, path: str | os.PathLike[str], length: float | str | None = None) -> Path:
@@ -159,48 +137,21 @@ def pump_curve_figure(result: Result, path: str | os.PathLike[str], length: floa
     """
     if not isinstance(result, Result):
         raise InputError(f"result: {type(result).__name__} is not a Result, expected the return of solve()")
-    case, s = result.case, result.summary
+    case = result.case
     if case.field == 0.0:
         raise InputError("result: its case has no field (E = 0), expected a case with a field for the pump curve, "
                          "e.g. field = '10 kV/m'")
     channel_length = checked_length(length)
-    capillary = isinstance(case.geometry, Capillary)
     field = case.field
-    over = channel_length if channel_length is not None else 1.0
-    full = (s["eo_pump_flow_per_field"] * field, s["eo_pump_pressure_per_voltage"] * field * over)
-    thin = (s["thin_layer_flow_rate_eo"], s["thin_layer_eo_pump_pressure_per_voltage"] * field * over)
-    # counted along the full model's flow, so that the curve sits in the first quadrant
-    direction = math.copysign(1.0, full[0]) if full[0] != 0.0 else math.copysign(1.0, thin[0] or 1.0)
-    full = (direction * full[0], direction * full[1])
-    thin = (direction * thin[0], direction * thin[1])
-    lines = [("full model", full, _FULL, "-")]
-    if all(math.isfinite(v) for v in thin):
-        lines.append(("thin-layer slip model", thin, _THIN, "--"))
+    lines, direction = _pump_lines(result, channel_length)
+    flow_scale, flow_unit, flow_label = _flow_display(case.geometry.extent == "per_channel",
+                                                      max(abs(v[0]) for _, v, _, _ in lines))
+    pressure_scale, unit, pressure_label = _pressure_display(max(abs(v[1]) for _, v, _, _ in lines),
+                                                             channel_length)
 
-    flow_scale, flow_unit, flow_label = _flow_display(capillary, max(abs(v[0]) for _, v, _, _ in lines))
-    largest_pressure = max(abs(v[1]) for _, v, _, _ in lines)
-    if channel_length is not None:
-        pressure_scale, unit = _prefix(largest_pressure, "Pa")
-        pressure_label = f"back pressure Δp against the flow ({unit})"
-    else:
-        pressure_scale, unit = _prefix(largest_pressure * 1e-6, "Pa")  # per µm of channel
-        pressure_scale *= 1e-6
-        unit += "/µm"
-        pressure_label = f"back-pressure gradient Δp/L against the flow ({unit})"
-
-    figure = _new_figure(7.4, 5.4)
+    figure = new_figure(7.4, 5.4)
     axes = figure.subplots()
-    for name, (flow, stall), colour, style in lines:
-        x = np.array([0.0, stall]) * pressure_scale
-        y = np.array([flow, 0.0]) * flow_scale
-        text = f"{name}: free flow {_number(y[0])} {flow_unit}, stall {_number(x[1])} {unit}"
-        axes.plot(x, y, color=colour, ls=style, lw=2.0, marker="o", ms=6, label=text)
-    if len(lines) == 2 and full[0] != 0.0 and full[1] != 0.0:
-        axes.plot([], [], " ", label=f"thin-layer error: free flow {100 * (thin[0] / full[0] - 1):+.3g} %, "
-                                     f"stall {100 * (thin[1] / full[1] - 1):+.3g} %")
-    if full[0] == 0.0 and (len(lines) == 1 or thin[0] == 0.0):
-        axes.text(0.5, 0.5, "no electroosmotic flow: the walls are uncharged", transform=axes.transAxes,
-                  ha="center")
+    _draw_pump_lines(axes, lines, (flow_scale, flow_unit), (pressure_scale, unit))
     axes.axhline(0.0, color="0.6", lw=0.8)
     axes.axvline(0.0, color="0.6", lw=0.8)
     axes.set_xlabel(pressure_label)
@@ -208,31 +159,78 @@ def pump_curve_figure(result: Result, path: str | os.PathLike[str], length: floa
     axes.set_ylabel(f"{flow_label}\nalong the pump's flow ({along})")
     axes.grid(True, lw=0.4, alpha=0.5)
     axes.legend(fontsize="small", loc="upper right")
-    drive = f"E = {_number(field / 1e3)} kV/m" if abs(field) >= 1e3 else f"E = {_number(field)} V/m"
+    drive = f"E = {number(field / 1e3)} kV/m" if abs(field) >= 1e3 else f"E = {number(field)} V/m"
     if channel_length is not None:
-        drive += f" over L = {_number(channel_length * 1e6)} µm (ΔV = {_number(abs(field) * channel_length)} V)"
-    figure.suptitle(f"Electroosmotic pump curve at {drive}\n{_section_text(case)}", fontsize="medium")
-    return _save(figure, path)
+        drive += f" over L = {number(channel_length * 1e6)} µm (ΔV = {number(abs(field) * channel_length)} V)"
+    figure.suptitle(f"Electroosmotic pump curve at {drive}\n{section_text(case)}", fontsize="medium")
+    return save_png(figure, path)
 
 
 # ----------------------------------------------------------------------------------------------
 # Conductance against concentration
 
 
-def _conductance_display(capillary: bool, per_length: bool, largest: float) -> tuple[float, str]:
+def _conductance_display(per_channel: bool, per_length: bool, largest: float) -> tuple[float, str]:
     """Scale and axis label of a conductance in its dataset unit (S*m, S or S/m; see
     ``conductance.conductance_units``)."""
-    if per_length and capillary:  # S m
-        scale, unit = _prefix(largest * 1e6, "S")
+    if per_length and per_channel:  # S m
+        scale, unit = prefix(largest * 1e6, "S")
         return scale * 1e6, f"conductance × length, G·L ({unit}·µm)"
     if per_length:  # S, per unit width
-        scale, unit = _prefix(largest, "S")
+        scale, unit = prefix(largest, "S")
         return scale, f"conductance × length per unit width, G·L/W ({unit})"
-    if capillary:  # S
-        scale, unit = _prefix(largest, "S")
+    if per_channel:  # S
+        scale, unit = prefix(largest, "S")
         return scale, f"conductance G ({unit})"
-    scale, unit = _prefix(largest * 1e-6, "S")  # S/m -> per µm of width
+    scale, unit = prefix(largest * 1e-6, "S")  # S/m -> per µm of width
     return scale * 1e-6, f"conductance per unit width G/W ({unit} per µm of width)"
+
+
+#: The counter-ion conduction of a wall of uniform charge, perimeter x mu |sigma|, in the symbols of each
+#: geometry (per unit width of a slit: its two walls); a geometry not listed gets the general form.
+_PLATEAU_FORMULAS = {"slit": "2μ|σ|", "capillary": "2πaμ|σ|"}
+
+
+def _plateau_formula(kind: object, two_walls: bool) -> str:
+    if two_walls:  # a (bottom, top) pair of walls
+        return "μ|σ_bottom + σ_top|"
+    return _PLATEAU_FORMULAS.get(str(kind), "Pμ|σ| (P the wetted perimeter)")
+
+
+def _curve_values(data: Any) -> dict[str, np.ndarray]:
+    """The values of a conductance curve (sorted by concentration): failed solves (status != 0) are NaN; ``ok``
+    marks the others."""
+    c = data["concentration"].values.astype(float)
+    status = data["status"].values if "status" in data.variables else np.zeros(c.size, dtype=int)
+    ok = status == 0
+    values = {"concentration": c, "ok": ok, "bulk": data["bulk_conductance"].values.astype(float)}
+    for key, name in (("full", "conductance"), ("conduction", "plateau_conduction"), ("estimate", "plateau_estimate")):
+        values[key] = np.where(ok, data[name].values.astype(float), np.nan)
+    return values
+
+
+def _draw_conductance(axes: Any, data: Any, curve: dict[str, np.ndarray], scale: float, formula: str) -> None:
+    """The full model, the bulk line, the counter-ion estimates (``formula``: the conduction's), and the
+    crossover of bulk line and plateau."""
+    c = curve["concentration"]
+
+    def positive(values: np.ndarray) -> np.ndarray:
+        return np.where(np.isfinite(values) & (values > 0), values * scale, np.nan)
+
+    axes.plot(c, positive(curve["full"]), color=_FULL, ls="-", lw=2.0, marker="o", ms=4, label="full model")
+    axes.plot(c, positive(curve["bulk"]), color=_BULK, ls="--", lw=1.6, label="bulk line K(c)·A (thin-layer model)")
+    # the estimates are drawn over the full model, so that where they agree both stay visible
+    if np.isfinite(positive(curve["estimate"])).any():
+        axes.plot(c, positive(curve["estimate"]), color=_PLATEAU, ls="-.", lw=1.6, zorder=3,
+                  label="counter-ions only: conduction + their EO convection")
+    axes.plot(c, positive(curve["conduction"]), color=_PLATEAU, ls=":", lw=1.6, zorder=3,
+              label=f"counter-ions only: conduction {formula}, μ = |z|eD/kT")
+    crossing = crossover_concentration(data)
+    if math.isfinite(crossing):
+        axes.axvline(crossing, color=_MARK, lw=1.0, ls=(0, (2, 2)))
+        axes.annotate(f"bulk line = counter-ion estimate\nat c ≈ {number(crossing)} mM", (crossing, 0.04),
+                      xycoords=("data", "axes fraction"), xytext=(6, 0), textcoords="offset points",
+                      fontsize="small", color=_MARK)
 
 
 def conductance_figure(dataset: Any, path: str | os.PathLike[str]) -> Path:
@@ -261,49 +259,27 @@ def conductance_figure(dataset: Any, path: str | os.PathLike[str]) -> Path:
         If ``dataset`` lacks the curve's variables or ``path`` cannot be written.
     """
     names = ("concentration", "conductance", "bulk_conductance", "plateau_conduction", "plateau_estimate")
-    _require(dataset, names, "a conductance curve", "the return of conductance_curve()")
+    require_dataset(dataset, names, "a conductance curve", "the return of conductance_curve()")
     data = dataset.sortby("concentration")
-    c = data["concentration"].values.astype(float)
-    status = data["status"].values if "status" in data.variables else np.zeros(c.size, dtype=int)
-    ok = status == 0
-    full = np.where(ok, data["conductance"].values.astype(float), np.nan)
-    bulk = data["bulk_conductance"].values.astype(float)
-    conduction = np.where(ok, data["plateau_conduction"].values.astype(float), np.nan)
-    estimate = np.where(ok, data["plateau_estimate"].values.astype(float), np.nan)
-    capillary = dataset.attrs.get("geometry") == "capillary"
+    curve = _curve_values(data)
+    geometry = GEOMETRIES.get(str(dataset.attrs.get("geometry")))
+    per_channel = geometry is not None and geometry.extent == "per_channel"
     per_length = "length_m" not in dataset.attrs
-    shown = np.concatenate([v[np.isfinite(v) & (v > 0)] for v in (full, bulk, conduction, estimate)])
-    scale, label = _conductance_display(capillary, per_length, float(shown.max()) if shown.size else math.nan)
+    drawn = (curve["full"], curve["bulk"], curve["conduction"], curve["estimate"])
+    shown = np.concatenate([v[np.isfinite(v) & (v > 0)] for v in drawn])
+    scale, label = _conductance_display(per_channel, per_length, float(shown.max()) if shown.size else math.nan)
 
-    figure = _new_figure(7.4, 5.6)
+    figure = new_figure(7.4, 5.6)
     axes = figure.subplots()
     axes.set_xscale("log")
     axes.set_yscale("log")
-
-    def positive(values: np.ndarray) -> np.ndarray:
-        return np.where(np.isfinite(values) & (values > 0), values * scale, np.nan)
-
-    axes.plot(c, positive(full), color=_FULL, ls="-", lw=2.0, marker="o", ms=4, label="full model")
-    axes.plot(c, positive(bulk), color=_BULK, ls="--", lw=1.6, label="bulk line K(c)·A (thin-layer model)")
-    # the estimates are drawn over the full model, so that where they agree both stay visible
-    if np.isfinite(positive(estimate)).any():
-        axes.plot(c, positive(estimate), color=_PLATEAU, ls="-.", lw=1.6, zorder=3,
-                  label="counter-ions only: conduction + their EO convection")
-    formula = "2πaμ|σ|" if capillary else ("2μ|σ|" if np.ndim(dataset["wall_charge_density"]) == 1
-                                           else "μ|σ_bottom + σ_top|")
-    axes.plot(c, positive(conduction), color=_PLATEAU, ls=":", lw=1.6, zorder=3,
-              label=f"counter-ions only: conduction {formula}, μ = |z|eD/kT")
-    crossing = crossover_concentration(data)
-    if math.isfinite(crossing):
-        axes.axvline(crossing, color=_MARK, lw=1.0, ls=(0, (2, 2)))
-        axes.annotate(f"bulk line = counter-ion estimate\nat c ≈ {_number(crossing)} mM", (crossing, 0.04),
-                      xycoords=("data", "axes fraction"), xytext=(6, 0), textcoords="offset points",
-                      fontsize="small", color=_MARK)
+    formula = _plateau_formula(dataset.attrs.get("geometry"), np.ndim(dataset["wall_charge_density"]) != 1)
+    _draw_conductance(axes, data, curve, scale, formula)
     notes = []
-    case = _case_of(dataset)
+    case = case_of(dataset)
     if case is not None and any(wall.kind == "potential" for wall in case.walls):
         notes.append("a wall of fixed ζ: its charge σ falls with c, so there is no plateau")
-    failed = int(np.count_nonzero(~ok))
+    failed = int(np.count_nonzero(~curve["ok"]))
     if failed:
         notes.append(f"{failed} solve(s) failed, not shown")
     first = dataset.attrs.get("first_ion", "first ion")
@@ -314,11 +290,11 @@ def conductance_figure(dataset: Any, path: str | os.PathLike[str]) -> Path:
     axes.legend(fontsize="small", loc="upper left")
     title = "Conductance against salt concentration"
     if not per_length:
-        title += f", channel length L = {_number(float(dataset.attrs['length_m']) * 1e6)} µm"
+        title += f", channel length L = {number(float(dataset.attrs['length_m']) * 1e6)} µm"
     if case is not None:
-        title += f"\n{_section_text(case, concentrations=False)}"
+        title += f"\n{section_text(case, concentrations=False)}"
     figure.suptitle("\n".join([title, *(f"({note})" for note in notes)]), fontsize="medium")
-    return _save(figure, path)
+    return save_png(figure, path)
 
 
 # ----------------------------------------------------------------------------------------------
@@ -333,6 +309,92 @@ def _zero_crossing(v: np.ndarray, i: np.ndarray) -> float:
         if i[k] * i[k + 1] < 0.0:
             return float(v[k] - i[k] * (v[k + 1] - v[k]) / (i[k + 1] - i[k]))
     return math.nan
+
+
+def _current_display(per_channel: bool, largest: float) -> tuple[float, str, str]:
+    """Scale, unit and axis label of a current: per channel in A with a prefix, per unit width per µm."""
+    if per_channel:
+        scale, unit = prefix(largest, "A")
+        return scale, unit, f"current I, positive from left to right ({unit})"
+    scale, amperes = prefix(largest * 1e-6, "A")
+    return (scale * 1e-6, f"{amperes}/µm",
+            f"current per unit width I/W, positive from left to right\n({amperes} per µm of width)")
+
+
+@dataclass(frozen=True)
+class _IV:
+    """An I-V curve as drawn: voltages (V) and currents (NaN where a point failed; ``ok`` marks the others),
+    the scales and units of both axes, whether the current is per channel and the reservoirs are equal."""
+
+    data: Any
+    v: np.ndarray
+    current: np.ndarray
+    ok: np.ndarray
+    v_scale: float
+    v_unit: str
+    i_scale: float
+    i_unit: str
+    i_label: str
+    per_channel: bool
+    equal: bool
+
+
+def _open_circuit(axes: Any, iv: _IV) -> float:
+    """Mark the zero-current point (the membrane potential; interpolated when the dataset lacks it); its
+    voltage, V (NaN if the current does not change sign)."""
+    if "membrane_potential" in iv.data.variables:
+        v_oc, how = float(iv.data["membrane_potential"]), ""
+    else:
+        v_oc, how = _zero_crossing(iv.v[iv.ok], iv.current[iv.ok]), " (interpolated)"
+    if math.isfinite(v_oc):
+        text = "zero current at ΔV = 0 (equal reservoirs)" if iv.equal else \
+            f"zero current: membrane potential {v_oc * iv.v_scale:+.4g} {iv.v_unit}{how}"
+        axes.plot([v_oc * iv.v_scale], [0.0], ls="none", marker="D", ms=8, color=_THIN, zorder=5, label=text)
+    return v_oc
+
+
+def _power_points(axes: Any, iv: _IV, v_oc: float) -> None:
+    """Between unequal reservoirs: the short-circuit current, the range where the channel delivers power
+    (shaded), and the maximum-power point."""
+    data = iv.data
+    if "short_circuit_current" in data.variables:
+        i_sc, how = float(data["short_circuit_current"]), ""
+    else:
+        i_sc, how = float(np.interp(0.0, iv.v[iv.ok], iv.current[iv.ok])), " (interpolated)"
+    if math.isfinite(i_sc):
+        axes.plot([0.0], [i_sc * iv.i_scale], ls="none", marker="s", ms=8, color=_MARK, zorder=5,
+                  label=f"short circuit (ΔV = 0): I = {i_sc * iv.i_scale:+.4g} {iv.i_unit}{how}")
+    if math.isfinite(v_oc) and v_oc != 0.0:
+        axes.axvspan(0.0, v_oc * iv.v_scale, color=_MARK, alpha=0.08, lw=0,
+                     label="the channel delivers power to a load here (I·ΔV > 0)")
+    if "max_power" in data.variables and math.isfinite(float(data["max_power"])):
+        v_max = float(data["voltage_at_max_power"])
+        power = float(data["max_power"])
+        if iv.per_channel:
+            p_scale, p_unit = prefix(abs(power), "W")
+        else:  # per unit width: W/m -> per µm of width
+            p_scale, p_unit = prefix(abs(power) * 1e-6, "W")
+            p_scale, p_unit = p_scale * 1e-6, f"{p_unit} per µm of width"
+        axes.plot([v_max * iv.v_scale], [power / v_max * iv.i_scale if v_max else 0.0], ls="none", marker="*",
+                  ms=12, color=_PLATEAU, zorder=5,
+                  label=f"maximum power {power * p_scale:.3g} {p_unit} at ΔV = {v_max * iv.v_scale:+.3g} {iv.v_unit}")
+
+
+def _read_iv(dataset: Any) -> _IV:
+    """The I-V curve of a dataset, sorted by voltage, with its display scales."""
+    data = dataset.sortby("voltage")
+    v = data["voltage"].values.astype(float)
+    ok = data["status"].values == 0 if "status" in data.variables else np.ones(v.size, dtype=bool)
+    current = np.where(ok, data["current"].values.astype(float), np.nan)
+    per_channel = str(data["current"].attrs.get("units", "A")) == "A"  # else A/m, per unit width
+    equal = math.isclose(float(dataset.attrs.get("left_concentration", 1.0)),
+                         float(dataset.attrs.get("right_concentration", 1.0)), rel_tol=1e-12)
+    finite = np.abs(current[np.isfinite(current)])
+    largest = float(finite.max()) if finite.size and finite.max() > 0 else 1.0
+    i_scale, i_unit, i_label = _current_display(per_channel, largest)
+    millivolts = float(np.max(np.abs(v))) < 2.0
+    v_scale, v_unit = (1e3, "mV") if millivolts else (1.0, "V")
+    return _IV(data, v, current, ok, v_scale, v_unit, i_scale, i_unit, i_label, per_channel, equal)
 
 
 def iv_figure(dataset: Any, path: str | os.PathLike[str]) -> Path:
@@ -361,82 +423,37 @@ def iv_figure(dataset: Any, path: str | os.PathLike[str]) -> Path:
     InputError
         If ``dataset`` has no I-V curve or ``path`` cannot be written.
     """
-    _require(dataset, ("voltage", "current"), "an I-V curve", "the return of channel_characteristics() with "
+    require_dataset(dataset, ("voltage", "current"), "an I-V curve", "the return of channel_characteristics() with "
              "voltages, or of channel.current_voltage()")
-    data = dataset.sortby("voltage")
-    v = data["voltage"].values.astype(float)
-    ok = data["status"].values == 0 if "status" in data.variables else np.ones(v.size, dtype=bool)
-    current = np.where(ok, data["current"].values.astype(float), np.nan)
-    capillary = str(data["current"].attrs.get("units", "A")) == "A"
-    equal = math.isclose(float(dataset.attrs.get("left_concentration", 1.0)),
-                         float(dataset.attrs.get("right_concentration", 1.0)), rel_tol=1e-12)
-    finite = np.abs(current[np.isfinite(current)])
-    largest = float(finite.max()) if finite.size and finite.max() > 0 else 1.0
-    if capillary:
-        i_scale, i_unit = _prefix(largest, "A")
-        i_label = f"current I, positive from left to right ({i_unit})"
-    else:
-        i_scale, amperes = _prefix(largest * 1e-6, "A")
-        i_scale *= 1e-6
-        i_unit = f"{amperes}/µm"
-        i_label = f"current per unit width I/W, positive from left to right\n({amperes} per µm of width)"
-    millivolts = float(np.max(np.abs(v))) < 2.0
-    v_scale, v_unit = (1e3, "mV") if millivolts else (1.0, "V")
+    iv = _read_iv(dataset)
+    data, v = iv.data, iv.v
 
-    figure = _new_figure(7.6, 5.6)
+    figure = new_figure(7.6, 5.6)
     axes = figure.subplots()
     axes.axhline(0.0, color="0.6", lw=0.8)
     axes.axvline(0.0, color="0.6", lw=0.8)
     if "bulk_current" in data.variables:
         access = " without access resistance" if float(dataset.attrs.get("access_resistance", 0.0)) > 0 else ""
-        axes.plot(v * v_scale, data["bulk_current"].values * i_scale, color=_BULK, ls="--", lw=1.6,
+        axes.plot(v * iv.v_scale, data["bulk_current"].values * iv.i_scale, color=_BULK, ls="--", lw=1.6,
                   label=f"uncharged channel (free-solution electrodiffusion){access}")
-    axes.plot(v * v_scale, current * i_scale, color=_FULL, lw=2.0, marker="o", ms=3.5, label="full model")
-
-    if "membrane_potential" in data.variables:
-        v_oc, how = float(data["membrane_potential"]), ""
-    else:
-        v_oc, how = _zero_crossing(v[ok], current[ok]), " (interpolated)"
-    if math.isfinite(v_oc):
-        text = "zero current at ΔV = 0 (equal reservoirs)" if equal else \
-            f"zero current: membrane potential {v_oc * v_scale:+.4g} {v_unit}{how}"
-        axes.plot([v_oc * v_scale], [0.0], ls="none", marker="D", ms=8, color=_THIN, zorder=5, label=text)
-    if not equal:
-        if "short_circuit_current" in data.variables:
-            i_sc, how = float(data["short_circuit_current"]), ""
-        else:
-            i_sc, how = float(np.interp(0.0, v[ok], current[ok])), " (interpolated)"
-        if math.isfinite(i_sc):
-            axes.plot([0.0], [i_sc * i_scale], ls="none", marker="s", ms=8, color=_MARK, zorder=5,
-                      label=f"short circuit (ΔV = 0): I = {i_sc * i_scale:+.4g} {i_unit}{how}")
-        if math.isfinite(v_oc) and v_oc != 0.0:
-            axes.axvspan(0.0, v_oc * v_scale, color=_MARK, alpha=0.08, lw=0,
-                         label="the channel delivers power to a load here (I·ΔV > 0)")
-        if "max_power" in data.variables and math.isfinite(float(data["max_power"])):
-            v_max = float(data["voltage_at_max_power"])
-            power = float(data["max_power"])
-            if capillary:
-                p_scale, p_unit = _prefix(abs(power), "W")
-            else:  # per unit width: W/m -> per µm of width
-                p_scale, p_unit = _prefix(abs(power) * 1e-6, "W")
-                p_scale, p_unit = p_scale * 1e-6, f"{p_unit} per µm of width"
-            axes.plot([v_max * v_scale], [power / v_max * i_scale if v_max else 0.0], ls="none", marker="*",
-                      ms=12, color=_PLATEAU, zorder=5,
-                      label=f"maximum power {power * p_scale:.3g} {p_unit} at ΔV = {v_max * v_scale:+.3g} {v_unit}")
-    failed = int(np.count_nonzero(~ok))
+    axes.plot(v * iv.v_scale, iv.current * iv.i_scale, color=_FULL, lw=2.0, marker="o", ms=3.5, label="full model")
+    v_oc = _open_circuit(axes, iv)
+    if not iv.equal:
+        _power_points(axes, iv, v_oc)
+    failed = int(np.count_nonzero(~iv.ok))
     if failed:
         axes.text(0.02, 0.02, f"{failed} point(s) did not converge, not shown", transform=axes.transAxes,
                   fontsize="small")
-    axes.set_xlabel(f"applied voltage ΔV = V(right) − V(left) ({v_unit})")
-    axes.set_ylabel(i_label)
+    axes.set_xlabel(f"applied voltage ΔV = V(right) − V(left) ({iv.v_unit})")
+    axes.set_ylabel(iv.i_label)
     axes.grid(True, lw=0.4, alpha=0.5)
     axes.legend(fontsize="small", loc="best")
     left, right = (float(dataset.attrs.get(k, math.nan)) for k in ("left_concentration", "right_concentration"))
     length = float(dataset.attrs.get("length", math.nan))
-    title = (f"I–V curve of a channel of length {_number(length * 1e6)} µm between reservoirs of "
-             f"{_number(left)} mM (left) and {_number(right)} mM (right)")
-    case = _case_of(dataset)
+    title = (f"I–V curve of a channel of length {number(length * 1e6)} µm between reservoirs of "
+             f"{number(left)} mM (left) and {number(right)} mM (right)")
+    case = case_of(dataset)
     if case is not None:
-        title += f"\n{_section_text(case, concentrations=False)}"
+        title += f"\n{section_text(case, concentrations=False)}"
     figure.suptitle(title, fontsize="medium")
-    return _save(figure, path)
+    return save_png(figure, path)

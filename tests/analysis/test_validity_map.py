@@ -1,6 +1,7 @@
-"""Validity maps of the thin-layer model (edl_solver.analysis.validity_map): root-found boundaries against
-published closed forms, the map's dataset and file, the figure, and bad input. The ``edl map`` command is
-checked in tests/cli/test_map.py."""
+"""Validity maps of the thin-layer model (edl_solver.analysis: validity_map, boundary, map_axes,
+thin_layer_errors; the figure of edl_solver.plot.validity): root-found boundaries against published closed
+forms, the map's dataset and file, the figure, and bad input. The ``edl map`` command is checked in
+tests/cli/test_map_command.py."""
 
 from __future__ import annotations
 
@@ -17,15 +18,12 @@ from scipy.optimize import brentq
 from scipy.special import i0e, i1e
 
 import edl_solver as edl
-from edl_solver.analysis.validity_map import (
-    boundary,
-    boundary_curve,
-    check_axes,
-    map_figure,
-    thin_layer_current_per_field,
-    validity_map,
-)
+from edl_solver.analysis.boundary import boundary, boundary_curve
+from edl_solver.analysis.map_axes import check_axes
+from edl_solver.analysis.thin_layer_errors import thin_layer_current_per_field
+from edl_solver.analysis.validity_map import validity_map
 from edl_solver.errors import InputError
+from edl_solver.plot.validity import map_figure
 from tests.helpers import KCL, PNG_SIGNATURE
 from tests.reference_solutions import gouy_chapman_boundary
 

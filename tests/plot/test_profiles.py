@@ -12,8 +12,8 @@ import pytest
 
 import edl_solver as edl
 from edl_solver.errors import InputError
+from edl_solver.inputs.ion_size import close_packing
 from edl_solver.plot.profiles import profile_figure
-from edl_solver.report.text import close_packing
 from tests.helpers import KCL as KCL_1MM
 from tests.helpers import PNG_SIGNATURE
 
