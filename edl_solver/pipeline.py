@@ -1,9 +1,10 @@
-"""The pipeline of one solve: Case -> scaling -> equilibrium (with flow) -> summary -> checks -> Result.
+"""The pipeline of one solve: Case -> packed inputs -> section solved and summarised -> checks -> Result.
 
-The summary (flow rates, currents, the response matrices, the lab quantities and their thin-layer
-counterparts, the identity checks) is computed by the compiled ``_summary.summarize`` from the section
-integrals; sweeps run the same compiled steps on many cases at once (``_batch.py``). Everything that can
-fail runs here, before the Result exists; what only presents the solution (profiles in SI, the summary as
+The section solve (kernel inputs, the nested-grid solve of the equilibrium double layer with its flow, the
+Richardson-extrapolated integrals) and the summary (flow rates, currents, the response matrices, the lab
+quantities and their thin-layer counterparts, the identity checks) run compiled in one call
+(``model.section``); sweeps run the same compiled steps on many cases at once (``_batch.py``). Everything that
+can fail runs here, before the Result exists; what only presents the solution (profiles in SI, the summary as
 a dict, the verdict, the message, the validity notes) is built when first read (``results.result.Deferred``).
 """
 
@@ -17,9 +18,8 @@ from edl_solver.errors import ConvergenceError, InputError
 from edl_solver.inputs.case import Case
 from edl_solver.kernels import layout as _layout
 from edl_solver.kernels import summary as _summary
-from edl_solver.model import equilibrium, profiles, scaling, thin_layer, validity
-from edl_solver.model.equilibrium import SectionSolution
-from edl_solver.model.scaling import Prepared
+from edl_solver.model import packing, profiles, section, thin_layer, validity
+from edl_solver.model.section import SolvedSection
 from edl_solver.results.result import Deferred, Result
 
 
@@ -43,35 +43,23 @@ def solve(case: Case) -> Result:
     """
     if not isinstance(case, Case):
         raise InputError(f"case: {type(case).__name__} is not a Case, expected edl_solver.Case(...)")
-    prepared = scaling.prepare(case)
-    numerics = case.numerics
-    section = equilibrium.solve_section(prepared.problem, numerics.accuracy, numerics.intervals,
-                                        numerics.max_iterations, numerics.max_intervals, case.describe)
-    values, ion_matrix, matrix = summarize(prepared, section)
+    vector = packing.case_vector(case)
+    values = np.empty(_layout.SUMMARY_SIZE)
+    solved = section.solve_and_summarize(vector, case, values)
     check_identities(values, case)
     return Result(
         case=case,
-        profiles=Deferred(lambda result: profiles.section_profiles(section, prepared, case)),
+        profiles=Deferred(lambda result: profiles.section_profiles(case, vector, solved)),
         summary=Deferred(lambda result: summary_dict(values, case)),
         verdict=Deferred(_verdict),
         status="converged",
-        message=Deferred(lambda result: _message(section)),
-        iterations=section.iterations,
-        residual=section.residual,
-        warnings=Deferred(lambda result: validity.notes(case, result.profiles, prepared.units.thermal_voltage)),
-        response_matrix=matrix,
-        ion_response_matrix=ion_matrix,
+        message=Deferred(lambda result: _message(solved)),
+        iterations=solved.iterations,
+        residual=solved.residual,
+        warnings=Deferred(lambda result: validity.notes(case, result.profiles, solved.units.thermal_voltage)),
+        response_matrix=solved.matrix,
+        ion_response_matrix=solved.ion_matrix,
     )
-
-
-def summarize(prepared: Prepared, section: SectionSolution) -> tuple[np.ndarray, np.ndarray, np.ndarray]:
-    """The compiled summary vector (``_layout.SLOTS``) of a solved section, with its ion-resolved and reduced
-    response matrices (``_summary.summarize_solution``)."""
-    values = np.empty(_layout.SUMMARY_SIZE)
-    ion_matrix, matrix = _summary.summarize_solution(
-        prepared.vector, prepared.scale_vector, prepared.isolated_array, section.integrals, prepared.problem.kappa2,
-        section.grid.s, section.grid.beta, section.u_eo, section.error_estimate, values)
-    return values, ion_matrix, matrix
 
 
 def check_identities(values: np.ndarray, case: Case) -> None:
@@ -109,6 +97,6 @@ def _verdict(result: Result) -> str:
     return thin_layer.verdict(result.summary["thin_layer_flow_rate_error"], result.case.tolerance)
 
 
-def _message(section: SectionSolution) -> str:
-    return (f"converged: {section.iterations} Newton iterations, {section.grid.x.size} nodes on the finest grid, "
-            f"estimated relative error {section.error_estimate:.1g}")
+def _message(solved: SolvedSection) -> str:
+    return (f"converged: {solved.iterations} Newton iterations, {solved.s.size} nodes on the finest grid, "
+            f"estimated relative error {solved.estimate:.1g}")

@@ -16,8 +16,9 @@ import numpy as np
 from edl_solver.constants import AVOGADRO, ELEMENTARY_CHARGE
 from edl_solver.inputs.case import Case
 from edl_solver.kernels import summary as _summary
-from edl_solver.model.equilibrium import SectionSolution
-from edl_solver.model.scaling import Prepared, Scales
+from edl_solver.model import grid
+from edl_solver.model.scaling import Scales
+from edl_solver.model.section import SolvedSection
 from edl_solver.results.profiles import Profiles
 
 
@@ -43,8 +44,8 @@ def concentrations(psi: np.ndarray, case: Case) -> np.ndarray:
     return bulk * boltzmann
 
 
-def section_profiles(section: SectionSolution, prepared: Prepared, case: Case) -> Profiles:
-    """The profiles across the whole section on the finest grid.
+def section_profiles(case: Case, vector: np.ndarray, solved: SolvedSection) -> Profiles:
+    """The profiles across the whole section on the finest grid of ``solved`` (``vector`` is the packed case).
 
     A geometry with two walls (``wall_count`` 2) is measured from its first wall to its second, 0 to
     ``across``, and its half section (two equal walls) is mirrored; one with a single wall from the centre,
@@ -52,9 +53,9 @@ def section_profiles(section: SectionSolution, prepared: Prepared, case: Case) -
     (``_summary.thin_slip``): linear between two walls (the Couette-like profile of two slip velocities),
     uniform (plug) in a capillary.
     """
-    units, geometry = prepared.units, case.geometry
-    x = section.grid.x
-    psi, u_eo_hat, u_p_hat = section.psi, section.u_eo, section.u_p
+    units, geometry = solved.units, case.geometry
+    x = grid.from_nodes(solved.s, solved.beta, geometry.metric).x
+    psi, u_eo_hat, u_p_hat = solved.psi, solved.u_eo, solved.u_p
     two_walls = geometry.wall_count == 2
     if case.symmetric and two_walls:
         x = np.concatenate((-x[:0:-1], x))
@@ -66,7 +67,7 @@ def section_profiles(section: SectionSolution, prepared: Prepared, case: Case) -
     conc = concentrations(psi, case)
     valence = np.array([ion.valence for ion in case.electrolyte.ions])[:, None]
     rho = ELEMENTARY_CHARGE * AVOGADRO * np.sum(valence * conc, axis=0)
-    slip = _summary.thin_slip(prepared.vector, prepared.isolated_array)
+    slip = _summary.thin_slip(vector, solved.isolated)
     bottom, top = float(slip[0]), float(slip[1])
     if two_walls:
         thin = bottom + (top - bottom) * coordinate / geometry.across

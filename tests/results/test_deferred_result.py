@@ -111,3 +111,26 @@ def test_a_symmetric_slit_is_mirrored_about_the_mid_plane() -> None:
     assert p.coordinate.size % 2 == 1
     assert np.allclose(p.coordinate + p.coordinate[::-1], case.geometry.height, rtol=0, atol=1e-15 * 40e-9)
     assert np.array_equal(p.potential, p.potential[::-1]) and np.array_equal(p.velocity, p.velocity[::-1])
+
+
+@pytest.mark.parametrize("case", [
+    slit(),
+    slit(wall=(edl.Wall(zeta="-80 mV"), edl.Wall(charge_density="-2 mC/m^2"))),
+    slit(geometry=edl.Capillary(radius="5 nm"), electrolyte=edl.Electrolyte.from_ions({"Ca2+": "1 mM",
+                                                                                       "Cl-": "2 mM"})),
+], ids=["symmetric slit", "asymmetric slit", "capillary 2:1"])
+def test_the_compiled_path_and_the_python_path_agree_bit_for_bit(case: edl.Case,
+                                                                 monkeypatch: pytest.MonkeyPatch) -> None:
+    # the Python path (scaling.prepare, equilibrium.solve_section with continuation) runs when the compiled
+    # one does not converge; both run the same compiled steps, so every number must be the same
+    from edl_solver.kernels import single
+
+    compiled = edl.solve(case)
+    monkeypatch.setattr(single, "solve_packed", lambda *args: (single.NO_ISOLATED_WALL,))
+    python = edl.solve(case)
+    assert repr(python.summary) == repr(compiled.summary)
+    assert np.array_equal(python.response_matrix, compiled.response_matrix)
+    assert np.array_equal(python.ion_response_matrix, compiled.ion_response_matrix)
+    assert arrays_equal(python.profiles, compiled.profiles)
+    assert (python.iterations, python.residual, python.message) == (compiled.iterations, compiled.residual,
+                                                                    compiled.message)
