@@ -47,12 +47,11 @@ def solve(case: Case) -> Result:
     values = np.empty(_layout.SUMMARY_SIZE)
     solved = section.solve_and_summarize(vector, case, values)
     check_identities(values, case)
-    return Result(
+    return Result.converged(
         case=case,
         profiles=Deferred(lambda result: profiles.section_profiles(case, vector, solved)),
         summary=Deferred(lambda result: summary_dict(values, case)),
         verdict=Deferred(_verdict),
-        status="converged",
         message=Deferred(lambda result: _message(solved)),
         iterations=solved.iterations,
         residual=solved.residual,

@@ -71,10 +71,10 @@ def solve_and_summarize(vector: np.ndarray, case: Case, values: np.ndarray) -> S
         ``numerics.max_intervals``, or a wall alone in the bulk has no solution; the message names the case.
     """
     numerics = case.numerics
-    (status, *solved) = _single.solve_packed(vector, numerics.accuracy, numerics.intervals or 0,
-                                             numerics.max_intervals, numerics.max_iterations, values)
-    if status == _layout.CONVERGED:
-        return SolvedSection._make(solved)
+    solved = _single.solve_packed(vector, numerics.accuracy, numerics.intervals or 0, numerics.max_intervals,
+                                  numerics.max_iterations, values)
+    if solved[0] == _layout.CONVERGED:
+        return SolvedSection._make(solved[1:])  # after the status
     return _with_continuation(case, values)
 
 

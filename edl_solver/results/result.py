@@ -116,6 +116,23 @@ class Result:
     response_matrix: np.ndarray | None = None
     ion_response_matrix: np.ndarray | None = None
 
+    @classmethod
+    def converged(cls, case: Case, profiles: Profiles | Deferred, summary: dict[str, Any] | Deferred,
+                  verdict: str | Deferred, message: str | Deferred, iterations: int, residual: float,
+                  warnings: tuple[str, ...] | Deferred, response_matrix: np.ndarray,
+                  ion_response_matrix: np.ndarray) -> Result:
+        """The Result of a converged solve, the same as ``Result(..., status="converged", ...)``.
+
+        Put together without the dataclass ``__init__``, whose eleven frozen assignments cost a warm solve
+        ~1 us (3 %); ``tests/results/test_deferred_result.py`` checks that it fills every field.
+        """
+        result = object.__new__(cls)
+        result.__dict__.update(case=case, _profiles=profiles, _summary=summary, _verdict=verdict,
+                               status="converged", _message=message, iterations=iterations, residual=residual,
+                               _warnings=warnings, response_matrix=response_matrix,
+                               ion_response_matrix=ion_response_matrix)
+        return result
+
     def __getstate__(self) -> dict[str, Any]:
         # copies and pickles carry built values, never the builders (closures over the solver's arrays)
         state = dict(self.__dict__)

@@ -77,6 +77,14 @@ def test_the_keyword_constructor_takes_plain_values_and_deferred_ones() -> None:
         deferred.summary = {}  # type: ignore[misc]
 
 
+def test_the_converged_shortcut_fills_every_field_as_the_constructor_does() -> None:
+    solved = edl.solve(slit())
+    given = {f.name: getattr(solved, f.name) for f in dataclasses.fields(Result) if f.name != "status"}
+    shortcut, constructed = Result.converged(**given), Result(status="converged", **given)
+    assert vars(shortcut).keys() == vars(constructed).keys()
+    assert all(getattr(shortcut, f.name) is getattr(constructed, f.name) for f in dataclasses.fields(Result))
+
+
 def test_a_failing_case_still_raises_inside_solve() -> None:
     hard = slit(wall=edl.Wall(zeta="-300 mV"), numerics=edl.Numerics(accuracy=1e-13, max_intervals=8))
     with pytest.raises(edl.ConvergenceError, match="accuracy"):
