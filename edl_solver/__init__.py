@@ -61,6 +61,7 @@ def __getattr__(name: str) -> Any:
     if name == "solve":
         from edl_solver.pipeline import solve
 
+        globals()["solve"] = solve  # kept, so that later reads (one per solve in a loop) skip this hook
         return solve
     if name == "sweep":
         from edl_solver.sweeping.run import sweep

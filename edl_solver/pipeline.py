@@ -1,8 +1,11 @@
-"""The pipeline of one solve: Case -> scaling -> equilibrium (with flow) -> summary -> Result.
+"""The pipeline of one solve: Case -> packed inputs -> section solved and summarised -> checks -> Result.
 
-The summary (flow rates, currents, the response matrices, the lab quantities and their thin-layer
-counterparts, the identity checks) is computed by the compiled ``_summary.summarize`` from the section
-integrals; sweeps run the same compiled steps on many cases at once (``_batch.py``).
+The section solve (kernel inputs, the nested-grid solve of the equilibrium double layer with its flow, the
+Richardson-extrapolated integrals) and the summary (flow rates, currents, the response matrices, the lab
+quantities and their thin-layer counterparts, the identity checks) run compiled in one call
+(``model.section``); sweeps run the same compiled steps on many cases at once (``_batch.py``). Everything that
+can fail runs here, before the Result exists; what only presents the solution (profiles in SI, the summary as
+a dict, the verdict, the message, the validity notes) is built when first read (``results.result.Deferred``).
 """
 
 from __future__ import annotations
@@ -11,17 +14,13 @@ from typing import Any
 
 import numpy as np
 
-from edl_solver.constants import AVOGADRO, ELEMENTARY_CHARGE
-from edl_solver.errors import ConvergenceError
+from edl_solver.errors import ConvergenceError, InputError
 from edl_solver.inputs.case import Case
-from edl_solver.inputs.geometry import Capillary
 from edl_solver.kernels import layout as _layout
 from edl_solver.kernels import summary as _summary
-from edl_solver.model import equilibrium, flow, scaling, thin_layer, transport, validity
-from edl_solver.model.equilibrium import SectionSolution
-from edl_solver.model.scaling import Scales
-from edl_solver.results.profiles import Profiles
-from edl_solver.results.result import Result
+from edl_solver.model import packing, profiles, section, thin_layer, validity
+from edl_solver.model.section import SolvedSection
+from edl_solver.results.result import Deferred, Result
 
 
 def solve(case: Case) -> Result:
@@ -43,93 +42,60 @@ def solve(case: Case) -> Result:
         violated; the message names the case.
     """
     if not isinstance(case, Case):
-        from edl_solver.errors import InputError
-
         raise InputError(f"case: {type(case).__name__} is not a Case, expected edl_solver.Case(...)")
-    prepared = scaling.prepare(case)
-    units, problem = prepared.units, prepared.problem
-    numerics = case.numerics
-    section = equilibrium.solve_section(problem, numerics.accuracy, numerics.intervals,
-                                        numerics.max_iterations, numerics.max_intervals, case.describe)
+    vector = packing.case_vector(case)
     values = np.empty(_layout.SUMMARY_SIZE)
-    ion_matrix, matrix = _summary.summarize_solution(
-        prepared.vector, prepared.scale_vector, prepared.isolated_array, section.integrals, problem.kappa2,
-        section.grid.s, section.grid.beta, section.u_eo, section.error_estimate, values)
-    summary = summary_dict(values, case)
-    if not _summary.identities_hold(values):
-        raise ConvergenceError(f"{case.describe()}: the discrete solution violates charge balance "
-                               f"({summary['charge_balance']:.2g}) or reciprocity "
-                               f"({summary['reciprocity_residual']:.2g}); not returned")
-    slip = _summary.thin_slip(prepared.vector, prepared.isolated_array)
-    profiles = _profiles(section, units, case, (float(slip[0]), float(slip[1])))
-    return Result(
+    solved = section.solve_and_summarize(vector, case, values)
+    check_identities(values, case)
+    return Result.converged(
         case=case,
-        profiles=profiles,
-        summary=summary,
-        verdict=thin_layer.verdict(summary["thin_layer_flow_rate_error"], case.tolerance),
-        status="converged",
-        message=f"converged: {section.iterations} Newton iterations, {section.grid.x.size} nodes on the "
-                f"finest grid, estimated relative error {section.error_estimate:.1g}",
-        iterations=section.iterations,
-        residual=section.residual,
-        warnings=validity.notes(case, profiles, units.thermal_voltage),
-        response_matrix=matrix,
-        ion_response_matrix=ion_matrix,
+        profiles=Deferred(lambda result: profiles.section_profiles(case, vector, solved)),
+        summary=Deferred(lambda result: summary_dict(values, case)),
+        verdict=Deferred(_verdict),
+        message=Deferred(lambda result: _message(solved)),
+        iterations=solved.iterations,
+        residual=solved.residual,
+        warnings=Deferred(lambda result: validity.notes(case, result.profiles, solved.units.thermal_voltage)),
+        response_matrix=solved.matrix,
+        ion_response_matrix=solved.ion_matrix,
     )
 
 
-def _plain(value: float) -> float:
-    # "+ 0.0" turns a negative zero (e.g. the flow of a case with no drive) into a plain zero
-    return value + 0.0
+def check_identities(values: np.ndarray, case: Case) -> None:
+    """Raise ConvergenceError when the discrete solution violates charge balance or Onsager reciprocity
+    beyond ``_summary.IDENTITY_TOLERANCE`` (``_summary.identities_hold``)."""
+    if not _summary.identities_hold(values):
+        summary = summary_dict(values, case)
+        raise ConvergenceError(f"{case.describe()}: the discrete solution violates charge balance "
+                               f"({summary['charge_balance']:.2g}) or reciprocity "
+                               f"({summary['reciprocity_residual']:.2g}); not returned")
+
+
+#: (key, slot, pair) of every summary value in ``_layout.SLOTS`` order.
+_ENTRIES = tuple((key, at, key in _layout.PAIR_KEYS) for key, at in _layout.SLOTS.items())
 
 
 def summary_dict(values: np.ndarray, case: Case) -> dict[str, Any]:
     """The summary of a case from its compiled summary vector (``_layout.SLOTS``): pair keys as a float
     when one condition holds on every wall, else (bottom, top); the Stern-plane potential only when a wall
-    has a Stern layer."""
+    has a Stern layer. "+ 0.0" turns a negative zero (e.g. the flow of a case with no drive) into a plain
+    zero."""
     flat = values.tolist()
     stern = any(wall.stern_capacitance is not None for wall in case.walls)
     symmetric = case.symmetric
     summary: dict[str, Any] = {}
-    for key, at in _layout.SLOTS.items():
-        if key in _layout.PAIR_KEYS:
-            if key == "stern_potential" and not stern:
-                continue
-            summary[key] = _plain(flat[at + 1]) if symmetric else (_plain(flat[at]), _plain(flat[at + 1]))
-        else:
-            summary[key] = _plain(flat[at])
+    for key, at, pair in _ENTRIES:
+        if not pair:
+            summary[key] = flat[at] + 0.0
+        elif key != "stern_potential" or stern:
+            summary[key] = flat[at + 1] + 0.0 if symmetric else (flat[at] + 0.0, flat[at + 1] + 0.0)
     return summary
 
 
-def _profiles(section: SectionSolution, units: Scales, case: Case, slip: tuple[float, float]) -> Profiles:
-    """Profiles across the whole section; a symmetric slit's half section is mirrored."""
-    x = section.grid.x
-    psi, u_eo_hat, u_p_hat = section.psi, section.u_eo, section.u_p
-    capillary = isinstance(case.geometry, Capillary)
-    if case.symmetric and not capillary:
-        x = np.concatenate((-x[:0:-1], x))
-        psi, u_eo_hat, u_p_hat = (np.concatenate((f[:0:-1], f)) for f in (psi, u_eo_hat, u_p_hat))
-    coordinate = units.length * (x if capillary else 1.0 + x)
-    if not capillary:
-        coordinate[0], coordinate[-1] = 0.0, case.geometry.height
-    u_eo, u_p = flow.velocity_profiles(u_eo_hat, u_p_hat, units, case)
-    conc = transport.concentrations(psi, case)
-    valence = np.array([ion.valence for ion in case.electrolyte.ions])[:, None]
-    rho = ELEMENTARY_CHARGE * AVOGADRO * np.sum(valence * conc, axis=0)
-    if capillary:
-        thin = np.full_like(coordinate, slip[1])
-    else:
-        thin = slip[0] + (slip[1] - slip[0]) * coordinate / case.geometry.height
-    return Profiles(
-        coordinate=coordinate,
-        coordinate_name="r" if capillary else "y",
-        potential=psi * units.thermal_voltage,
-        concentration=conc,
-        charge_density=rho,
-        velocity_eo=u_eo,
-        velocity_pressure=u_p,
-        velocity=u_eo + u_p,
-        velocity_thin_layer=thin * case.field,
-        ion_names=tuple(ion.name for ion in case.electrolyte.ions),
-        eo_per_field=units.eo_velocity_per_field * u_eo_hat,
-    )
+def _verdict(result: Result) -> str:
+    return thin_layer.verdict(result.summary["thin_layer_flow_rate_error"], result.case.tolerance)
+
+
+def _message(solved: SolvedSection) -> str:
+    return (f"converged: {solved.iterations} Newton iterations, {solved.s.size} nodes on the finest grid, "
+            f"estimated relative error {solved.estimate:.1g}")

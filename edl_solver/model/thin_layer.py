@@ -16,7 +16,7 @@ from __future__ import annotations
 import math
 
 from edl_solver.inputs.electrolyte import Electrolyte
-from edl_solver.inputs.geometry import Capillary, Slit
+from edl_solver.inputs.geometry import Geometry
 from edl_solver.inputs.solvent import Solvent
 from edl_solver.inputs.wall import Wall
 from edl_solver.model.walls import isolated_wall
@@ -67,18 +67,8 @@ def verdict(error: float, tolerance: float, quantity: str = "EO flow rate") -> s
     return f"thin-layer slip {direction} the {quantity} by {amount} here: not valid at {limit}"
 
 
-def poiseuille_per_gradient(geometry: Slit | Capillary, viscosity: float, slip: tuple[float, float]) -> float:
+def poiseuille_per_gradient(geometry: Geometry, viscosity: float, slip: tuple[float, float]) -> float:
     """Flow rate per unit solvent force -dp/dx of plain Poiseuille flow with Navier slip, m^4/(Pa s) (slit: per
-    unit width, m^3/(Pa s)).
-
-    Slit of height H with slip lengths b1, b2: u = (G / 2 eta)(-y^2 + C y + b1 C), C = H (H + 2 b2)/(H + b1 + b2),
-    so Q = (G / 2 eta)(-H^3/3 + C (H^2/2 + b1 H)) (H^3 G / 12 eta without slip; plane Poiseuille).
-    Capillary: Q = pi a^4 G (1 + 4 b / a) / (8 eta) (Hagen-Poiseuille with slip).
-    """
-    if isinstance(geometry, Capillary):
-        a = geometry.radius
-        return math.pi * a**4 * (1.0 + 4.0 * slip[1] / a) / (8.0 * viscosity)
-    h = geometry.height
-    b1, b2 = slip
-    c = h * (h + 2.0 * b2) / (h + b1 + b2)
-    return (-h**3 / 3.0 + c * (h * h / 2.0 + b1 * h)) / (2.0 * viscosity)
+    unit width, m^3/(Pa s)); the closed form of each geometry (``geometry.poiseuille_per_gradient``: plane
+    Poiseuille flow between two slipping walls, Hagen-Poiseuille with slip in a capillary)."""
+    return geometry.poiseuille_per_gradient(viscosity, slip)

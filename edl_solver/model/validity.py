@@ -11,7 +11,6 @@ import numpy as np
 
 from edl_solver.constants import AVOGADRO
 from edl_solver.inputs.case import Case
-from edl_solver.inputs.geometry import Capillary
 from edl_solver.results.profiles import Profiles
 
 #: Below this channel size (slit height or capillary diameter), m, water and ions are not a continuum
@@ -29,7 +28,7 @@ CLOSE_PACKING_DIAMETER = 0.7e-9
 def notes(case: Case, profiles: Profiles, thermal_voltage: float) -> tuple[str, ...]:
     """One plain sentence per validity rule the case breaks (empty when none)."""
     found = []
-    size = 2.0 * case.geometry.radius if isinstance(case.geometry, Capillary) else case.geometry.height
+    size = case.geometry.across
     if size < SMALLEST_CONTINUUM_SIZE:
         found.append(f"the channel is {size * 1e9:.2g} nm across, below ~2 nm: continuum electrostatics and "
                      "hydrodynamics are unreliable at this size (common practice)")

@@ -43,6 +43,3 @@ class Profiles:
     velocity_thin_layer: np.ndarray
     ion_names: tuple[str, ...]
     eo_per_field: np.ndarray
-
-
-#: Units and one-line meanings of the summary values.

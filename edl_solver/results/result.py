@@ -1,8 +1,15 @@
-"""What a solve returns: profiles across the section, the summary and the solver's status."""
+"""What a solve returns: profiles across the section, the summary and the solver's status.
+
+A solve checks everything that can fail (convergence, the discrete identities) before it returns; the parts
+of its Result that only present the solution (the profiles in SI, the summary as a dict, the verdict, the
+message and the validity notes) are then built on first access (``Deferred``), since most callers read only
+some of them and building them all costs about twice the compiled solve.
+"""
 
 from __future__ import annotations
 
-from dataclasses import dataclass, field
+from collections.abc import Callable
+from dataclasses import dataclass, fields
 from pathlib import Path
 from typing import Any
 
@@ -10,6 +17,55 @@ import numpy as np
 
 from edl_solver.inputs.case import Case
 from edl_solver.results.profiles import Profiles
+
+_NO_DEFAULT = object()
+
+
+class Deferred:
+    """A field value of a Result still to be built: ``build(result)`` runs on the first access, once.
+
+    Parameters
+    ----------
+    build : callable
+        Takes the Result (so that one deferred field may read another) and returns the value.
+    """
+
+    __slots__ = ("build",)
+
+    def __init__(self, build: Callable[[Result], Any]) -> None:
+        self.build = build
+
+    def __repr__(self) -> str:
+        return f"Deferred({self.build!r})"
+
+
+class _DeferredField:
+    """A dataclass field that accepts a ``Deferred`` in place of its value and builds it on first access.
+
+    The value is kept in the instance dict under ``_<name>``; the dataclass machinery (``__init__``,
+    ``replace``, ``__eq__``, ``__repr__``) sees a plain field, since it reads and writes it by its name.
+    """
+
+    def __init__(self, default: Any = _NO_DEFAULT) -> None:
+        self.default = default
+
+    def __set_name__(self, owner: type, name: str) -> None:
+        self.slot = "_" + name
+
+    def __get__(self, result: Result | None, owner: type | None = None) -> Any:
+        if result is None:  # the dataclass asks for the default
+            if self.default is _NO_DEFAULT:
+                raise AttributeError(self.slot[1:])
+            return self.default
+        value = result.__dict__[self.slot]
+        if type(value) is Deferred:
+            value = value.build(result)
+            result.__dict__[self.slot] = value
+        return value
+
+    def __set__(self, result: Result, value: Any) -> None:
+        # reached only from __init__ (object.__setattr__); the frozen __setattr__ refuses users first
+        result.__dict__[self.slot] = value
 
 
 @dataclass(frozen=True)
@@ -40,19 +96,51 @@ class Result:
         + RT sum c_i d ln c/dx, field E, salt force X_s), per unit length; see ``_summary.reduced_matrix``.
     ion_response_matrix : ndarray, optional
         The same resolved per ion, (1 + n) x (1 + n); see ``_summary.ion_response_matrix``.
+
+    Notes
+    -----
+    ``profiles``, ``summary``, ``verdict``, ``message`` and ``warnings`` may be given as ``Deferred``
+    (``solve`` does): they are built on first access and kept. Copies (``dataclasses.replace``, ``copy``,
+    pickle) hold the built values.
     """
 
     case: Case
-    profiles: Profiles
-    summary: dict[str, Any]
-    verdict: str
+    profiles: Profiles = _DeferredField()
+    summary: dict[str, Any] = _DeferredField()
+    verdict: str = _DeferredField()
     status: str = "converged"
-    message: str = ""
+    message: str = _DeferredField("")
     iterations: int = 0
     residual: float = 0.0
-    warnings: tuple[str, ...] = field(default_factory=tuple)
+    warnings: tuple[str, ...] = _DeferredField(())
     response_matrix: np.ndarray | None = None
     ion_response_matrix: np.ndarray | None = None
+
+    @classmethod
+    def converged(cls, case: Case, profiles: Profiles | Deferred, summary: dict[str, Any] | Deferred,
+                  verdict: str | Deferred, message: str | Deferred, iterations: int, residual: float,
+                  warnings: tuple[str, ...] | Deferred, response_matrix: np.ndarray,
+                  ion_response_matrix: np.ndarray) -> Result:
+        """The Result of a converged solve, the same as ``Result(..., status="converged", ...)``.
+
+        Put together without the dataclass ``__init__``, whose eleven frozen assignments cost a warm solve
+        ~1 us (3 %); ``tests/results/test_deferred_result.py`` checks that it fills every field.
+        """
+        result = object.__new__(cls)
+        result.__dict__.update(case=case, _profiles=profiles, _summary=summary, _verdict=verdict,
+                               status="converged", _message=message, iterations=iterations, residual=residual,
+                               _warnings=warnings, response_matrix=response_matrix,
+                               ion_response_matrix=ion_response_matrix)
+        return result
+
+    def __getstate__(self) -> dict[str, Any]:
+        # copies and pickles carry built values, never the builders (closures over the solver's arrays)
+        state = dict(self.__dict__)
+        for field in fields(self):
+            slot = "_" + field.name
+            if slot in state:
+                state[slot] = getattr(self, field.name)
+        return state
 
     def to_hdf5(self, path: str | Path) -> Path:
         """Write the result to an HDF5 (netCDF-4) file atomically; see ``edl_solver.io.hdf5``."""
