@@ -52,9 +52,7 @@ def solve(case: Case) -> Result:
     section = equilibrium.solve_section(problem, numerics.accuracy, numerics.intervals,
                                         numerics.max_iterations, numerics.max_intervals, case.describe)
     values = np.empty(_layout.SUMMARY_SIZE)
-    ion_matrix, matrix = _summary.summarize_solution(
-        prepared.vector, prepared.scale_vector, prepared.isolated_array, section.integrals, problem.kappa2,
-        section.grid.s, section.grid.beta, section.u_eo, section.error_estimate, values)
+    ion_matrix, matrix = _summary.summarize_solution(prepared.vector, prepared.inputs, section.solved, values)
     summary = summary_dict(values, case)
     if not _summary.identities_hold(values):
         raise ConvergenceError(f"{case.describe()}: the discrete solution violates charge balance "
