@@ -47,18 +47,14 @@ def solve(case: Case) -> Result:
 
         raise InputError(f"case: {type(case).__name__} is not a Case, expected edl_solver.Case(...)")
     prepared = scaling.prepare(case)
-    units, problem = prepared.units, prepared.problem
-    numerics = case.numerics
-    section = equilibrium.solve_section(problem, numerics.accuracy, numerics.intervals,
-                                        numerics.max_iterations, numerics.max_intervals, case.describe)
+    units = prepared.units
     values = np.empty(_layout.SUMMARY_SIZE)
-    ion_matrix, matrix = _summary.summarize_solution(prepared.vector, prepared.inputs, section.solved, values)
+    section, ion_matrix, matrix, slip = equilibrium.solve_summarized(prepared, values, case.describe)
     summary = summary_dict(values, case)
     if not _summary.identities_hold(values):
         raise ConvergenceError(f"{case.describe()}: the discrete solution violates charge balance "
                                f"({summary['charge_balance']:.2g}) or reciprocity "
                                f"({summary['reciprocity_residual']:.2g}); not returned")
-    slip = _summary.thin_slip(prepared.vector, prepared.isolated_array)
     profiles = _profiles(section, units, case, (float(slip[0]), float(slip[1])))
     return Result(
         case=case,

@@ -17,11 +17,14 @@ import numpy as np
 from edl_solver.errors import ConvergenceError
 from edl_solver.kernels import adaptive as _adaptive
 from edl_solver.kernels import fv1d as _kernels
+from edl_solver.kernels import single as _single
 from edl_solver.kernels.layout import (
     ACCURACY_MISSED,
     CONVERGED,
     MAX_SITES,
     NEWTON_FAILED,
+    P_ACCURACY,
+    P_MAX_ITERATIONS,
     SITE_DENSITY,
     SITE_SIZE,
     W_GATE_V,
@@ -31,6 +34,7 @@ from edl_solver.kernels.layout import (
 )
 from edl_solver.kernels.records import Controls, SectionProblem, SectionSolve
 from edl_solver.model import grid
+from edl_solver.model.scaling import Prepared
 
 #: The start of a solve from the Gouy-Chapman guess (no profile given).
 _NO_GUESS = np.empty(0)
@@ -97,12 +101,45 @@ def solve_section(problem: SectionProblem, accuracy: float, intervals: int | Non
         ``accuracy`` at ``max_intervals`` cells per half section. ``label`` names the case.
     """
     controls = Controls(float(accuracy), int(intervals or 0), int(max_intervals), int(max_iterations))
-    solved = _adaptive.solve_adaptive(problem, controls, _NO_GUESS)
+    section, _ = _settle(problem, lambda guess: (_adaptive.solve_adaptive(problem, controls, guess),), accuracy,
+                         max_iterations, label)
+    return section
+
+
+def solve_summarized(prepared: Prepared, out: np.ndarray, label: str | Callable[[], str] = ""
+                     ) -> tuple[SectionSolution, np.ndarray, np.ndarray, np.ndarray]:
+    """``solve_section`` of a prepared case with its own numerics, and its summary vector ``out``
+    (``layout.SLOTS``) filled by the same compiled call (``kernels.single.solve_summarized``).
+
+    Returns
+    -------
+    SectionSolution, ndarray, ndarray, ndarray
+        The solution, the ion-resolved and reduced response matrices, and the slip velocities per unit field
+        of the isolated (bottom, top) walls (``kernels.thin_layer.thin_slip``).
+
+    Raises
+    ------
+    ConvergenceError
+        As ``solve_section``.
+    """
+    vector, inputs = prepared.vector, prepared.inputs
+    section, (ion_matrix, matrix, slip) = _settle(
+        inputs.problem, lambda guess: _single.solve_summarized(vector, inputs, guess, out),
+        float(vector[P_ACCURACY]), int(vector[P_MAX_ITERATIONS]), label)
+    return section, ion_matrix, matrix, slip
+
+
+def _settle(problem: SectionProblem, run: Callable[[np.ndarray], tuple], accuracy: float, max_iterations: int,
+            label: str | Callable[[], str]) -> tuple[SectionSolution, tuple]:
+    """Run the compiled solve (``run(guess)`` returns its ``SectionSolve`` first, then anything else) from the
+    Gouy-Chapman guess, again after a continuation when Newton failed, and turn a failure into a
+    ``ConvergenceError``. Returns the solution and the rest of the last run's outcome."""
+    solved, *rest = run(_NO_GUESS)
     iterations = solved.iterations
     if solved.status == NEWTON_FAILED:
         guess, its = _continuation(problem, solved.intervals, max_iterations, label)
         iterations += its
-        solved = _adaptive.solve_adaptive(problem, controls, guess)
+        solved, *rest = run(guess)
         iterations += solved.iterations
     if solved.status != CONVERGED and callable(label):  # built only when a message needs it
         label = label()
@@ -114,7 +151,8 @@ def solve_section(problem: SectionProblem, accuracy: float, intervals: int | Non
             f"{label}: the grid error estimate {solved.estimate:.2g} is above the requested accuracy "
             f"{accuracy:.2g} with {solved.intervals} cells per half section; raise numerics.max_intervals or "
             "loosen numerics.accuracy")
-    return SectionSolution(grid.from_cells(solved.s, solved.beta, problem.metric, solved.cells), solved, iterations)
+    finest = grid.from_cells(solved.s, solved.beta, problem.metric, solved.cells)
+    return SectionSolution(finest, solved, iterations), tuple(rest)
 
 
 def _scaled_walls(rows: np.ndarray, t: float) -> np.ndarray:

@@ -14,6 +14,7 @@ statement of the section problem, is the kernels' record (``kernels.records``).
 from __future__ import annotations
 
 from dataclasses import dataclass
+from typing import NamedTuple
 
 import numpy as np
 
@@ -26,9 +27,9 @@ from edl_solver.model import packing
 __all__ = ["Prepared", "Scales", "SectionProblem", "prepare"]
 
 
-@dataclass(frozen=True)
-class Scales:
-    """SI values of the dimensionless units of one case.
+class Scales(NamedTuple):
+    """SI values of the dimensionless units of one case, in the order of the kernels' scales vector
+    (``layout.S_*``; a named tuple, cheap to build once per solve).
 
     Attributes
     ----------
@@ -119,5 +120,6 @@ def prepare(case: Case) -> Prepared:
         raise ConvergenceError(f"{case.describe()}: no potential balances the charge of a wall alone in the bulk "
                                "(the thin-layer picture and the start of the solve); not solved")
     units = Scales(*inputs.scales.tolist())
-    isolated = tuple((float(iso[side, ISO_ZETA]), float(iso[side, ISO_SIGMA])) for side in range(2))
+    isolated = ((float(iso[0, ISO_ZETA]), float(iso[0, ISO_SIGMA])),
+                (float(iso[1, ISO_ZETA]), float(iso[1, ISO_SIGMA])))
     return Prepared(vector, inputs, units, isolated)

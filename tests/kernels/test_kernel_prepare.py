@@ -117,3 +117,12 @@ def test_section_problem_of_an_asymmetric_slit_and_a_capillary() -> None:
     assert problem.counter_valence[1] == 1.0  # a positive wall's counter-ion is Cl-
     negative = edl.Case(geometry=edl.Capillary(radius="10 nm"), electrolyte=salt, wall=edl.Wall(zeta=-2 * VT))
     assert prepare.section_inputs(packing.case_vector(negative)).problem.counter_valence[1] == 2.0  # Ca2+
+
+
+def test_python_scales_read_the_scales_vector_in_its_order() -> None:
+    # project design: model.scaling.Scales is built from the S_* vector by position
+    from edl_solver.model.scaling import Scales
+
+    order = ("S_THERMAL_VOLTAGE", "S_LENGTH", "S_DEBYE_LENGTH", "S_CHARGE_DENSITY", "S_VOLUME_CHARGE", "S_EO_VELOCITY",
+             "S_PRESSURE_VELOCITY", "S_AREA", "S_SECTION_AREA")
+    assert [getattr(lay, name) for name in order] == list(range(len(Scales._fields))) == list(range(lay.SCALE_SIZE))
