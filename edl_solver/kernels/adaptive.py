@@ -37,7 +37,7 @@ from edl_solver.kernels.layout import (
     PROFILE_U_EO,
     PROFILE_U_P,
 )
-from edl_solver.kernels.records import Cells, NestedSolve, SectionSolve
+from edl_solver.kernels.records import NestedSolve, SectionSolve
 
 LEVELS = 4
 #: Newton stops when a full step is below this (kT/e).
@@ -170,6 +170,12 @@ def starting_intervals(beta, accuracy):
 
 
 @njit(cache=True)
+def _level_cells(s, beta, metric, level):
+    """The ``Cells`` of grid ``level`` (of LEVELS, finest last) whose finest nodes are ``s``."""
+    return finite_volume_metric(s[::2 ** (LEVELS - 1 - level)].copy(), beta, metric)
+
+
+@njit(cache=True)
 def nested_solve(problem, s, beta, start, max_iter, levels, first_level, coarse):
     """Solve ``problem`` on nested grids and fill ``levels[level]`` with the section integrals (LEVELS grids,
     finest last).
@@ -195,12 +201,12 @@ def nested_solve(problem, s, beta, start, max_iter, levels, first_level, coarse)
     half = s[0] == 0.0
     raw = np.empty((PROFILE_ROWS, s.size))
     profiles = np.empty((PROFILE_ROWS, s.size))
-    cells = Cells(np.empty(0), np.empty(0), np.empty(0), np.empty(0))  # each level's in turn
+    cells = _level_cells(s, beta, problem.metric, first_level)
     for level in range(first_level, LEVELS):
         stride = 2 ** (LEVELS - 1 - level)
-        sl = s[::stride].copy()
-        n = sl.size
-        cells = finite_volume_metric(sl, beta, problem.metric)
+        if level > first_level:
+            cells = _level_cells(s, beta, problem.metric, level)
+        n = cells.x.size
         if level == first_level and first_level == 0:
             p = start[::stride].copy()
         else:
