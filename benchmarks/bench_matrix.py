@@ -39,14 +39,13 @@ def main() -> None:
         section = equilibrium.solve_section(problem, case.numerics.accuracy)
         values = np.empty(_layout.SUMMARY_SIZE)
         slip = _summary.thin_slip(prepared.vector, prepared.isolated_array)
-        arguments = (prepared.vector, prepared.scale_vector, prepared.isolated_array, slip, section.integrals,
-                     problem.kappa2, 0.0, 0.0, values)
+        arguments = (prepared.vector, prepared.inputs, section.solved, slip, 0.0, values)
         python = timed(lambda a=arguments: _summary.summarize(*a), 3000)
         # kernel part: one Stokes solve per ion on each level (levels have n, n/2, n/4, n/8 intervals)
         g = section.grid
         n = g.x.size
         link, volume = g.link, g.volume
-        flows = np.array([[_kernels.FLUX if problem.half else _kernels.POTENTIAL, 0.0], [_kernels.POTENTIAL, 0.0]])
+        flows = np.array([[_layout.FLUX if problem.half else _layout.POTENTIAL, 0.0], [_layout.POTENTIAL, 0.0]])
         rhs, u = -np.ones(n), np.empty(n)
         ones_link, ones_wall = np.ones(n - 1), np.ones(2)
         operator = _kernels.stokes_operator(link, ones_link, ones_wall, flows)

@@ -57,7 +57,7 @@ sys.path.insert(0, str(ROOT))  # run from a checkout without installing
 import numba  # noqa: E402
 
 import edl_solver as edl  # noqa: E402
-from edl_solver.kernels import fv1d as _kernels  # noqa: E402
+from edl_solver.kernels import layout as _layout  # noqa: E402
 from edl_solver.model import equilibrium, scaling  # noqa: E402
 
 #: Target figures: one warm edl.solve at least 40 times faster than solve_bvp at equal accuracy (issue 9),
@@ -343,7 +343,7 @@ def read_every_field(result: edl.Result) -> None:
 def section_values(section, kappa_l: float) -> tuple[float, float, float]:
     """(psi_m, sigma_hat in Debye units, mean psi) from a half-section kernel solution."""
     i = section.integrals
-    return i[_kernels.I_PSI_CENTRE], i[_kernels.I_FLUX_RIGHT] / kappa_l, i[_kernels.I_PSI]
+    return i[_layout.I_PSI_CENTRE], i[_layout.I_FLUX_RIGHT] / kappa_l, i[_layout.I_PSI]
 
 
 def err_stats(err: dict[str, np.ndarray]) -> dict[str, dict[str, float]]:

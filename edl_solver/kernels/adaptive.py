@@ -5,8 +5,8 @@ section integrals from the three finest (h^2 and h^4 error terms removed) and fr
 their difference, divided by 8, is the error estimate, and the grid is doubled until it meets the
 requested accuracy. Batches of cases run in ``_batch.py``.
 
-Takes only arrays and scalars; see _kernels.py for the single-grid arithmetic and equilibrium.py for
-the Python side.
+Takes arrays, scalars and the records of ``kernels.records``; see ``kernels.fv1d`` for the single-grid
+arithmetic and ``model.equilibrium`` for the Python side.
 """
 
 from __future__ import annotations
@@ -14,7 +14,10 @@ from __future__ import annotations
 import numpy as np
 from numba import njit
 
-from edl_solver.kernels.fv1d import (
+from edl_solver.kernels.fv1d import finite_volume_metric, pb_newton, response_offsets, section_integrals
+from edl_solver.kernels.layout import (
+    ACCURACY_MISSED,
+    CONVERGED,
     I_FLUX_LEFT,
     I_FLUX_RIGHT,
     I_PSI,
@@ -27,11 +30,14 @@ from edl_solver.kernels.fv1d import (
     I_UEO,
     I_UP,
     ION_INTEGRALS,
-    finite_volume_metric,
-    pb_newton,
-    section_integrals,
+    NEWTON_FAILED,
+    PLANAR,
+    PROFILE_PSI,
+    PROFILE_ROWS,
+    PROFILE_U_EO,
+    PROFILE_U_P,
 )
-from edl_solver.kernels.layout import ACCURACY_MISSED, CONVERGED, NEWTON_FAILED
+from edl_solver.kernels.records import NestedSolve, SectionSolve
 
 LEVELS = 4
 #: Newton stops when a full step is below this (kT/e).
@@ -164,82 +170,70 @@ def starting_intervals(beta, accuracy):
 
 
 @njit(cache=True)
-def nested_solve(s, beta, metric, kappa2, ions, model, walls, flow_walls, visco, psi, u_eo, u_p, max_iter,
-                 integrals, first_level, coarse):
-    """Solve on nested grids and fill ``integrals[level]`` (LEVELS grids, finest last).
+def _level_cells(s, beta, metric, level):
+    """The ``Cells`` of grid ``level`` (of LEVELS, finest last) whose finest nodes are ``s``."""
+    return finite_volume_metric(s[::2 ** (LEVELS - 1 - level)].copy(), beta, metric)
 
-    ``s`` are the finest computational nodes and ``psi`` holds the start guess there. The coarsest grid
-    starts from its subsample, each finer one from the prolonged coarser solution (nested iteration), so
-    fine grids need one or two Newton steps. Levels below ``first_level`` are taken as already solved (after
-    a refinement they are the previous grids); ``coarse`` then holds the raw (psi, u_eo, u_p) rows of the
-    level just below. The finest profiles, Richardson-corrected with the next coarser grid
-    (``correct_profile``), are returned in psi, u_eo, u_p.
 
-    Returns status (0 converged), total Newton iterations, final scaled residual, and the raw finest
-    (psi, u_eo, u_p) as a 3-row array (for the next refinement).
+@njit(cache=True)
+def nested_solve(problem, s, beta, start, max_iter, levels, first_level, coarse):
+    """Solve ``problem`` on nested grids and fill ``levels[level]`` with the section integrals (LEVELS grids,
+    finest last).
+
+    ``s`` are the finest computational nodes and ``start`` the start guess there. The coarsest grid starts
+    from its subsample, each finer one from the prolonged coarser solution (nested iteration), so fine grids
+    need one or two Newton steps. Levels below ``first_level`` are taken as already solved (after a
+    refinement they are the previous grids); ``coarse`` then holds the raw ``PROFILE_*`` rows of the level
+    just below. The finest profiles are Richardson-corrected with the next coarser grid
+    (``correct_profile``).
+
+    Returns
+    -------
+    NestedSolve
+        Status (0 converged), total Newton iterations, final scaled residual, the raw and the corrected
+        finest profiles, and the finest grid's cells.
     """
     total = 0
     residual = 0.0
-    start = psi.copy()
-    guess = coarse[0].copy()
-    ue_previous = coarse[1].copy()
-    up_previous = coarse[2].copy()
+    guess = coarse[PROFILE_PSI].copy()
+    ue_previous = coarse[PROFILE_U_EO].copy()
+    up_previous = coarse[PROFILE_U_P].copy()
     half = s[0] == 0.0
-    raw = np.empty((3, s.size))
+    raw = np.empty((PROFILE_ROWS, s.size))
+    profiles = np.empty((PROFILE_ROWS, s.size))
+    cells = _level_cells(s, beta, problem.metric, first_level)
     for level in range(first_level, LEVELS):
         stride = 2 ** (LEVELS - 1 - level)
-        sl = s[::stride].copy()
-        n = sl.size
-        xl = np.empty(n)
-        link = np.empty(n - 1)
-        volume = np.empty(n)
-        spacing = np.empty(n - 1)
-        finite_volume_metric(sl, beta, metric, xl, link, volume, spacing)
+        if level > first_level:
+            cells = _level_cells(s, beta, problem.metric, level)
+        n = cells.x.size
         if level == first_level and first_level == 0:
             p = start[::stride].copy()
         else:
             p = np.empty(n)
             prolong(guess, p)
-        status, its, residual = pb_newton(p, link, volume, kappa2, ions, model, walls, NEWTON_TOLERANCE,
-                                          max_iter, MAX_STEP)
+        status, its, residual = pb_newton(p, cells, problem, problem.walls, NEWTON_TOLERANCE, max_iter, MAX_STEP)
         total += its
         if status != 0:
-            return status, total, residual, raw
+            return NestedSolve(status, total, residual, raw, profiles, cells)
         ue = np.empty(n)
         up = np.empty(n)
         centre = 0 if half else (n - 1) // 2
-        section_integrals(p, link, volume, spacing, kappa2, ions, model, walls, centre, flow_walls, visco,
-                          ue, up, integrals[level])
+        section_integrals(p, cells, problem, centre, ue, up, levels[level])
         if level == LEVELS - 1:
-            raw[0], raw[1], raw[2] = p, ue, up
+            raw[PROFILE_PSI], raw[PROFILE_U_EO], raw[PROFILE_U_P] = p, ue, up
             correct_profile(p, guess)
             correct_profile(ue, ue_previous)
             correct_profile(up, up_previous)
-            psi[:] = p
-            u_eo[:] = ue
-            u_p[:] = up
+            profiles[PROFILE_PSI], profiles[PROFILE_U_EO], profiles[PROFILE_U_P] = p, ue, up
         guess, ue_previous, up_previous = p, ue, up
-    return 0, total, residual, raw
+    return NestedSolve(0, total, residual, raw, profiles, cells)
 
 
 @njit(cache=True)
-def solve_adaptive(metric, half, kappa2, ions, model, walls, flow_walls, visco, wall_guess, counter, accuracy,
-                   intervals, max_intervals, max_iter, guess, out):
-    """One case to the requested accuracy; fills ``out`` with the extrapolated integrals.
-
-    ``intervals`` > 0 fixes the finest grid (no refinement); 0 chooses it from the stiffness and refines,
-    each refinement solving only the new finest grid (the coarser three are the previous ones).
-    ``guess`` is a start profile on the first grid's nodes, or empty for the Gouy-Chapman guess.
-
-    Returns
-    -------
-    status, iterations, estimate, residual, intervals, s, beta, psi, u_eo, u_p
-        Status CONVERGED, NEWTON_FAILED or ACCURACY_MISSED; the finest grid's nodes and profiles.
-    """
-    n_ions = ions.shape[0]
-    beta = stretching(inner_length(kappa2, wall_guess, counter))
-    n_half = intervals if intervals > 0 else min(starting_intervals(beta, accuracy), max_intervals)
-    s = computational_nodes(n_half, half)
+def _start(problem, s, beta, guess):
+    """Start profile on the nodes ``s``: ``guess`` (on them, or on a grid they subsample), or the
+    Gouy-Chapman guess when it is empty."""
     psi = np.empty(s.size)
     if guess.size == s.size:
         psi[:] = guess
@@ -247,38 +241,65 @@ def solve_adaptive(metric, half, kappa2, ions, model, walls, flow_walls, visco, 
         psi[:] = guess[::(guess.size - 1) // (s.size - 1)]
     else:
         x = np.tanh(beta * s) / np.tanh(beta)
-        gouy_chapman_guess(x, kappa2, half, wall_guess, counter, psi)
-    levels = np.zeros((LEVELS, out.size))
-    lower = np.empty(out.size)
-    scale = np.empty(out.size)
+        gouy_chapman_guess(x, problem.kappa2, problem.half, problem.wall_potential_guess, problem.counter_valence,
+                           psi)
+    return psi
+
+
+@njit(cache=True)
+def solve_adaptive(problem, controls, guess):
+    """One case (``SectionProblem``) to the accuracy of its ``Controls``.
+
+    ``controls.intervals`` > 0 fixes the finest grid (no refinement); 0 chooses it from the stiffness and
+    refines, each refinement solving only the new finest grid (the coarser three are the previous ones).
+    ``guess`` is a start profile on the first grid's nodes, or empty for the Gouy-Chapman guess.
+
+    Returns
+    -------
+    SectionSolve
+        Status CONVERGED, NEWTON_FAILED or ACCURACY_MISSED, the extrapolated integrals, the finest grid and
+        its profiles.
+    """
+    n_ions = problem.ions.shape[0]
+    metric, half, kappa2 = problem.metric, problem.half, problem.kappa2
+    beta = stretching(inner_length(kappa2, problem.wall_potential_guess, problem.counter_valence))
+    intervals, max_intervals = controls.intervals, controls.max_intervals
+    n_half = intervals if intervals > 0 else min(starting_intervals(beta, controls.accuracy), max_intervals)
+    s = computational_nodes(n_half, half)
+    psi = _start(problem, s, beta, guess)
+    size = response_offsets(n_ions)[3]
+    out = np.zeros(size)
+    levels = np.zeros((LEVELS, size))
+    lower = np.empty(size)
+    scale = np.empty(size)
     iterations = 0
     first_level = 0
-    coarse = np.empty((3, 0))
+    coarse = np.empty((PROFILE_ROWS, 0))
     while True:
-        u_eo = np.empty(s.size)
-        u_p = np.empty(s.size)
-        status, its, residual, raw = nested_solve(s, beta, metric, kappa2, ions, model, walls, flow_walls,
-                                                  visco, psi, u_eo, u_p, max_iter, levels, first_level, coarse)
-        iterations += its
-        if status != 0:
-            return NEWTON_FAILED, iterations, np.inf, residual, n_half, s, beta, psi, u_eo, u_p
+        run = nested_solve(problem, s, beta, psi, controls.max_iterations, levels, first_level, coarse)
+        iterations += run.iterations
+        finest = run.profiles
+        if run.status != 0:
+            return SectionSolve(NEWTON_FAILED, iterations, np.inf, run.residual, n_half, s, beta, run.cells, psi,
+                                finest[PROFILE_U_EO], finest[PROFILE_U_P], out)
         extrapolate(levels[3], levels[2], levels[1], out)
         extrapolate(levels[2], levels[1], levels[0], lower)
-        measure = 1.0 if (half and metric == 0) else (2.0 if metric == 0 else 0.5)
+        measure = 1.0 if (half and metric == PLANAR) else (2.0 if metric == PLANAR else 0.5)
         error_scale(out, measure, n_ions, np.sqrt(kappa2), scale)
         estimate = 0.0
         for j in range(out.size):
             estimate = max(estimate, abs(out[j] - lower[j]) / scale[j])
         estimate /= 8.0
-        if estimate <= accuracy or intervals > 0:
-            return CONVERGED, iterations, estimate, residual, n_half, s, beta, psi, u_eo, u_p
-        if 2 * n_half > max_intervals:
-            return ACCURACY_MISSED, iterations, estimate, residual, n_half, s, beta, psi, u_eo, u_p
+        done = estimate <= controls.accuracy or intervals > 0
+        if done or 2 * n_half > max_intervals:
+            return SectionSolve(CONVERGED if done else ACCURACY_MISSED, iterations, estimate, run.residual, n_half,
+                                s, beta, run.cells, finest[PROFILE_PSI], finest[PROFILE_U_EO], finest[PROFILE_U_P],
+                                out)
         # refine: the three finer grids become the coarser three of the new set
         for level in range(LEVELS - 1):
             levels[level, :] = levels[level + 1, :]
         first_level = LEVELS - 1
-        coarse = raw
+        coarse = run.raw
         n_half *= 2
         s = computational_nodes(n_half, half)
         psi = np.empty(s.size)  # the finest guess is prolonged from the raw coarse solution inside

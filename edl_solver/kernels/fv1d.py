@@ -1,14 +1,15 @@
 """Compiled arithmetic on arrays for one grid: the Poisson-Boltzmann Newton iteration, the Stokes solve
 and the section integrals (nested grids and error control are in _adaptive.py).
 
-Everything here takes only arrays and scalars and knows nothing of cases or units (see grid.py for the
-finite-volume metric and scaling.py for how the arrays are filled). Dimensionless variables: psi =
-e*phi/kT, lengths in the half-size L, charge density rho_hat = rho_e / (e N_A sum_j z_j^2 c_j), so that
-Poisson reads  laplacian(psi) = -kappa2 rho_hat  with kappa2 = (kappa L)^2.
+Everything here takes only arrays, scalars and the records of ``kernels.records`` (a ``SectionProblem``, a
+grid's ``Cells``) and knows nothing of cases or units (see grid.py for the finite-volume metric and
+scaling.py for how the arrays are filled; ``kernels.layout`` declares every packed layout). Dimensionless
+variables: psi = e*phi/kT, lengths in the half-size L, charge density rho_hat = rho_e / (e N_A sum_j z_j^2 c_j),
+so that Poisson reads  laplacian(psi) = -kappa2 rho_hat  with kappa2 = (kappa L)^2.
 
-Packed parameters
------------------
-ions : (n_ions, 3) array of (z_k, w_k, nu_k): valence, weight w_k = z_k c_k / sum_j z_j^2 c_j and the
+The section problem (``SectionProblem``)
+---------------------------------------
+ions : (n_ions, SPECIES_SIZE) array of (z_k, w_k, nu_k): valence, weight w_k = z_k c_k / sum_j z_j^2 c_j and the
     steric packing parameter nu_k = c_k N_A d^3 (0 without finite ion size).
 model : PB (Boltzmann), DH (linearised) or STERIC (lattice-gas, Bikerman 1942; Kilic, Bazant & Ajdari
     2007, Phys. Rev. E 75, 021502): c_k = c_k,bulk exp(-z_k psi) / (1 + sum_j nu_j (exp(-z_j psi) - 1)).
@@ -18,7 +19,7 @@ walls : (2, WALL_SIZE) array, one row per end of the grid (left, right), layout 
     on the potential psi_0 of the charge plane: a fixed part, a gate term C_g (V_g - psi_0) and acid-base
     sites, with a Stern layer psi_0 - psi_d = sigma / C_S between the charge plane and the diffuse layer
     (psi_d is the end node). Capacitances are in units of eps / L, charges as sigma_hat.
-flow_walls : (2, 2) array of (code, value) per end for the Stokes problems: POTENTIAL = prescribed
+flow_walls : (2, FLOW_SIZE) array of (code, value) per end for the Stokes problems: POTENTIAL = prescribed
     velocity (0: no slip), FLUX = prescribed normal derivative (0 at a symmetry plane), ROBIN = Navier
     slip u = -b du/dn with value 1/b_hat (b in units of L).
 visco : viscoelectric coefficient f (kT / (e L))^2: eta / eta_0 = 1 + visco |grad psi|^2 (Lyklema &
@@ -30,84 +31,70 @@ from __future__ import annotations
 import numpy as np
 from numba import njit
 
-# boundary codes
-POTENTIAL = 0
-FLUX = 1
-ROBIN = 2
-REGULATED = 3
+from edl_solver.kernels import layout
+from edl_solver.kernels.layout import (
+    AXISYMMETRIC,
+    DH,
+    FLOW_CODE,
+    FLOW_VALUE,
+    FLUX,
+    I_FLUX_LEFT,
+    I_FLUX_RIGHT,
+    I_PSI,
+    I_PSI_CENTRE,
+    I_PSI_LEFT,
+    I_PSI_RIGHT,
+    I_RHO,
+    I_RHO_UEO,
+    I_RHO_UP,
+    I_UEO,
+    I_UP,
+    ION_INTEGRALS,
+    POTENTIAL,
+    ROBIN,
+    SPECIES_PACKING,
+    SPECIES_VALENCE,
+    SPECIES_WEIGHT,
+    STERIC,
+    W_TYPE,
+    W_VALUE,
+)
+from edl_solver.kernels.records import Cells
+from edl_solver.kernels.walls import regulated_charge
 
-# models
-PB = 0
-DH = 1
-STERIC = 2
-
-# wall row layout
-W_TYPE = 0
-W_VALUE = 1
-W_SIGMA = 2  # fixed charge of a regulated wall
-W_GATE_C = 3  # gate capacitance
-W_GATE_V = 4  # gate voltage
-W_STERN = 5  # inverse Stern capacitance (0: no Stern layer)
-W_SITES = 6  # number of kinds of site
-W_SITE0 = 7  # first site block
-MAX_STATES = 4  # protonation states of one kind of site (up to three acid-base steps)
-SITE_SIZE = 2 + MAX_STATES + (MAX_STATES - 1)  # density, n_states, charges, ln(K_i / [H+]_bulk)
-MAX_SITES = 4
-WALL_SIZE = W_SITE0 + MAX_SITES * SITE_SIZE
-
-# Layout of the integral vector filled by ``section_integrals``; ions follow from ION_INTEGRALS on.
-I_PSI = 0  # int psi dV
-I_UEO = 1  # int u_eo dV
-I_UP = 2  # int u_p dV
-I_RHO_UEO = 3  # int rho u_eo dV
-I_RHO_UP = 4  # int rho u_p dV
-I_RHO = 5  # int rho dV
-I_PSI_LEFT = 6
-I_PSI_RIGHT = 7
-I_FLUX_LEFT = 8  # outward-normal derivative of psi at the left end (r^m sigma_hat)
-I_FLUX_RIGHT = 9
-I_PSI_CENTRE = 10
-ION_INTEGRALS = 11  # int c_k / c_k,bulk dV for each ion k
-# Then, for the linear-response matrix (n ions; see ``response_offsets``): int u_j dV for the flow u_j
-# driven by the body force on ion j (div(eta grad u_j) = -c_j / c_j,bulk), n values; int (c_i/c_i,bulk) u_p dV,
-# n values; int (c_i/c_i,bulk) u_j dV, n*n values (row i, column j).
+#: Start of the three response blocks of the integral vector and its length (``layout.response_offsets``),
+#: compiled for the kernels.
+response_offsets = njit(cache=True)(layout.response_offsets)
 
 
 @njit(cache=True)
-def response_offsets(n_ions):
-    """Start of the three response blocks in the integral vector, and its total length."""
-    first = ION_INTEGRALS + n_ions
-    return first, first + n_ions, first + 2 * n_ions, first + 2 * n_ions + n_ions * n_ions
-
-
-def integral_count(n_ions: int) -> int:
-    """Length of the integral vector for ``n_ions`` ions."""
-    return ION_INTEGRALS + 3 * n_ions + n_ions * n_ions
-
-
-@njit(cache=True)
-def finite_volume_metric(s, beta, metric, x, link, volume, spacing):
-    """Nodes x = tanh(beta s)/tanh(beta), link conductances, node volumes and link lengths (see grid.py).
+def finite_volume_metric(s, beta, metric):
+    """The ``Cells`` of the nodes s: x = tanh(beta s)/tanh(beta), link conductances, node volumes and link
+    lengths (see grid.py).
 
     Node spacings come from the identity tanh(p) - tanh(q) = sinh(p - q) / (cosh p cosh q), never from
     differences of x: wall cells can be 1e-12 of the half-size, below the resolution of x near 1.
     """
     n = s.size
+    x = np.empty(n)
+    link = np.empty(n - 1)
+    volume = np.empty(n)
+    dx = np.empty(n - 1)
     t = np.tanh(beta)
-    dx = spacing
     for i in range(n):
         x[i] = np.tanh(beta * s[i]) / t
     for i in range(n - 1):
         dx[i] = np.sinh(beta * (s[i + 1] - s[i])) / (np.cosh(beta * s[i]) * np.cosh(beta * s[i + 1]) * t)
-        link[i] = (0.5 * (x[i] + x[i + 1]) if metric == 1 else 1.0) / dx[i]
+        link[i] = (0.5 * (x[i] + x[i + 1]) if metric == AXISYMMETRIC else 1.0) / dx[i]
     for i in range(n):
         left = 0.5 * dx[i - 1] if i > 0 else 0.0
         right = 0.5 * dx[i] if i < n - 1 else 0.0
-        if metric == 1:
+        if metric == AXISYMMETRIC:
             # int r dr over [x - left, x + right]
             volume[i] = right * (x[i] + 0.5 * right) + left * (x[i] - 0.5 * left)
         else:
             volume[i] = right + left
+    return Cells(x, link, volume, dx)
 
 
 @njit(cache=True)
@@ -141,93 +128,29 @@ def charge(psi, ions, model):
     crowd = 1.0
     dcrowd = 0.0
     for k in range(ions.shape[0]):
-        z = ions[k, 0]
+        z = ions[k, SPECIES_VALENCE]
         e = np.exp(-z * psi)
-        rho += ions[k, 1] * e
-        drho -= ions[k, 1] * z * e
-        crowd += ions[k, 2] * (e - 1.0)
-        dcrowd -= ions[k, 2] * z * e
+        rho += ions[k, SPECIES_WEIGHT] * e
+        drho -= ions[k, SPECIES_WEIGHT] * z * e
+        crowd += ions[k, SPECIES_PACKING] * (e - 1.0)
+        dcrowd -= ions[k, SPECIES_PACKING] * z * e
     if model == STERIC:
         return rho / crowd, (drho * crowd - rho * dcrowd) / (crowd * crowd)
     return rho, drho
 
 
 @njit(cache=True)
-def plane_charge(psi0, wall):
-    """Charge sigma_hat of a regulated wall at charge-plane potential psi0, and d sigma_hat / d psi0.
-
-    Fixed part, gate term C_g (V_g - psi0), and for each kind of site with states k = 0..K of charge q_k
-    (successive deprotonations with constants K_i) the Boltzmann-weighted mean charge: f_k proportional
-    to prod_{i<=k} K_i / [H+]_0 with the proton concentration at the plane [H+]_0 = [H+]_bulk exp(-psi0),
-    i.e. log-weight l_k = sum_{i<=k} (ln(K_i / [H+]_bulk) + psi0) (the mass-action law of each step).
-    """
-    sigma = wall[W_SIGMA] + wall[W_GATE_C] * (wall[W_GATE_V] - psi0)
-    dsigma = -wall[W_GATE_C]
-    for j in range(int(wall[W_SITES])):
-        base = W_SITE0 + j * SITE_SIZE
-        density = wall[base]
-        states = int(wall[base + 1])
-        logs = np.empty(states)
-        logs[0] = 0.0
-        top = 0.0
-        for k in range(1, states):
-            logs[k] = logs[k - 1] + wall[base + 2 + MAX_STATES + k - 1] + psi0
-            top = max(top, logs[k])
-        total = 0.0
-        mean_q = 0.0
-        mean_k = 0.0
-        mean_qk = 0.0
-        for k in range(states):
-            f = np.exp(logs[k] - top)
-            q = wall[base + 2 + k]
-            total += f
-            mean_q += q * f
-            mean_k += k * f
-            mean_qk += q * k * f
-        mean_q /= total
-        mean_k /= total
-        mean_qk /= total
-        sigma += density * mean_q
-        dsigma += density * (mean_qk - mean_q * mean_k)
-    return sigma, dsigma
-
-
-@njit(cache=True)
-def regulated_charge(psi_d, wall):
-    """Charge of a regulated wall whose diffuse layer starts at potential ``psi_d``.
-
-    Solves the Stern relation psi0 = psi_d + sigma(psi0) / C_S for the charge-plane potential (Newton on
-    g(psi0) = psi0 - psi_d - sigma(psi0)/C_S, g' = 1 - sigma'/C_S >= 1 because sigma decreases with
-    psi0), then returns sigma_hat, d sigma_hat / d psi_d = sigma' / (1 - sigma'/C_S) and psi0.
-    """
-    inverse = wall[W_STERN]
-    psi0 = psi_d
-    sigma, dsigma = plane_charge(psi0, wall)
-    if inverse > 0.0:
-        for _ in range(200):
-            g = psi0 - psi_d - inverse * sigma
-            dg = 1.0 - inverse * dsigma
-            step = g / dg
-            if abs(step) > 5.0:  # keep the exponentials of the site weights in range
-                step = 5.0 if step > 0 else -5.0
-            psi0 -= step
-            sigma, dsigma = plane_charge(psi0, wall)
-            if abs(step) < 1e-14 * (1.0 + abs(psi0)):
-                break
-        return sigma, dsigma / (1.0 - inverse * dsigma), psi0
-    return sigma, dsigma, psi0
-
-
-@njit(cache=True)
-def _pb_residual(psi, link, volume, kappa2, ions, model, walls, res, scale, jac):
+def _pb_residual(psi, cells, problem, walls, res, scale, jac):
     """Residual of the discrete Poisson-Boltzmann equation, the size of each row's diagonal and the
     diagonal of the Jacobian.
 
     Row i: a_i (psi_{i+1} - psi_i) - a_{i-1} (psi_i - psi_{i-1}) + kappa2 V_i rho(psi_i) (+ sigma_hat at a
     FLUX or REGULATED end) = 0; a POTENTIAL end reads psi - value = 0. res/scale is a local correction in
-    units of kT/e.
+    units of kT/e. ``walls`` are the problem's wall rows or, during a continuation, rows scaled from them.
     """
     n = psi.size
+    link, volume = cells.link, cells.volume
+    kappa2, ions, model = problem.kappa2, problem.ions, problem.model
     for i in range(n):
         rho, drho = charge(psi[i], ions, model)
         r = kappa2 * volume[i] * rho
@@ -273,8 +196,9 @@ def _scaled_norms(res, scale):
 
 
 @njit(cache=True)
-def pb_newton(psi, link, volume, kappa2, ions, model, walls, tol, max_iter, max_step):
-    """Damped Newton iteration for the discrete Poisson-Boltzmann equation, in place on ``psi``.
+def pb_newton(psi, cells, problem, walls, tol, max_iter, max_step):
+    """Damped Newton iteration for the discrete Poisson-Boltzmann equation of ``problem`` with the wall rows
+    ``walls`` on the grid ``cells``, in place on ``psi``.
 
     The Jacobian is tridiagonal and negative definite (the charge decreases with psi, in the liquid as on
     a regulated wall), so each step costs O(n). Steps are capped at ``max_step`` (kT/e) and halved until
@@ -290,6 +214,7 @@ def pb_newton(psi, link, volume, kappa2, ions, model, walls, tol, max_iter, max_
         Max row-scaled residual (kT/e) at exit.
     """
     n = psi.size
+    link = cells.link
     res = np.empty(n)
     scale = np.empty(n)
     jac = np.empty(n)
@@ -301,7 +226,7 @@ def pb_newton(psi, link, volume, kappa2, ions, model, walls, tol, max_iter, max_
     rhs = np.empty(n)
     work = np.empty(n)
     trial = np.empty(n)
-    _pb_residual(psi, link, volume, kappa2, ions, model, walls, res, scale, jac)
+    _pb_residual(psi, cells, problem, walls, res, scale, jac)
     norm, worst = _scaled_norms(res, scale)
     for it in range(1, max_iter + 1):
         for i in range(n):
@@ -322,7 +247,7 @@ def pb_newton(psi, link, volume, kappa2, ions, model, walls, tol, max_iter, max_
         if biggest < tol:
             for i in range(n):
                 psi[i] += step[i]
-            _pb_residual(psi, link, volume, kappa2, ions, model, walls, res, scale, jac)
+            _pb_residual(psi, cells, problem, walls, res, scale, jac)
             norm, worst = _scaled_norms(res, scale)
             return 0, it, worst
         lam = 1.0 if biggest <= max_step else max_step / biggest
@@ -330,7 +255,7 @@ def pb_newton(psi, link, volume, kappa2, ions, model, walls, tol, max_iter, max_
         for _ in range(60):
             for i in range(n):
                 trial[i] = psi[i] + lam * step[i]
-            _pb_residual(trial, link, volume, kappa2, ions, model, walls, res, trial_scale, trial_jac)
+            _pb_residual(trial, cells, problem, walls, res, trial_scale, trial_jac)
             new = 0.0
             for i in range(n):
                 q = res[i] / scale[i]
@@ -341,7 +266,7 @@ def pb_newton(psi, link, volume, kappa2, ions, model, walls, tol, max_iter, max_
                 break
             lam *= 0.5
         if not accepted:
-            _pb_residual(psi, link, volume, kappa2, ions, model, walls, res, scale, jac)
+            _pb_residual(psi, cells, problem, walls, res, scale, jac)
             norm, worst = _scaled_norms(res, scale)
             return 2, it, worst
         for i in range(n):
@@ -378,13 +303,13 @@ def stokes_operator(link, viscosity, wall_viscosity, flow_walls):
         diag[i] = -lower[i] - upper[i]
     for end in range(2):
         i = 0 if end == 0 else n - 1
-        kind = int(flow_walls[end, 0])
+        kind = int(flow_walls[end, FLOW_CODE])
         if kind == POTENTIAL:
             lower[i] = 0.0
             upper[i] = 0.0
             diag[i] = 1.0
         elif kind == ROBIN:
-            diag[i] -= flow_walls[end, 1] * wall_viscosity[end]
+            diag[i] -= flow_walls[end, FLOW_VALUE] * wall_viscosity[end]
     factor = np.empty((3, n))
     factor[0] = lower
     factor[1, 0] = diag[0]
@@ -405,11 +330,11 @@ def stokes_solve(factor, volume, rhs, sign, flow_walls, u):
         b = sign * rhs[i] * volume[i]
         end = 0 if i == 0 else (1 if i == n - 1 else -1)
         if end >= 0:
-            kind = int(flow_walls[end, 0])
+            kind = int(flow_walls[end, FLOW_CODE])
             if kind == POTENTIAL:
-                b = flow_walls[end, 1]
+                b = flow_walls[end, FLOW_VALUE]
             elif kind == FLUX:
-                b -= flow_walls[end, 1]
+                b -= flow_walls[end, FLOW_VALUE]
         u[i] = b / pivot[0] if i == 0 else (b - lower[i] * u[i - 1]) / pivot[i]
     for i in range(n - 2, -1, -1):
         u[i] -= ratio[i] * u[i + 1]
@@ -422,15 +347,15 @@ def _concentrations(psi, ions, model, out):
     n_ions = ions.shape[0]
     if model == DH:
         for k in range(n_ions):
-            out[k] = 1.0 - ions[k, 0] * psi
+            out[k] = 1.0 - ions[k, SPECIES_VALENCE] * psi
         return -psi
     rho = 0.0
     crowd = 1.0
     for k in range(n_ions):
-        e = np.exp(-ions[k, 0] * psi)
+        e = np.exp(-ions[k, SPECIES_VALENCE] * psi)
         out[k] = e
-        rho += ions[k, 1] * e
-        crowd += ions[k, 2] * (e - 1.0)
+        rho += ions[k, SPECIES_WEIGHT] * e
+        crowd += ions[k, SPECIES_PACKING] * (e - 1.0)
     if model == STERIC:
         for k in range(n_ions):
             out[k] /= crowd
@@ -439,14 +364,17 @@ def _concentrations(psi, ions, model, out):
 
 
 @njit(cache=True)
-def section_integrals(psi, link, volume, spacing, kappa2, ions, model, walls, centre, flow_walls, visco,
-                      u_eo, u_p, out):
-    """Flow fields and the integral vector (see the I_* layout) of a converged potential ``psi``.
+def section_integrals(psi, cells, problem, centre, u_eo, u_p, out):
+    """Flow fields ``u_eo``, ``u_p`` and the integral vector ``out`` (``I_*`` layout) of a converged potential
+    ``psi`` of ``problem`` on the grid ``cells``, ``centre`` the index of the centre node.
 
     EO flow: div(eta grad u_eo) = -kappa2 rho_hat (u_eo in units of eps E kT / (e eta_0); equal to
     psi - psi_wall for uniform viscosity and no slip). Pressure flow: div(eta grad u_p) = 1 (u_p in units
-    of (dp/dx) L^2 / eta_0). ``spacing`` are the link lengths (for the field in the viscosity).
+    of (dp/dx) L^2 / eta_0). The link lengths ``cells.spacing`` give the field in the viscosity.
     """
+    link, volume, spacing = cells.link, cells.volume, cells.spacing
+    kappa2, ions, model = problem.kappa2, problem.ions, problem.model
+    flow_walls, visco = problem.flow_walls, problem.visco
     n = psi.size
     n_ions = ions.shape[0]
     rho = np.empty(n)

@@ -1,4 +1,4 @@
-"""Compiled step from a packed case vector (``packing.P_*``, SI) to the dimensionless kernel inputs.
+"""Compiled step from a packed case vector (``layout.P_*``, SI) to the dimensionless kernel inputs.
 
 Dimensionless variables (see scaling.py): psi = e phi / kT; positions in the half-size L; charge density
 over e N_A sum z^2 c, so that Poisson reads laplacian(psi) = -(kappa L)^2 rho_hat; wall charge in
@@ -11,14 +11,26 @@ import numpy as np
 from numba import njit
 
 from edl_solver.constants import AVOGADRO, BOLTZMANN, ELEMENTARY_CHARGE
-from edl_solver.kernels.fv1d import FLUX, POTENTIAL, ROBIN, STERIC, W_TYPE, W_VALUE, WALL_SIZE
-from edl_solver.kernels.walls import dimensionless_wall, isolated_wall, twice_ionic_strength
-from edl_solver.model.packing import (
+from edl_solver.kernels.layout import (
+    AXISYMMETRIC,
+    FLOW_CODE,
+    FLOW_SIZE,
+    FLOW_VALUE,
+    FLUX,
+    ION_CONCENTRATION,
     ION_SIZE,
-    P_CAPILLARY,
+    ION_VALENCE,
+    ISO_SIGMA,
+    ISO_ZETA,
+    ISOLATED_SIZE,
+    P_ACCURACY,
     P_DIAMETER,
+    P_INTERVALS,
     P_IONS,
     P_LENGTH,
+    P_MAX_INTERVALS,
+    P_MAX_ITERATIONS,
+    P_METRIC,
     P_MODEL,
     P_PERMITTIVITY,
     P_PROTONS,
@@ -28,24 +40,34 @@ from edl_solver.model.packing import (
     P_VISCOELECTRIC,
     P_VISCOSITY,
     P_WALLS,
+    POTENTIAL,
+    ROBIN,
+    S_AREA,
+    S_CHARGE_DENSITY,
+    S_DEBYE_LENGTH,
+    S_EO_VELOCITY,
+    S_LENGTH,
+    S_PRESSURE_VELOCITY,
+    S_SECTION_AREA,
+    S_THERMAL_VOLTAGE,
+    S_VOLUME_CHARGE,
+    SCALE_SIZE,
+    SPECIES_PACKING,
+    SPECIES_SIZE,
+    SPECIES_VALENCE,
+    SPECIES_WEIGHT,
+    STERIC,
+    W_TYPE,
+    W_VALUE,
+    WALL_SIZE,
 )
-
-# Layout of the scales vector: SI values of the dimensionless units (see scaling.Scales).
-S_THERMAL_VOLTAGE = 0  # kT/e, V
-S_LENGTH = 1  # L, m
-S_DEBYE_LENGTH = 2  # m
-S_CHARGE_DENSITY = 3  # eps kT / (e L), C/m^2
-S_VOLUME_CHARGE = 4  # e N_A sum z^2 c, C/m^3
-S_EO_VELOCITY = 5  # eps kT / (e eta), m^2/(V s)
-S_PRESSURE_VELOCITY = 6  # L^2 / eta, m^3/(Pa s)
-S_AREA = 7  # section sum over the computed nodes -> full-section integral
-S_SECTION_AREA = 8  # H per unit width, or pi a^2
-SCALE_SIZE = 9
+from edl_solver.kernels.records import Controls, SectionInputs, SectionProblem
+from edl_solver.kernels.walls import dimensionless_wall, isolated_wall, twice_ionic_strength
 
 
 @njit(cache=True)
 def ion_block(p):
-    """The (valence, concentration, diffusivity) rows of the ions, a view into ``p``."""
+    """The ``ION_*`` rows of the ions, a view into ``p``."""
     return p[P_IONS:].reshape(((p.size - P_IONS) // ION_SIZE, ION_SIZE))
 
 
@@ -53,6 +75,12 @@ def ion_block(p):
 def wall_si(p, side):
     """SI row of the bottom (0) or top (1) wall, a view into ``p``."""
     return p[P_WALLS + side * WALL_SIZE:P_WALLS + (side + 1) * WALL_SIZE]
+
+
+@njit(cache=True)
+def controls(p):
+    """The numerics of a case vector as ``Controls``."""
+    return Controls(p[P_ACCURACY], int(p[P_INTERVALS]), int(p[P_MAX_INTERVALS]), int(p[P_MAX_ITERATIONS]))
 
 
 @njit(cache=True)
@@ -70,7 +98,7 @@ def scales(p):
     out[S_VOLUME_CHARGE] = ELEMENTARY_CHARGE * AVOGADRO * twice_strength
     out[S_EO_VELOCITY] = eps * vt / p[P_VISCOSITY]
     out[S_PRESSURE_VELOCITY] = length**2 / p[P_VISCOSITY]
-    if p[P_CAPILLARY] != 0.0:
+    if p[P_METRIC] == AXISYMMETRIC:
         out[S_AREA] = 2.0 * np.pi * length**2
         out[S_SECTION_AREA] = np.pi * length**2
     else:
@@ -81,8 +109,8 @@ def scales(p):
 
 @njit(cache=True)
 def isolated_walls(p, sc):
-    """(zeta V, sigma C/m^2) of the bottom and top walls alone in the bulk, rows of a (2, 2) array."""
-    out = np.empty((2, 2))
+    """(zeta V, sigma C/m^2) of the bottom and top walls alone in the bulk, ``ISO_*`` rows of a (2, 2) array."""
+    out = np.empty((2, ISOLATED_SIZE))
     ions = ion_block(p)
     model = int(p[P_MODEL])
     for side in range(2):
@@ -91,8 +119,8 @@ def isolated_walls(p, sc):
             break
         zeta, sigma = isolated_wall(wall_si(p, side), ions, model, p[P_DIAMETER], sc[S_THERMAL_VOLTAGE],
                                     p[P_PERMITTIVITY], p[P_PROTONS], sc[S_DEBYE_LENGTH])
-        out[side, 0] = zeta
-        out[side, 1] = sigma
+        out[side, ISO_ZETA] = zeta
+        out[side, ISO_SIGMA] = sigma
     return out
 
 
@@ -102,56 +130,69 @@ def _counter_valence(zeta, ions):
     sign = -1.0 if zeta >= 0.0 else 1.0
     best = 0.0
     for i in range(ions.shape[0]):
-        if ions[i, 0] * sign > 0.0:
-            best = max(best, abs(ions[i, 0]))
+        if ions[i, ION_VALENCE] * sign > 0.0:
+            best = max(best, abs(ions[i, ION_VALENCE]))
     return best if best > 0.0 else 1.0
 
 
 @njit(cache=True)
-def section_inputs(p):
-    """Everything the nested-grid solver needs for one case, and the scales and isolated walls.
-
-    Returns
-    -------
-    metric, half, kappa2, ions, model, walls, flow_walls, visco, wall_guess, counter, scales, isolated
-        As ``_adaptive.solve_adaptive`` takes them (packed ions (n, 3) of valence, weight z c / sum z^2 c
-        and steric packing c N_A d^3; wall rows and flow conditions of the grid's left and right ends),
-        then the ``S_*`` scales and the (2, 2) isolated (zeta, sigma) of the bottom and top walls.
-    """
-    sc = scales(p)
-    iso = isolated_walls(p, sc)
+def species(p):
+    """The kernels' ``SPECIES_*`` rows of the ions: valence, weight z c / sum z^2 c and steric packing
+    c N_A d^3 (0 unless the model is steric)."""
     block = ion_block(p)
     n = block.shape[0]
     twice_strength = twice_ionic_strength(block)
-    model = int(p[P_MODEL])
-    ions = np.empty((n, 3))
+    steric = int(p[P_MODEL]) == STERIC
+    ions = np.empty((n, SPECIES_SIZE))
     for i in range(n):
-        ions[i, 0] = block[i, 0]
-        ions[i, 1] = block[i, 0] * block[i, 1] / twice_strength
-        ions[i, 2] = block[i, 1] * AVOGADRO * p[P_DIAMETER] ** 3 if model == STERIC else 0.0
+        ions[i, SPECIES_VALENCE] = block[i, ION_VALENCE]
+        ions[i, SPECIES_WEIGHT] = block[i, ION_VALENCE] * block[i, ION_CONCENTRATION] / twice_strength
+        ions[i, SPECIES_PACKING] = block[i, ION_CONCENTRATION] * AVOGADRO * p[P_DIAMETER] ** 3 if steric else 0.0
+    return ions
+
+
+@njit(cache=True)
+def section_problem(p, sc, iso):
+    """The dimensionless ``SectionProblem`` of a case with scales ``sc`` and isolated walls ``iso``.
+
+    The grid's left end is the centre of a half section (a symmetry plane: no charge, no shear) or the
+    bottom wall, its right end the top (or only) wall. Each wall end gets its dimensionless row, the
+    potential of the wall alone in the bulk (the Newton start and the grid stretching), the counter-ion
+    valence and its flow condition (no slip, or Navier slip as a Robin condition).
+    """
     vt, length = sc[S_THERMAL_VOLTAGE], sc[S_LENGTH]
     half = p[P_SYMMETRIC] != 0.0
     walls = np.zeros((2, WALL_SIZE))
-    flow_walls = np.zeros((2, 2))
+    flow_walls = np.zeros((2, FLOW_SIZE))
     guess = np.zeros(2)
     counter = np.ones(2)
     for end in range(2):
         if half and end == 0:  # the left end is the symmetry plane (slit mid-plane or capillary axis)
             walls[0, W_TYPE] = FLUX
             walls[0, W_VALUE] = 0.0
-            flow_walls[0, 0] = FLUX
+            flow_walls[0, FLOW_CODE] = FLUX
             continue
         side = 1 if half else end
         walls[end] = dimensionless_wall(wall_si(p, side), vt, p[P_PERMITTIVITY], length, p[P_PROTONS])
-        guess[end] = iso[side, 0] / vt
-        counter[end] = _counter_valence(iso[side, 0], block)
+        guess[end] = iso[side, ISO_ZETA] / vt
+        counter[end] = _counter_valence(iso[side, ISO_ZETA], ion_block(p))
         slip = p[P_SLIP + side] / length
         if slip > 0.0:
-            flow_walls[end, 0] = ROBIN
-            flow_walls[end, 1] = 1.0 / slip
+            flow_walls[end, FLOW_CODE] = ROBIN
+            flow_walls[end, FLOW_VALUE] = 1.0 / slip
         else:
-            flow_walls[end, 0] = POTENTIAL
-    metric = 1 if p[P_CAPILLARY] != 0.0 else 0
+            flow_walls[end, FLOW_CODE] = POTENTIAL
+    metric = int(p[P_METRIC])
     kappa2 = (length / sc[S_DEBYE_LENGTH]) ** 2
     visco = p[P_VISCOELECTRIC] * (vt / length) ** 2
-    return metric, half, kappa2, ions, model, walls, flow_walls, visco, guess, counter, sc, iso
+    return SectionProblem(metric, half, kappa2, species(p), int(p[P_MODEL]), walls, flow_walls, visco, guess,
+                          counter)
+
+
+@njit(cache=True)
+def section_inputs(p):
+    """Everything the nested-grid solver needs for one case: ``SectionInputs`` of its ``SectionProblem``, its
+    ``S_*`` scales and the (2, 2) isolated (zeta, sigma) of the bottom and top walls."""
+    sc = scales(p)
+    iso = isolated_walls(p, sc)
+    return SectionInputs(section_problem(p, sc, iso), sc, iso)

@@ -1,11 +1,7 @@
-"""Compiled path of one solve: a packed case vector to its kernel inputs, the nested-grid solve and the summary,
-in one call.
+"""Compiled part of a single solve (``pipeline.solve``) after its inputs are prepared: the nested-grid solve and,
+when it converged, the summary, in one call, so that the records cross from Python to the kernels once.
 
-The same compiled steps as a single solve's Python path (``scaling.prepare``, ``equilibrium.solve_section``,
-``_summary.summarize_solution``) and as a batch (``batch.solve_one``), so its values are theirs bit for bit;
-one call instead of three saves the dispatch and the boxing of their inputs and outputs, about a quarter of
-a warm solve. What the Python path adds on failure (continuation in the wall values, messages naming the
-case) stays there: a case that does not converge here is solved again that way.
+The steps are exactly those of a batch case (``batch.solve_one``), so single solves and sweeps agree bit for bit.
 """
 
 from __future__ import annotations
@@ -13,48 +9,48 @@ from __future__ import annotations
 import numpy as np
 from numba import njit
 
-from edl_solver.kernels import adaptive as _adaptive
-from edl_solver.kernels.fv1d import response_offsets
+from edl_solver.kernels.adaptive import solve_adaptive
 from edl_solver.kernels.layout import CONVERGED
-from edl_solver.kernels.prepare import section_inputs
-from edl_solver.kernels.summary import summarize_solution
-
-#: Status when a wall alone in the bulk has no balancing potential (``scaling.prepare`` raises on it).
-NO_ISOLATED_WALL = -1
+from edl_solver.kernels.prepare import controls, section_inputs
+from edl_solver.kernels.summary import summarize
+from edl_solver.kernels.thin_layer import outer_deviation, thin_slip
 
 
 @njit(cache=True)
-def solve_packed(p, accuracy, intervals, max_intervals, max_iterations, out):
-    """Solve the packed case ``p`` from the Gouy-Chapman guess and fill its summary vector ``out``.
-
-    Parameters
-    ----------
-    p : ndarray
-        The packed case (``packing.case_vector``).
-    accuracy, intervals, max_intervals, max_iterations
-        The case's numerics (``intervals`` 0: adaptive), as ``_adaptive.solve_adaptive`` takes them.
-    out : ndarray
-        The summary vector (``layout.SLOTS``), filled when the solve converges.
+def solve_summarized(p, inputs, guess, out):
+    """Solve the section of the case vector ``p`` (prepared as ``inputs``, ``prepare.section_inputs``) with its
+    numerics from ``guess`` (empty: the Gouy-Chapman guess) and, when it converged, fill its summary vector
+    ``out``.
 
     Returns
     -------
-    status, iterations, estimate, residual, s, beta, psi, u_eo, u_p, scales, isolated, ion_matrix, matrix
-        The status of ``_adaptive.solve_adaptive`` (or ``NO_ISOLATED_WALL``); its Newton iterations, error
-        estimate and residual, the finest grid's computational nodes, stretching and profiles; the scales and
-        isolated walls of ``_prepare.section_inputs``; the response matrices of the summary (empty unless
-        CONVERGED).
+    SectionSolve, ndarray, ndarray, ndarray
+        The solve's record, the ion-resolved and reduced response matrices (empty unless converged) and the
+        Helmholtz-Smoluchowski slip velocities per unit field of the (bottom, top) isolated walls
+        (``thin_layer.thin_slip``).
     """
-    (metric, half, kappa2, ions, model, walls, flow_walls, visco, guess, counter, sc,
-     iso) = section_inputs(p)
-    none = np.empty((0, 0))
-    if not np.isfinite(iso).all():
-        empty = np.empty(0)
-        return NO_ISOLATED_WALL, 0, np.nan, np.nan, empty, np.nan, empty, empty, empty, sc, iso, none, none
-    integrals = np.zeros(response_offsets(ions.shape[0])[3])
-    status, iterations, estimate, residual, _, s, beta, psi, u_eo, u_p = _adaptive.solve_adaptive(
-        metric, half, kappa2, ions, model, walls, flow_walls, visco, guess, counter, accuracy, intervals,
-        max_intervals, max_iterations, np.empty(0), integrals)
-    if status != CONVERGED:
-        return status, iterations, estimate, residual, s, beta, psi, u_eo, u_p, sc, iso, none, none
-    ion_matrix, matrix = summarize_solution(p, sc, iso, integrals, kappa2, s, beta, u_eo, estimate, out)
-    return status, iterations, estimate, residual, s, beta, psi, u_eo, u_p, sc, iso, ion_matrix, matrix
+    slip = thin_slip(p, inputs.isolated)
+    solved = solve_adaptive(inputs.problem, controls(p), guess)
+    if solved.status != CONVERGED:
+        return solved, np.empty((0, 0)), np.empty((0, 0)), slip
+    # as summary.summarize_solution, with the slip computed once
+    deviation = outer_deviation(solved.s, solved.beta, solved.u_eo, p, inputs.scales, slip)
+    ion_matrix, matrix = summarize(p, inputs, solved, slip, deviation, out)
+    return solved, ion_matrix, matrix, slip
+
+
+@njit(cache=True)
+def solve_packed(p, out):
+    """``solve_summarized`` of the packed case ``p`` from the Gouy-Chapman guess, its kernel inputs built here
+    too (``prepare.section_inputs``): a whole single solve in one compiled call.
+
+    Returns
+    -------
+    ndarray, ndarray, SectionSolve, ndarray, ndarray, ndarray
+        The scales (``layout.S_*``) and isolated walls (``layout.ISO_*`` rows; not finite when a wall alone
+        in the bulk has no balancing potential, and then nothing else is meaningful), then what
+        ``solve_summarized`` returns.
+    """
+    inputs = section_inputs(p)
+    solved, ion_matrix, matrix, slip = solve_summarized(p, inputs, np.empty(0), out)
+    return inputs.scales, inputs.isolated, solved, ion_matrix, matrix, slip

@@ -1,8 +1,9 @@
-"""Compiled wall arithmetic: the kernels' dimensionless wall row, and the charge-potential relation of an
-isolated wall in contact with the bulk electrolyte (the thin-layer picture; see walls.py).
+"""Compiled wall arithmetic: the kernels' dimensionless wall row, the charge of a regulated wall (sites, gate,
+Stern layer), and the charge-potential relation of an isolated wall in contact with the bulk electrolyte (the
+thin-layer picture; see ``model.walls``).
 
-Takes only arrays and scalars: SI wall rows as ``packing.wall_row_si`` builds them, and the ions as the
-(valence, concentration, diffusivity) block of the packed case vector.
+Takes only arrays and scalars: SI wall rows as ``packing.wall_row_si`` builds them (``W_*`` layout), and the
+ions as the ``ION_*`` rows of the packed case vector.
 """
 
 from __future__ import annotations
@@ -11,12 +12,18 @@ import numpy as np
 from numba import njit
 
 from edl_solver.constants import AVOGADRO, ELEMENTARY_CHARGE
-from edl_solver.kernels.fv1d import (
+from edl_solver.kernels.layout import (
     DH,
     FLUX,
+    ION_CONCENTRATION,
+    ION_VALENCE,
     MAX_STATES,
     POTENTIAL,
+    SITE_CHARGES,
+    SITE_DENSITY,
+    SITE_LOG_K,
     SITE_SIZE,
+    SITE_STATES,
     STERIC,
     W_GATE_C,
     W_GATE_V,
@@ -27,7 +34,6 @@ from edl_solver.kernels.fv1d import (
     W_TYPE,
     W_VALUE,
     WALL_SIZE,
-    regulated_charge,
 )
 
 LN_1000 = np.log(1000.0)
@@ -58,29 +64,95 @@ def dimensionless_wall(si, thermal_voltage, permittivity, length, protons):
     row[W_SITES] = sites
     for j in range(sites):
         base = W_SITE0 + j * SITE_SIZE
-        row[base] = ELEMENTARY_CHARGE * si[base] / charge_unit
-        states = int(si[base + 1])
-        row[base + 1] = states
+        row[base + SITE_DENSITY] = ELEMENTARY_CHARGE * si[base + SITE_DENSITY] / charge_unit
+        states = int(si[base + SITE_STATES])
+        row[base + SITE_STATES] = states
         for q in range(MAX_STATES):
-            row[base + 2 + q] = si[base + 2 + q]
+            row[base + SITE_CHARGES + q] = si[base + SITE_CHARGES + q]
         for i in range(states - 1):
-            row[base + 2 + MAX_STATES + i] = LN_1000 - si[base + 2 + MAX_STATES + i] * LN_10 - np.log(protons)
+            row[base + SITE_LOG_K + i] = LN_1000 - si[base + SITE_LOG_K + i] * LN_10 - np.log(protons)
     return row
 
 
 @njit(cache=True)
+def plane_charge(psi0, wall):
+    """Charge sigma_hat of a regulated wall at charge-plane potential psi0, and d sigma_hat / d psi0.
+
+    Fixed part, gate term C_g (V_g - psi0), and for each kind of site with states k = 0..K of charge q_k
+    (successive deprotonations with constants K_i) the Boltzmann-weighted mean charge: f_k proportional
+    to prod_{i<=k} K_i / [H+]_0 with the proton concentration at the plane [H+]_0 = [H+]_bulk exp(-psi0),
+    i.e. log-weight l_k = sum_{i<=k} (ln(K_i / [H+]_bulk) + psi0) (the mass-action law of each step).
+    """
+    sigma = wall[W_SIGMA] + wall[W_GATE_C] * (wall[W_GATE_V] - psi0)
+    dsigma = -wall[W_GATE_C]
+    for j in range(int(wall[W_SITES])):
+        base = W_SITE0 + j * SITE_SIZE
+        density = wall[base + SITE_DENSITY]
+        states = int(wall[base + SITE_STATES])
+        logs = np.empty(states)
+        logs[0] = 0.0
+        top = 0.0
+        for k in range(1, states):
+            logs[k] = logs[k - 1] + wall[base + SITE_LOG_K + k - 1] + psi0
+            top = max(top, logs[k])
+        total = 0.0
+        mean_q = 0.0
+        mean_k = 0.0
+        mean_qk = 0.0
+        for k in range(states):
+            f = np.exp(logs[k] - top)
+            q = wall[base + SITE_CHARGES + k]
+            total += f
+            mean_q += q * f
+            mean_k += k * f
+            mean_qk += q * k * f
+        mean_q /= total
+        mean_k /= total
+        mean_qk /= total
+        sigma += density * mean_q
+        dsigma += density * (mean_qk - mean_q * mean_k)
+    return sigma, dsigma
+
+
+@njit(cache=True)
+def regulated_charge(psi_d, wall):
+    """Charge of a regulated wall whose diffuse layer starts at potential ``psi_d``.
+
+    Solves the Stern relation psi0 = psi_d + sigma(psi0) / C_S for the charge-plane potential (Newton on
+    g(psi0) = psi0 - psi_d - sigma(psi0)/C_S, g' = 1 - sigma'/C_S >= 1 because sigma decreases with
+    psi0), then returns sigma_hat, d sigma_hat / d psi_d = sigma' / (1 - sigma'/C_S) and psi0.
+    """
+    inverse = wall[W_STERN]
+    psi0 = psi_d
+    sigma, dsigma = plane_charge(psi0, wall)
+    if inverse > 0.0:
+        for _ in range(200):
+            g = psi0 - psi_d - inverse * sigma
+            dg = 1.0 - inverse * dsigma
+            step = g / dg
+            if abs(step) > 5.0:  # keep the exponentials of the site weights in range
+                step = 5.0 if step > 0 else -5.0
+            psi0 -= step
+            sigma, dsigma = plane_charge(psi0, wall)
+            if abs(step) < 1e-14 * (1.0 + abs(psi0)):
+                break
+        return sigma, dsigma / (1.0 - inverse * dsigma), psi0
+    return sigma, dsigma, psi0
+
+
+@njit(cache=True)
 def twice_ionic_strength(ions):
-    """sum z^2 c of the (valence, concentration, ...) rows, mol/m^3."""
+    """sum z^2 c of the ``ION_*`` rows, mol/m^3."""
     total = 0.0
     for i in range(ions.shape[0]):
-        total += ions[i, 0] ** 2 * ions[i, 1]
+        total += ions[i, ION_VALENCE] ** 2 * ions[i, ION_CONCENTRATION]
     return total
 
 
 @njit(cache=True)
 def layer_pressure(zeta, ions, model, diameter, thermal_voltage):
     """P(zeta) of the diffuse layer's first integral, J/m^3 (see walls.py; Debye-Hueckel: its quadratic
-    approximation). ``ions`` rows are (valence, concentration, diffusivity)."""
+    approximation). ``ions`` are ``ION_*`` rows."""
     psi = zeta / thermal_voltage
     kt = ELEMENTARY_CHARGE * thermal_voltage
     if model == DH:
@@ -89,10 +161,10 @@ def layer_pressure(zeta, ions, model, diameter, thermal_voltage):
     if model == STERIC:
         volume = diameter**3
         for i in range(ions.shape[0]):
-            total += ions[i, 1] * AVOGADRO * volume * np.expm1(-ions[i, 0] * psi)
+            total += ions[i, ION_CONCENTRATION] * AVOGADRO * volume * np.expm1(-ions[i, ION_VALENCE] * psi)
         return kt / volume * np.log1p(total)
     for i in range(ions.shape[0]):
-        total += ions[i, 1] * np.expm1(-ions[i, 0] * psi)
+        total += ions[i, ION_CONCENTRATION] * np.expm1(-ions[i, ION_VALENCE] * psi)
     return kt * AVOGADRO * total
 
 

@@ -3,7 +3,7 @@
 Solves the discrete Poisson-Boltzmann (or Debye-Hueckel) equation with a damped Newton iteration on
 nested wall-clustered grids, then the two Stokes problems, and extrapolates every section integral
 (Richardson); the grid is refined until the error estimate meets the requested accuracy. The compiled
-driver is ``_adaptive.solve_adaptive``; this module adds the fallback of continuation in the wall
+driver is ``kernels.adaptive.solve_adaptive``; this module adds the fallback of continuation in the wall
 values when Newton fails from the Gouy-Chapman guess, and turns failures into ``ConvergenceError``.
 """
 
@@ -17,8 +17,27 @@ import numpy as np
 from edl_solver.errors import ConvergenceError
 from edl_solver.kernels import adaptive as _adaptive
 from edl_solver.kernels import fv1d as _kernels
+from edl_solver.kernels import single as _single
+from edl_solver.kernels.layout import (
+    ACCURACY_MISSED,
+    CONVERGED,
+    MAX_SITES,
+    NEWTON_FAILED,
+    P_ACCURACY,
+    P_MAX_ITERATIONS,
+    SITE_DENSITY,
+    SITE_SIZE,
+    W_GATE_V,
+    W_SIGMA,
+    W_SITE0,
+    W_VALUE,
+)
+from edl_solver.kernels.records import Controls, SectionProblem, SectionSolve
 from edl_solver.model import grid
-from edl_solver.model.scaling import SectionProblem
+from edl_solver.model.scaling import Prepared
+
+#: The start of a solve from the Gouy-Chapman guess (no profile given).
+_NO_GUESS = np.empty(0)
 
 
 @dataclass(frozen=True)
@@ -29,36 +48,45 @@ class SectionSolution:
     ----------
     grid : Grid
         Finest grid.
-    psi, u_eo, u_p : ndarray
-        Profiles on the finest grid (second-order accurate).
-    integrals : ndarray
-        Richardson-extrapolated section integrals, layout ``_kernels.I_*``.
-    error_estimate : float
-        Estimated relative error of the extrapolated integrals.
+    solved : SectionSolve
+        The compiled solve's record (``kernels.records``): integrals, profiles, error estimate.
     iterations : int
-        Newton iterations, all grids and refinements together.
-    residual : float
-        Max row-scaled residual on the finest grid (kT/e).
+        Newton iterations, all grids, refinements and any continuation together.
     """
 
     grid: grid.Grid
-    psi: np.ndarray
-    u_eo: np.ndarray
-    u_p: np.ndarray
-    integrals: np.ndarray
-    error_estimate: float
+    solved: SectionSolve
     iterations: int
-    residual: float
 
+    @property
+    def psi(self) -> np.ndarray:
+        """Potential on the finest grid (kT/e; fourth-order accurate after the Richardson correction)."""
+        return self.solved.psi
 
-def _run(problem: SectionProblem, accuracy: float, intervals: int, max_iterations: int, max_intervals: int,
-         guess: np.ndarray) -> tuple:
-    out = np.zeros(_kernels.integral_count(problem.ions.shape[0]))
-    result = _adaptive.solve_adaptive(
-        problem.metric, problem.half, problem.kappa2, problem.ions, problem.model, problem.walls,
-        problem.flow_walls, problem.visco, problem.wall_potential_guess, problem.counter_valence, accuracy,
-        intervals, max_intervals, max_iterations, guess, out)
-    return (*result, out)
+    @property
+    def u_eo(self) -> np.ndarray:
+        """EO velocity per unit field on the finest grid (units of eps kT / (e eta))."""
+        return self.solved.u_eo
+
+    @property
+    def u_p(self) -> np.ndarray:
+        """Pressure-driven velocity per unit gradient on the finest grid (units of L^2 / eta)."""
+        return self.solved.u_p
+
+    @property
+    def integrals(self) -> np.ndarray:
+        """Richardson-extrapolated section integrals, layout ``layout.I_*``."""
+        return self.solved.integrals
+
+    @property
+    def error_estimate(self) -> float:
+        """Estimated relative error of the extrapolated integrals."""
+        return self.solved.estimate
+
+    @property
+    def residual(self) -> float:
+        """Max row-scaled residual on the finest grid (kT/e)."""
+        return self.solved.residual
 
 
 def solve_section(problem: SectionProblem, accuracy: float, intervals: int | None = None,
@@ -72,37 +100,69 @@ def solve_section(problem: SectionProblem, accuracy: float, intervals: int | Non
         If Newton fails even with continuation in the wall values, or the error estimate misses
         ``accuracy`` at ``max_intervals`` cells per half section. ``label`` names the case.
     """
-    fixed = intervals or 0
-    status, its, estimate, residual, n_half, s, beta, psi, u_eo, u_p, out = _run(
-        problem, accuracy, fixed, max_iterations, max_intervals, np.empty(0))
-    iterations = its
-    if status == _adaptive.NEWTON_FAILED:
-        guess, its = _continuation(problem, n_half, max_iterations, label)
+    controls = Controls(float(accuracy), int(intervals or 0), int(max_intervals), int(max_iterations))
+    section, _ = _settle(problem, lambda guess: (_adaptive.solve_adaptive(problem, controls, guess),), accuracy,
+                         max_iterations, label)
+    return section
+
+
+def solve_summarized(prepared: Prepared, out: np.ndarray, label: str | Callable[[], str] = ""
+                     ) -> tuple[SectionSolution, np.ndarray, np.ndarray, np.ndarray]:
+    """``solve_section`` of a prepared case with its own numerics, and its summary vector ``out``
+    (``layout.SLOTS``) filled by the same compiled call (``kernels.single.solve_summarized``).
+
+    Returns
+    -------
+    SectionSolution, ndarray, ndarray, ndarray
+        The solution, the ion-resolved and reduced response matrices, and the slip velocities per unit field
+        of the isolated (bottom, top) walls (``kernels.thin_layer.thin_slip``).
+
+    Raises
+    ------
+    ConvergenceError
+        As ``solve_section``.
+    """
+    vector, inputs = prepared.vector, prepared.inputs
+    section, (ion_matrix, matrix, slip) = _settle(
+        inputs.problem, lambda guess: _single.solve_summarized(vector, inputs, guess, out),
+        float(vector[P_ACCURACY]), int(vector[P_MAX_ITERATIONS]), label)
+    return section, ion_matrix, matrix, slip
+
+
+def _settle(problem: SectionProblem, run: Callable[[np.ndarray], tuple], accuracy: float, max_iterations: int,
+            label: str | Callable[[], str]) -> tuple[SectionSolution, tuple]:
+    """Run the compiled solve (``run(guess)`` returns its ``SectionSolve`` first, then anything else) from the
+    Gouy-Chapman guess, again after a continuation when Newton failed, and turn a failure into a
+    ``ConvergenceError``. Returns the solution and the rest of the last run's outcome."""
+    solved, *rest = run(_NO_GUESS)
+    iterations = solved.iterations
+    if solved.status == NEWTON_FAILED:
+        guess, its = _continuation(problem, solved.intervals, max_iterations, label)
         iterations += its
-        status, its, estimate, residual, n_half, s, beta, psi, u_eo, u_p, out = _run(
-            problem, accuracy, fixed, max_iterations, max_intervals, guess)
-        iterations += its
-    if status != _adaptive.CONVERGED and callable(label):  # built only when a message needs it
+        solved, *rest = run(guess)
+        iterations += solved.iterations
+    if solved.status != CONVERGED and callable(label):  # built only when a message needs it
         label = label()
-    if status == _adaptive.NEWTON_FAILED:
+    if solved.status == NEWTON_FAILED:
         raise ConvergenceError(f"{label}: Poisson-Boltzmann Newton iteration did not converge on the "
-                               f"refined grid (scaled residual {residual:.2g})")
-    if status == _adaptive.ACCURACY_MISSED:
+                               f"refined grid (scaled residual {solved.residual:.2g})")
+    if solved.status == ACCURACY_MISSED:
         raise ConvergenceError(
-            f"{label}: the grid error estimate {estimate:.2g} is above the requested accuracy {accuracy:.2g} "
-            f"with {n_half} cells per half section; raise numerics.max_intervals or loosen numerics.accuracy")
-    return SectionSolution(grid.from_nodes(s, beta, problem.metric), psi, u_eo, u_p, out, estimate, iterations,
-                           residual)
+            f"{label}: the grid error estimate {solved.estimate:.2g} is above the requested accuracy "
+            f"{accuracy:.2g} with {solved.intervals} cells per half section; raise numerics.max_intervals or "
+            "loosen numerics.accuracy")
+    finest = grid.from_cells(solved.s, solved.beta, problem.metric, solved.cells)
+    return SectionSolution(finest, solved, iterations), tuple(rest)
 
 
 def _scaled_walls(rows: np.ndarray, t: float) -> np.ndarray:
     """Wall rows with their driving values scaled by t (continuation from uncharged walls at t = 0)."""
     scaled = rows.copy()
-    scaled[:, _kernels.W_VALUE] *= t
-    scaled[:, _kernels.W_SIGMA] *= t
-    scaled[:, _kernels.W_GATE_V] *= t
-    for j in range(_kernels.MAX_SITES):
-        scaled[:, _kernels.W_SITE0 + j * _kernels.SITE_SIZE] *= t  # site densities
+    scaled[:, W_VALUE] *= t
+    scaled[:, W_SIGMA] *= t
+    scaled[:, W_GATE_V] *= t
+    for j in range(MAX_SITES):
+        scaled[:, W_SITE0 + j * SITE_SIZE + SITE_DENSITY] *= t
     return scaled
 
 
@@ -121,9 +181,8 @@ def _continuation(problem: SectionProblem, intervals: int, max_iterations: int, 
     while t < 1.0:
         target = min(1.0, t + step)
         trial[:] = psi
-        status, its, residual = _kernels.pb_newton(
-            trial, g.link, g.volume, problem.kappa2, problem.ions, problem.model, _scaled_walls(problem.walls, target),
-            _adaptive.NEWTON_TOLERANCE, max_iterations, _adaptive.MAX_STEP)
+        status, its, residual = _kernels.pb_newton(trial, g.cells, problem, _scaled_walls(problem.walls, target),
+                                                   _adaptive.NEWTON_TOLERANCE, max_iterations, _adaptive.MAX_STEP)
         iterations += its
         if status == 0:
             psi[:], t, step = trial, target, step * 2.0

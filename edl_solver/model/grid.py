@@ -17,7 +17,7 @@ Finite volumes (control volume of node i between the midpoints of its links)::
     V_i = int r^m dr over the control volume    node volume; half cells at the ends
 
 so the discrete operator (L f)_i = a_i (f_{i+1} - f_i) - a_{i-1} (f_i - f_{i-1}) is symmetric and
-sum_i V_i g_i is the matching quadrature. The arithmetic lives in ``_kernels.finite_volume_metric``.
+sum_i V_i g_i is the matching quadrature. The arithmetic lives in ``kernels.fv1d.finite_volume_metric``.
 """
 
 from __future__ import annotations
@@ -29,6 +29,7 @@ import numpy as np
 
 from edl_solver.kernels import adaptive as _adaptive
 from edl_solver.kernels import fv1d as _kernels
+from edl_solver.kernels.records import Cells
 
 Section = Literal["full", "half"]
 
@@ -41,25 +42,34 @@ class Grid:
     ----------
     s : ndarray
         Uniform computational nodes.
-    x : ndarray
-        Node positions from the centre, dimensionless: -1 (bottom wall) ... 1 (top wall) for a full
-        slit section; 0 (centre or axis) ... 1 (wall) for a half section.
-    link : ndarray
-        Link conductances a_i, length n - 1.
-    volume : ndarray
-        Control-volume weights V_i, length n; they sum to the (half-)section measure.
-    metric : int
-        0 planar slit, 1 axisymmetric capillary.
     beta : float
         Stretching parameter of the tanh map.
+    metric : int
+        0 planar slit, 1 axisymmetric capillary.
+    cells : Cells
+        The finite-volume metric as the kernels take it (``kernels.records.Cells``).
     """
 
     s: np.ndarray
-    x: np.ndarray
-    link: np.ndarray
-    volume: np.ndarray
-    metric: int
     beta: float
+    metric: int
+    cells: Cells
+
+    @property
+    def x(self) -> np.ndarray:
+        """Node positions from the centre, dimensionless: -1 (bottom wall) ... 1 (top wall) for a full slit
+        section; 0 (centre or axis) ... 1 (wall) for a half section."""
+        return self.cells.x
+
+    @property
+    def link(self) -> np.ndarray:
+        """Link conductances a_i, length n - 1."""
+        return self.cells.link
+
+    @property
+    def volume(self) -> np.ndarray:
+        """Control-volume weights V_i, length n; they sum to the (half-)section measure."""
+        return self.cells.volume
 
     @property
     def centre(self) -> int:
@@ -67,12 +77,15 @@ class Grid:
         return int(np.argmin(np.abs(self.s)))
 
 
+def from_cells(s: np.ndarray, beta: float, metric: int, cells: Cells) -> Grid:
+    """Grid of the computational nodes ``s``, mapped with stretching ``beta``, whose metric ``cells`` the
+    kernels have already computed (``kernels.fv1d.finite_volume_metric``)."""
+    return Grid(s=s, beta=beta, metric=metric, cells=cells)
+
+
 def from_nodes(s: np.ndarray, beta: float, metric: int) -> Grid:
     """Grid of the computational nodes ``s`` mapped with stretching ``beta``."""
-    n = s.size
-    x, link, volume, spacing = np.empty(n), np.empty(n - 1), np.empty(n), np.empty(n - 1)
-    _kernels.finite_volume_metric(s, beta, metric, x, link, volume, spacing)
-    return Grid(s=s, x=x, link=link, volume=volume, metric=metric, beta=beta)
+    return from_cells(s, beta, metric, _kernels.finite_volume_metric(s, beta, metric))
 
 
 def build(intervals: int, section: Section, metric: int, inner_length: float) -> Grid:

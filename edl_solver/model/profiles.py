@@ -15,7 +15,6 @@ import numpy as np
 
 from edl_solver.constants import AVOGADRO, ELEMENTARY_CHARGE
 from edl_solver.inputs.case import Case
-from edl_solver.kernels import summary as _summary
 from edl_solver.model import grid
 from edl_solver.model.scaling import Scales
 from edl_solver.model.section import SolvedSection
@@ -50,7 +49,7 @@ def section_profiles(case: Case, vector: np.ndarray, solved: SolvedSection) -> P
     A geometry with two walls (``wall_count`` 2) is measured from its first wall to its second, 0 to
     ``across``, and its half section (two equal walls) is mirrored; one with a single wall from the centre,
     0 to the half-size. The thin-layer profile is the slip velocity of the isolated walls
-    (``_summary.thin_slip``): linear between two walls (the Couette-like profile of two slip velocities),
+    (``kernels.thin_layer.thin_slip``): linear between two walls (the Couette-like profile of two slip velocities),
     uniform (plug) in a capillary.
     """
     units, geometry = solved.units, case.geometry
@@ -67,8 +66,7 @@ def section_profiles(case: Case, vector: np.ndarray, solved: SolvedSection) -> P
     conc = concentrations(psi, case)
     valence = np.array([ion.valence for ion in case.electrolyte.ions])[:, None]
     rho = ELEMENTARY_CHARGE * AVOGADRO * np.sum(valence * conc, axis=0)
-    slip = _summary.thin_slip(vector, solved.isolated)
-    bottom, top = float(slip[0]), float(slip[1])
+    bottom, top = float(solved.slip[0]), float(solved.slip[1])
     if two_walls:
         thin = bottom + (top - bottom) * coordinate / geometry.across
     else:

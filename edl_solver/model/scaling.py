@@ -6,50 +6,30 @@ that Poisson's equation reads laplacian(psi) = -(kappa L)^2 rho_hat with kappa =
 charge sigma_hat = sigma e L / (eps kT) (the outward-normal derivative of psi); EO velocity in units
 of eps E kT / (e eta) and pressure-driven velocity in units of (dp/dx) L^2 / eta.
 
-The arithmetic is compiled (``_prepare.py``) and reads the packed case vector (``packing.py``), so that
-sweeps, which pack many cases at once, turn them into the same numbers.
+The arithmetic is compiled (``kernels.prepare``) and reads the packed case vector (``packing.py``), so that
+sweeps, which pack many cases at once, turn them into the same numbers. ``SectionProblem``, the dimensionless
+statement of the section problem, is the kernels' record (``kernels.records``).
 """
 
 from __future__ import annotations
 
 from dataclasses import dataclass
+from typing import NamedTuple
 
 import numpy as np
 
 from edl_solver.inputs.case import Case
 from edl_solver.kernels import prepare as _prepare
+from edl_solver.kernels.layout import ISO_SIGMA, ISO_ZETA
+from edl_solver.kernels.records import SectionInputs, SectionProblem
 from edl_solver.model import packing
 
-
-@dataclass(frozen=True)
-class SectionProblem:
-    """Dimensionless statement of one cross-section problem, ready for the kernels (see _kernels.py for
-    the packed ``ions``, ``walls`` and ``flow_walls`` arrays).
-
-    The grid's left end is the bottom wall (full slit section) or the centre (half section); the right
-    end is the top wall or the single wall.
-    """
-
-    metric: int
-    half: bool
-    kappa2: float
-    ions: np.ndarray
-    model: int
-    walls: np.ndarray
-    flow_walls: np.ndarray
-    visco: float
-    wall_potential_guess: np.ndarray
-    counter_valence: np.ndarray
-
-    @property
-    def valence(self) -> np.ndarray:
-        """Ion valences."""
-        return self.ions[:, 0]
+__all__ = ["Prepared", "Scales", "SectionProblem", "prepare"]
 
 
-@dataclass(frozen=True)
-class Scales:
-    """SI values of the dimensionless units of one case.
+class Scales(NamedTuple):
+    """SI values of the dimensionless units of one case, in the order of the kernels' scales vector
+    (``layout.S_*``; a named tuple, cheap to build once per solve).
 
     Attributes
     ----------
@@ -93,25 +73,38 @@ class Prepared:
     ----------
     vector : ndarray
         The packed SI inputs (``packing.case_vector``).
-    problem : SectionProblem
+    inputs : SectionInputs
+        The compiled steps' record of the section problem, the scales and the isolated walls
+        (``kernels.prepare.section_inputs``).
     units : Scales
     isolated : tuple
         ((zeta V, sigma C/m^2) of the bottom wall, the same of the top wall), each alone in the bulk
         (``walls.isolated_wall``): the thin-layer picture, the Newton start and the grid stretching.
-    scale_vector, isolated_array : ndarray
-        The same scales and isolated walls as the compiled steps take them.
     """
 
     vector: np.ndarray
-    problem: SectionProblem
+    inputs: SectionInputs
     units: Scales
     isolated: tuple[tuple[float, float], tuple[float, float]]
-    scale_vector: np.ndarray
-    isolated_array: np.ndarray
+
+    @property
+    def problem(self) -> SectionProblem:
+        """The dimensionless section problem."""
+        return self.inputs.problem
+
+    @property
+    def scale_vector(self) -> np.ndarray:
+        """The scales as the compiled steps take them (``layout.S_*``)."""
+        return self.inputs.scales
+
+    @property
+    def isolated_array(self) -> np.ndarray:
+        """The isolated walls as the compiled steps take them ((2, 2) rows ``layout.ISO_*``)."""
+        return self.inputs.isolated
 
 
 def prepare(case: Case) -> Prepared:
-    """The dimensionless kernel inputs, scales and isolated walls of ``case`` (``_prepare.section_inputs``).
+    """The dimensionless kernel inputs, scales and isolated walls of ``case`` (``kernels.prepare.section_inputs``).
 
     Raises
     ------
@@ -119,15 +112,14 @@ def prepare(case: Case) -> Prepared:
         If the isolated wall has no solution (its root is not bracketed).
     """
     vector = packing.case_vector(case)
-    (metric, half, kappa2, ions, model, rows, flows, visco, guess, counter, sc,
-     iso) = _prepare.section_inputs(vector)
-    problem = SectionProblem(metric=metric, half=half, kappa2=kappa2, ions=ions, model=model, walls=rows,
-                             flow_walls=flows, visco=visco, wall_potential_guess=guess, counter_valence=counter)
+    inputs = _prepare.section_inputs(vector)
+    iso = inputs.isolated
     if not np.isfinite(iso).all():  # never seen: the wall and layer charges always cross (walls.py)
         from edl_solver.errors import ConvergenceError
 
         raise ConvergenceError(f"{case.describe()}: no potential balances the charge of a wall alone in the bulk "
                                "(the thin-layer picture and the start of the solve); not solved")
-    units = Scales(*sc.tolist())
-    isolated = ((float(iso[0, 0]), float(iso[0, 1])), (float(iso[1, 0]), float(iso[1, 1])))
-    return Prepared(vector, problem, units, isolated, sc, iso)
+    units = Scales(*inputs.scales.tolist())
+    isolated = ((float(iso[0, ISO_ZETA]), float(iso[0, ISO_SIGMA])),
+                (float(iso[1, ISO_ZETA]), float(iso[1, ISO_SIGMA])))
+    return Prepared(vector, inputs, units, isolated)

@@ -1,10 +1,10 @@
 """One cross-section solved and summarised: the equilibrium double layer, the flow and every summary value.
 
-The compiled path (``_single.solve_packed``) runs the kernel inputs, the nested-grid solve from the
-Gouy-Chapman guess and the compiled summary in one call. A case it does not converge goes the Python path,
+The compiled path (``kernels.single.solve_packed``) builds the kernel inputs, solves the nested grids from the
+Gouy-Chapman guess and fills the summary in one call. A case it does not converge goes the Python path,
 which adds continuation in the wall values and raises ConvergenceError naming the case (``scaling.prepare``,
-``equilibrium.solve_section``); both run the same compiled steps on the same inputs, so their values agree bit
-for bit.
+``equilibrium.solve_summarized``); both run the same compiled steps on the same inputs, so their values agree
+bit for bit.
 """
 
 from __future__ import annotations
@@ -16,7 +16,6 @@ import numpy as np
 from edl_solver.inputs.case import Case
 from edl_solver.kernels import layout as _layout
 from edl_solver.kernels import single as _single
-from edl_solver.kernels import summary as _summary
 from edl_solver.model import equilibrium, scaling
 
 
@@ -36,9 +35,12 @@ class SolvedSection(NamedTuple):
     psi, u_eo, u_p : ndarray
         Profiles on the finest grid.
     scales, isolated : ndarray
-        The ``_prepare`` scales vector (``scaling.Scales``) and the (2, 2) isolated walls (zeta V, sigma C/m^2).
+        The scales vector (``layout.S_*``, ``scaling.Scales``) and the (2, 2) isolated walls (zeta V, sigma
+        C/m^2).
     ion_matrix, matrix : ndarray
-        Ion-resolved and reduced response matrices (``_summary.summarize``).
+        Ion-resolved and reduced response matrices (``kernels.summary``).
+    slip : ndarray
+        Helmholtz-Smoluchowski slip velocities per unit field of the (bottom, top) isolated walls, m^2/(V s).
     """
 
     iterations: int
@@ -53,6 +55,7 @@ class SolvedSection(NamedTuple):
     isolated: np.ndarray
     ion_matrix: np.ndarray
     matrix: np.ndarray
+    slip: np.ndarray
 
     @property
     def units(self) -> scaling.Scales:
@@ -62,7 +65,7 @@ class SolvedSection(NamedTuple):
 
 def solve_and_summarize(vector: np.ndarray, case: Case, values: np.ndarray) -> SolvedSection:
     """Solve the packed case ``vector`` (``packing.case_vector(case)``) and fill its summary vector ``values``
-    (``_layout.SLOTS``).
+    (``layout.SLOTS``).
 
     Raises
     ------
@@ -70,23 +73,17 @@ def solve_and_summarize(vector: np.ndarray, case: Case, values: np.ndarray) -> S
         If Newton fails even with continuation in the wall values, the error estimate misses the accuracy at
         ``numerics.max_intervals``, or a wall alone in the bulk has no solution; the message names the case.
     """
-    numerics = case.numerics
-    solved = _single.solve_packed(vector, numerics.accuracy, numerics.intervals or 0, numerics.max_intervals,
-                                  numerics.max_iterations, values)
-    if solved[0] == _layout.CONVERGED:
-        return SolvedSection._make(solved[1:])  # after the status
+    scales, isolated, solved, ion_matrix, matrix, slip = _single.solve_packed(vector, values)
+    if solved.status == _layout.CONVERGED and np.isfinite(isolated).all():
+        return SolvedSection(solved.iterations, solved.estimate, solved.residual, solved.s, solved.beta, solved.psi,
+                             solved.u_eo, solved.u_p, scales, isolated, ion_matrix, matrix, slip)
     return _with_continuation(case, values)
 
 
 def _with_continuation(case: Case, values: np.ndarray) -> SolvedSection:
     """The Python path: the same compiled steps, with continuation when Newton fails from the guess."""
     prepared = scaling.prepare(case)
-    numerics = case.numerics
-    section = equilibrium.solve_section(prepared.problem, numerics.accuracy, numerics.intervals,
-                                        numerics.max_iterations, numerics.max_intervals, case.describe)
-    ion_matrix, matrix = _summary.summarize_solution(
-        prepared.vector, prepared.scale_vector, prepared.isolated_array, section.integrals, prepared.problem.kappa2,
-        section.grid.s, section.grid.beta, section.u_eo, section.error_estimate, values)
+    section, ion_matrix, matrix, slip = equilibrium.solve_summarized(prepared, values, case.describe)
     return SolvedSection(section.iterations, section.error_estimate, section.residual, section.grid.s,
                          section.grid.beta, section.psi, section.u_eo, section.u_p, prepared.scale_vector,
-                         prepared.isolated_array, ion_matrix, matrix)
+                         prepared.isolated_array, ion_matrix, matrix, slip)

@@ -2,7 +2,7 @@
 electrolyte (the thin-layer picture).
 
 A wall fixes its potential, its charge, or a charge that regulates with its potential (acid-base sites,
-a gate electrode, a Stern layer; see ``case.Wall`` and ``_kernels.plane_charge``). For the isolated wall
+a gate electrode, a Stern layer; see ``case.Wall`` and ``kernels.walls.plane_charge``). For the isolated wall
 the diffuse layer holds the opposite charge, given by the first integral of the Poisson-Boltzmann
 equation (Grahame 1947, Chem. Rev. 41, 441)::
 

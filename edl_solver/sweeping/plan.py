@@ -19,11 +19,10 @@ from typing import Any
 import numpy as np
 
 from edl_solver.errors import InputError
-from edl_solver.kernels import fv1d as k
+from edl_solver.kernels.layout import P_METRIC, P_SLIP, P_SYMMETRIC, P_WALLS, PLANAR, WALL_SIZE
 from edl_solver.model import packing
 
-_WALL_COLUMNS = [np.arange(packing.P_WALLS + side * k.WALL_SIZE, packing.P_WALLS + (side + 1) * k.WALL_SIZE)
-                 for side in range(2)]
+_WALL_COLUMNS = [np.arange(P_WALLS + side * WALL_SIZE, P_WALLS + (side + 1) * WALL_SIZE) for side in range(2)]
 
 
 @dataclass(frozen=True)
@@ -64,10 +63,10 @@ class SweepPlan:
             if columns.size:
                 out[:, columns] = values[at]
             valid &= ok[at]
-        if self.base[packing.P_CAPILLARY] == 0.0:  # a slit is symmetric where its two walls are the same
+        if self.base[P_METRIC] == PLANAR:  # a slit is symmetric where its two walls are the same
             same = np.all(out[:, _WALL_COLUMNS[0]] == out[:, _WALL_COLUMNS[1]], axis=1)
-            same &= out[:, packing.P_SLIP] == out[:, packing.P_SLIP + 1]
-            out[:, packing.P_SYMMETRIC] = same & self.site_names_match
+            same &= out[:, P_SLIP] == out[:, P_SLIP + 1]
+            out[:, P_SYMMETRIC] = same & self.site_names_match
         return out, valid
 
 
@@ -105,7 +104,7 @@ def make_plan(base_table: Mapping[str, Any], axes: Sequence[Any]) -> SweepPlan |
             ok.append(vector is not None)
         stack = np.array(rows)
         changed = _differs(stack, base)
-        changed[packing.P_SYMMETRIC] = False  # recomputed per point
+        changed[P_SYMMETRIC] = False  # recomputed per point
         mine = np.nonzero(changed)[0]
         for column in mine.tolist():
             if column in owner:

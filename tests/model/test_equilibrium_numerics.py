@@ -15,7 +15,7 @@ import pytest
 
 import edl_solver as edl
 from edl_solver.kernels import adaptive as _adaptive
-from edl_solver.kernels import fv1d as _kernels
+from edl_solver.kernels import layout as _kernels
 from edl_solver.model import grid, scaling
 from tests.helpers import SOLVENT
 
@@ -45,11 +45,8 @@ def level_integrals(case: edl.Case, intervals: int) -> np.ndarray:
     psi = np.empty_like(g.x)
     _adaptive.gouy_chapman_guess(g.x, problem.kappa2, problem.half, wall_guess, counter, psi)
     out = np.zeros((_adaptive.LEVELS, _kernels.integral_count(problem.valence.size)))
-    status, _, _, _ = _adaptive.nested_solve(
-        g.s, g.beta, problem.metric, problem.kappa2, problem.ions, problem.model, problem.walls,
-        problem.flow_walls, problem.visco, psi, np.empty_like(psi), np.empty_like(psi), 200, out, 0,
-        np.empty((3, 0)))
-    assert status == 0
+    run = _adaptive.nested_solve(problem, g.s, g.beta, psi, 200, out, 0, np.empty((_kernels.PROFILE_ROWS, 0)))
+    assert run.status == 0
     return out[-1]
 
 

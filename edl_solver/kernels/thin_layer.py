@@ -1,0 +1,160 @@
+"""Compiled thin-layer counterparts of a solved section: the walls' slip velocities, how far the slip model's
+EO profile strays from the full one outside the layers, and the slip model's response matrix.
+
+``model.thin_layer`` states the slip model; the matrix here has the layout of ``response.reduced_matrix``,
+so ``lab.lab_quantities`` reads both alike.
+"""
+
+from __future__ import annotations
+
+import numpy as np
+from numba import njit
+
+from edl_solver.constants import FARADAY, GAS_CONSTANT
+from edl_solver.kernels.layout import (
+    AXISYMMETRIC,
+    ION_CONCENTRATION,
+    ION_DIFFUSIVITY,
+    ION_VALENCE,
+    ISO_SIGMA,
+    ISO_ZETA,
+    P_METRIC,
+    P_PERMITTIVITY,
+    P_SLIP,
+    P_TEMPERATURE,
+    P_VISCOSITY,
+    S_DEBYE_LENGTH,
+    S_EO_VELOCITY,
+    S_LENGTH,
+    S_SECTION_AREA,
+    S_THERMAL_VOLTAGE,
+)
+from edl_solver.kernels.prepare import ion_block
+from edl_solver.kernels.response import salt_totals
+
+#: The thin-layer profile is compared with the full one farther than this many Debye lengths from the walls.
+OUTER_REGION_DEBYE_LENGTHS = 3.0
+
+
+@njit(cache=True, error_model="numpy")
+def thin_slip(p, iso):
+    """Helmholtz-Smoluchowski slip velocity per unit field of the (bottom, top) isolated walls, m^2/(V s):
+    -(eps / eta)(zeta + b sigma / eps) (see ``thin_layer.slip_velocity``)."""
+    eps, eta = p[P_PERMITTIVITY], p[P_VISCOSITY]
+    out = np.empty(2)
+    for side in range(2):
+        out[side] = -eps * 1.0 / eta * (iso[side, ISO_ZETA] + p[P_SLIP + side] * iso[side, ISO_SIGMA] / eps)
+    return out
+
+
+@njit(cache=True, error_model="numpy")
+def outer_deviation(s, beta, u_eo, p, sc, slip):
+    """Largest |thin-layer - full| EO velocity outside the double layers, over the largest slip speed.
+
+    The outer region lies farther than ``OUTER_REGION_DEBYE_LENGTHS`` Debye lengths from every wall; when
+    the layers overlap it shrinks to the centre. Inside the layers the slip model does not claim to hold,
+    so the comparison stops there. ``u_eo`` is the dimensionless EO profile on the finest computational
+    nodes ``s`` of the tanh map with stretching ``beta``.
+    """
+    largest = max(abs(slip[0]), abs(slip[1]))
+    if largest == 0.0:
+        return np.nan
+    length = sc[S_LENGTH]
+    capillary = p[P_METRIC] == AXISYMMETRIC
+    t = np.tanh(beta)
+    farthest = 0.0
+    for i in range(s.size):
+        farthest = max(farthest, length * (1.0 - abs(np.tanh(beta * s[i]) / t)))
+    limit = min(OUTER_REGION_DEBYE_LENGTHS * sc[S_DEBYE_LENGTH], farthest)
+    worst = 0.0
+    for i in range(s.size):
+        x = np.tanh(beta * s[i]) / t
+        distance = length * (1.0 - abs(x))
+        if distance < limit:
+            continue
+        if capillary:
+            thin = slip[1]
+        else:
+            thin = slip[0] + (slip[1] - slip[0]) * (1.0 + x) / 2.0
+        worst = max(worst, abs(thin - sc[S_EO_VELOCITY] * u_eo[i]))
+    return worst / largest
+
+
+@njit(cache=True, error_model="numpy")
+def _chemiosmotic_slip(zeta, ions, p, thermal_voltage):
+    """Thin-layer diffusio-osmotic slip velocity per unit d ln c/dx of a symmetric z:z electrolyte, m^2/s:
+    u = -(eps / eta)(kT / z e)^2 4 ln cosh(z e zeta / 4 kT) d ln c/dx (chemiosmosis; Prieve, Anderson, Ebel &
+    Lowell 1984, J. Fluid Mech. 148, 247, from memory; it follows from the Gouy-Chapman layer, since
+    int_0^inf x (cosh psi - 1) dx = 4 ln cosh(psi_w / 4)). NaN for other electrolytes."""
+    if ions.shape[0] != 2 or ions[0, ION_VALENCE] != -ions[1, ION_VALENCE]:
+        return np.nan
+    z = abs(ions[0, ION_VALENCE])
+    vt = thermal_voltage / z
+    return -p[P_PERMITTIVITY] / p[P_VISCOSITY] * vt * vt * 4.0 * np.log(np.cosh(zeta / (4.0 * vt)))
+
+
+@njit(cache=True, error_model="numpy")
+def _poiseuille(p, sc):
+    """Flow rate per unit solvent force of plain Poiseuille flow with Navier slip, as
+    ``thin_layer.poiseuille_per_gradient`` states it."""
+    eta = p[P_VISCOSITY]
+    if p[P_METRIC] == AXISYMMETRIC:
+        a = sc[S_LENGTH]
+        return np.pi * a**4 * (1.0 + 4.0 * p[P_SLIP + 1] / a) / (8.0 * eta)
+    h = 2.0 * sc[S_LENGTH]
+    b1, b2 = p[P_SLIP], p[P_SLIP + 1]
+    c = h * (h + 2.0 * b2) / (h + b1 + b2)
+    return (-h**3 / 3.0 + c * (h * h / 2.0 + b1 * h)) / (2.0 * eta)
+
+
+@njit(cache=True, error_model="numpy")
+def thin_layer_matrix(p, sc, iso, slip):
+    """The 3 x 3 response matrix of the thin-layer model (layout as ``response.reduced_matrix``).
+
+    Bulk electrolyte everywhere, the double layers reduced to slip velocities: Poiseuille flow with the walls'
+    slip lengths; EO slip (mean of the walls' Helmholtz-Smoluchowski velocities) coupling flow and field both
+    ways (Smoluchowski's streaming relation); bulk conduction K = (F^2 / RT) sum z_i^2 D_i c_i; bulk diffusion
+    and convection of the salt; chemiosmotic slip for the salt force (z:z electrolytes only; NaN otherwise).
+    """
+    ions = ion_block(p)
+    rt = GAS_CONSTANT * p[P_TEMPERATURE]
+    total_c, total_nu = salt_totals(ions)
+    area = sc[S_SECTION_AREA]
+    poiseuille = _poiseuille(p, sc)
+    eo = area * 0.5 * (slip[0] + slip[1])
+    vt = sc[S_THERMAL_VOLTAGE]
+    chemi = 0.5 * (_chemiosmotic_slip(iso[0, ISO_ZETA], ions, p, vt)
+                   + _chemiosmotic_slip(iso[1, ISO_ZETA], ions, p, vt))
+    salt_flow = total_c / total_nu * poiseuille + area * chemi / (-rt * total_nu)
+    conduction = 0.0
+    diffusion = 0.0
+    salt = 0.0
+    for i in range(ions.shape[0]):
+        z, c, d = ions[i, ION_VALENCE], ions[i, ION_CONCENTRATION], ions[i, ION_DIFFUSIVITY]
+        conduction += z * z * d * c
+        diffusion += z * d * c
+        salt += d * c
+    conductance = FARADAY**2 / rt * area * conduction
+    diffusion_current = FARADAY * area / (rt * total_nu) * diffusion
+    salt_diffusion = area / (rt * total_nu**2) * salt
+    salt_current = total_c / total_nu * eo + diffusion_current
+    m = np.empty((3, 3))
+    m[0, 0], m[0, 1], m[0, 2] = poiseuille, eo, salt_flow
+    m[1, 0], m[1, 1], m[1, 2] = eo, conductance, salt_current
+    m[2, 0], m[2, 1], m[2, 2] = salt_flow, salt_current, total_c / total_nu * salt_flow + salt_diffusion
+    return m
+
+
+@njit(cache=True, error_model="numpy")
+def bulk_cation_transference(p):
+    """Cation transference of the bulk electrolyte, sum over cations of z^2 D c / sum over all ions (the
+    Nernst-Einstein shares of the conductivity): the thin-layer model's, whose channel is all bulk."""
+    ions = ion_block(p)
+    bulk = 0.0
+    bulk_cations = 0.0
+    for i in range(ions.shape[0]):
+        share = ions[i, ION_VALENCE] ** 2 * ions[i, ION_DIFFUSIVITY] * ions[i, ION_CONCENTRATION]
+        bulk += share
+        if ions[i, ION_VALENCE] > 0.0:
+            bulk_cations += share
+    return bulk_cations / bulk
