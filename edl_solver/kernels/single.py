@@ -44,13 +44,18 @@ def solve_packed(p, out):
     """``solve_summarized`` of the packed case ``p`` from the Gouy-Chapman guess, its kernel inputs built here
     too (``prepare.section_inputs``): a whole single solve in one compiled call.
 
+    Its results cross into Python as one flat tuple (numba boxes a flat tuple faster than nested records,
+    a few microseconds of a ~30 us solve); ``model.section.SolvedSection`` names them.
+
     Returns
     -------
-    ndarray, ndarray, SectionSolve, ndarray, ndarray, ndarray
-        The scales (``layout.S_*``) and isolated walls (``layout.ISO_*`` rows; not finite when a wall alone
-        in the bulk has no balancing potential, and then nothing else is meaningful), then what
-        ``solve_summarized`` returns.
+    tuple
+        status, iterations, estimate, residual, s, beta, psi, u_eo, u_p of the solve (``SectionSolve``), the
+        scales (``layout.S_*``), the isolated walls (``layout.ISO_*`` rows; not finite when a wall alone in the
+        bulk has no balancing potential, and then nothing else is meaningful), the ion-resolved and reduced
+        response matrices and the slip velocities per unit field of ``solve_summarized``.
     """
     inputs = section_inputs(p)
     solved, ion_matrix, matrix, slip = solve_summarized(p, inputs, np.empty(0), out)
-    return inputs.scales, inputs.isolated, solved, ion_matrix, matrix, slip
+    return (solved.status, solved.iterations, solved.estimate, solved.residual, solved.s, solved.beta, solved.psi,
+            solved.u_eo, solved.u_p, inputs.scales, inputs.isolated, ion_matrix, matrix, slip)

@@ -73,10 +73,10 @@ def solve_and_summarize(vector: np.ndarray, case: Case, values: np.ndarray) -> S
         If Newton fails even with continuation in the wall values, the error estimate misses the accuracy at
         ``numerics.max_intervals``, or a wall alone in the bulk has no solution; the message names the case.
     """
-    scales, isolated, solved, ion_matrix, matrix, slip = _single.solve_packed(vector, values)
-    if solved.status == _layout.CONVERGED and np.isfinite(isolated).all():
-        return SolvedSection(solved.iterations, solved.estimate, solved.residual, solved.s, solved.beta, solved.psi,
-                             solved.u_eo, solved.u_p, scales, isolated, ion_matrix, matrix, slip)
+    status, *solved = _single.solve_packed(vector, values)
+    section = SolvedSection._make(solved)
+    if status == _layout.CONVERGED and np.isfinite(section.isolated).all():
+        return section
     return _with_continuation(case, values)
 
 
