@@ -60,8 +60,7 @@ from edl_solver.constants import FARADAY, GAS_CONSTANT
 from edl_solver.errors import ConvergenceError, InputError
 from edl_solver.inputs.case import Case
 from edl_solver.inputs.units import to_positive_si
-from edl_solver.model import transport
-from edl_solver.model.bulk import bulk_conductivity
+from edl_solver.model.bulk import bulk_conductivity, salt_stoichiometry
 
 __all__ = ["Channel", "ChannelTable", "cases_at", "table_of", "tabulate"]
 
@@ -300,7 +299,7 @@ def tabulate(channel: Channel) -> ChannelTable:
 def _basis(case: Case) -> np.ndarray:
     """The (1 + n) x 3 matrix B of ``_summary.reduced_matrix``: M = B^T L B."""
     valence = np.array([ion.valence for ion in case.electrolyte.ions], dtype=float)
-    total = float(np.sum(transport.salt_stoichiometry(case)))
+    total = float(np.sum(salt_stoichiometry(case)))
     basis = np.zeros((valence.size + 1, 3))
     basis[0, 0] = 1.0
     basis[1:, 1] = valence * FARADAY

@@ -9,7 +9,7 @@ from __future__ import annotations
 import numpy as np
 
 from edl_solver.inputs.case import Case
-from edl_solver.model import transport
+from edl_solver.model.bulk import salt_stoichiometry
 
 __all__ = ["SaltRatios", "reduce_matrices"]
 
@@ -24,5 +24,5 @@ class SaltRatios:
 
     def __init__(self, case: Case):
         ions = case.electrolyte.ions
-        self.total_nu = float(np.sum(transport.salt_stoichiometry(case)))
+        self.total_nu = float(np.sum(salt_stoichiometry(case)))
         self.total_concentration = sum(i.concentration for i in ions) / ions[0].concentration

@@ -1,5 +1,5 @@
-"""The bulk (reservoir) electrolyte's own transport: conductivity, free-solution diffusion potential and the
-Nernst potential of an ideally selective channel between two reservoirs.
+"""The bulk (reservoir) electrolyte's own properties: salt stoichiometry, conductivity, free-solution diffusion
+potential and the Nernst potential of an ideally selective channel between two reservoirs.
 
 Written once here for every Python caller (channel, conductance curves, validity maps); the compiled summary
 (``kernels.summary``) evaluates the same conductivity from the packed case.
@@ -9,9 +9,17 @@ from __future__ import annotations
 
 import math
 
+import numpy as np
+
 from edl_solver.constants import FARADAY, GAS_CONSTANT
 from edl_solver.inputs.case import Case
 from edl_solver.inputs.electrolyte import Ion
+
+
+def salt_stoichiometry(case: Case) -> np.ndarray:
+    """Ions per formula unit of the electrolyte, nu_i = c_i / min_j c_j (KCl 1, 1; CaCl2 1, 2)."""
+    bulk = np.array([ion.concentration for ion in case.electrolyte.ions])
+    return bulk / bulk.min()
 
 
 def bulk_conductivity(case: Case) -> float:
