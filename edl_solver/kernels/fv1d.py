@@ -51,6 +51,7 @@ from edl_solver.kernels.layout import (
     I_UP,
     ION_INTEGRALS,
     POTENTIAL,
+    REGULATED,
     ROBIN,
     SPECIES_PACKING,
     SPECIES_VALENCE,
@@ -114,7 +115,7 @@ def tridiagonal_solve(lower, diag, upper, rhs, out, work):
         out[i] -= work[i] * out[i + 1]
 
 
-@njit(cache=True)
+@njit(cache=True, inline="always")
 def charge(psi, ions, model):
     """Dimensionless charge density rho_hat(psi) and its derivative.
 
@@ -139,18 +140,19 @@ def charge(psi, ions, model):
     return rho, drho
 
 
-@njit(cache=True)
-def _pb_residual(psi, cells, problem, walls, res, scale, jac):
+@njit(cache=True, error_model="numpy")
+def _pb_residual(psi, link, volume, kappa2, ions, model, walls, res, scale, jac):
     """Residual of the discrete Poisson-Boltzmann equation, the size of each row's diagonal and the
     diagonal of the Jacobian.
 
     Row i: a_i (psi_{i+1} - psi_i) - a_{i-1} (psi_i - psi_{i-1}) + kappa2 V_i rho(psi_i) (+ sigma_hat at a
     FLUX or REGULATED end) = 0; a POTENTIAL end reads psi - value = 0. res/scale is a local correction in
     units of kT/e. ``walls`` are the problem's wall rows or, during a continuation, rows scaled from them.
+    The grid's and the problem's arrays come as plain arguments, not as the records: each array unpacked
+    from a record costs a reference count (an atomic call) per call of this hot function. A REGULATED end's
+    charge is added by ``_residual``.
     """
     n = psi.size
-    link, volume = cells.link, cells.volume
-    kappa2, ions, model = problem.kappa2, problem.ions, problem.model
     for i in range(n):
         rho, drho = charge(psi[i], ions, model)
         r = kappa2 * volume[i] * rho
@@ -164,23 +166,34 @@ def _pb_residual(psi, cells, problem, walls, res, scale, jac):
             r -= link[i - 1] * (psi[i] - psi[i - 1])
             d += link[i - 1]
             j -= link[i - 1]
-        end = 0 if i == 0 else (1 if i == n - 1 else -1)
-        if end >= 0:
-            kind = int(walls[end, W_TYPE])
-            if kind == POTENTIAL:
-                r = psi[i] - walls[end, W_VALUE]
-                d = 1.0
-                j = 1.0
-            elif kind == FLUX:
-                r += walls[end, W_VALUE]
-            else:
-                sigma, dsigma, _ = regulated_charge(psi[i], walls[end])
-                r += sigma
-                d += abs(dsigma)
-                j += dsigma
         res[i] = r
         scale[i] = d
         jac[i] = j
+    for end in range(2):
+        i = 0 if end == 0 else n - 1
+        kind = int(walls[end, W_TYPE])
+        if kind == POTENTIAL:
+            res[i] = psi[i] - walls[end, W_VALUE]
+            scale[i] = 1.0
+            jac[i] = 1.0
+        elif kind == FLUX:
+            res[i] += walls[end, W_VALUE]
+
+
+@njit(cache=True)
+def _regulated_ends(psi, walls, res, scale, jac):
+    """Add the charge of a REGULATED end (``walls.regulated_charge``) to the rows of ``_pb_residual``.
+
+    Kept out of ``_pb_residual``, called for every Newton step and line-search trial, so that it has no call
+    and no exception path: numba then prunes the reference counts of its array arguments (~15 atomics a call).
+    """
+    for end in range(2):
+        if int(walls[end, W_TYPE]) == REGULATED:
+            i = 0 if end == 0 else psi.size - 1
+            sigma, dsigma, _ = regulated_charge(psi[i], walls[end])
+            res[i] += sigma
+            scale[i] += abs(dsigma)
+            jac[i] += dsigma
 
 
 @njit(cache=True)
@@ -214,19 +227,14 @@ def pb_newton(psi, cells, problem, walls, tol, max_iter, max_step):
         Max row-scaled residual (kT/e) at exit.
     """
     n = psi.size
-    link = cells.link
-    res = np.empty(n)
-    scale = np.empty(n)
-    jac = np.empty(n)
-    trial_scale = np.empty(n)
-    trial_jac = np.empty(n)
-    lower = np.empty(n)
-    upper = np.empty(n)
-    step = np.empty(n)
-    rhs = np.empty(n)
-    work = np.empty(n)
-    trial = np.empty(n)
-    _pb_residual(psi, cells, problem, walls, res, scale, jac)
+    link, volume, kappa2, ions, model = cells.link, cells.volume, problem.kappa2, problem.ions, problem.model
+    regulated = int(walls[0, W_TYPE]) == REGULATED or int(walls[1, W_TYPE]) == REGULATED
+    rows = np.empty((11, n))  # the work arrays, one allocation
+    res, scale, jac, trial_scale, trial_jac, lower = rows[0], rows[1], rows[2], rows[3], rows[4], rows[5]
+    upper, step, rhs, work, trial = rows[6], rows[7], rows[8], rows[9], rows[10]
+    _pb_residual(psi, link, volume, kappa2, ions, model, walls, res, scale, jac)
+    if regulated:
+        _regulated_ends(psi, walls, res, scale, jac)
     norm, worst = _scaled_norms(res, scale)
     for it in range(1, max_iter + 1):
         for i in range(n):
@@ -247,7 +255,9 @@ def pb_newton(psi, cells, problem, walls, tol, max_iter, max_step):
         if biggest < tol:
             for i in range(n):
                 psi[i] += step[i]
-            _pb_residual(psi, cells, problem, walls, res, scale, jac)
+            _pb_residual(psi, link, volume, kappa2, ions, model, walls, res, scale, jac)
+            if regulated:
+                _regulated_ends(psi, walls, res, scale, jac)
             norm, worst = _scaled_norms(res, scale)
             return 0, it, worst
         lam = 1.0 if biggest <= max_step else max_step / biggest
@@ -255,7 +265,9 @@ def pb_newton(psi, cells, problem, walls, tol, max_iter, max_step):
         for _ in range(60):
             for i in range(n):
                 trial[i] = psi[i] + lam * step[i]
-            _pb_residual(trial, cells, problem, walls, res, trial_scale, trial_jac)
+            _pb_residual(trial, link, volume, kappa2, ions, model, walls, res, trial_scale, trial_jac)
+            if regulated:
+                _regulated_ends(trial, walls, res, trial_scale, trial_jac)
             new = 0.0
             for i in range(n):
                 q = res[i] / scale[i]
@@ -266,7 +278,9 @@ def pb_newton(psi, cells, problem, walls, tol, max_iter, max_step):
                 break
             lam *= 0.5
         if not accepted:
-            _pb_residual(psi, cells, problem, walls, res, scale, jac)
+            _pb_residual(psi, link, volume, kappa2, ions, model, walls, res, scale, jac)
+            if regulated:
+                _regulated_ends(psi, walls, res, scale, jac)
             norm, worst = _scaled_norms(res, scale)
             return 2, it, worst
         for i in range(n):
@@ -325,7 +339,7 @@ def stokes_operator(link, viscosity, wall_viscosity, flow_walls):
 def stokes_solve(factor, volume, rhs, sign, flow_walls, u):
     """Solve div(eta grad u) = sign * rhs with the factored operator (``stokes_operator``), in place on ``u``."""
     n = u.size
-    lower, pivot, ratio = factor[0], factor[1], factor[2]
+    # factor[row, i], not row views: a view costs a reference count per call
     for i in range(n):
         b = sign * rhs[i] * volume[i]
         end = 0 if i == 0 else (1 if i == n - 1 else -1)
@@ -335,30 +349,31 @@ def stokes_solve(factor, volume, rhs, sign, flow_walls, u):
                 b = flow_walls[end, FLOW_VALUE]
             elif kind == FLUX:
                 b -= flow_walls[end, FLOW_VALUE]
-        u[i] = b / pivot[0] if i == 0 else (b - lower[i] * u[i - 1]) / pivot[i]
+        u[i] = b / factor[1, 0] if i == 0 else (b - factor[0, i] * u[i - 1]) / factor[1, i]
     for i in range(n - 2, -1, -1):
-        u[i] -= ratio[i] * u[i + 1]
+        u[i] -= factor[2, i] * u[i + 1]
 
 
 @njit(cache=True)
-def _concentrations(psi, ions, model, out):
-    """c_k / c_k,bulk of every ion at potential psi into ``out`` (linearised for DH, crowding-limited for
-    STERIC); returns rho_hat(psi) (as ``charge``), with one exponential per ion."""
+def _concentrations(psi, ions, model, out, at):
+    """c_k / c_k,bulk of every ion at potential psi into ``out[:, at]`` (linearised for DH, crowding-limited for
+    STERIC); returns rho_hat(psi) (as ``charge``), with one exponential per ion. Takes the column index rather
+    than the column: a view per node would cost a reference count per node."""
     n_ions = ions.shape[0]
     if model == DH:
         for k in range(n_ions):
-            out[k] = 1.0 - ions[k, SPECIES_VALENCE] * psi
+            out[k, at] = 1.0 - ions[k, SPECIES_VALENCE] * psi
         return -psi
     rho = 0.0
     crowd = 1.0
     for k in range(n_ions):
         e = np.exp(-ions[k, SPECIES_VALENCE] * psi)
-        out[k] = e
+        out[k, at] = e
         rho += ions[k, SPECIES_WEIGHT] * e
         crowd += ions[k, SPECIES_PACKING] * (e - 1.0)
     if model == STERIC:
         for k in range(n_ions):
-            out[k] /= crowd
+            out[k, at] /= crowd
         return rho / crowd
     return rho
 
@@ -380,7 +395,7 @@ def section_integrals(psi, cells, problem, centre, u_eo, u_p, out):
     rho = np.empty(n)
     conc = np.empty((n_ions, n))
     for i in range(n):
-        rho[i] = -kappa2 * _concentrations(psi[i], ions, model, conc[:, i])
+        rho[i] = -kappa2 * _concentrations(psi[i], ions, model, conc, i)
     viscosity = np.ones(n - 1)
     wall_viscosity = np.ones(2)
     if visco > 0.0:
