@@ -63,6 +63,9 @@ from edl_solver.kernels.layout import (
 from edl_solver.kernels.records import Cells
 from edl_solver.kernels.walls import regulated_charge
 
+#: Rows of the Stokes right-hand sides and flows of ``section_integrals``: EO, pressure, then one per ion.
+FORCE_EO, FORCE_PRESSURE, FORCE_IONS = 0, 1, 2
+
 #: Start of the three response blocks of the integral vector and its length (``layout.response_offsets``),
 #: compiled for the kernels.
 response_offsets = njit(cache=True)(layout.response_offsets)
@@ -335,7 +338,7 @@ def stokes_operator(link, viscosity, wall_viscosity, flow_walls):
     return factor
 
 
-@njit(cache=True)
+@njit(cache=True, error_model="numpy")
 def stokes_solve(factor, volume, rhs, sign, flow_walls, u):
     """Solve div(eta grad u) = sign * rhs with the factored operator (``stokes_operator``), in place on ``u``."""
     n = u.size
@@ -354,28 +357,75 @@ def stokes_solve(factor, volume, rhs, sign, flow_walls, u):
         u[i] -= factor[2, i] * u[i + 1]
 
 
+@njit(cache=True, error_model="numpy")
+def stokes_solve_rows(factor, volume, rhs, signs, flow_walls, u):
+    """``stokes_solve`` of every row j of ``rhs`` with sign ``signs[j]`` into row j of ``u``, in one sweep: the
+    rows' chains of divisions are independent and overlap in the processor, where one solve after another
+    waits for each division in turn. Each row's arithmetic is ``stokes_solve``'s."""
+    m, n = rhs.shape
+    for i in range(n):
+        end = 0 if i == 0 else (1 if i == n - 1 else -1)
+        kind = int(flow_walls[end, FLOW_CODE]) if end >= 0 else -1
+        for j in range(m):
+            b = signs[j] * rhs[j, i] * volume[i]
+            if kind == POTENTIAL:
+                b = flow_walls[end, FLOW_VALUE]
+            elif kind == FLUX:
+                b -= flow_walls[end, FLOW_VALUE]
+            u[j, i] = b / factor[1, 0] if i == 0 else (b - factor[0, i] * u[j, i - 1]) / factor[1, i]
+    for i in range(n - 2, -1, -1):
+        for j in range(m):
+            u[j, i] -= factor[2, i] * u[j, i + 1]
+
+
 @njit(cache=True)
-def _concentrations(psi, ions, model, out, at):
-    """c_k / c_k,bulk of every ion at potential psi into ``out[:, at]`` (linearised for DH, crowding-limited for
-    STERIC); returns rho_hat(psi) (as ``charge``), with one exponential per ion. Takes the column index rather
-    than the column: a view per node would cost a reference count per node."""
+def _concentrations(psi, ions, model, out, first, at):
+    """c_k / c_k,bulk of every ion at potential psi into ``out[first + k, at]`` (linearised for DH,
+    crowding-limited for STERIC); returns rho_hat(psi) (as ``charge``), with one exponential per ion. Takes
+    indices rather than a column: a view per node would cost a reference count per node."""
     n_ions = ions.shape[0]
     if model == DH:
         for k in range(n_ions):
-            out[k, at] = 1.0 - ions[k, SPECIES_VALENCE] * psi
+            out[first + k, at] = 1.0 - ions[k, SPECIES_VALENCE] * psi
         return -psi
     rho = 0.0
     crowd = 1.0
     for k in range(n_ions):
         e = np.exp(-ions[k, SPECIES_VALENCE] * psi)
-        out[k, at] = e
+        out[first + k, at] = e
         rho += ions[k, SPECIES_WEIGHT] * e
         crowd += ions[k, SPECIES_PACKING] * (e - 1.0)
     if model == STERIC:
         for k in range(n_ions):
-            out[k, at] /= crowd
+            out[first + k, at] /= crowd
         return rho / crowd
     return rho
+
+
+@njit(cache=True)
+def _accumulate(psi, volume, kappa2, forces, flows, out):
+    """The volume integrals of the ``I_*`` vector (all but the end values) from the potential, the Stokes
+    right-hand sides ``forces`` and their ``flows`` (``FORCE_*`` rows, see ``section_integrals``)."""
+    n = psi.size
+    n_ions = forces.shape[0] - FORCE_IONS
+    for j in range(out.size):
+        out[j] = 0.0
+    ion_flow_at, conc_up_at, conc_flow_at, _ = response_offsets(n_ions)
+    for i in range(n):
+        v = volume[i]
+        r = -forces[FORCE_EO, i] / kappa2
+        out[I_PSI] += v * psi[i]
+        out[I_UEO] += v * flows[FORCE_EO, i]
+        out[I_UP] += v * flows[FORCE_PRESSURE, i]
+        out[I_RHO_UEO] += v * r * flows[FORCE_EO, i]
+        out[I_RHO_UP] += v * r * flows[FORCE_PRESSURE, i]
+        out[I_RHO] += v * r
+        for k in range(n_ions):
+            out[ION_INTEGRALS + k] += v * forces[FORCE_IONS + k, i]
+            out[ion_flow_at + k] += v * flows[FORCE_IONS + k, i]
+            out[conc_up_at + k] += v * forces[FORCE_IONS + k, i] * flows[FORCE_PRESSURE, i]
+            for m in range(n_ions):
+                out[conc_flow_at + k * n_ions + m] += v * forces[FORCE_IONS + k, i] * flows[FORCE_IONS + m, i]
 
 
 @njit(cache=True)
@@ -392,10 +442,15 @@ def section_integrals(psi, cells, problem, centre, u_eo, u_p, out):
     flow_walls, visco = problem.flow_walls, problem.visco
     n = psi.size
     n_ions = ions.shape[0]
-    rho = np.empty(n)
-    conc = np.empty((n_ions, n))
+    # the Stokes right-hand sides as rows: EO body force -kappa2 rho_hat, pressure 1, each ion's concentration
+    # (its body force, sign -1: the columns of the linear-response matrix); ``flows`` gets their solutions
+    forces = np.empty((FORCE_IONS + n_ions, n))
+    signs = np.full(FORCE_IONS + n_ions, -1.0)
+    signs[FORCE_EO] = signs[FORCE_PRESSURE] = 1.0
     for i in range(n):
-        rho[i] = -kappa2 * _concentrations(psi[i], ions, model, conc, i)
+        forces[FORCE_EO, i] = -kappa2 * _concentrations(psi[i], ions, model, forces, FORCE_IONS, i)
+        forces[FORCE_PRESSURE, i] = 1.0
+    rho = forces[FORCE_EO]
     viscosity = np.ones(n - 1)
     wall_viscosity = np.ones(2)
     if visco > 0.0:
@@ -409,30 +464,11 @@ def section_integrals(psi, cells, problem, centre, u_eo, u_p, out):
         wall_viscosity[0] = 1.0 + visco * left * left
         wall_viscosity[1] = 1.0 + visco * right * right
     operator = stokes_operator(link, viscosity, wall_viscosity, flow_walls)
-    stokes_solve(operator, volume, rho, 1.0, flow_walls, u_eo)
-    stokes_solve(operator, volume, np.ones(n), 1.0, flow_walls, u_p)
-    # flows driven by the body force on each ion (the columns of the linear-response matrix)
-    ion_flows = np.empty((n_ions, n))
-    for k in range(n_ions):
-        stokes_solve(operator, volume, conc[k], -1.0, flow_walls, ion_flows[k])
-    for j in range(out.size):
-        out[j] = 0.0
-    ion_flow_at, conc_up_at, conc_flow_at, _ = response_offsets(n_ions)
-    for i in range(n):
-        v = volume[i]
-        r = -rho[i] / kappa2
-        out[I_PSI] += v * psi[i]
-        out[I_UEO] += v * u_eo[i]
-        out[I_UP] += v * u_p[i]
-        out[I_RHO_UEO] += v * r * u_eo[i]
-        out[I_RHO_UP] += v * r * u_p[i]
-        out[I_RHO] += v * r
-        for k in range(n_ions):
-            out[ION_INTEGRALS + k] += v * conc[k, i]
-            out[ion_flow_at + k] += v * ion_flows[k, i]
-            out[conc_up_at + k] += v * conc[k, i] * u_p[i]
-            for m in range(n_ions):
-                out[conc_flow_at + k * n_ions + m] += v * conc[k, i] * ion_flows[m, i]
+    flows = np.empty((FORCE_IONS + n_ions, n))
+    stokes_solve_rows(operator, volume, forces, signs, flow_walls, flows)
+    u_eo[:] = flows[FORCE_EO]
+    u_p[:] = flows[FORCE_PRESSURE]
+    _accumulate(psi, volume, kappa2, forces, flows, out)
     out[I_PSI_LEFT] = psi[0]
     out[I_PSI_RIGHT] = psi[n - 1]
     out[I_PSI_CENTRE] = psi[centre]
