@@ -85,10 +85,12 @@ def finite_volume_metric(s, beta, metric):
     volume = np.empty(n)
     dx = np.empty(n - 1)
     t = np.tanh(beta)
+    cosh = np.empty(n)  # each node's cosh once, not once per adjacent link
     for i in range(n):
         x[i] = np.tanh(beta * s[i]) / t
+        cosh[i] = np.cosh(beta * s[i])
     for i in range(n - 1):
-        dx[i] = np.sinh(beta * (s[i + 1] - s[i])) / (np.cosh(beta * s[i]) * np.cosh(beta * s[i + 1]) * t)
+        dx[i] = np.sinh(beta * (s[i + 1] - s[i])) / (cosh[i] * cosh[i + 1] * t)
         link[i] = (0.5 * (x[i] + x[i + 1]) if metric == AXISYMMETRIC else 1.0) / dx[i]
     for i in range(n):
         left = 0.5 * dx[i - 1] if i > 0 else 0.0
