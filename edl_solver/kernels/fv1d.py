@@ -51,6 +51,7 @@ from edl_solver.kernels.layout import (
     I_UP,
     ION_INTEGRALS,
     POTENTIAL,
+    REGULATED,
     ROBIN,
     SPECIES_PACKING,
     SPECIES_VALENCE,
@@ -61,6 +62,9 @@ from edl_solver.kernels.layout import (
 )
 from edl_solver.kernels.records import Cells
 from edl_solver.kernels.walls import regulated_charge
+
+#: Rows of the Stokes right-hand sides and flows of ``section_integrals``: EO, pressure, then one per ion.
+FORCE_EO, FORCE_PRESSURE, FORCE_IONS = 0, 1, 2
 
 #: Start of the three response blocks of the integral vector and its length (``layout.response_offsets``),
 #: compiled for the kernels.
@@ -81,10 +85,12 @@ def finite_volume_metric(s, beta, metric):
     volume = np.empty(n)
     dx = np.empty(n - 1)
     t = np.tanh(beta)
+    cosh = np.empty(n)  # each node's cosh once, not once per adjacent link
     for i in range(n):
         x[i] = np.tanh(beta * s[i]) / t
+        cosh[i] = np.cosh(beta * s[i])
     for i in range(n - 1):
-        dx[i] = np.sinh(beta * (s[i + 1] - s[i])) / (np.cosh(beta * s[i]) * np.cosh(beta * s[i + 1]) * t)
+        dx[i] = np.sinh(beta * (s[i + 1] - s[i])) / (cosh[i] * cosh[i + 1] * t)
         link[i] = (0.5 * (x[i] + x[i + 1]) if metric == AXISYMMETRIC else 1.0) / dx[i]
     for i in range(n):
         left = 0.5 * dx[i - 1] if i > 0 else 0.0
@@ -114,7 +120,7 @@ def tridiagonal_solve(lower, diag, upper, rhs, out, work):
         out[i] -= work[i] * out[i + 1]
 
 
-@njit(cache=True)
+@njit(cache=True, inline="always")
 def charge(psi, ions, model):
     """Dimensionless charge density rho_hat(psi) and its derivative.
 
@@ -139,18 +145,19 @@ def charge(psi, ions, model):
     return rho, drho
 
 
-@njit(cache=True)
-def _pb_residual(psi, cells, problem, walls, res, scale, jac):
+@njit(cache=True, error_model="numpy")
+def _pb_residual(psi, link, volume, kappa2, ions, model, walls, res, scale, jac):
     """Residual of the discrete Poisson-Boltzmann equation, the size of each row's diagonal and the
     diagonal of the Jacobian.
 
     Row i: a_i (psi_{i+1} - psi_i) - a_{i-1} (psi_i - psi_{i-1}) + kappa2 V_i rho(psi_i) (+ sigma_hat at a
     FLUX or REGULATED end) = 0; a POTENTIAL end reads psi - value = 0. res/scale is a local correction in
     units of kT/e. ``walls`` are the problem's wall rows or, during a continuation, rows scaled from them.
+    The grid's and the problem's arrays come as plain arguments, not as the records: each array unpacked
+    from a record costs a reference count (an atomic call) per call of this hot function. A REGULATED end's
+    charge is added by ``_residual``.
     """
     n = psi.size
-    link, volume = cells.link, cells.volume
-    kappa2, ions, model = problem.kappa2, problem.ions, problem.model
     for i in range(n):
         rho, drho = charge(psi[i], ions, model)
         r = kappa2 * volume[i] * rho
@@ -164,23 +171,34 @@ def _pb_residual(psi, cells, problem, walls, res, scale, jac):
             r -= link[i - 1] * (psi[i] - psi[i - 1])
             d += link[i - 1]
             j -= link[i - 1]
-        end = 0 if i == 0 else (1 if i == n - 1 else -1)
-        if end >= 0:
-            kind = int(walls[end, W_TYPE])
-            if kind == POTENTIAL:
-                r = psi[i] - walls[end, W_VALUE]
-                d = 1.0
-                j = 1.0
-            elif kind == FLUX:
-                r += walls[end, W_VALUE]
-            else:
-                sigma, dsigma, _ = regulated_charge(psi[i], walls[end])
-                r += sigma
-                d += abs(dsigma)
-                j += dsigma
         res[i] = r
         scale[i] = d
         jac[i] = j
+    for end in range(2):
+        i = 0 if end == 0 else n - 1
+        kind = int(walls[end, W_TYPE])
+        if kind == POTENTIAL:
+            res[i] = psi[i] - walls[end, W_VALUE]
+            scale[i] = 1.0
+            jac[i] = 1.0
+        elif kind == FLUX:
+            res[i] += walls[end, W_VALUE]
+
+
+@njit(cache=True)
+def _regulated_ends(psi, walls, res, scale, jac):
+    """Add the charge of a REGULATED end (``walls.regulated_charge``) to the rows of ``_pb_residual``.
+
+    Kept out of ``_pb_residual``, called for every Newton step and line-search trial, so that it has no call
+    and no exception path: numba then prunes the reference counts of its array arguments (~15 atomics a call).
+    """
+    for end in range(2):
+        if int(walls[end, W_TYPE]) == REGULATED:
+            i = 0 if end == 0 else psi.size - 1
+            sigma, dsigma, _ = regulated_charge(psi[i], walls[end])
+            res[i] += sigma
+            scale[i] += abs(dsigma)
+            jac[i] += dsigma
 
 
 @njit(cache=True)
@@ -214,19 +232,14 @@ def pb_newton(psi, cells, problem, walls, tol, max_iter, max_step):
         Max row-scaled residual (kT/e) at exit.
     """
     n = psi.size
-    link = cells.link
-    res = np.empty(n)
-    scale = np.empty(n)
-    jac = np.empty(n)
-    trial_scale = np.empty(n)
-    trial_jac = np.empty(n)
-    lower = np.empty(n)
-    upper = np.empty(n)
-    step = np.empty(n)
-    rhs = np.empty(n)
-    work = np.empty(n)
-    trial = np.empty(n)
-    _pb_residual(psi, cells, problem, walls, res, scale, jac)
+    link, volume, kappa2, ions, model = cells.link, cells.volume, problem.kappa2, problem.ions, problem.model
+    regulated = int(walls[0, W_TYPE]) == REGULATED or int(walls[1, W_TYPE]) == REGULATED
+    rows = np.empty((11, n))  # the work arrays, one allocation
+    res, scale, jac, trial_scale, trial_jac, lower = rows[0], rows[1], rows[2], rows[3], rows[4], rows[5]
+    upper, step, rhs, work, trial = rows[6], rows[7], rows[8], rows[9], rows[10]
+    _pb_residual(psi, link, volume, kappa2, ions, model, walls, res, scale, jac)
+    if regulated:
+        _regulated_ends(psi, walls, res, scale, jac)
     norm, worst = _scaled_norms(res, scale)
     for it in range(1, max_iter + 1):
         for i in range(n):
@@ -247,7 +260,9 @@ def pb_newton(psi, cells, problem, walls, tol, max_iter, max_step):
         if biggest < tol:
             for i in range(n):
                 psi[i] += step[i]
-            _pb_residual(psi, cells, problem, walls, res, scale, jac)
+            _pb_residual(psi, link, volume, kappa2, ions, model, walls, res, scale, jac)
+            if regulated:
+                _regulated_ends(psi, walls, res, scale, jac)
             norm, worst = _scaled_norms(res, scale)
             return 0, it, worst
         lam = 1.0 if biggest <= max_step else max_step / biggest
@@ -255,7 +270,9 @@ def pb_newton(psi, cells, problem, walls, tol, max_iter, max_step):
         for _ in range(60):
             for i in range(n):
                 trial[i] = psi[i] + lam * step[i]
-            _pb_residual(trial, cells, problem, walls, res, trial_scale, trial_jac)
+            _pb_residual(trial, link, volume, kappa2, ions, model, walls, res, trial_scale, trial_jac)
+            if regulated:
+                _regulated_ends(trial, walls, res, trial_scale, trial_jac)
             new = 0.0
             for i in range(n):
                 q = res[i] / scale[i]
@@ -266,7 +283,9 @@ def pb_newton(psi, cells, problem, walls, tol, max_iter, max_step):
                 break
             lam *= 0.5
         if not accepted:
-            _pb_residual(psi, cells, problem, walls, res, scale, jac)
+            _pb_residual(psi, link, volume, kappa2, ions, model, walls, res, scale, jac)
+            if regulated:
+                _regulated_ends(psi, walls, res, scale, jac)
             norm, worst = _scaled_norms(res, scale)
             return 2, it, worst
         for i in range(n):
@@ -321,11 +340,11 @@ def stokes_operator(link, viscosity, wall_viscosity, flow_walls):
     return factor
 
 
-@njit(cache=True)
+@njit(cache=True, error_model="numpy")
 def stokes_solve(factor, volume, rhs, sign, flow_walls, u):
     """Solve div(eta grad u) = sign * rhs with the factored operator (``stokes_operator``), in place on ``u``."""
     n = u.size
-    lower, pivot, ratio = factor[0], factor[1], factor[2]
+    # factor[row, i], not row views: a view costs a reference count per call
     for i in range(n):
         b = sign * rhs[i] * volume[i]
         end = 0 if i == 0 else (1 if i == n - 1 else -1)
@@ -335,32 +354,80 @@ def stokes_solve(factor, volume, rhs, sign, flow_walls, u):
                 b = flow_walls[end, FLOW_VALUE]
             elif kind == FLUX:
                 b -= flow_walls[end, FLOW_VALUE]
-        u[i] = b / pivot[0] if i == 0 else (b - lower[i] * u[i - 1]) / pivot[i]
+        u[i] = b / factor[1, 0] if i == 0 else (b - factor[0, i] * u[i - 1]) / factor[1, i]
     for i in range(n - 2, -1, -1):
-        u[i] -= ratio[i] * u[i + 1]
+        u[i] -= factor[2, i] * u[i + 1]
+
+
+@njit(cache=True, error_model="numpy")
+def stokes_solve_rows(factor, volume, rhs, signs, flow_walls, u):
+    """``stokes_solve`` of every row j of ``rhs`` with sign ``signs[j]`` into row j of ``u``, in one sweep: the
+    rows' chains of divisions are independent and overlap in the processor, where one solve after another
+    waits for each division in turn. Each row's arithmetic is ``stokes_solve``'s."""
+    m, n = rhs.shape
+    for i in range(n):
+        end = 0 if i == 0 else (1 if i == n - 1 else -1)
+        kind = int(flow_walls[end, FLOW_CODE]) if end >= 0 else -1
+        for j in range(m):
+            b = signs[j] * rhs[j, i] * volume[i]
+            if kind == POTENTIAL:
+                b = flow_walls[end, FLOW_VALUE]
+            elif kind == FLUX:
+                b -= flow_walls[end, FLOW_VALUE]
+            u[j, i] = b / factor[1, 0] if i == 0 else (b - factor[0, i] * u[j, i - 1]) / factor[1, i]
+    for i in range(n - 2, -1, -1):
+        for j in range(m):
+            u[j, i] -= factor[2, i] * u[j, i + 1]
 
 
 @njit(cache=True)
-def _concentrations(psi, ions, model, out):
-    """c_k / c_k,bulk of every ion at potential psi into ``out`` (linearised for DH, crowding-limited for
-    STERIC); returns rho_hat(psi) (as ``charge``), with one exponential per ion."""
+def _concentrations(psi, ions, model, out, first, at):
+    """c_k / c_k,bulk of every ion at potential psi into ``out[first + k, at]`` (linearised for DH,
+    crowding-limited for STERIC); returns rho_hat(psi) (as ``charge``), with one exponential per ion. Takes
+    indices rather than a column: a view per node would cost a reference count per node."""
     n_ions = ions.shape[0]
     if model == DH:
         for k in range(n_ions):
-            out[k] = 1.0 - ions[k, SPECIES_VALENCE] * psi
+            out[first + k, at] = 1.0 - ions[k, SPECIES_VALENCE] * psi
         return -psi
     rho = 0.0
     crowd = 1.0
     for k in range(n_ions):
         e = np.exp(-ions[k, SPECIES_VALENCE] * psi)
-        out[k] = e
+        out[first + k, at] = e
         rho += ions[k, SPECIES_WEIGHT] * e
         crowd += ions[k, SPECIES_PACKING] * (e - 1.0)
     if model == STERIC:
         for k in range(n_ions):
-            out[k] /= crowd
+            out[first + k, at] /= crowd
         return rho / crowd
     return rho
+
+
+@njit(cache=True)
+def _accumulate(psi, volume, kappa2, forces, flows, out):
+    """The volume integrals of the ``I_*`` vector (all but the end values) from the potential, the Stokes
+    right-hand sides ``forces`` and their ``flows`` (``FORCE_*`` rows, see ``section_integrals``)."""
+    n = psi.size
+    n_ions = forces.shape[0] - FORCE_IONS
+    for j in range(out.size):
+        out[j] = 0.0
+    ion_flow_at, conc_up_at, conc_flow_at, _ = response_offsets(n_ions)
+    for i in range(n):
+        v = volume[i]
+        r = -forces[FORCE_EO, i] / kappa2
+        out[I_PSI] += v * psi[i]
+        out[I_UEO] += v * flows[FORCE_EO, i]
+        out[I_UP] += v * flows[FORCE_PRESSURE, i]
+        out[I_RHO_UEO] += v * r * flows[FORCE_EO, i]
+        out[I_RHO_UP] += v * r * flows[FORCE_PRESSURE, i]
+        out[I_RHO] += v * r
+        for k in range(n_ions):
+            out[ION_INTEGRALS + k] += v * forces[FORCE_IONS + k, i]
+            out[ion_flow_at + k] += v * flows[FORCE_IONS + k, i]
+            out[conc_up_at + k] += v * forces[FORCE_IONS + k, i] * flows[FORCE_PRESSURE, i]
+            for m in range(n_ions):
+                out[conc_flow_at + k * n_ions + m] += v * forces[FORCE_IONS + k, i] * flows[FORCE_IONS + m, i]
 
 
 @njit(cache=True)
@@ -377,10 +444,15 @@ def section_integrals(psi, cells, problem, centre, u_eo, u_p, out):
     flow_walls, visco = problem.flow_walls, problem.visco
     n = psi.size
     n_ions = ions.shape[0]
-    rho = np.empty(n)
-    conc = np.empty((n_ions, n))
+    # the Stokes right-hand sides as rows: EO body force -kappa2 rho_hat, pressure 1, each ion's concentration
+    # (its body force, sign -1: the columns of the linear-response matrix); ``flows`` gets their solutions
+    forces = np.empty((FORCE_IONS + n_ions, n))
+    signs = np.full(FORCE_IONS + n_ions, -1.0)
+    signs[FORCE_EO] = signs[FORCE_PRESSURE] = 1.0
     for i in range(n):
-        rho[i] = -kappa2 * _concentrations(psi[i], ions, model, conc[:, i])
+        forces[FORCE_EO, i] = -kappa2 * _concentrations(psi[i], ions, model, forces, FORCE_IONS, i)
+        forces[FORCE_PRESSURE, i] = 1.0
+    rho = forces[FORCE_EO]
     viscosity = np.ones(n - 1)
     wall_viscosity = np.ones(2)
     if visco > 0.0:
@@ -394,30 +466,11 @@ def section_integrals(psi, cells, problem, centre, u_eo, u_p, out):
         wall_viscosity[0] = 1.0 + visco * left * left
         wall_viscosity[1] = 1.0 + visco * right * right
     operator = stokes_operator(link, viscosity, wall_viscosity, flow_walls)
-    stokes_solve(operator, volume, rho, 1.0, flow_walls, u_eo)
-    stokes_solve(operator, volume, np.ones(n), 1.0, flow_walls, u_p)
-    # flows driven by the body force on each ion (the columns of the linear-response matrix)
-    ion_flows = np.empty((n_ions, n))
-    for k in range(n_ions):
-        stokes_solve(operator, volume, conc[k], -1.0, flow_walls, ion_flows[k])
-    for j in range(out.size):
-        out[j] = 0.0
-    ion_flow_at, conc_up_at, conc_flow_at, _ = response_offsets(n_ions)
-    for i in range(n):
-        v = volume[i]
-        r = -rho[i] / kappa2
-        out[I_PSI] += v * psi[i]
-        out[I_UEO] += v * u_eo[i]
-        out[I_UP] += v * u_p[i]
-        out[I_RHO_UEO] += v * r * u_eo[i]
-        out[I_RHO_UP] += v * r * u_p[i]
-        out[I_RHO] += v * r
-        for k in range(n_ions):
-            out[ION_INTEGRALS + k] += v * conc[k, i]
-            out[ion_flow_at + k] += v * ion_flows[k, i]
-            out[conc_up_at + k] += v * conc[k, i] * u_p[i]
-            for m in range(n_ions):
-                out[conc_flow_at + k * n_ions + m] += v * conc[k, i] * ion_flows[m, i]
+    flows = np.empty((FORCE_IONS + n_ions, n))
+    stokes_solve_rows(operator, volume, forces, signs, flow_walls, flows)
+    u_eo[:] = flows[FORCE_EO]
+    u_p[:] = flows[FORCE_PRESSURE]
+    _accumulate(psi, volume, kappa2, forces, flows, out)
     out[I_PSI_LEFT] = psi[0]
     out[I_PSI_RIGHT] = psi[n - 1]
     out[I_PSI_CENTRE] = psi[centre]

@@ -15,6 +15,9 @@ from edl_solver.kernels.prepare import controls, section_inputs
 from edl_solver.kernels.summary import summarize
 from edl_solver.kernels.thin_layer import outer_deviation, thin_slip
 
+#: Rows of ``solve_packed``'s ``nodes``: computational nodes s, psi, u_eo, u_p of the finest grid.
+NODE_ROWS = 4
+
 
 @njit(cache=True)
 def solve_summarized(p, inputs, guess, out):
@@ -44,18 +47,22 @@ def solve_packed(p, out):
     """``solve_summarized`` of the packed case ``p`` from the Gouy-Chapman guess, its kernel inputs built here
     too (``prepare.section_inputs``): a whole single solve in one compiled call.
 
-    Its results cross into Python as one flat tuple (numba boxes a flat tuple faster than nested records,
-    a few microseconds of a ~30 us solve); ``model.section.SolvedSection`` names them.
+    Its results cross into Python as one flat tuple with few arrays (numba boxes each array it returns, ~0.25 us
+    apiece, and nested records slower still); ``model.section.SolvedSection`` names them.
 
     Returns
     -------
     tuple
-        status, iterations, estimate, residual, s, beta, psi, u_eo, u_p of the solve (``SectionSolve``), the
-        scales (``layout.S_*``), the isolated walls (``layout.ISO_*`` rows; not finite when a wall alone in the
-        bulk has no balancing potential, and then nothing else is meaningful), the ion-resolved and reduced
-        response matrices and the slip velocities per unit field of ``solve_summarized``.
+        usable (converged, and every isolated wall has its balancing potential: otherwise nothing else is
+        meaningful), iterations, estimate, residual and beta of the solve (``SectionSolve``); ``nodes``, the
+        rows s, psi, u_eo, u_p of the finest grid; ``small``, the scales (``layout.S_*``), the isolated walls
+        (``layout.ISO_*`` rows, flattened) and the slip velocities per unit field of ``solve_summarized``; the
+        ion-resolved and reduced response matrices.
     """
     inputs = section_inputs(p)
     solved, ion_matrix, matrix, slip = solve_summarized(p, inputs, np.empty(0), out)
-    return (solved.status, solved.iterations, solved.estimate, solved.residual, solved.s, solved.beta, solved.psi,
-            solved.u_eo, solved.u_p, inputs.scales, inputs.isolated, ion_matrix, matrix, slip)
+    usable = solved.status == CONVERGED and np.isfinite(inputs.isolated).all()
+    nodes = np.empty((NODE_ROWS, solved.s.size))
+    nodes[0], nodes[1], nodes[2], nodes[3] = solved.s, solved.psi, solved.u_eo, solved.u_p
+    small = np.concatenate((inputs.scales, inputs.isolated.ravel(), slip))
+    return usable, solved.iterations, solved.estimate, solved.residual, solved.beta, nodes, small, ion_matrix, matrix

@@ -62,13 +62,15 @@ def outer_deviation(s, beta, u_eo, p, sc, slip):
     length = sc[S_LENGTH]
     capillary = p[P_METRIC] == AXISYMMETRIC
     t = np.tanh(beta)
+    xs = np.empty(s.size)  # the positions once for both passes
     farthest = 0.0
     for i in range(s.size):
-        farthest = max(farthest, length * (1.0 - abs(np.tanh(beta * s[i]) / t)))
+        xs[i] = np.tanh(beta * s[i]) / t
+        farthest = max(farthest, length * (1.0 - abs(xs[i])))
     limit = min(OUTER_REGION_DEBYE_LENGTHS * sc[S_DEBYE_LENGTH], farthest)
     worst = 0.0
     for i in range(s.size):
-        x = np.tanh(beta * s[i]) / t
+        x = xs[i]
         distance = length * (1.0 - abs(x))
         if distance < limit:
             continue

@@ -30,37 +30,64 @@ class SolvedSection(NamedTuple):
         Estimated relative error of the extrapolated integrals.
     residual : float
         Max row-scaled residual on the finest grid (kT/e).
-    s, beta
-        Computational nodes and stretching of the finest grid (``grid.from_nodes``).
-    psi, u_eo, u_p : ndarray
-        Profiles on the finest grid.
-    scales, isolated : ndarray
-        The scales vector (``layout.S_*``, ``scaling.Scales``) and the (2, 2) isolated walls (zeta V, sigma
-        C/m^2).
+    beta : float
+        Stretching of the finest grid (``grid.from_nodes``).
+    nodes : ndarray
+        (4, n) rows: the computational nodes ``s`` of the finest grid and the profiles ``psi``, ``u_eo``, ``u_p``
+        on it (also as properties).
+    small : ndarray
+        The scales vector (``layout.S_*``, ``scaling.Scales``), the (2, 2) isolated walls (zeta V, sigma C/m^2)
+        flattened, and the Helmholtz-Smoluchowski slip velocities per unit field of the (bottom, top) isolated
+        walls, m^2/(V s) (properties ``scales``, ``isolated``, ``slip``). Few arrays, because each array the
+        compiled solve returns costs a boxing.
     ion_matrix, matrix : ndarray
         Ion-resolved and reduced response matrices (``kernels.summary``).
-    slip : ndarray
-        Helmholtz-Smoluchowski slip velocities per unit field of the (bottom, top) isolated walls, m^2/(V s).
     """
 
     iterations: int
     estimate: float
     residual: float
-    s: np.ndarray
     beta: float
-    psi: np.ndarray
-    u_eo: np.ndarray
-    u_p: np.ndarray
-    scales: np.ndarray
-    isolated: np.ndarray
+    nodes: np.ndarray
+    small: np.ndarray
     ion_matrix: np.ndarray
     matrix: np.ndarray
-    slip: np.ndarray
+
+    @property
+    def s(self) -> np.ndarray:
+        return self.nodes[0]
+
+    @property
+    def psi(self) -> np.ndarray:
+        return self.nodes[1]
+
+    @property
+    def u_eo(self) -> np.ndarray:
+        return self.nodes[2]
+
+    @property
+    def u_p(self) -> np.ndarray:
+        return self.nodes[3]
+
+    @property
+    def scales(self) -> np.ndarray:
+        return self.small[:_layout.SCALE_SIZE]
+
+    @property
+    def isolated(self) -> np.ndarray:
+        return self.small[_layout.SCALE_SIZE:_ISOLATED_END].reshape(2, _layout.ISOLATED_SIZE)
+
+    @property
+    def slip(self) -> np.ndarray:
+        return self.small[_ISOLATED_END:]
 
     @property
     def units(self) -> scaling.Scales:
         """The SI values of the dimensionless units."""
         return scaling.Scales(*self.scales.tolist())
+
+
+_ISOLATED_END = _layout.SCALE_SIZE + 2 * _layout.ISOLATED_SIZE
 
 
 def solve_and_summarize(vector: np.ndarray, case: Case, values: np.ndarray) -> SolvedSection:
@@ -73,10 +100,9 @@ def solve_and_summarize(vector: np.ndarray, case: Case, values: np.ndarray) -> S
         If Newton fails even with continuation in the wall values, the error estimate misses the accuracy at
         ``numerics.max_intervals``, or a wall alone in the bulk has no solution; the message names the case.
     """
-    status, *solved = _single.solve_packed(vector, values)
-    section = SolvedSection._make(solved)
-    if status == _layout.CONVERGED and np.isfinite(section.isolated).all():
-        return section
+    usable, *solved = _single.solve_packed(vector, values)
+    if usable:
+        return SolvedSection._make(solved)
     return _with_continuation(case, values)
 
 
@@ -84,6 +110,7 @@ def _with_continuation(case: Case, values: np.ndarray) -> SolvedSection:
     """The Python path: the same compiled steps, with continuation when Newton fails from the guess."""
     prepared = scaling.prepare(case)
     section, ion_matrix, matrix, slip = equilibrium.solve_summarized(prepared, values, case.describe)
-    return SolvedSection(section.iterations, section.error_estimate, section.residual, section.grid.s,
-                         section.grid.beta, section.psi, section.u_eo, section.u_p, prepared.scale_vector,
-                         prepared.isolated_array, ion_matrix, matrix, slip)
+    nodes = np.vstack((section.grid.s, section.psi, section.u_eo, section.u_p))
+    small = np.concatenate((prepared.scale_vector, prepared.isolated_array.ravel(), slip))
+    return SolvedSection(section.iterations, section.error_estimate, section.residual, section.grid.beta, nodes,
+                         small, ion_matrix, matrix)
