@@ -10,6 +10,7 @@ a dict, the verdict, the message, the validity notes) is built when first read (
 
 from __future__ import annotations
 
+import functools
 from typing import Any
 
 import numpy as np
@@ -71,8 +72,19 @@ def check_identities(values: np.ndarray, case: Case) -> None:
                                f"({summary['reciprocity_residual']:.2g}); not returned")
 
 
-#: (key, slot, pair) of every summary value in ``_layout.SLOTS`` order.
-_ENTRIES = tuple((key, at, key in _layout.PAIR_KEYS) for key, at in _layout.SLOTS.items())
+@functools.cache
+def _summary_plan(symmetric: bool, stern: bool) -> tuple[tuple[str, ...], np.ndarray, tuple[bool, ...]]:
+    """The keys of a summary, the slots they read (pair keys: the top wall's slot when symmetric, both slots
+    else) and which keys are pairs, for one (symmetric, Stern layer) kind of case."""
+    keys, slots, pairs = [], [], []
+    for key, at in _layout.SLOTS.items():
+        pair = key in _layout.PAIR_KEYS
+        if key == "stern_potential" and not stern:
+            continue
+        keys.append(key)
+        pairs.append(pair and not symmetric)
+        slots.extend((at, at + 1) if pair and not symmetric else (at + 1 if pair else at,))
+    return tuple(keys), np.array(slots), tuple(pairs)
 
 
 def summary_dict(values: np.ndarray, case: Case) -> dict[str, Any]:
@@ -80,16 +92,13 @@ def summary_dict(values: np.ndarray, case: Case) -> dict[str, Any]:
     when one condition holds on every wall, else (bottom, top); the Stern-plane potential only when a wall
     has a Stern layer. "+ 0.0" turns a negative zero (e.g. the flow of a case with no drive) into a plain
     zero."""
-    flat = values.tolist()
     stern = any(wall.stern_capacitance is not None for wall in case.walls)
-    symmetric = case.symmetric
-    summary: dict[str, Any] = {}
-    for key, at, pair in _ENTRIES:
-        if not pair:
-            summary[key] = flat[at] + 0.0
-        elif key != "stern_potential" or stern:
-            summary[key] = flat[at + 1] + 0.0 if symmetric else (flat[at] + 0.0, flat[at + 1] + 0.0)
-    return summary
+    keys, slots, pairs = _summary_plan(case.symmetric, stern)
+    flat = (values[slots] + 0.0).tolist()
+    if not any(pairs):
+        return dict(zip(keys, flat))
+    taken = iter(flat)
+    return {key: (next(taken), next(taken)) if pair else next(taken) for key, pair in zip(keys, pairs)}
 
 
 def _verdict(result: Result) -> str:
