@@ -3,7 +3,7 @@
 The section solve (kernel inputs, the nested-grid solve of the equilibrium double layer with its flow, the
 Richardson-extrapolated integrals) and the summary (flow rates, currents, the response matrices, the lab
 quantities and their thin-layer counterparts, the identity checks) run compiled in one call
-(``model.section``); sweeps run the same compiled steps on many cases at once (``_batch.py``). Everything that
+(``model.section``); sweeps run the same compiled steps on many cases at once (``kernels.batch``). Everything that
 can fail runs here, before the Result exists; what only presents the solution (profiles in SI, the summary as
 a dict, the verdict, the message, the validity notes) is built when first read (``results.result.Deferred``).
 """
@@ -64,7 +64,7 @@ def solve(case: Case) -> Result:
 
 def check_identities(values: np.ndarray, case: Case) -> None:
     """Raise ConvergenceError when the discrete solution violates charge balance or Onsager reciprocity
-    beyond ``_summary.IDENTITY_TOLERANCE`` (``_summary.identities_hold``)."""
+    beyond ``kernels.identities.IDENTITY_TOLERANCE`` (``identities_hold``)."""
     if not _summary.identities_hold(values):
         summary = summary_dict(values, case)
         raise ConvergenceError(f"{case.describe()}: the discrete solution violates charge balance "

@@ -194,7 +194,7 @@ class IonMatrixSpline:
 
 def _zero_current_gradient(matrices: np.ndarray, rt: float, total_nu: float, total_c: np.ndarray) -> np.ndarray:
     """dV/d ln c at zero current and no hydrostatic gradient: X_P = RT sum c_i, X_s = -RT sum nu per unit
-    d ln c/dx, E = -(M_IP X_P + M_Is X_s) / M_II (as ``_summary.lab_quantities``)."""
+    d ln c/dx, E = -(M_IP X_P + M_Is X_s) / M_II (as ``kernels.lab.lab_quantities``)."""
     x_p, x_s = rt * total_c, -rt * total_nu
     return (matrices[:, 1, 0] * x_p + matrices[:, 1, 2] * x_s) / matrices[:, 1, 1]
 
@@ -297,7 +297,7 @@ def tabulate(channel: Channel) -> ChannelTable:
 
 
 def _basis(case: Case) -> np.ndarray:
-    """The (1 + n) x 3 matrix B of ``_summary.reduced_matrix``: M = B^T L B."""
+    """The (1 + n) x 3 matrix B of ``kernels.response.reduced_matrix``: M = B^T L B."""
     valence = np.array([ion.valence for ion in case.electrolyte.ions], dtype=float)
     total = float(np.sum(salt_stoichiometry(case)))
     basis = np.zeros((valence.size + 1, 3))

@@ -15,7 +15,7 @@ __all__ = ["SaltRatios", "reduce_matrices"]
 
 
 def reduce_matrices(ion_matrices: np.ndarray, basis: np.ndarray) -> np.ndarray:
-    """M = B^T L B (``_summary.reduced_matrix``) for a stack of ion matrices."""
+    """M = B^T L B (``kernels.response.reduced_matrix``) for a stack of ion matrices."""
     return np.einsum("ai,kab,bj->kij", basis, ion_matrices, basis)
 
 

@@ -1,5 +1,5 @@
 """Compiled arithmetic on arrays for one grid: the Poisson-Boltzmann Newton iteration, the Stokes solve
-and the section integrals (nested grids and error control are in _adaptive.py).
+and the section integrals (nested grids and error control are in adaptive.py).
 
 Everything here takes only arrays, scalars and the records of ``kernels.records`` (a ``SectionProblem``, a
 grid's ``Cells``) and knows nothing of cases or units (see grid.py for the finite-volume metric and

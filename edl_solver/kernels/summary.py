@@ -3,7 +3,7 @@ holds, in one float vector (layout ``layout.SLOTS``), plus the ion-resolved and 
 
 The physics lives beside it, one concern per module, each stating its sources: the response matrices
 (``response``), the lab quantities (``lab``), the thin-layer counterparts (``thin_layer``) and the identity
-checks (``identities``); flow.py and transport.py state the flow-rate and current integrals. One compiled
+checks (``identities``); model/profiles.py states the flow and concentration profiles. One compiled
 copy serves a single solve (``pipeline``) and a sweep (``batch``) alike, so their values are identical.
 """
 

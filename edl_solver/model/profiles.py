@@ -2,11 +2,11 @@
 the electroosmotic and pressure-driven velocities and the thin-layer slip profile.
 
 The Stokes equation eta laplacian(u) = dp/dx - rho_e E is solved on the same grid as the potential
-(in ``_kernels.section_integrals``): the EO part laplacian(u_eo) = -rho_e E / eta and the pressure part
+(in ``kernels.fv1d.section_integrals``): the EO part laplacian(u_eo) = -rho_e E / eta and the pressure part
 laplacian(u_p) = (dp/dx) / eta, each with no slip at the walls. With uniform eps and eta the EO part
 equals -(eps E / eta)(zeta - phi) exactly (the check of the numerical solve). The flow rates
 Q_eo = E (eps kT / e eta) int u_eo_hat dA and Q_p = (dp/dx)(L^2 / eta) int u_p_hat dA are part of the
-compiled summary (``_summary.summarize``); this module turns the profiles into SI.
+compiled summary (``kernels.summary.summarize``); this module turns the profiles into SI.
 """
 
 from __future__ import annotations

@@ -8,7 +8,7 @@ relation at the bulk concentration, as a practitioner would (a regulating wall: 
 charge and potential of the isolated wall).
 
 The thin-layer counterparts in a result's summary (its response matrix with chemiosmotic slip, the lab
-quantities and their errors) are computed, compiled, in ``_summary.py`` (``thin_layer_matrix``).
+quantities and their errors) are computed, compiled, in ``kernels/thin_layer.py`` (``thin_layer_matrix``).
 """
 
 from __future__ import annotations

@@ -29,7 +29,7 @@ def isolated_wall(wall: Wall, electrolyte: Electrolyte, solvent: Solvent, model:
 
     Fixed potential: sigma from the layer's first integral; fixed charge: zeta by inverting it; regulated:
     the root of sigma_wall(zeta) = sigma_layer(zeta) (the wall charge falls and the layer charge rises with
-    zeta, so the root is unique). Compiled in ``_walls.isolated_wall``.
+    zeta, so the root is unique). Compiled in ``kernels.walls.isolated_wall``.
     """
     protons = electrolyte.proton_concentration
     diameter = electrolyte.ions[0].diameter if model == "steric" else 0.0

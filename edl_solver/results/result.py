@@ -93,9 +93,9 @@ class Result:
         Notes on the physical validity of the model for this case.
     response_matrix : ndarray, optional
         3 x 3 linear-response matrix of (volume flow, current, salt flux) against (solvent force X_P = -dp/dx
-        + RT sum c_i d ln c/dx, field E, salt force X_s), per unit length; see ``_summary.reduced_matrix``.
+        + RT sum c_i d ln c/dx, field E, salt force X_s), per unit length; see ``kernels.response.reduced_matrix``.
     ion_response_matrix : ndarray, optional
-        The same resolved per ion, (1 + n) x (1 + n); see ``_summary.ion_response_matrix``.
+        The same resolved per ion, (1 + n) x (1 + n); see ``kernels.response.ion_response_matrix``.
 
     Notes
     -----

@@ -1,6 +1,6 @@
 """Packed case vectors for a whole sweep, assembled from its axes without building a Case per point.
 
-Each value of each axis is applied to the base case alone (through ``sweep_axes.case_at``, exactly as a single
+Each value of each axis is applied to the base case alone (through ``inputs.paths.case_at``, exactly as a single
 point is built) and packed (``packing.case_vector``); the columns of the packed vector an axis changes are
 its own. When no two axes change the same column, the vector of any point is the base's with every axis's
 columns taken from its value at the point's index. The symmetry flag of a slit depends on both walls, which

@@ -1,6 +1,6 @@
 """Design-space sweeps: many cases from a base case and axes over its inputs, into one xarray Dataset.
 
-The axes (which inputs, their units, the case at a point) are in ``sweep_axes``; where the results go
+The axes (which inputs, their units, the case at a point) are in ``inputs.paths``; where the results go
 (memory or a resumable file) in ``sweep_store``; how points are packed for the compiled batch in
 ``sweep_plan``; profiles on request in ``sweep_profiles``. This module runs the sweep.
 
@@ -39,7 +39,7 @@ def solve_rows(base_table: Mapping[str, Any], axes: Sequence[Axis], rows: Sequen
     """Solve the cases of some rows (lines along the last axis); a module-level function so that worker
     processes and Dask workers can run it.
 
-    With a ``plan`` the cases are packed from it and solved in one compiled batch (``_batch.solve_cases``,
+    With a ``plan`` the cases are packed from it and solved in one compiled batch (``kernels.batch.solve_cases``,
     the same compiled steps as ``edl_solver.solve``); cases the batch cannot finish (no convergence from the
     start guess, an invalid combination of inputs) and every case without a plan go through
     ``edl_solver.solve`` one by one, which also words the reason of a failure. With ``profile_points``
