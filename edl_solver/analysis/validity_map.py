@@ -15,6 +15,7 @@ import json
 import math
 import os
 from collections.abc import Sequence
+from contextlib import nullcontext
 from typing import Any
 
 import numpy as np
@@ -32,7 +33,7 @@ from edl_solver.analysis.map_axes import (
 from edl_solver.analysis.thin_layer_errors import thin_layer_current_per_field
 from edl_solver.errors import InputError
 from edl_solver.inputs.case import Case
-from edl_solver.io.files import checked_output_path
+from edl_solver.io.files import checked_output_path, output_lock
 from edl_solver.io.map_file import write_map
 
 __all__ = ["validity_map"]
@@ -45,7 +46,7 @@ _BOUNDARY_PREFERENCE = ("kappa_h", *SIZE_PATHS, "electrolyte.concentration")
 def validity_map(base: Case, x_axis: tuple[str, Any], y_axis: tuple[str, Any], *,
                  tolerances: Sequence[float | str] = (0.01, 0.05, 0.10),
                  path: str | os.PathLike[str] | None = None, boundary_tolerance: float | str | None = None,
-                 **sweep_options: Any) -> Any:
+                 overwrite: bool = False, **sweep_options: Any) -> Any:
     """Solve every case of a plane of two inputs and map the thin-layer model's errors.
 
     Parameters
@@ -61,12 +62,15 @@ def validity_map(base: Case, x_axis: tuple[str, Any], y_axis: tuple[str, Any], *
         Fractions (0.05 or "5 %") at which the figure draws contour lines; stored as an attribute.
     path : str or Path, optional
         netCDF-4 file for the map, written atomically. The sweep streams to ``<path>.sweep`` meanwhile
-        (``resume=True`` finishes an interrupted one); it is removed once the map is written.
+        (``resume=True`` finishes an interrupted one); it is removed once the map is written. ``<path>.lock``
+        is locked throughout, so that another run on the same map is refused.
     boundary_tolerance : float or str, optional
         Also find the boundary where |EO flow-rate error| equals this tolerance, by root-finding along
         the map's size axis ("kappa_h", "geometry.height" or "geometry.radius"), else its concentration
         axis, else its y axis, for each value of the other axis, within the map's range (NaN where the
         boundary lies outside it); stored as the variable ``boundary``.
+    overwrite : bool
+        Replace a file that already exists at ``path`` (by default it is kept and the map refused).
     **sweep_options
         ``workers``, ``dask``, ``rows_per_task``, ``progress``, ``resume`` of ``edl_solver.sweeping.run.sweep``.
 
@@ -83,19 +87,35 @@ def validity_map(base: Case, x_axis: tuple[str, Any], y_axis: tuple[str, Any], *
     Raises
     ------
     InputError
-        Bad axes, tolerances, options or output path (before anything is solved or written).
+        Bad axes, tolerances, options or output path, a file at ``path`` without ``overwrite``, or another
+        run writing ``path`` (before anything is solved or written).
     """
-    from edl_solver.sweeping.run import sweep
-
     check_base(base)
     x, y = map_axes(base, x_axis, y_axis)
     levels = checked_tolerances(tolerances)
     overlay = None if boundary_tolerance is None else checked_tolerance(boundary_tolerance, "boundary_tolerance")
     if "zipped" in sweep_options or "axes" in sweep_options:
         raise InputError("sweep_options: a map has exactly two independent axes, expected no 'zipped' or 'axes'")
+    if not isinstance(overwrite, bool):
+        raise InputError(f"overwrite: {overwrite!r} is not allowed, expected True or False")
     target = checked_output_path(path) if path is not None else None
+    with output_lock(target) if target is not None else nullcontext():
+        if target is not None and target.exists() and not overwrite:
+            raise InputError(f"path: {str(path)!r} already exists, expected a new file name, or overwrite=True "
+                             "to replace it")
+        return _solve_map(base, (x, y), levels, overlay, target, sweep_options)
+
+
+def _solve_map(base: Case, axes: tuple[MapAxis, MapAxis], levels: tuple[float, ...], overlay: float | None,
+               target: Any, sweep_options: dict[str, Any]) -> Any:
+    """The map's sweep (to ``<target>.sweep``, the map's scratch file, replaced if a failed run left it),
+    the map and its boundary, written to ``target``."""
+    from edl_solver.sweeping.run import sweep
+
+    x, y = axes
     raw = target.with_name(target.name + ".sweep") if target is not None else None
-    data = sweep(base, {y.path: list(y.inputs), x.path: list(x.inputs)}, path=raw, **sweep_options)
+    data = sweep(base, {y.path: list(y.inputs), x.path: list(x.inputs)}, path=raw, overwrite=raw is not None,
+                 **sweep_options)
     if raw is not None:  # a very large sweep comes back lazily from its file, which is removed below
         data.load().close()
     data = _map_dataset(data, base, x, y, levels)

@@ -4,18 +4,20 @@ Registered by ``edl_solver.cli.app`` through :func:`add_map_command`; :func:`run
 reports its own errors, so that a parser built elsewhere can run it too).
 Exit codes as for the other commands: 0 done, 2 bad input (one line ``edl: error: ...`` on stderr and
 no output file), 3 no convergence. Everything is checked before the first solve; the files are written
-last, each atomically.
+last, each atomically. With -o the map file's lock (``MAP.h5.lock``) is held throughout, so that a second
+run on the same map is refused at once; an existing map file is replaced only with --overwrite.
 """
 
 from __future__ import annotations
 
 import argparse
 import math
+from contextlib import nullcontext
 from pathlib import Path
 from typing import Any
 
 from edl_solver.cli.exit_codes import EXIT_CONVERGENCE, EXIT_INPUT, EXIT_INTERRUPTED, EXIT_OK, fail
-from edl_solver.cli.output_files import writable
+from edl_solver.cli.output_files import existing_output, writable
 
 __all__ = ["VALUE_FLAGS", "add_map_command", "parse_axis", "run_map_command"]
 
@@ -43,7 +45,8 @@ examples:
 
 The map file opens with xarray.open_dataset(path, engine="h5netcdf"): the errors
 thin_layer_flow_rate_error and thin_layer_current_error ((thin - full)/full) on the two axes, every
-summary value, the status of each case and the root-found boundary at --tolerance.
+summary value, the status of each case and the root-found boundary at --tolerance. An existing map
+file is kept unless --overwrite is given; a second run on a map being written is refused.
 """
 
 
@@ -74,6 +77,7 @@ def add_map_command(subparsers: Any) -> None:
     parser.add_argument("--workers", metavar="N", default="1", help="local worker processes (default: 1)")
     parser.add_argument("--resume", action="store_true",
                         help="finish a map interrupted by Ctrl-C or a crash (its cases are kept next to -o MAP.h5)")
+    parser.add_argument("--overwrite", action="store_true", help="replace MAP.h5 if it exists (by default it is kept)")
     parser.add_argument("-q", "--quiet", action="store_true", help="print nothing but errors")
     parser.set_defaults(run=run_map_command)
 
@@ -142,12 +146,10 @@ def run_map_command(args: argparse.Namespace) -> int:
 
 def _run(args: argparse.Namespace) -> int:
     from edl_solver.analysis.map_axes import check_axes
-    from edl_solver.analysis.validity_map import validity_map
-    from edl_solver.errors import ConvergenceError, InputError
+    from edl_solver.errors import InputError
     from edl_solver.inputs.casefile import load_case
     from edl_solver.inputs.units import to_si
-    from edl_solver.plot.validity import map_figure
-    from edl_solver.results.schema import CONVERGED
+    from edl_solver.io.files import output_lock
 
     base = load_case(args.case)
     x_axis, y_axis = parse_axis(args.x_axis, "--x"), parse_axis(args.y_axis, "--y")
@@ -163,11 +165,26 @@ def _run(args: argparse.Namespace) -> int:
     if not workers.isdigit() or int(workers) < 1:
         raise InputError(f"--workers: {args.workers!r} is not allowed, expected a positive whole number")
     outputs = _outputs(args)
+    # the map file's lock, held to the end (validity_map takes it again), before the look for an interrupted map
+    with output_lock(outputs["map"], "-o") if "map" in outputs else nullcontext():
+        if "map" in outputs:
+            existing_output("-o", outputs["map"], args.overwrite)
+        return _solve_and_write(args, base, (x_axis, y_axis), tolerance, int(workers), outputs)
+
+
+def _solve_and_write(args: argparse.Namespace, base: Any, axes: tuple[Any, Any], tolerance: float, workers: int,
+                     outputs: dict[str, Path]) -> int:
+    """The map (from the interrupted sweep with --resume), its files and its summary."""
+    from edl_solver.analysis.validity_map import validity_map
+    from edl_solver.errors import ConvergenceError
+    from edl_solver.plot.validity import map_figure
+    from edl_solver.results.schema import CONVERGED
+
     partial = _interrupted_sweep(args, outputs)
     try:
-        data = validity_map(base, x_axis, y_axis, tolerances=sorted({*_CONTOUR_TOLERANCES, tolerance}),
-                            path=outputs.get("map"), boundary_tolerance=tolerance, workers=int(workers),
-                            resume=args.resume)
+        data = validity_map(base, *axes, tolerances=sorted({*_CONTOUR_TOLERANCES, tolerance}),
+                            path=outputs.get("map"), boundary_tolerance=tolerance, workers=workers,
+                            resume=args.resume, overwrite=args.overwrite)
     except KeyboardInterrupt:
         if partial is None or not partial.exists():
             return fail("interrupted before any case was kept", EXIT_INTERRUPTED)

@@ -1,5 +1,5 @@
 """The output files of the ``edl`` commands: their flags, and the checks made before any work is done, so
-that a bad path costs nothing and writes nothing."""
+that a bad path, or one another run is writing, costs nothing and writes nothing."""
 
 from __future__ import annotations
 
@@ -7,7 +7,7 @@ import argparse
 import os
 from pathlib import Path
 
-__all__ = ["OUTPUT_FLAGS", "add_output_flags", "result_and_figure", "writable"]
+__all__ = ["OUTPUT_FLAGS", "add_output_flags", "existing_output", "result_and_figure", "writable"]
 
 #: The flags of :func:`add_output_flags` that take a value.
 OUTPUT_FLAGS = ("-o", "--output", "--figure")
@@ -43,9 +43,11 @@ def writable(flag: str, value: str) -> Path:
     Raises
     ------
     InputError
-        An empty name, a directory, a directory that does not exist or is not writable.
+        An empty name, a directory, a directory that does not exist or is not writable, or a file another
+        run is writing (it holds the file's lock, ``edl_solver.io.files.output_lock``).
     """
     from edl_solver.errors import InputError
+    from edl_solver.io.files import check_unlocked
 
     if not value.strip():
         raise InputError(f"{flag}: {value!r} is empty, expected a file name")
@@ -58,4 +60,20 @@ def writable(flag: str, value: str) -> Path:
         raise InputError(f"{flag}: {value!r} cannot be written, its directory {str(parent)!r} {state}")
     if not os.access(parent, os.W_OK | os.X_OK):
         raise InputError(f"{flag}: {value!r} cannot be written, its directory {str(parent)!r} is not writable")
+    check_unlocked(path, flag)
     return path
+
+
+def existing_output(flag: str, path: Path, overwrite: bool) -> None:
+    """Refuse to replace an existing ``path`` (a finished sweep or map, or any other file) without --overwrite.
+
+    Raises
+    ------
+    InputError
+        If ``path`` exists and ``overwrite`` is false; the message says how to replace it.
+    """
+    from edl_solver.errors import InputError
+
+    if path.exists() and not overwrite:
+        raise InputError(f"{flag}: {str(path)!r} already exists; add --overwrite to replace it, or choose another "
+                         f"file name with {flag}")

@@ -1,5 +1,7 @@
 """``edl sweep``: every case of a design space given by a TOML sweep file, written to one HDF5 (netCDF-4)
-file; an interrupted sweep keeps what it finished in ``OUT.h5.partial`` and says how to resume."""
+file; an interrupted sweep keeps what it finished in ``OUT.h5.partial`` and says how to resume. The output's
+lock (``OUT.h5.lock``) is held from the first look at ``OUT.h5.partial`` to the end, so that a second run on
+the same output is refused at once; a finished ``OUT.h5`` is replaced only with --overwrite."""
 
 from __future__ import annotations
 
@@ -8,7 +10,7 @@ from pathlib import Path
 from typing import Any
 
 from edl_solver.cli.exit_codes import EXIT_INTERRUPTED, EXIT_OK, EXIT_WRITE_FAILED, fail
-from edl_solver.cli.output_files import writable
+from edl_solver.cli.output_files import existing_output, writable
 
 __all__ = ["VALUE_FLAGS", "add_sweep_command", "run_sweep_command"]
 
@@ -21,6 +23,7 @@ examples:
   edl sweep design.toml -o runs/design.h5 --workers 4
   edl sweep design.toml --dask tcp://scheduler:8786
   edl sweep design.toml --resume             # finish an interrupted sweep (design.h5.partial)
+  edl sweep design.toml --overwrite          # replace a finished design.h5
 
 A sweep file is a case file plus a [sweep] table whose [sweep.axes] give the values of the inputs
 to vary, one dimension per axis, in the file's order:
@@ -33,7 +36,9 @@ to vary, one dimension per axis, in the file's order:
 'zip = [["a", "b"]]' in [sweep] varies axes a and b together (see edl_solver.sweeping.file).
 'output_profiles = 101' in [sweep] also stores every case's profiles at 101 positions across the section.
 Results stream to OUT.h5.partial, renamed OUT.h5 when complete; an interrupted sweep keeps what it
-finished, and --resume finishes it. Cases that fail are kept with status 1 and a message.
+finished, and --resume finishes it. Cases that fail are kept with status 1 and a message. An existing
+OUT.h5 is kept unless --overwrite is given; a second run on an OUT.h5 being written is refused (the
+running one holds OUT.h5.lock).
 Open the result with xarray.open_dataset("OUT.h5", engine="h5netcdf").
 """
 
@@ -56,13 +61,16 @@ def add_sweep_command(commands: Any) -> None:
                             "'distributed' package); the results are written here")
     sweep.add_argument("--resume", action="store_true",
                        help="finish the interrupted sweep kept in OUT.h5.partial (same sweep file)")
+    sweep.add_argument("--overwrite", action="store_true", help="replace OUT.h5 if it exists (by default it is kept)")
     sweep.add_argument("-q", "--quiet", action="store_true", help="print nothing but errors (no progress bar)")
     sweep.set_defaults(run=run_sweep_command)
 
 
 def run_sweep_command(args: argparse.Namespace) -> int:
-    """Check the sweep file, the output and the cluster, then sweep; nothing is written before."""
+    """Check the sweep file and the output, take the output's lock, check what is there and the cluster, then
+    sweep; nothing is written before."""
     from edl_solver.errors import InputError
+    from edl_solver.io.files import output_lock
     from edl_solver.sweeping.file import load_sweep
 
     spec = load_sweep(args.sweep_file)
@@ -70,6 +78,37 @@ def run_sweep_command(args: argparse.Namespace) -> int:
     output = writable("-o", args.output if args.output is not None else str(source.with_suffix(".h5")))
     if output.resolve() == source.resolve():
         raise InputError(f"-o: {str(output)!r} is the sweep file itself, expected another file name")
+    with output_lock(output, "-o"):  # held until the sweep ends; sweep() takes it again
+        partial = _checked_start(args, output)
+        client = _dask_client(args.dask) if args.dask is not None else None
+        from edl_solver.sweeping.run import sweep
+
+        try:
+            result = sweep(spec.case, spec.axes, zipped=spec.zipped, path=output, resume=args.resume,
+                           workers=args.workers, dask=client, progress=False if args.quiet else None,
+                           profiles=spec.profile_points, overwrite=args.overwrite)
+        except KeyboardInterrupt:
+            if not partial.exists():
+                return fail("interrupted before any case was finished", EXIT_INTERRUPTED)
+            return fail(f"interrupted; the finished cases are kept in {partial}; to finish the sweep, run: "
+                        f"{_resume_command(args)}", EXIT_INTERRUPTED)
+        except OSError as exc:
+            kept = f"; the finished cases are kept in {partial}" if partial.exists() else ""
+            return fail(f"cannot write {exc.filename or output}: {exc.strerror or exc}{kept}", EXIT_WRITE_FAILED)
+        finally:
+            if client is not None:
+                client.close()
+    if not args.quiet:
+        print(_sweep_summary(result, output))
+    return EXIT_OK
+
+
+def _checked_start(args: argparse.Namespace, output: Path) -> Path:
+    """With the output's lock held: refuse a finished output without --overwrite, an interrupted sweep without
+    --resume (no run holds it now), one that cannot be resumed, and a bad worker count; the partial file."""
+    from edl_solver.errors import InputError
+
+    existing_output("-o", output, args.overwrite)
     partial = output.with_name(output.name + ".partial")
     if partial.exists() and not args.resume:
         raise InputError(f"{partial}: an interrupted sweep is kept there; add --resume to finish it (or delete "
@@ -78,29 +117,9 @@ def run_sweep_command(args: argparse.Namespace) -> int:
         _check_partial(partial)
     if args.workers < 1:
         raise InputError(f"--workers: {args.workers} is not allowed, expected a positive integer")
-    client = _dask_client(args.dask) if args.dask is not None else None
-    from edl_solver.sweeping.run import sweep
-
     if args.resume and not partial.exists() and not args.quiet:
         print(f"note: no {partial.name} to resume, so the sweep starts from the beginning")
-    try:
-        result = sweep(spec.case, spec.axes, zipped=spec.zipped, path=output, resume=args.resume,
-                       workers=args.workers, dask=client, progress=False if args.quiet else None,
-                       profiles=spec.profile_points)
-    except KeyboardInterrupt:
-        if not partial.exists():
-            return fail("interrupted before any case was finished", EXIT_INTERRUPTED)
-        return fail(f"interrupted; the finished cases are kept in {partial}; to finish the sweep, run: "
-                    f"{_resume_command(args)}", EXIT_INTERRUPTED)
-    except OSError as exc:
-        kept = f"; the finished cases are kept in {partial}" if partial.exists() else ""
-        return fail(f"cannot write {exc.filename or output}: {exc.strerror or exc}{kept}", EXIT_WRITE_FAILED)
-    finally:
-        if client is not None:
-            client.close()
-    if not args.quiet:
-        print(_sweep_summary(result, output))
-    return EXIT_OK
+    return partial
 
 
 def _check_partial(partial: Path) -> None:
@@ -147,6 +166,8 @@ def _resume_command(args: argparse.Namespace) -> str:
         words += ["--workers", str(args.workers)]
     if args.dask is not None:
         words += ["--dask", args.dask]
+    if args.overwrite:
+        words.append("--overwrite")
     return shlex.join([*words, "--resume"])
 
 

@@ -8,7 +8,9 @@ Each case is solved exactly as ``edl_solver.solve`` solves it, so a sweep's valu
 A case that does not converge is marked (``status`` 1 and its ``message``) and the sweep carries on.
 With a ``path`` the results stream to disk row by row (a row is one line along the last axis): the file
 is built under ``<path>.partial`` and renamed when complete, so a killed sweep keeps what it finished and
-``resume=True`` finishes it, with a result identical to an uninterrupted run.
+``resume=True`` finishes it, with a result identical to an uninterrupted run. The sweep holds the output's
+lock (``io.files.output_lock``) throughout, so a second run on the same path is refused at once, and a
+finished file is replaced only with ``overwrite=True``.
 """
 
 from __future__ import annotations
@@ -17,7 +19,7 @@ import os
 import signal
 import threading
 from collections.abc import Iterable, Iterator, Mapping, Sequence
-from contextlib import contextmanager
+from contextlib import contextmanager, nullcontext
 from pathlib import Path
 from typing import Any
 
@@ -26,6 +28,7 @@ import numpy as np
 from edl_solver.errors import ConvergenceError, InputError
 from edl_solver.inputs.case import Case
 from edl_solver.inputs.paths import PATH_UNITS, WORD_PATHS, Axis, case_at, check_conflicts, make_axes
+from edl_solver.io.files import checked_output_path, output_lock
 from edl_solver.kernels import layout
 from edl_solver.kernels.layout import PAIR_KEYS, SLOTS, SUMMARY_SIZE
 from edl_solver.results.schema import CONVERGED, FAILED, PENDING, SUMMARY_UNITS
@@ -123,10 +126,10 @@ def _solve_one(base_table: Mapping[str, Any], axes: Sequence[Axis], index: tuple
             values[name][r, j] = sampled
 
 
-def sweep(base: Case, axes: Mapping[str, Any], *, zipped: Sequence[Sequence[str]] = (),
+def sweep(base: Case, axes: Mapping[str, Any], *, zipped: Sequence[Sequence[str]] | None = (),
           path: str | os.PathLike[str] | None = None, resume: bool = False, workers: int = 1,
           dask: Any = None, rows_per_task: int | None = None, progress: bool | None = None,
-          profiles: bool | int | None = None) -> Any:
+          profiles: bool | int | None = None, overwrite: bool = False) -> Any:
     """Solve every case of a design space and return the summaries as an ``xarray.Dataset``.
 
     Parameters
@@ -136,11 +139,14 @@ def sweep(base: Case, axes: Mapping[str, Any], *, zipped: Sequence[Sequence[str]
     axes : mapping of str to sequence
         Dotted input path -> values (SI numbers or strings with units), e.g.
         ``{"geometry.height": [...], "wall.zeta": [...]}``; one dimension per axis, in this order.
-    zipped : sequence of sequences of str
-        Groups of axis paths varied together along one dimension (named after the group's first path).
+    zipped : sequence of sequences of str, optional
+        Groups of axis paths varied together along one dimension (named after the group's first path);
+        ``None`` or empty: none.
     path : str or Path, optional
         HDF5 (netCDF-4) file to stream the results to; opened by ``xarray.open_dataset(path,
-        engine="h5netcdf")``. Built as ``<path>.partial`` and renamed when complete.
+        engine="h5netcdf")``. Built as ``<path>.partial`` and renamed when complete. Checked before any
+        case is solved; ``<path>.lock`` beside it is locked meanwhile, so that another run on the same path
+        is refused.
     resume : bool
         Finish the sweep of an interrupted ``<path>.partial`` instead of starting afresh.
     workers : int
@@ -158,6 +164,8 @@ def sweep(base: Case, axes: Mapping[str, Any], *, zipped: Sequence[Sequence[str]
         Also store every case's profiles across the section, at this many positions evenly spaced in y/H
         (slit) or r/a (capillary), ``True`` for 101 (``sweep_profiles``). They are large, and the cases are
         then solved one by one through ``edl_solver.solve`` (about 3 times slower than the compiled batch).
+    overwrite : bool
+        Replace a file that already exists at ``path`` (by default it is kept and the sweep refused).
 
     Returns
     -------
@@ -169,32 +177,60 @@ def sweep(base: Case, axes: Mapping[str, Any], *, zipped: Sequence[Sequence[str]
         cases), else opened lazily (values read from the file on access; close it when done). With
         profiles, ``profile_<field>`` variables on an extra ``position`` dimension (and ``ion`` for the
         concentrations).
+
+    Raises
+    ------
+    InputError
+        Bad arguments or output path, a file at ``path`` without ``overwrite``, or another run writing
+        ``path``: before any case is solved.
     """
     from edl_solver.inputs.casefile import case_to_mapping
 
-    _check_options(base, workers)
-    sweep_axes = make_axes(axes, zipped)
+    _check_options(base, workers, overwrite)
+    sweep_axes = make_axes(axes, _checked_zipped(zipped))
     base_table = case_to_mapping(base)
     profile_points = sweep_profiles.check_points(profiles)
-    store = _open_store(base, base_table, sweep_axes, profile_points, path, resume)
-    try:
-        _fill(store, (base_table, sweep_axes, profile_points), workers, dask, rows_per_task, progress)
-    except BaseException:
-        store.abandon()
-        raise
-    return store.finish()
+    target = checked_output_path(path) if path is not None else None
+    with output_lock(target) if target is not None else nullcontext():
+        if target is not None and target.exists() and not overwrite:
+            raise InputError(f"path: {str(path)!r} already exists, expected a new file name, or overwrite=True "
+                             "to replace it")
+        store = _open_store(base, base_table, sweep_axes, profile_points, target, resume)
+        try:
+            _fill(store, (base_table, sweep_axes, profile_points), workers, dask, rows_per_task, progress)
+        except BaseException:
+            store.abandon()
+            raise
+        return store.finish()
 
 
-def _check_options(base: Case, workers: int) -> None:
-    """One-line InputErrors for a base that is not a Case and a worker count that is not a positive integer."""
+def _check_options(base: Case, workers: int, overwrite: bool) -> None:
+    """One-line InputErrors for a base that is not a Case, a worker count that is not a positive integer and
+    an overwrite that is not a bool."""
     if not isinstance(base, Case):
         raise InputError(f"base: {type(base).__name__} is not a Case, expected edl_solver.Case(...)")
     if isinstance(workers, bool) or not isinstance(workers, int) or workers < 1:
         raise InputError(f"workers: {workers!r} is not allowed, expected a positive integer")
+    if not isinstance(overwrite, bool):
+        raise InputError(f"overwrite: {overwrite!r} is not allowed, expected True or False")
+
+
+def _checked_zipped(zipped: Any) -> list[list[str]]:
+    """The zipped groups as lists of paths (None: no groups)."""
+    if zipped is None:
+        return []
+    shape = "expected a list of groups of axis paths, e.g. [['wall.zeta', 'solvent.temperature']]"
+    if isinstance(zipped, (str, bytes)) or not isinstance(zipped, Iterable):
+        raise InputError(f"zipped: {zipped!r} is not a list of groups, {shape}")
+    groups = list(zipped)
+    for group in groups:
+        if isinstance(group, (str, bytes)) or not isinstance(group, Iterable):
+            raise InputError(f"zipped: {group!r} is not a group of axis paths, {shape}")
+    return [list(group) for group in groups]
 
 
 def _open_store(base: Case, base_table: dict[str, Any], sweep_axes: Sequence[Axis], profile_points: int,
-                path: str | os.PathLike[str] | None, resume: bool) -> SweepStore:
+                path: Path | None, resume: bool) -> SweepStore:
     """The store of the sweep: in memory, or a new (or, with ``resume``, the interrupted) file.
 
     The sweep's specification (base case and axes) goes into the file, so that a resume can check that it
@@ -205,8 +241,7 @@ def _open_store(base: Case, base_table: dict[str, Any], sweep_axes: Sequence[Axi
     spec = {"base": base_table, "axes": [[a.name, list(a.paths), [list(v) for v in a.values]] for a in sweep_axes]}
     if profile_points:
         spec["profile_points"] = profile_points
-    out_path = Path(path) if path is not None else None
-    return SweepStore(spec, sweep_axes, base.geometry, pair, out_path, resume,
+    return SweepStore(spec, sweep_axes, base.geometry, pair, path, resume,
                       ions=[ion.name for ion in base.electrolyte.ions], profile_points=profile_points)
 
 
