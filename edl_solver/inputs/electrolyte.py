@@ -40,7 +40,7 @@ class Ion:
         Label of the ion; names in the built-in table (``edl_solver.inputs.ions``) fill in ``valence`` and
         ``diffusivity`` when they are not given.
     valence : int, optional
-        Charge number z (nonzero integer).
+        Charge number z (nonzero integer, |z| <= MAX_VALENCE = 3).
     concentration : float or str
         Bulk (reservoir) concentration, mol/m^3 (1 mol/m^3 = 1 mM), or a string such as "1 mM".
     diffusivity : float or str, optional
