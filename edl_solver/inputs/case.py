@@ -14,6 +14,7 @@ from __future__ import annotations
 
 from dataclasses import dataclass
 from dataclasses import field as _field
+from numbers import Integral
 from typing import Literal
 
 from edl_solver.errors import InputError
@@ -27,7 +28,12 @@ from edl_solver.inputs.wall import Wall
 Model = Literal["pb", "dh", "steric"]
 MODELS: tuple[str, ...] = ("pb", "dh", "steric")
 
-
+#: Grid cells per half section: the nested grids halve the finest one three times (``kernels.adaptive.LEVELS``
+#: = 4), so a grid is a multiple of 8 with at least one cell on the coarsest; at most 2^20 (memory).
+GRID_STEP = 8
+MAX_GRID = 2**20
+#: Newton iterations per grid: at least one, at most this (the default is 200).
+MAX_ITERATIONS = 100_000
 
 
 @dataclass(frozen=True)
@@ -40,12 +46,13 @@ class Numerics:
         Target relative error of every summary value (vanishing values: relative to the wall value).
         The grid is refined until the Richardson error estimate is below it.
     intervals : int, optional
-        Grid cells between the centre and a wall on the finest grid (a multiple of 8); by default
-        chosen from the stiffness of the layer and refined as needed.
+        Grid cells between the centre and a wall on the finest grid (a multiple of 8, at most 2^20); by
+        default chosen from the stiffness of the layer and refined as needed.
     max_iterations : int
-        Newton iteration limit per grid.
+        Newton iteration limit per grid (1 to 100000).
     max_intervals : int
-        Refinement stops here; a case that still misses ``accuracy`` raises ``ConvergenceError``.
+        Refinement stops here (a multiple of 8, at most 2^20); a case that still misses ``accuracy`` raises
+        ``ConvergenceError``.
     """
 
     accuracy: float = 1e-6
@@ -59,14 +66,26 @@ class Numerics:
             raise InputError(f"numerics.accuracy: {self.accuracy!r} is out of range, expected 1e-13 <= "
                              "accuracy < 1")
         _set(self, "accuracy", accuracy)
-        if self.intervals is not None and (isinstance(self.intervals, bool) or not isinstance(
-                self.intervals, int) or self.intervals < 8 or self.intervals % 8):
-            raise InputError(f"numerics.intervals: {self.intervals!r} is not allowed, expected a "
-                             "multiple of 8, at least 8")
-        for name in ("max_iterations", "max_intervals"):
-            value = getattr(self, name)
-            if isinstance(value, bool) or not isinstance(value, int) or value < 1:
-                raise InputError(f"numerics.{name}: {value!r} is not allowed, expected a positive integer")
+        if self.intervals is not None:
+            _set(self, "intervals", _count("intervals", self.intervals, GRID_STEP, MAX_GRID, GRID_STEP))
+        _set(self, "max_iterations", _count("max_iterations", self.max_iterations, 1, MAX_ITERATIONS))
+        _set(self, "max_intervals", _count("max_intervals", self.max_intervals, GRID_STEP, MAX_GRID, GRID_STEP))
+
+
+def _count(name: str, value: object, least: int, most: int, step: int = 1) -> int:
+    """``numerics.<name>`` as a plain int (numpy integers will do) in [least, most], a multiple of ``step``."""
+    multiple = f", a multiple of {step}" if step > 1 else ""
+    expected = f"expected an integer of at least {least} and at most {most}{multiple}"
+    if isinstance(value, bool) or not isinstance(value, Integral):
+        raise InputError(f"numerics.{name}: {value!r} is not an integer, {expected}")
+    if value < least:
+        raise InputError(f"numerics.{name}: {value!r} is too small for the solver, {expected}")
+    if value > most:
+        raise InputError(f"numerics.{name}: {value!r} is too large, {expected}")
+    if value % step:
+        raise InputError(f"numerics.{name}: {value!r} is not a multiple of {step} (the nested grids halve it three "
+                         f"times), {expected}")
+    return int(value)
 
 
 @dataclass(frozen=True)

@@ -71,6 +71,9 @@ from edl_solver.inputs.casefile_writer import case_to_mapping, dumps_case
 __all__ = ["CASE_KEYS", "WALL_PRESETS", "case_from_mapping", "case_to_mapping", "dumps_case", "load_case",
            "loads_case", "read_mapping"]
 
+#: The error of a file nested deeper than Python's recursion limit (case files and sweep files alike).
+_TOO_DEEP = "lists or tables nested too deeply to read, expected tables and lists nested a few levels at most"
+
 
 def load_case(path: str | Path) -> Case:
     """Read a TOML case file and build its :class:`~edl_solver.inputs.case.Case`.
@@ -144,10 +147,12 @@ def _parse(text: str, source: str) -> dict[str, Any]:
     else:  # pragma: no cover - exercised on Python 3.10 only
         import tomli as tomllib
 
+    prefix = f"{source}: " if source else ""
     try:
         return tomllib.loads(text)
+    except RecursionError:  # the parser recurses once per level of nesting
+        raise InputError(f"{prefix}{_TOO_DEEP}") from None
     except tomllib.TOMLDecodeError as exc:
-        prefix = f"{source}: " if source else ""
         reason = str(exc)
         if "line " not in reason:  # "(at end of document)": give its line too, as for every other error
             reason = f"{reason} (line {max(1, len(text.splitlines()))}, the last)"
@@ -182,21 +187,27 @@ def case_from_mapping(data: Mapping[str, Any], source: str = "") -> Case:
         One line naming the source, the dotted key or field and the value.
     """
     try:
-        if not isinstance(data, Mapping):
-            raise InputError(f"case: {data!r} is not a table, expected the sections of a case file")
-        data = sections.without_none(data)  # dicts written from dataclasses carry None for "not given"
-        check_keys(data)  # first, so a misspelt key is reported rather than the value it leaves missing
-        # Keyword arguments are evaluated in order: errors come in the order of the file's sections.
-        return Case(
-            geometry=sections.build_geometry(sections.required_section(data, "geometry")),
-            electrolyte=sections.build_electrolyte(sections.required_section(data, "electrolyte")),
-            wall=sections.build_walls(sections.required_section(data, "wall"), data["geometry"]),
-            solvent=sections.build_solvent(sections.optional_table(data.get("solvent", {}), "solvent")),
-            numerics=sections.build(Numerics, sections.optional_table(data.get("numerics", {}), "numerics")),
-            **{key: data[key] for key in SCALARS if key in data},
-        )
+        return _build_case(data)
+    except RecursionError:  # a value nested deeper than the checks (and repr) can walk
+        raise InputError(f"{source}: {_TOO_DEEP}" if source else _TOO_DEEP) from None
     except InputError as exc:
         if source:
             raise InputError(f"{source}: {exc}") from None
         raise
 
+
+def _build_case(data: Mapping[str, Any]) -> Case:
+    """``case_from_mapping`` without the source: the checks and the objects, in the order of the file."""
+    if not isinstance(data, Mapping):
+        raise InputError(f"case: {data!r} is not a table, expected the sections of a case file")
+    data = sections.without_none(data)  # dicts written from dataclasses carry None for "not given"
+    check_keys(data)  # first, so a misspelt key is reported rather than the value it leaves missing
+    # Keyword arguments are evaluated in order: errors come in the order of the file's sections.
+    return Case(
+        geometry=sections.build_geometry(sections.required_section(data, "geometry")),
+        electrolyte=sections.build_electrolyte(sections.required_section(data, "electrolyte")),
+        wall=sections.build_walls(sections.required_section(data, "wall"), data["geometry"]),
+        solvent=sections.build_solvent(sections.optional_table(data.get("solvent", {}), "solvent")),
+        numerics=sections.build(Numerics, sections.optional_table(data.get("numerics", {}), "numerics")),
+        **{key: data[key] for key in SCALARS if key in data},
+    )

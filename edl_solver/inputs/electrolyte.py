@@ -8,6 +8,10 @@ from __future__ import annotations
 import math
 from collections.abc import Mapping, Sequence
 from dataclasses import dataclass
+from functools import lru_cache
+from numbers import Integral, Real
+
+import numpy as np
 
 from edl_solver.constants import AVOGADRO, ELEMENTARY_CHARGE
 from edl_solver.errors import InputError
@@ -18,6 +22,9 @@ from edl_solver.inputs.units import to_positive_si, to_si
 
 #: Ionic product of water at 25 degC, pK_w = 14 (common practice; its temperature dependence is neglected).
 WATER_PK = 14.0
+
+#: Largest charge number |z| of an ion: the domain the solver promises (README, "valences up to 3").
+MAX_VALENCE = 3
 
 #: Relative imbalance of the bulk charge accepted as neutral: sum z c <= this * sum |z| c.
 NEUTRALITY_TOLERANCE = 1e-6
@@ -33,7 +40,7 @@ class Ion:
         Label of the ion; names in the built-in table (``edl_solver.inputs.ions``) fill in ``valence`` and
         ``diffusivity`` when they are not given.
     valence : int, optional
-        Charge number z (nonzero integer).
+        Charge number z (nonzero integer, |z| <= MAX_VALENCE = 3).
     concentration : float or str
         Bulk (reservoir) concentration, mol/m^3 (1 mol/m^3 = 1 mM), or a string such as "1 mM".
     diffusivity : float or str, optional
@@ -55,12 +62,7 @@ class Ion:
         known = None
         if self.valence is None or self.diffusivity is None:
             known = lookup_ion(self.name)
-        valence = known.valence if self.valence is None else self.valence
-        if isinstance(valence, bool) or not isinstance(valence, (int, float)) or valence != int(valence) \
-                or valence == 0:
-            raise InputError(f"{label}.valence: {self.valence!r} is not a charge number, "
-                             "expected a nonzero integer")
-        _set(self, "valence", int(valence))
+        _set(self, "valence", known.valence if self.valence is None else _charge_number(self.valence, label))
         if self.concentration is None:
             raise InputError(f"{label}.concentration: missing, expected a bulk concentration like '1 mM'")
         _set(self, "concentration", to_positive_si(self.concentration, "mol/m^3", f"{label}.concentration",
@@ -100,6 +102,8 @@ class Electrolyte:
         if not ions or not all(isinstance(ion, Ion) for ion in ions):
             raise InputError(f"electrolyte.ions: {self.ions!r} is not a list of Ion, expected at least "
                              "one cation and one anion")
+        if not isinstance(self.water_ions, (bool, np.bool_)):  # "no" or 1 would count as true
+            raise InputError(f"electrolyte.water_ions: {self.water_ions!r} is not True or False, expected a boolean")
         if self.pH is not None:
             ph = to_si(self.pH, "dimensionless", "electrolyte.pH")
             if not -1.0 <= ph <= 15.0:
@@ -109,10 +113,8 @@ class Electrolyte:
                 ions = _with_water_ions(ions, ph)
         elif self.water_ions:
             raise InputError("electrolyte.water_ions: True without a pH, expected electrolyte.pH as well")
-        names = [ion.name for ion in ions]
-        for name in names:
-            if names.count(name) > 1:
-                raise InputError(f"electrolyte.ions: {name!r} is given twice, expected each ion once")
+        _set(self, "water_ions", bool(self.water_ions))
+        _check_each_ion_once(ions)
         net = sum(ion.valence * ion.concentration for ion in ions)
         total = sum(abs(ion.valence) * ion.concentration for ion in ions)
         if abs(net) > NEUTRALITY_TOLERANCE * total:
@@ -148,6 +150,42 @@ class Electrolyte:
         Intermolecular and Surface Forces)."""
         return math.sqrt(solvent.permittivity * solvent.thermal_voltage
                          / (ELEMENTARY_CHARGE * AVOGADRO * 2.0 * self.ionic_strength))
+
+
+def _charge_number(value: object, label: str) -> int:
+    """``value`` as a charge number: a nonzero integer (a whole float or a numpy number will do) of at most
+    ``MAX_VALENCE`` in magnitude."""
+    if isinstance(value, bool) or not isinstance(value, Real):
+        whole = False
+    else:  # an int may be too large for a float; a float must be finite to be whole
+        whole = isinstance(value, Integral) or (math.isfinite(value) and float(value).is_integer())
+    if not whole or value == 0:
+        raise InputError(f"{label}.valence: {value!r} is not a charge number, expected a nonzero integer")
+    if abs(value) > MAX_VALENCE:
+        raise InputError(f"{label}.valence: {value!r} is out of range, expected a nonzero integer of at most "
+                         f"{MAX_VALENCE} in magnitude (the solver's domain)")
+    return int(value)
+
+
+def _check_each_ion_once(ions: tuple[Ion, ...]) -> None:
+    """Refuse an ion given twice, under its own name or another spelling of it ("K+" and "k+", "SO4--" and
+    "SO4 2-")."""
+    seen: dict[str, str] = {}
+    for ion in ions:
+        key = _identity(ion.name)
+        if key in seen:
+            also = "" if seen[key] == ion.name else f" (as {seen[key]!r} and {ion.name!r})"
+            raise InputError(f"electrolyte.ions: {ion.name!r} is given twice{also}, expected each ion once")
+        seen[key] = ion.name
+
+
+@lru_cache(maxsize=256)
+def _identity(name: str) -> str:
+    """What makes two ion names one ion: the table's name for it, else the name without case or spaces."""
+    try:
+        return lookup_ion(name).name
+    except InputError:  # an ion outside the table (cached: the miss words a "did you mean" hint)
+        return "".join(name.split()).casefold()
 
 
 def _with_water_ions(ions: tuple[Ion, ...], ph: float) -> tuple[Ion, ...]:

@@ -7,7 +7,10 @@ from __future__ import annotations
 
 import itertools
 from dataclasses import dataclass
+from numbers import Integral, Real
 from typing import Literal
+
+import numpy as np
 
 from edl_solver.errors import InputError
 from edl_solver.inputs.frozen import assign as _set
@@ -15,6 +18,8 @@ from edl_solver.inputs.units import to_positive_si, to_si
 
 #: Most protonation states one kind of site may have (up to three acid-base steps).
 MAX_SITE_STATES = 4
+#: Largest charge number |q| of a site state (as for ions: the domain the solver promises).
+MAX_SITE_CHARGE = 3
 
 
 @dataclass(frozen=True)
@@ -44,25 +49,41 @@ class Site:
     name: str = "site"
 
     def __post_init__(self) -> None:
+        if not isinstance(self.name, str):
+            raise InputError(f"site.name: {self.name!r} is not a name, expected a string like 'silanol'")
         label = f"site {self.name}"
         _set(self, "density", to_positive_si(self.density, "1/m^2", f"{label}.density",
                                         "a positive site density in 1/m^2 (or '8 nm^-2')"))
-        pks = (self.pK,) if isinstance(self.pK, (int, float, str)) else tuple(self.pK)
+        if isinstance(self.pK, (Real, str)):
+            pks = (self.pK,)
+        elif _is_sequence(self.pK):
+            pks = tuple(self.pK)
+        else:
+            raise InputError(f"{label}.pK: {self.pK!r} is not a number or a list of numbers, expected a pK like 7.5 "
+                             "or one per step like (4.0, 9.0)")
         pks = tuple(to_si(pk, "dimensionless", f"{label}.pK") for pk in pks)
-        charges = tuple(self.charges)
-        if not all(isinstance(q, int) and not isinstance(q, bool) for q in charges) \
+        charges = tuple(self.charges) if _is_sequence(self.charges) else None
+        if charges is None or not all(isinstance(q, Integral) and not isinstance(q, bool) for q in charges) \
                 or len(charges) != len(pks) + 1 or not 2 <= len(charges) <= MAX_SITE_STATES \
                 or any(b != a - 1 for a, b in itertools.pairwise(charges)):
             raise InputError(f"{label}.charges: {self.charges!r} does not fit pK {self.pK!r}, expected one more "
                              f"integer charge than pKs (at most {MAX_SITE_STATES} states), each step one lower, "
                              "e.g. (0, -1)")
+        if max(abs(q) for q in charges) > MAX_SITE_CHARGE:
+            raise InputError(f"{label}.charges: {self.charges!r} is out of range, expected charge numbers of at most "
+                             f"{MAX_SITE_CHARGE} in magnitude, e.g. (0, -1)")
         _set(self, "pK", pks[0] if len(pks) == 1 else pks)
-        _set(self, "charges", charges)
+        _set(self, "charges", tuple(int(q) for q in charges))
 
     @property
     def pks(self) -> tuple[float, ...]:
         """The pK of every step, as a tuple."""
         return self.pK if isinstance(self.pK, tuple) else (self.pK,)
+
+
+def _is_sequence(value: object) -> bool:
+    """A tuple, list or one-dimensional array (of pKs or charges)."""
+    return isinstance(value, (tuple, list)) or (isinstance(value, np.ndarray) and value.ndim == 1)
 
 
 @dataclass(frozen=True)
