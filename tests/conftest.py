@@ -7,11 +7,21 @@ folders do not collide and shared modules are imported by their full name (``tes
 
 from __future__ import annotations
 
+import os
+
 import pytest
+from hypothesis import settings
 
 import edl_solver as edl
 from edl_solver.inputs.wall import Site
 from tests.helpers import KCL
+
+# Property-based tests draw the same examples on every run (CI must not pass or fail by chance); for fresh
+# examples and more of them, run by hand: HYPOTHESIS_PROFILE=explore python -m pytest tests/inputs
+settings.register_profile("suite", derandomize=True)
+settings.register_profile("explore", derandomize=False, max_examples=2000)
+settings.load_profile(os.environ.get("HYPOTHESIS_PROFILE", "suite"))
+
 
 
 @pytest.fixture(scope="session")

@@ -56,8 +56,9 @@ class Ion:
     diameter: float | str | None = None
 
     def __post_init__(self) -> None:
-        if not isinstance(self.name, str) or not self.name.strip():
-            raise InputError(f"ion.name: {self.name!r} is not a name, expected a non-empty string like 'K+'")
+        if not isinstance(self.name, str) or not self.name.strip() or not self.name.isprintable():
+            # the name labels every message about the ion: a line break in it would split those messages
+            raise InputError(f"ion.name: {self.name!r} is not a name, expected a non-empty printable string like 'K+'")
         label = f"ion {self.name}"
         known = None
         if self.valence is None or self.diffusivity is None:

@@ -49,8 +49,9 @@ class Site:
     name: str = "site"
 
     def __post_init__(self) -> None:
-        if not isinstance(self.name, str):
-            raise InputError(f"site.name: {self.name!r} is not a name, expected a string like 'silanol'")
+        if not isinstance(self.name, str) or not self.name.isprintable():
+            # the name labels every message about the site: a line break in it would split those messages
+            raise InputError(f"site.name: {self.name!r} is not a name, expected a printable string like 'silanol'")
         label = f"site {self.name}"
         _set(self, "density", to_positive_si(self.density, "1/m^2", f"{label}.density",
                                         "a positive site density in 1/m^2 (or '8 nm^-2')"))
