@@ -103,7 +103,7 @@ def finite_volume_metric(s, beta, metric):
     return Cells(x, link, volume, dx)
 
 
-@njit(cache=True)
+@njit(cache=True, error_model="numpy")
 def tridiagonal_solve(lower, diag, upper, rhs, out, work):
     """Thomas algorithm for a diagonally dominant tridiagonal system (no pivoting needed).
 
@@ -213,7 +213,7 @@ def _scaled_norms(res, scale):
     return np.sqrt(total), worst
 
 
-@njit(cache=True)
+@njit(cache=True, error_model="numpy")
 def pb_newton(psi, cells, problem, walls, tol, max_iter, max_step):
     """Damped Newton iteration for the discrete Poisson-Boltzmann equation of ``problem`` with the wall rows
     ``walls`` on the grid ``cells``, in place on ``psi``.
@@ -253,9 +253,11 @@ def pb_newton(psi, cells, problem, walls, tol, max_iter, max_step):
                 upper[i] = 0.0
         tridiagonal_solve(lower, jac, upper, rhs, step, work)
         biggest = 0.0
+        finite = True
         for i in range(n):
             biggest = max(biggest, abs(step[i]))
-        if not np.isfinite(biggest):
+            finite = finite and np.isfinite(step[i])
+        if not finite:  # a zero pivot (a grid too stretched for the precision) or an overflow: a failure
             return 2, it, worst
         if biggest < tol:
             for i in range(n):
