@@ -253,11 +253,9 @@ def pb_newton(psi, cells, problem, walls, tol, max_iter, max_step):
                 upper[i] = 0.0
         tridiagonal_solve(lower, jac, upper, rhs, step, work)
         biggest = 0.0
-        finite = True
         for i in range(n):
             biggest = max(biggest, abs(step[i]))
-            finite = finite and np.isfinite(step[i])
-        if not finite:  # a zero pivot (a grid too stretched for the precision) or an overflow: a failure
+        if not np.isfinite(biggest + step.sum()):  # max() skips NaN (a zero pivot of a too stretched grid)
             return 2, it, worst
         if biggest < tol:
             for i in range(n):

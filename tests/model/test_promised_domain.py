@@ -73,3 +73,14 @@ def test_random_cases_of_the_promised_domain_solve_or_refuse_in_words(seed):
         summary = result.summary
         for key in CORE_KEYS:
             assert np.all(np.isfinite(summary[key])), (case.describe(), key)
+
+
+def test_nan_energy_conversion_of_a_debye_hueckel_layer_comes_with_a_note():
+    # 1:1 salt, 3.3 mM, -7.8 mC/m^2 in a 2.4 nm capillary: the linearised layer reaches |z e phi / kT| ~ 5, its
+    # concentrations turn negative near the wall and the coupling q^2 exceeds 1 (lab.py returns NaN there)
+    case = edl.Case(geometry=edl.Capillary(radius=2.369e-09),
+                    electrolyte=edl.Electrolyte((edl.Ion("A", 1, 3.329, 1e-9), edl.Ion("B", -1, 3.329, 1.5e-9))),
+                    wall=edl.Wall(charge_density=-0.007789), field=1e3, model="dh")
+    result = edl.solve(case)
+    assert math.isnan(result.summary["figure_of_merit"])
+    assert any("figure_of_merit" in note and "q^2" in note for note in result.warnings)
