@@ -43,6 +43,9 @@ _NO_GUESS = np.empty(0)
 SATURATED_POTENTIAL = 76.0
 #: z |psi_w| (kT/e) the grid and start of a saturated case are built for instead.
 TAME_POTENTIAL = 20.0
+#: z |psi_w| (kT/e) the grid and start of a Debye-Hueckel case that failed are built for (its layer's scale is
+#: the Debye length: the Gouy-Chapman factor 2 exp(-z |psi_w| / 2) of ``adaptive.inner_length`` is then ~1).
+DH_POTENTIAL = 2.0
 
 
 @dataclass(frozen=True)
@@ -156,7 +159,7 @@ def _settle(problem: SectionProblem, run: Callable[[np.ndarray], tuple], accurac
             iterations += solved.iterations
             if solved.status == NEWTON_FAILED:
                 solved, rest, its = _continued(tame, run, solved.intervals, max_iterations,
-                                               lambda: _saturated_label(problem, label))
+                                               lambda: _far_label(problem, label))
                 iterations += its
     if solved.status != CONVERGED and callable(label):  # built only when a message needs it
         label = label()
@@ -181,28 +184,31 @@ def _continued(problem: SectionProblem, run: Callable[[np.ndarray, SectionProble
 
 
 def _tamed(problem: SectionProblem) -> SectionProblem | None:
-    """The problem with the wall potentials that set its grid and start capped at ``TAME_POTENTIAL`` / z, or None
-    when no z |psi_w| is above ``SATURATED_POTENTIAL``.
+    """The problem with the wall potentials that set its grid and start capped, or None when none is above the
+    cap: z |psi_w| above ``SATURATED_POTENTIAL`` capped at ``TAME_POTENTIAL``, and for the Debye-Hueckel model
+    any above ``DH_POTENTIAL`` capped at it.
 
-    Above that (a Debye-Hueckel wall of large fixed charge gives hundreds of kT/e) the Gouy-Chapman guess
-    saturates in double precision and the wall cells it asks for are far below the precision of the grid, so
-    Newton cannot converge; the equations are the same, only the grid and the start differ.
+    Above ``SATURATED_POTENTIAL`` (a Debye-Hueckel wall of large fixed charge gives hundreds of kT/e) the
+    Gouy-Chapman guess saturates in double precision and the wall cells it asks for are far below the precision
+    of the grid. A Debye-Hueckel layer has no Gouy-Chapman steepening at all: its smallest scale is the Debye
+    length at any potential, and cells far thinner only spoil the precision. The equations are the same, only
+    the grid and the start differ. Used only after the solve failed, so converging cases keep their grid.
     """
     reduced = np.abs(problem.wall_potential_guess) * problem.counter_valence
-    if not reduced.max() > SATURATED_POTENTIAL:
+    cap = DH_POTENTIAL if problem.model == DH else TAME_POTENTIAL
+    if not reduced.max() > (DH_POTENTIAL if problem.model == DH else SATURATED_POTENTIAL):
         return None
-    capped = np.sign(problem.wall_potential_guess) * np.minimum(reduced, TAME_POTENTIAL) / problem.counter_valence
+    capped = np.sign(problem.wall_potential_guess) * np.minimum(reduced, cap) / problem.counter_valence
     return problem._replace(wall_potential_guess=capped)
 
 
-def _saturated_label(problem: SectionProblem, label: str | Callable[[], str]) -> str:
-    """The case's name with the saturated wall potential, for the refusal of a case whose tamer grid failed too."""
+def _far_label(problem: SectionProblem, label: str | Callable[[], str]) -> str:
+    """The case's name with its wall potential, for the refusal of a case whose tamer grid failed too."""
     name = label() if callable(label) else label
     worst = float(np.max(np.abs(problem.wall_potential_guess) * problem.counter_valence))
-    beyond = " and far beyond the Debye-Hueckel linearisation's validity (|z e psi / kT| < 1)" \
-        if problem.model == DH else ""
-    return (f"{name}: the wall alone in the bulk would sit at |z e psi / kT| = {worst:.3g}, above the "
-            f"{SATURATED_POTENTIAL:g} up to which the solver resolves its layer{beyond}")
+    beyond = ("far beyond the Debye-Hueckel linearisation's validity (|z e psi / kT| < 1)" if problem.model == DH
+              else f"above the {SATURATED_POTENTIAL:g} up to which the solver resolves its layer")
+    return f"{name}: the wall alone in the bulk would sit at |z e psi / kT| = {worst:.3g}, {beyond}"
 
 
 def _scaled_walls(rows: np.ndarray, t: float) -> np.ndarray:

@@ -10,6 +10,7 @@ import numpy as np
 import pytest
 
 import edl_solver as edl
+from edl_solver.constants import VACUUM_PERMITTIVITY
 from edl_solver.errors import ConvergenceError
 from edl_solver.kernels import adaptive
 from tests.model.domain_sampler import cases
@@ -84,3 +85,18 @@ def test_nan_energy_conversion_of_a_debye_hueckel_layer_comes_with_a_note():
     result = edl.solve(case)
     assert math.isnan(result.summary["figure_of_merit"])
     assert any("figure_of_merit" in note and "q^2" in note for note in result.warnings)
+
+
+def test_debye_hueckel_slit_whose_stretched_grid_failed_solves_to_the_exact_linear_solution():
+    # 2:1 salt at 76 degC, +30 mC/m^2, kappa h = 1.97: the isolated layer is at z e zeta / kT ~ 54, whose
+    # Gouy-Chapman-stretched grid (~1e-12 h wall cells) lost Newton to rounding; a linear layer needs none of it
+    case = edl.Case(geometry=edl.Slit(height=5.8028718654586194e-08),
+                    electrolyte=edl.Electrolyte((edl.Ion("A", 2, 0.13117099834595047, 1e-9),
+                                                 edl.Ion("B", -1, 0.26234199669190095, 1.5e-9))),
+                    wall=edl.Wall(charge_density=0.02999381156122451), solvent=edl.Water(temperature=349.1618272274558),
+                    field=1e3, model="dh")
+    summary = edl.solve(case).summary
+    # Debye-Hueckel slit of fixed charge: zeta = sigma / (eps kappa) coth(kappa h) (from memory)
+    eps = case.solvent.relative_permittivity * VACUUM_PERMITTIVITY
+    exact = 0.02999381156122451 * summary["debye_length"] / eps / math.tanh(summary["kappa_h"])
+    assert summary["zeta"] == pytest.approx(exact, rel=1e-6)
