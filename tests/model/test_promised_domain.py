@@ -100,3 +100,10 @@ def test_debye_hueckel_slit_whose_stretched_grid_failed_solves_to_the_exact_line
     eps = case.solvent.relative_permittivity * VACUUM_PERMITTIVITY
     exact = 0.02999381156122451 * summary["debye_length"] / eps / math.tanh(summary["kappa_h"])
     assert summary["zeta"] == pytest.approx(exact, rel=1e-6)
+
+
+def test_a_sweep_through_debye_hueckel_walls_of_large_charge_completes():
+    # the compiled batch raised inside its parallel loop (SystemError) at the issue's -137 mC/m^2
+    data = edl.sweep(_debye_hueckel_capillary(), {"wall.charge_density": [-0.001, -0.137]}, progress=False)
+    assert list(data["status"].values) == [0, 0]
+    assert data["zeta"].values[1] == pytest.approx(-30.2, rel=0.02)
