@@ -49,6 +49,11 @@ MAX_STEP = 5.0
 POTENTIAL_FLOOR = 1e-6
 
 
+#: Floor of the inner length in ``stretching`` (units of L): far below any layer the solver can resolve, so a
+#: solve that reaches it fails as Newton's, not as an overflow.
+SMALLEST_INNER_LENGTH = 1e-300
+
+
 @njit(cache=True)
 def stretching(inner_length):
     """Stretching beta of the tanh map whose wall cells resolve ``inner_length`` (units of L).
@@ -56,7 +61,8 @@ def stretching(inner_length):
     Near a wall the map gives d ~ 2 exp(-2 beta) (exp(2 beta t) - 1), t = 1 - s: the geometric growth
     starts at d ~ 2 exp(-2 beta), set equal to the smallest physical scale of the layer.
     """
-    return max(0.5 * np.log1p(2.0 / inner_length), 1e-3)
+    # an inner length that underflowed (a wall potential of hundreds of kT/e) would give an infinite stretching
+    return max(0.5 * np.log1p(2.0 / max(inner_length, SMALLEST_INNER_LENGTH)), 1e-3)
 
 
 @njit(cache=True)
@@ -88,9 +94,21 @@ def gouy_chapman_guess(x, kappa2, half, wall_guess, counter, psi):
     if half:
         left, z_left = right, z_right
     for i in range(x.size):
-        a = 4.0 / z_left * np.arctanh(np.tanh(z_left * left / 4.0) * np.exp(-kappa * (x[i] + 1.0)))
-        b = 4.0 / z_right * np.arctanh(np.tanh(z_right * right / 4.0) * np.exp(-kappa * (1.0 - x[i])))
+        a = 4.0 / z_left * np.arctanh(_below_one(np.tanh(z_left * left / 4.0) * np.exp(-kappa * (x[i] + 1.0))))
+        b = 4.0 / z_right * np.arctanh(_below_one(np.tanh(z_right * right / 4.0) * np.exp(-kappa * (1.0 - x[i]))))
         psi[i] = a + b
+
+
+#: The largest double below 1: artanh of it is finite (18.7).
+_LARGEST_BELOW_ONE = 1.0 - 2.0**-53
+
+
+@njit(cache=True, inline="always")
+def _below_one(v):
+    """``v`` with its magnitude capped just below 1, so that its artanh is finite: tanh(z psi_w / 4) rounds to
+    exactly 1 once z |psi_w| > ~76 (a Debye-Hueckel wall of huge charge), and an infinite start potential
+    would turn the whole solve into NaN. Values below the cap pass unchanged, bit for bit."""
+    return max(-_LARGEST_BELOW_ONE, min(_LARGEST_BELOW_ONE, v))
 
 
 @njit(cache=True)

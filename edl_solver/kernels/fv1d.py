@@ -103,7 +103,7 @@ def finite_volume_metric(s, beta, metric):
     return Cells(x, link, volume, dx)
 
 
-@njit(cache=True)
+@njit(cache=True, error_model="numpy")
 def tridiagonal_solve(lower, diag, upper, rhs, out, work):
     """Thomas algorithm for a diagonally dominant tridiagonal system (no pivoting needed).
 
@@ -213,7 +213,7 @@ def _scaled_norms(res, scale):
     return np.sqrt(total), worst
 
 
-@njit(cache=True)
+@njit(cache=True, error_model="numpy")
 def pb_newton(psi, cells, problem, walls, tol, max_iter, max_step):
     """Damped Newton iteration for the discrete Poisson-Boltzmann equation of ``problem`` with the wall rows
     ``walls`` on the grid ``cells``, in place on ``psi``.
@@ -255,7 +255,7 @@ def pb_newton(psi, cells, problem, walls, tol, max_iter, max_step):
         biggest = 0.0
         for i in range(n):
             biggest = max(biggest, abs(step[i]))
-        if not np.isfinite(biggest):
+        if not np.isfinite(biggest + step.sum()):  # max() skips NaN (a zero pivot of a too stretched grid)
             return 2, it, worst
         if biggest < tol:
             for i in range(n):

@@ -21,6 +21,7 @@ from edl_solver.kernels import single as _single
 from edl_solver.kernels.layout import (
     ACCURACY_MISSED,
     CONVERGED,
+    DH,
     MAX_SITES,
     NEWTON_FAILED,
     P_ACCURACY,
@@ -38,6 +39,13 @@ from edl_solver.model.scaling import Prepared
 
 #: The start of a solve from the Gouy-Chapman guess (no profile given).
 _NO_GUESS = np.empty(0)
+#: z |psi_w| (kT/e) above which tanh(z psi_w / 4) rounds to 1: the Gouy-Chapman guess saturates.
+SATURATED_POTENTIAL = 76.0
+#: z |psi_w| (kT/e) the grid and start of a saturated case are built for instead.
+TAME_POTENTIAL = 20.0
+#: z |psi_w| (kT/e) the grid and start of a Debye-Hueckel case that failed are built for (its layer's scale is
+#: the Debye length: the Gouy-Chapman factor 2 exp(-z |psi_w| / 2) of ``adaptive.inner_length`` is then ~1).
+DH_POTENTIAL = 2.0
 
 
 @dataclass(frozen=True)
@@ -101,8 +109,8 @@ def solve_section(problem: SectionProblem, accuracy: float, intervals: int | Non
         ``accuracy`` at ``max_intervals`` cells per half section. ``label`` names the case.
     """
     controls = Controls(float(accuracy), int(intervals or 0), int(max_intervals), int(max_iterations))
-    section, _ = _settle(problem, lambda guess: (_adaptive.solve_adaptive(problem, controls, guess),), accuracy,
-                         max_iterations, label)
+    section, _ = _settle(problem, lambda guess, posed: (_adaptive.solve_adaptive(posed, controls, guess),),
+                         accuracy, max_iterations, label)
     return section
 
 
@@ -124,23 +132,35 @@ def solve_summarized(prepared: Prepared, out: np.ndarray, label: str | Callable[
     """
     vector, inputs = prepared.vector, prepared.inputs
     section, (ion_matrix, matrix, slip) = _settle(
-        inputs.problem, lambda guess: _single.solve_summarized(vector, inputs, guess, out),
+        inputs.problem, lambda guess, posed: _single.solve_summarized(vector, inputs._replace(problem=posed), guess,
+                                                                      out),
         float(vector[P_ACCURACY]), int(vector[P_MAX_ITERATIONS]), label)
     return section, ion_matrix, matrix, slip
 
 
 def _settle(problem: SectionProblem, run: Callable[[np.ndarray], tuple], accuracy: float, max_iterations: int,
             label: str | Callable[[], str]) -> tuple[SectionSolution, tuple]:
-    """Run the compiled solve (``run(guess)`` returns its ``SectionSolve`` first, then anything else) from the
-    Gouy-Chapman guess, again after a continuation when Newton failed, and turn a failure into a
-    ``ConvergenceError``. Returns the solution and the rest of the last run's outcome."""
-    solved, *rest = run(_NO_GUESS)
+    """Run the compiled solve (``run(guess, problem)`` returns its ``SectionSolve`` first, then anything else)
+    from the Gouy-Chapman guess, again after a continuation when Newton failed (and, for a saturated wall
+    potential, on a tamer grid: ``_tamed``), and turn a failure into a ``ConvergenceError``. Returns the
+    solution and the rest of the last run's outcome."""
+    solved, *rest = run(_NO_GUESS, problem)
     iterations = solved.iterations
     if solved.status == NEWTON_FAILED:
-        guess, its = _continuation(problem, solved.intervals, max_iterations, label)
-        iterations += its
-        solved, *rest = run(guess)
-        iterations += solved.iterations
+        tame = _tamed(problem)
+        try:
+            solved, rest, its = _continued(problem, run, solved.intervals, max_iterations, label)
+            iterations += its
+        except ConvergenceError:
+            if tame is None:
+                raise
+        if tame is not None and solved.status == NEWTON_FAILED:
+            solved, *rest = run(_NO_GUESS, tame)
+            iterations += solved.iterations
+            if solved.status == NEWTON_FAILED:
+                solved, rest, its = _continued(tame, run, solved.intervals, max_iterations,
+                                               lambda: _far_label(problem, label))
+                iterations += its
     if solved.status != CONVERGED and callable(label):  # built only when a message needs it
         label = label()
     if solved.status == NEWTON_FAILED:
@@ -153,6 +173,42 @@ def _settle(problem: SectionProblem, run: Callable[[np.ndarray], tuple], accurac
             "loosen numerics.accuracy")
     finest = grid.from_cells(solved.s, solved.beta, problem.metric, solved.cells)
     return SectionSolution(finest, solved, iterations), tuple(rest)
+
+
+def _continued(problem: SectionProblem, run: Callable[[np.ndarray, SectionProblem], tuple], intervals: int,
+               max_iterations: int, label: str | Callable[[], str]) -> tuple[object, list, int]:
+    """``run`` from the end of a continuation (``_continuation``): the solve record, the rest and the iterations."""
+    guess, its = _continuation(problem, intervals, max_iterations, label)
+    solved, *rest = run(guess, problem)
+    return solved, rest, its + solved.iterations
+
+
+def _tamed(problem: SectionProblem) -> SectionProblem | None:
+    """The problem with the wall potentials that set its grid and start capped, or None when none is above the
+    cap: z |psi_w| above ``SATURATED_POTENTIAL`` capped at ``TAME_POTENTIAL``, and for the Debye-Hueckel model
+    any above ``DH_POTENTIAL`` capped at it.
+
+    Above ``SATURATED_POTENTIAL`` (a Debye-Hueckel wall of large fixed charge gives hundreds of kT/e) the
+    Gouy-Chapman guess saturates in double precision and the wall cells it asks for are far below the precision
+    of the grid. A Debye-Hueckel layer has no Gouy-Chapman steepening at all: its smallest scale is the Debye
+    length at any potential, and cells far thinner only spoil the precision. The equations are the same, only
+    the grid and the start differ. Used only after the solve failed, so converging cases keep their grid.
+    """
+    reduced = np.abs(problem.wall_potential_guess) * problem.counter_valence
+    cap = DH_POTENTIAL if problem.model == DH else TAME_POTENTIAL
+    if not reduced.max() > (DH_POTENTIAL if problem.model == DH else SATURATED_POTENTIAL):
+        return None
+    capped = np.sign(problem.wall_potential_guess) * np.minimum(reduced, cap) / problem.counter_valence
+    return problem._replace(wall_potential_guess=capped)
+
+
+def _far_label(problem: SectionProblem, label: str | Callable[[], str]) -> str:
+    """The case's name with its wall potential, for the refusal of a case whose tamer grid failed too."""
+    name = label() if callable(label) else label
+    worst = float(np.max(np.abs(problem.wall_potential_guess) * problem.counter_valence))
+    beyond = ("far beyond the Debye-Hueckel linearisation's validity (|z e psi / kT| < 1)" if problem.model == DH
+              else f"above the {SATURATED_POTENTIAL:g} up to which the solver resolves its layer")
+    return f"{name}: the wall alone in the bulk would sit at |z e psi / kT| = {worst:.3g}, {beyond}"
 
 
 def _scaled_walls(rows: np.ndarray, t: float) -> np.ndarray:

@@ -55,3 +55,19 @@ def notes(case: Case, profiles: Profiles, thermal_voltage: float) -> tuple[str, 
                          f"of {CLOSE_PACKING_DIAMETER * 1e9:g} nm ions ({packing / 1000:.2g} M): point-ion "
                          "Poisson-Boltzmann overestimates crowding here")
     return tuple(found)
+
+
+#: Summary keys of pressure-to-electrical energy conversion that are NaN when the coupling breaks the second law.
+COUPLING_KEYS = ("figure_of_merit", "max_efficiency", "efficiency_at_max_power", "electroviscous_ratio")
+
+
+def coupling_notes(summary: dict) -> tuple[str, ...]:
+    """A sentence when the energy-conversion values are NaN: the degree of coupling q^2 = M01 M10 / (M00 M11)
+    of the response matrix reached 1, which the second law forbids (Kedem & Caplan 1965, from memory), so the
+    model that gave it is outside its validity (a Debye-Hueckel layer at |z e phi / kT| >> 1, whose linearised
+    concentrations can turn negative and shrink the conductance)."""
+    missing = [key for key in COUPLING_KEYS if key in summary and not np.all(np.isfinite(summary[key]))]
+    if not missing:
+        return ()
+    return (f"{', '.join(missing)} are NaN: the coupling of flow and current q^2 = M01 M10 / (M00 M11) reached 1, "
+            "beyond the second law, so the model is outside its validity here",)

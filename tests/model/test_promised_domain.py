@@ -1,0 +1,109 @@
+"""Cases inside the domain the README promises (|zeta| <= 15 kT/e, kappa h 0.01-1000, valences up to 3, 1 uM-1 M,
+slit and capillary, every wall and ion model, 0-100 degC) either solve, meeting their checks, or raise
+ConvergenceError naming the case: never another exception (issue 10)."""
+
+from __future__ import annotations
+
+import math
+
+import numpy as np
+import pytest
+
+import edl_solver as edl
+from edl_solver.constants import VACUUM_PERMITTIVITY
+from edl_solver.errors import ConvergenceError
+from edl_solver.kernels import adaptive
+from tests.model.domain_sampler import cases
+
+#: Summary values every converged solve reports as finite numbers (the lab quantities may be NaN, see lab.py).
+CORE_KEYS = ("zeta", "wall_charge_density", "centre_potential", "flow_rate_eo", "flow_rate_pressure",
+             "conduction_current", "current_per_field", "charge_balance", "reciprocity_residual")
+
+
+def _debye_hueckel_capillary() -> edl.Case:
+    """The issue's example: 2.7 nm capillary, 0.3 mM K+ and 0.15 mM SO4 2-, -137 mC/m^2, model 'dh'."""
+    return edl.Case(geometry=edl.Capillary(radius="2.7 nm"),
+                    electrolyte=edl.Electrolyte.from_ions({"K+": "0.3 mM", "SO4-2": "0.15 mM"}),
+                    wall=edl.Wall(charge_density="-137 mC/m^2"), field="1 kV/m", model="dh")
+
+
+def test_debye_hueckel_wall_of_large_charge_solves_with_a_note():
+    # a linear model, so a solution exists at any charge: in a capillary much thinner than the Debye length the
+    # charge balance 2 sigma / a = -eps kappa^2 psi puts psi near -30 V (common practice), far beyond |z psi| < 1
+    result = edl.solve(_debye_hueckel_capillary())
+    summary = result.summary
+    assert summary["zeta"] == pytest.approx(-30.2, rel=0.02)
+    assert abs(summary["charge_balance"]) < 1e-8
+    assert summary["wall_charge_density"] == pytest.approx(-0.137, rel=1e-8)
+    assert any("Debye-Hueckel linearisation is outside its range" in note for note in result.warnings)
+
+
+def test_debye_hueckel_wall_whose_layer_underflows_the_grid_is_not_a_bare_numpy_error():
+    # a 2:2 salt at 0.054 mM and -0.64 C/m^2: the isolated Debye-Hueckel wall sits at ~740 kT/e, where the
+    # grid's wall cell underflowed and numpy refused to allocate ("negative dimensions not allowed")
+    case = edl.Case(geometry=edl.Slit(height=2.3580401781173877e-07),
+                    electrolyte=edl.Electrolyte((edl.Ion("A", 2, 0.05427021970196943, 1e-9),
+                                                 edl.Ion("B", -2, 0.05427021970196943, 1.5e-9))),
+                    wall=edl.Wall(charge_density=-0.6378009737323066), solvent=edl.Water(temperature=301.87),
+                    field=1e3, model="dh")
+    try:
+        result = edl.solve(case)
+    except ConvergenceError as error:
+        assert "slit H" in str(error) and "kT" in str(error)
+    else:
+        assert abs(result.summary["charge_balance"]) < 1e-8
+
+
+def test_stretching_and_start_stay_finite_at_any_wall_potential():
+    # the grid map and the Gouy-Chapman start must not overflow for a saturated wall potential
+    assert math.isfinite(adaptive.stretching(0.0))
+    x = np.linspace(-1.0, 1.0, 9)
+    psi = np.empty(x.size)
+    adaptive.gouy_chapman_guess(x, 1.0, False, np.array([0.0, -1e4]), np.array([1.0, 1.0]), psi)
+    assert np.isfinite(psi).all()
+
+
+@pytest.mark.parametrize("seed", [11, 12])
+def test_random_cases_of_the_promised_domain_solve_or_refuse_in_words(seed):
+    for case in cases(seed, 150):
+        try:
+            result = edl.solve(case)
+        except ConvergenceError as error:
+            assert case.describe() in str(error)
+            continue
+        summary = result.summary
+        for key in CORE_KEYS:
+            assert np.all(np.isfinite(summary[key])), (case.describe(), key)
+
+
+def test_nan_energy_conversion_of_a_debye_hueckel_layer_comes_with_a_note():
+    # 1:1 salt, 3.3 mM, -7.8 mC/m^2 in a 2.4 nm capillary: the linearised layer reaches |z e phi / kT| ~ 5, its
+    # concentrations turn negative near the wall and the coupling q^2 exceeds 1 (lab.py returns NaN there)
+    case = edl.Case(geometry=edl.Capillary(radius=2.369e-09),
+                    electrolyte=edl.Electrolyte((edl.Ion("A", 1, 3.329, 1e-9), edl.Ion("B", -1, 3.329, 1.5e-9))),
+                    wall=edl.Wall(charge_density=-0.007789), field=1e3, model="dh")
+    result = edl.solve(case)
+    assert math.isnan(result.summary["figure_of_merit"])
+    assert any("figure_of_merit" in note and "q^2" in note for note in result.warnings)
+
+
+def test_debye_hueckel_slit_whose_stretched_grid_failed_solves_to_the_exact_linear_solution():
+    # 2:1 salt at 76 degC, +30 mC/m^2, kappa h = 1.97: the isolated layer is at z e zeta / kT ~ 54, whose
+    # Gouy-Chapman-stretched grid (~1e-12 h wall cells) lost Newton to rounding; a linear layer needs none of it
+    case = edl.Case(geometry=edl.Slit(height=5.8028718654586194e-08),
+                    electrolyte=edl.Electrolyte((edl.Ion("A", 2, 0.13117099834595047, 1e-9),
+                                                 edl.Ion("B", -1, 0.26234199669190095, 1.5e-9))),
+                    wall=edl.Wall(charge_density=0.02999381156122451), solvent=edl.Water(temperature=349.1618272274558),
+                    field=1e3, model="dh")
+    summary = edl.solve(case).summary
+    # Debye-Hueckel slit of fixed charge: zeta = sigma / (eps kappa) coth(kappa h) (from memory)
+    eps = case.solvent.relative_permittivity * VACUUM_PERMITTIVITY
+    exact = 0.02999381156122451 * summary["debye_length"] / eps / math.tanh(summary["kappa_h"])
+    assert summary["zeta"] == pytest.approx(exact, rel=1e-6)
+
+
+def test_a_sweep_through_debye_hueckel_walls_of_large_charge_completes():
+    # the compiled batch raised inside its parallel loop (SystemError) at the issue's -137 mC/m^2
+    data = edl.sweep(_debye_hueckel_capillary(), {"wall.charge_density": [-0.001, -0.137]}, progress=False)
+    assert list(data["status"].values) == [0, 0]
+    assert data["zeta"].values[1] == pytest.approx(-30.2, rel=0.02)
