@@ -123,8 +123,11 @@ def case_vector(case: Case) -> np.ndarray:
     p[P_INTERVALS] = numerics.intervals or 0
     p[P_MAX_ITERATIONS] = numerics.max_iterations
     p[P_MAX_INTERVALS] = numerics.max_intervals
-    for side, wall in enumerate(case.walls):
-        p[P_SLIP + side] = wall.slip_length
-        p[P_WALLS + side * WALL_SIZE:P_WALLS + (side + 1) * WALL_SIZE] = wall_row_si(wall)
-    p[P_IONS:] = ion_rows(case.electrolyte).ravel()
+    bottom, top = case.walls
+    p[P_SLIP], p[P_SLIP + 1] = bottom.slip_length, top.slip_length
+    row = wall_row_si(bottom)
+    p[P_WALLS:P_WALLS + WALL_SIZE] = row
+    p[P_WALLS + WALL_SIZE:P_WALLS + 2 * WALL_SIZE] = row if top is bottom else wall_row_si(top)
+    # the ION_* rows, flat (a list converts faster than building the 2-D array of ion_rows)
+    p[P_IONS:] = [value for ion in ions for value in (ion.valence, ion.concentration, ion.diffusivity)]
     return p
