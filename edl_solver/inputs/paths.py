@@ -255,3 +255,27 @@ def case_at(base_table: Mapping[str, Any], axes: Sequence[Axis], index: Sequence
         for path, values in zip(axis.paths, axis.values):
             _set_path(table, path, values[i])
     return case_from_mapping(table)
+
+
+def check_axis_values(base_table: Mapping[str, Any], axes: Sequence[Axis]) -> None:
+    """Build the case at every value of every axis, the other axes at their first value, so that a value that
+    makes no valid case (a negative height, pH 20, valence 0, an unknown model, a site that does not exist) is
+    refused before anything is solved, naming its axis and value.
+
+    A value that is valid alone but not together with a value of another axis is still found only at its
+    point, where the sweep records it as failed.
+
+    Raises
+    ------
+    InputError
+        ``axes['PATH']: at VALUE the case is not valid: <the case's own message>``.
+    """
+    for a, axis in enumerate(axes):
+        for i in range(axis.size):
+            index = [0] * len(axes)
+            index[a] = i
+            try:
+                case_at(base_table, axes, index)
+            except InputError as exc:
+                key = " and ".join(f"axes[{path!r}]" for path in axis.paths)
+                raise InputError(f"{key}: at {axis.values[0][i]!r} the case is not valid: {exc}") from None

@@ -27,7 +27,7 @@ import numpy as np
 
 from edl_solver.errors import ConvergenceError, InputError
 from edl_solver.inputs.case import Case
-from edl_solver.inputs.paths import PATH_UNITS, WORD_PATHS, Axis, case_at, check_conflicts, make_axes
+from edl_solver.inputs.paths import PATH_UNITS, WORD_PATHS, Axis, case_at, check_axis_values, check_conflicts, make_axes
 from edl_solver.io.files import checked_output_path, output_lock
 from edl_solver.kernels import layout
 from edl_solver.kernels.layout import PAIR_KEYS, SLOTS, SUMMARY_SIZE
@@ -181,7 +181,8 @@ def sweep(base: Case, axes: Mapping[str, Any], *, zipped: Sequence[Sequence[str]
     Raises
     ------
     InputError
-        Bad arguments or output path, a file at ``path`` without ``overwrite``, or another run writing
+        Bad arguments or output path, an axis value that makes no valid case
+        (``inputs.paths.check_axis_values``), a file at ``path`` without ``overwrite``, or another run writing
         ``path``: before any case is solved.
     """
     from edl_solver.inputs.casefile import case_to_mapping
@@ -189,6 +190,7 @@ def sweep(base: Case, axes: Mapping[str, Any], *, zipped: Sequence[Sequence[str]
     _check_options(base, workers, overwrite)
     sweep_axes = make_axes(axes, _checked_zipped(zipped))
     base_table = case_to_mapping(base)
+    check_axis_values(base_table, sweep_axes)
     profile_points = sweep_profiles.check_points(profiles)
     target = checked_output_path(path) if path is not None else None
     with output_lock(target) if target is not None else nullcontext():
