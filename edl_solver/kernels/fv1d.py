@@ -213,13 +213,17 @@ def _scaled_norms(res, scale):
     return np.sqrt(total), worst
 
 
+#: Newton's step tolerance relative to the largest potential, where that exceeds the absolute one.
+ROUNDOFF_STEP = 1e-13
+
+
 @njit(cache=True, error_model="numpy")
 def pb_newton(psi, cells, problem, walls, tol, max_iter, max_step):
     """Damped Newton iteration for the discrete Poisson-Boltzmann equation of ``problem`` with the wall rows
     ``walls`` on the grid ``cells``, in place on ``psi``.
 
     The Jacobian is tridiagonal and negative definite (the charge decreases with psi, in the liquid as on
-    a regulated wall), so each step costs O(n). Steps are capped at ``max_step`` (kT/e) and halved until
+    a regulated wall), so each step costs O(n). Steps are capped at ``max_step`` (kT/e; not for DH) and halved until
     the row-scaled residual decreases in the Euclidean norm (a backtracking line search; the row scaling
     is frozen during the search so that the Newton step is a descent direction).
 
@@ -253,11 +257,15 @@ def pb_newton(psi, cells, problem, walls, tol, max_iter, max_step):
                 upper[i] = 0.0
         tridiagonal_solve(lower, jac, upper, rhs, step, work)
         biggest = 0.0
+        largest = 0.0
         for i in range(n):
             biggest = max(biggest, abs(step[i]))
+            largest = max(largest, abs(psi[i]))
         if not np.isfinite(biggest + step.sum()):  # max() skips NaN (a zero pivot of a too stretched grid)
             return 2, it, worst
-        if biggest < tol:
+        # ``tol`` is absolute (kT/e) up to potentials of ~100 kT/e; beyond (a linear layer of large charge
+        # reaches 1e5 kT/e) it is relative, since the step cannot fall below the round-off of psi itself
+        if biggest < max(tol, ROUNDOFF_STEP * largest):
             for i in range(n):
                 psi[i] += step[i]
             _pb_residual(psi, link, volume, kappa2, ions, model, walls, res, scale, jac)
@@ -265,7 +273,8 @@ def pb_newton(psi, cells, problem, walls, tol, max_iter, max_step):
                 _regulated_ends(psi, walls, res, scale, jac)
             norm, worst = _scaled_norms(res, scale)
             return 0, it, worst
-        lam = 1.0 if biggest <= max_step else max_step / biggest
+        # a linear (Debye-Hueckel) problem's Newton step is exact at any size: capping it only costs iterations
+        lam = 1.0 if biggest <= max_step or model == DH else max_step / biggest
         accepted = False
         for _ in range(60):
             for i in range(n):

@@ -13,6 +13,7 @@ from numba import njit
 from edl_solver.constants import AVOGADRO, BOLTZMANN, ELEMENTARY_CHARGE
 from edl_solver.kernels.layout import (
     AXISYMMETRIC,
+    DH,
     FLOW_CODE,
     FLOW_SIZE,
     FLOW_VALUE,
@@ -151,6 +152,27 @@ def species(p):
     return ions
 
 
+#: z |psi_w| (kT/e) at most that sets the grid and start of a Debye-Hueckel case.
+DH_LAYER_POTENTIAL = 2.0
+
+
+@njit(cache=True)
+def cap_linear_layer(guess, counter):
+    """Cap the wall potentials that set the grid and start of a Debye-Hueckel case at ``DH_LAYER_POTENTIAL``
+    (reduced by the counter-ion valence), in place.
+
+    A linear layer has no Gouy-Chapman steepening: its smallest scale is the Debye length at any wall
+    potential, and the cells that ``adaptive.inner_length`` would ask for at |z e psi / kT| of tens or hundreds
+    (a large charge on a linear layer) are orders of magnitude thinner, which only spoils the precision of the
+    discrete charge balance (it reached 1e-8 to 1e-6 relative). The start does not matter: Newton takes the
+    exact step of a linear problem (``fv1d.pb_newton`` does not cap it).
+    """
+    for end in range(2):
+        reduced = abs(guess[end]) * counter[end]
+        if reduced > DH_LAYER_POTENTIAL:
+            guess[end] *= DH_LAYER_POTENTIAL / reduced
+
+
 @njit(cache=True)
 def section_problem(p, sc, iso):
     """The dimensionless ``SectionProblem`` of a case with scales ``sc`` and isolated walls ``iso``.
@@ -182,6 +204,8 @@ def section_problem(p, sc, iso):
             flow_walls[end, FLOW_VALUE] = 1.0 / slip
         else:
             flow_walls[end, FLOW_CODE] = POTENTIAL
+    if int(p[P_MODEL]) == DH:
+        cap_linear_layer(guess, counter)
     metric = int(p[P_METRIC])
     kappa2 = (length / sc[S_DEBYE_LENGTH]) ** 2
     visco = p[P_VISCOELECTRIC] * (vt / length) ** 2

@@ -1,7 +1,8 @@
 """A seeded random sampler of the domain the README promises the solver converges in.
 
 README ("Converges for |zeta| up to 15 kT/e, kappa h from 0.01 to 1000 and valences up to 3"), with the ranges of
-the inputs section: 1 uM to 1 M, slit and capillary, every wall and ion model, 0-100 degC. A fixed-charge wall gets
+the inputs section: 1 uM to 1 M, slit and capillary, every wall and ion model, 0-100 degC, sizes (half-height or
+radius) within the 0.1 nm - 1 m that inputs accept. A fixed-charge wall gets
 the charge that Grahame's relation (Grahame 1947, from memory) gives for a sampled |zeta| <= 15 kT/e in the
 nonlinear Poisson-Boltzmann picture, so that the case is inside the domain whatever the model.
 """
@@ -68,7 +69,9 @@ def sample(rng: np.random.Generator) -> edl.Case:
     vt = kt / ELEMENTARY_CHARGE
     debye = math.sqrt(eps * kt / (ELEMENTARY_CHARGE**2 * AVOGADRO * sum(i.valence**2 * i.concentration
                                                                           for i in ions)))
-    size = debye * 10.0 ** rng.uniform(-2.0, 3.0)  # kappa times half-height or radius in 0.01-1000
+    # kappa times half-height or radius in 0.01-1000, the size itself within 0.1 nm - 1 m (refused outside)
+    low, high = math.log10(max(0.01, 1e-10 / debye)), math.log10(min(1000.0, 1.0 / debye))
+    size = debye * 10.0 ** rng.uniform(low, high)
     geometry = edl.Slit(height=2.0 * size) if rng.random() < 0.5 else edl.Capillary(radius=size)
     wall = _wall(rng, kind, ions, eps, temperature, vt)
     return edl.Case(geometry=geometry, electrolyte=electrolyte, wall=wall, solvent=solvent, field=1e3,

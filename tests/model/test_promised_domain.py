@@ -8,6 +8,7 @@ import math
 
 import numpy as np
 import pytest
+from scipy import special
 
 import edl_solver as edl
 from edl_solver.constants import VACUUM_PERMITTIVITY
@@ -107,3 +108,26 @@ def test_a_sweep_through_debye_hueckel_walls_of_large_charge_completes():
     data = edl.sweep(_debye_hueckel_capillary(), {"wall.charge_density": [-0.001, -0.137]}, progress=False)
     assert list(data["status"].values) == [0, 0]
     assert data["zeta"].values[1] == pytest.approx(-30.2, rel=0.02)
+
+
+@pytest.mark.parametrize(("radius", "ions", "sigma"), [
+    # 2:3 salt, 0.6 mM ionic strength, -0.19 C/m^2, kappa a = 0.55: zeta ~ -1.1 V was returned with a wall charge
+    # of 1e-61 (refused by the charge-balance check) on a grid stretched for a Gouy-Chapman layer at 1000 kT/e
+    (6.607466990345826e-09, (edl.Ion("A", 2, 0.1193180849283557, 1e-9), edl.Ion("B", -3, 0.07954538995223714, 1.5e-9)),
+     -0.18658851777053176),
+    # 1:1 salt at 0.5 uM, +0.083 C/m^2 in a 2.5 nm capillary: the linear layer sits near 1e5 kT/e, where Newton's
+    # absolute step tolerance was below the round-off of the potential and it never stopped
+    (2.506e-09, (edl.Ion("A", 1, 0.0005019, 1e-9), edl.Ion("B", -1, 0.0005019, 1.5e-9)), 0.0826),
+])
+def test_debye_hueckel_capillary_of_large_charge_solves_to_the_exact_linear_solution(radius, ions, sigma):
+    case = edl.Case(geometry=edl.Capillary(radius=radius), electrolyte=edl.Electrolyte(ions),
+                    wall=edl.Wall(charge_density=sigma), solvent=edl.Water(temperature=338.2651835898513), field=1e3,
+                    model="dh")
+    summary = edl.solve(case).summary
+    # Debye-Hueckel capillary of fixed charge: psi = A I0(kappa r), sigma = eps kappa A I1(kappa a), so
+    # zeta = sigma I0(kappa a) / (eps kappa I1(kappa a)) (Rice & Whitehead 1965, J. Phys. Chem. 69, 4017, from memory)
+    eps = case.solvent.relative_permittivity * VACUUM_PERMITTIVITY
+    ka = summary["kappa_h"]
+    exact = sigma * summary["debye_length"] / eps * special.i0(ka) / special.i1(ka)
+    assert summary["zeta"] == pytest.approx(exact, rel=1e-6)
+    assert summary["wall_charge_density"] == pytest.approx(sigma, rel=1e-8)
