@@ -322,30 +322,31 @@ def stokes_operator(link, viscosity, wall_viscosity, flow_walls):
         (as ``tridiagonal_solve`` computes them).
     """
     n = link.size + 1
-    lower = np.empty(n)
-    diag = np.empty(n)
-    upper = np.empty(n)
-    for i in range(n):
-        lower[i] = link[i - 1] * viscosity[i - 1] if i > 0 else 0.0
-        upper[i] = link[i] * viscosity[i] if i < n - 1 else 0.0
-        diag[i] = -lower[i] - upper[i]
-    for end in range(2):
-        i = 0 if end == 0 else n - 1
-        kind = int(flow_walls[end, FLOW_CODE])
-        if kind == POTENTIAL:
-            lower[i] = 0.0
-            upper[i] = 0.0
-            diag[i] = 1.0
-        elif kind == ROBIN:
-            diag[i] -= flow_walls[end, FLOW_VALUE] * wall_viscosity[end]
     factor = np.empty((3, n))
-    factor[0] = lower
-    factor[1, 0] = diag[0]
-    factor[2, 0] = upper[0] / diag[0]
-    for i in range(1, n):
-        denom = diag[i] - lower[i] * factor[2, i - 1]
-        factor[1, i] = denom
-        factor[2, i] = upper[i] / denom if i < n - 1 else 0.0
+    extra = np.zeros(n)  # the diagonal beyond the links: the Robin walls' shear
+    kinds = (int(flow_walls[0, FLOW_CODE]), int(flow_walls[1, FLOW_CODE]))
+    for end in range(2):
+        if kinds[end] == ROBIN:
+            extra[0 if end == 0 else n - 1] += flow_walls[end, FLOW_VALUE] * wall_viscosity[end]
+    # Pivots in subtraction-free form: with lower_i = upper_{i-1} (a symmetric operator whose rows sum to
+    # -extra_i), pivot_i = -(upper_i + s_i), s_i = extra_i + lower_i s_{i-1} / (lower_i + s_{i-1}) (conductances
+    # in series). The textbook recursion forms s_i as the difference of link coefficients up to 1/h_min, and a
+    # slip wall's 1/b, tiny next to them on a grid stretched for a steep layer, was lost to that cancellation.
+    series = np.inf  # s of a prescribed-velocity row: the next row sees its whole link
+    for i in range(n):
+        lower = link[i - 1] * viscosity[i - 1] if i > 0 else 0.0
+        upper = link[i] * viscosity[i] if i < n - 1 else 0.0
+        if (i == 0 and kinds[0] == POTENTIAL) or (i == n - 1 and kinds[1] == POTENTIAL):
+            factor[0, i], factor[1, i], factor[2, i] = 0.0, 1.0, 0.0
+            series = np.inf
+            continue
+        if i == 0:
+            series = extra[0]
+        else:
+            series = extra[i] + (lower if series == np.inf else lower * series / (lower + series))
+        factor[0, i] = lower
+        factor[1, i] = -(upper + series)
+        factor[2, i] = upper / factor[1, i]
     return factor
 
 

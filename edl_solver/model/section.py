@@ -13,10 +13,11 @@ from typing import NamedTuple
 
 import numpy as np
 
+from edl_solver.errors import ConvergenceError
 from edl_solver.inputs.case import Case
 from edl_solver.kernels import layout as _layout
 from edl_solver.kernels import single as _single
-from edl_solver.model import equilibrium, scaling
+from edl_solver.model import crowding, equilibrium, scaling
 
 
 class SolvedSection(NamedTuple):
@@ -107,7 +108,11 @@ def solve_and_summarize(vector: np.ndarray, case: Case, values: np.ndarray) -> S
 
 
 def _with_continuation(case: Case, values: np.ndarray) -> SolvedSection:
-    """The Python path: the same compiled steps, with continuation when Newton fails from the guess."""
+    """The Python path: the same compiled steps, with continuation when Newton fails from the guess; a steric
+    section that cannot hold its walls' charge is refused with that reason (``crowding.overfilled_walls``)."""
+    overfilled = crowding.overfilled_walls(case)
+    if overfilled:
+        raise ConvergenceError(f"{case.describe()}: {overfilled}")
     prepared = scaling.prepare(case)
     section, ion_matrix, matrix, slip = equilibrium.solve_summarized(prepared, values, case.describe)
     nodes = np.vstack((section.grid.s, section.psi, section.u_eo, section.u_p))

@@ -11,7 +11,7 @@ import pytest
 from scipy import special
 
 import edl_solver as edl
-from edl_solver.constants import VACUUM_PERMITTIVITY
+from edl_solver.constants import AVOGADRO, BOLTZMANN, ELEMENTARY_CHARGE, VACUUM_PERMITTIVITY
 from edl_solver.errors import ConvergenceError
 from edl_solver.kernels import adaptive
 from tests.model.domain_sampler import cases
@@ -131,3 +131,65 @@ def test_debye_hueckel_capillary_of_large_charge_solves_to_the_exact_linear_solu
     exact = sigma * summary["debye_length"] / eps * special.i0(ka) / special.i1(ka)
     assert summary["zeta"] == pytest.approx(exact, rel=1e-6)
     assert summary["wall_charge_density"] == pytest.approx(sigma, rel=1e-8)
+
+
+def _sized_slit(sigma: float) -> edl.Case:
+    ions = edl.Electrolyte([edl.Ion(name=name, concentration=100.0, diameter=0.7e-9) for name in ("Na+", "Cl-")])
+    return edl.Case(geometry=edl.Slit(height="1 nm"), electrolyte=ions, wall=edl.Wall(charge_density=sigma),
+                    model="steric", field=1e3)
+
+
+def test_steric_slit_that_cannot_hold_its_counter_charge_is_refused_for_that_reason():
+    # the lattice-gas charge density is bounded by z e / d^3 (Bikerman 1942; Kilic, Bazant & Ajdari 2007, from
+    # memory): a 1 nm slit of 0.7 nm ions holds at most e H / d^3 = 0.467 C/m^2, less than two walls of
+    # -0.5 C/m^2; the continuation used to stall with no physical reason given
+    with pytest.raises(ConvergenceError, match=r"exceeds the counter-charge the slit can hold .* close packing "
+                                               r"\(0\.467 C/m\^2\)"):
+        edl.solve(_sized_slit(-0.5))
+
+
+def test_steric_slit_just_below_its_close_packing_solves():
+    summary = edl.solve(_sized_slit(-0.23)).summary  # 98.5 % of the capacity
+    assert summary["wall_charge_density"] == pytest.approx(-0.23, rel=1e-8)
+    assert abs(summary["charge_balance"]) < 1e-8
+
+
+def test_eo_flow_of_a_slip_wall_at_a_steep_layer_meets_the_navier_slip_identity():
+    # 3:3 salt at 4.2 mM, zeta = 14.6 kT/e (z e zeta / kT = 44), slip length 9.2 nm in a 137 nm capillary: the
+    # Stokes pivots lost the slip term to cancellation against the wall cells' links (1/h_min ~ 1e11) and the
+    # error estimate grew with refinement (accuracy missed at 4096 cells). Navier slip adds b sigma / eps to zeta
+    # in the EO velocity (Joly, Ybert, Trizac & Bocquet 2004, Phys. Rev. Lett. 93, 257805, from memory), so the
+    # flow rate grows by -pi a^2 E b sigma / eta over the no-slip one
+    ions = (edl.Ion("A", 3, 4.228013935985838, 1e-9), edl.Ion("B", -3, 4.228013935985838, 1.5e-9))
+    radius, slip = 1.366552971135913e-07, 9.203363985194566e-09
+
+    def case(slip_length):
+        return edl.Case(geometry=edl.Capillary(radius=radius), electrolyte=edl.Electrolyte(ions),
+                        wall=edl.Wall(zeta=0.4192406842807145, slip_length=slip_length),
+                        solvent=edl.Water(temperature=332.1391762292659), field=1e3)
+
+    sticking, slipping = edl.solve(case(0.0)).summary, edl.solve(case(slip)).summary
+    eta = case(0.0).solvent.viscosity
+    added = -math.pi * radius**2 * 1e3 * slip * sticking["wall_charge_density"] / eta
+    assert slipping["flow_rate_eo"] - sticking["flow_rate_eo"] == pytest.approx(added, rel=1e-6)
+
+
+def test_steric_wall_at_fifteen_thermal_voltages_meets_the_crowded_grahame_charge():
+    # 3:3 salt at 4.1 mM, 0.64 nm ions, zeta = -13.5 kT/e, kappa h ~ 130: the grid was stretched for a
+    # Gouy-Chapman layer at z e zeta / kT = 41 (wall cells ~1e-9 Debye lengths) where the crowded layer is a
+    # film of close-packed counter-ions, and the charge balance lost 1e-8 to rounding (refused)
+    diameter, c = 6.41504030465218e-10, 4.115052543956444
+    ions = (edl.Ion("A", 3, c, 1e-9, diameter), edl.Ion("B", -3, c, 1.5e-9, diameter))
+    solvent = edl.Water(temperature=311.1976693236329)
+    case = edl.Case(geometry=edl.Slit(height=4.287637799438264e-07), electrolyte=edl.Electrolyte(ions),
+                    wall=edl.Wall(zeta=-0.36337320959282693), solvent=solvent, field=1e3, model="steric")
+    summary = edl.solve(case).summary
+    # Grahame's relation of the lattice gas: sigma^2 = (2 eps kT / d^3) ln(1 + sum_k nu_k (exp(-z_k e zeta/kT) - 1)),
+    # nu_k = c_k N_A d^3 (Kilic, Bazant & Ajdari 2007, Phys. Rev. E 75, 021502, from memory); a wide slit's wall
+    # is an isolated one up to exp(-kappa h)
+    kt = BOLTZMANN * solvent.temperature
+    reduced = -0.36337320959282693 * ELEMENTARY_CHARGE / kt
+    crowd = 1.0 + sum(c * AVOGADRO * diameter**3 * math.expm1(-z * reduced) for z in (3, -3))
+    eps = solvent.relative_permittivity * VACUUM_PERMITTIVITY
+    grahame = -math.sqrt(2.0 * eps * kt / diameter**3 * math.log(crowd))
+    assert summary["wall_charge_density"] == pytest.approx(grahame, rel=1e-6)
