@@ -9,6 +9,7 @@ from __future__ import annotations
 
 import numpy as np
 from numba import njit
+from numpy.polynomial import legendre
 
 from edl_solver.constants import FARADAY, GAS_CONSTANT
 from edl_solver.kernels.layout import (
@@ -82,17 +83,101 @@ def outer_deviation(s, beta, u_eo, p, sc, slip):
     return worst / largest
 
 
+def _cumulative_matrix(nodes: np.ndarray) -> np.ndarray:
+    """S with (S f)_j = int_{-1}^{x_j} f dt, exact for f a polynomial of degree below the number of nodes:
+    the Lagrange basis on ``nodes`` integrated in the Legendre basis, int_{-1}^x P_k = (P_{k+1} - P_{k-1}) /
+    (2k + 1)."""
+    n = nodes.size
+    basis = legendre.legvander(nodes, n)  # P_0 .. P_n at the nodes
+    integrals = np.empty((n, n))
+    integrals[:, 0] = nodes + 1.0
+    for k in range(1, n):
+        integrals[:, k] = (basis[:, k + 1] - basis[:, k - 1]) / (2 * k + 1)
+    return integrals @ np.linalg.inv(basis[:, :n])
+
+
+#: Gauss-Legendre nodes and weights on [-1, 1], and the matrix giving the running integral at the nodes.
+_NODES, _WEIGHTS = legendre.leggauss(16)
+_CUMULATIVE = _cumulative_matrix(_NODES)
+#: Panel width of the composite rule, in units of kT / (e max|z|): the integrands vary on that scale.
+_PANEL = 4.0
+
+
+@njit(cache=True, error_model="numpy")
+def _root_pressure(phi, origin, sign, rate, ions):
+    """sqrt(P(phi)) exp(-rate origin / 2), P(phi) = sum_i c_i (exp(-z_i sign phi) - 1) the excess osmotic
+    pressure over RT at dimensionless potential sign phi; the factor keeps it finite however large phi
+    (``rate`` is the fastest growth, max_i -z_i sign, and phi - origin stays within one panel)."""
+    total = 0.0
+    if rate * phi < 600.0:
+        for i in range(ions.shape[0]):  # expm1: no cancellation near phi = 0, where P ~ phi^2
+            total += ions[i, ION_CONCENTRATION] * np.expm1(-sign * ions[i, ION_VALENCE] * phi)
+        return np.sqrt(max(total, 0.0)) * np.exp(-0.5 * rate * origin)
+    floor = np.exp(-rate * phi)
+    for i in range(ions.shape[0]):  # P exp(-rate phi), each term at most c_i
+        total += ions[i, ION_CONCENTRATION] * (np.exp(-(sign * ions[i, ION_VALENCE] + rate) * phi) - floor)
+    return np.sqrt(max(total, 0.0)) * np.exp(0.5 * rate * (phi - origin))
+
+
+@njit(cache=True, error_model="numpy")
+def chemiosmotic_integral(potential, ions):
+    """J = int_0^|phi_w| G(phi) / sqrt(P(phi)) dphi, G(phi) = int_0^phi sqrt(P), of an isolated Gouy-Chapman
+    layer of dimensionless wall potential ``potential`` = e zeta / kT in the mixture ``ions`` (``ION_*`` rows;
+    ``_root_pressure`` states P). int_0^inf y Pi(psi(y)) dy = (eps / 2)(kT / e)^2 J (``_chemiosmotic_slip``).
+
+    Composite 16-point Gauss-Legendre: on each panel the running integral G at the nodes comes from the
+    panel's own values through ``_CUMULATIVE``, so P is evaluated once per node. The integrand is smooth
+    (~ phi / 2 near 0, tending to 2 / max_i(-z_i sign) far out), the panels a fraction of kT / (e max|z|).
+    """
+    span = abs(potential)
+    if span == 0.0:
+        return 0.0
+    sign = 1.0 if potential > 0.0 else -1.0
+    rate = 0.0
+    largest = 0.0
+    for i in range(ions.shape[0]):
+        rate = max(rate, -sign * ions[i, ION_VALENCE])
+        largest = max(largest, abs(ions[i, ION_VALENCE]))
+    panels = max(1, int(np.ceil(span * largest / _PANEL)))
+    half = 0.5 * span / panels
+    n = _NODES.size
+    root = np.empty(n)
+    carried = 0.0  # G at the panel's start, times exp(-rate start / 2)
+    total = 0.0
+    for k in range(panels):
+        start = 2.0 * half * k
+        for j in range(n):
+            root[j] = _root_pressure(start + half * (1.0 + _NODES[j]), start, sign, rate, ions)
+        whole = 0.0
+        for j in range(n):
+            running = carried
+            for m in range(n):
+                running += half * _CUMULATIVE[j, m] * root[m]
+            total += half * _WEIGHTS[j] * running / root[j]
+            whole += _WEIGHTS[j] * root[j]
+        carried = (carried + half * whole) * np.exp(-rate * half)
+    return total
+
+
 @njit(cache=True, error_model="numpy")
 def _chemiosmotic_slip(zeta, ions, p, thermal_voltage):
-    """Thin-layer diffusio-osmotic slip velocity per unit d ln c/dx of a symmetric z:z electrolyte, m^2/s:
-    u = -(eps / eta)(kT / z e)^2 4 ln cosh(z e zeta / 4 kT) d ln c/dx (chemiosmosis; Prieve, Anderson, Ebel &
-    Lowell 1984, J. Fluid Mech. 148, 247, from memory; it follows from the Gouy-Chapman layer, since
-    int_0^inf x (cosh psi - 1) dx = 4 ln cosh(psi_w / 4)). NaN for other electrolytes."""
-    if ions.shape[0] != 2 or ions[0, ION_VALENCE] != -ions[1, ION_VALENCE]:
-        return np.nan
-    z = abs(ions[0, ION_VALENCE])
-    vt = thermal_voltage / z
-    return -p[P_PERMITTIVITY] / p[P_VISCOSITY] * vt * vt * 4.0 * np.log(np.cosh(zeta / (4.0 * vt)))
+    """Thin-layer diffusio-osmotic (chemiosmotic) slip velocity per unit d ln c/dx, m^2/s, of a flat wall of
+    potential ``zeta`` in any mixture whose bulk concentrations all scale with c(x).
+
+    In the layer eta u'' = Pi(psi(y)) d ln c/dx, Pi = RT sum_i c_i (exp(-z_i e psi / kT) - 1) the excess
+    osmotic pressure (the pressure gradient at fixed psi less the electric body force), so with u(0) = 0
+    u = -(1 / eta) d ln c/dx int_0^inf y Pi dy, and with (eps / 2) psi'^2 = Pi the integral becomes
+    (eps / 2)(kT / e)^2 ``chemiosmotic_integral`` (Wilson, Shim, Yu, Gupta & Stone 2020, Langmuir 36, 7014,
+    general valences; from memory). For a symmetric z:z salt the closed form u = -(eps / eta)(kT / z e)^2
+    4 ln cosh(z e zeta / 4 kT) (Prieve, Anderson, Ebel & Lowell 1984, J. Fluid Mech. 148, 247, from memory),
+    which the quadrature meets to ~1e-14, is kept as that salt's path.
+    """
+    eps_over_eta = p[P_PERMITTIVITY] / p[P_VISCOSITY]
+    if ions.shape[0] == 2 and ions[0, ION_VALENCE] == -ions[1, ION_VALENCE]:
+        vt = thermal_voltage / abs(ions[0, ION_VALENCE])
+        return -eps_over_eta * vt * vt * 4.0 * np.log(np.cosh(zeta / (4.0 * vt)))
+    return -eps_over_eta * thermal_voltage * thermal_voltage * 0.5 * chemiosmotic_integral(
+        zeta / thermal_voltage, ions)
 
 
 @njit(cache=True, error_model="numpy")
@@ -116,7 +201,7 @@ def thin_layer_matrix(p, sc, iso, slip):
     Bulk electrolyte everywhere, the double layers reduced to slip velocities: Poiseuille flow with the walls'
     slip lengths; EO slip (mean of the walls' Helmholtz-Smoluchowski velocities) coupling flow and field both
     ways (Smoluchowski's streaming relation); bulk conduction K = (F^2 / RT) sum z_i^2 D_i c_i; bulk diffusion
-    and convection of the salt; chemiosmotic slip for the salt force (z:z electrolytes only; NaN otherwise).
+    and convection of the salt; chemiosmotic slip for the salt force (any electrolyte, ``_chemiosmotic_slip``).
     """
     ions = ion_block(p)
     rt = GAS_CONSTANT * p[P_TEMPERATURE]

@@ -93,7 +93,7 @@ _UNITS: dict[str, tuple[str | tuple[str, str], str]] = {
         "streaming_potential_coefficient": ("V/Pa", "streaming potential coefficient (Smoluchowski)"),
         "electroviscous_ratio": ("1", "electroviscous ratio"),
         "eo_pump_pressure_per_voltage": ("Pa/V", "EO pump pressure per voltage"),
-        "diffusioosmotic_flow": (("m^3/s", "m^4/s"), "diffusio-osmotic flow per unit d ln c/dx (z:z only)"),
+        "diffusioosmotic_flow": (("m^3/s", "m^4/s"), "diffusio-osmotic flow per unit d ln c/dx"),
         "diffusion_potential": ("V", "diffusion potential per unit ln c (bulk transference)"),
         "cation_transference": ("1", "cation transference of the bulk electrolyte"),
         "max_efficiency": ("1", "maximum energy-conversion efficiency"),
