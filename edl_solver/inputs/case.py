@@ -18,6 +18,7 @@ from numbers import Integral
 from typing import Literal
 
 from edl_solver.errors import InputError
+from edl_solver.inputs.domain import check_case
 from edl_solver.inputs.electrolyte import Electrolyte
 from edl_solver.inputs.frozen import assign as _set
 from edl_solver.inputs.geometry import GEOMETRIES, Geometry
@@ -159,6 +160,7 @@ class Case:
         _set(self, "tolerance", tolerance)
         if not isinstance(self.numerics, Numerics):
             raise InputError(f"numerics: {self.numerics!r} is not Numerics, expected Numerics(...)")
+        check_case(self)  # last: the domain is judged on inputs that are each valid
 
     @property
     def walls(self) -> tuple[Wall, Wall]:
