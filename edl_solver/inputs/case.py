@@ -110,6 +110,9 @@ class Case:
     tolerance : float or str
         Relative error up to which the thin-layer slip model is called valid (default 5 %).
     numerics : Numerics
+
+    A case outside the solver's domain (``inputs.domain``: kappa times the half-size outside 1e-3 to 1e4, a
+    given zeta, charge or gate beyond 15 kT/e) is refused with an ``InputError`` naming the field.
     """
 
     geometry: Geometry

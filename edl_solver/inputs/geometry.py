@@ -30,7 +30,7 @@ class Slit:
     Parameters
     ----------
     height : float or str
-        Full wall-to-wall height H, m (or "50 nm").
+        Full wall-to-wall height H, m (or "50 nm"), from 0.1 nm to 1 m (``inputs.domain``).
     """
 
     height: float | str
@@ -124,7 +124,7 @@ class Capillary:
     Parameters
     ----------
     radius : float or str
-        Radius a, m (or "20 nm").
+        Radius a, m (or "20 nm"), from 0.1 nm to 1 m (``inputs.domain``).
     """
 
     radius: float | str
