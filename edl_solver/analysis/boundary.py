@@ -30,6 +30,7 @@ from edl_solver.analysis.map_axes import (
 from edl_solver.analysis.thin_layer_errors import QUANTITY_NAMES, Quantity, checked_quantity, thin_layer_error
 from edl_solver.errors import ConvergenceError, InputError
 from edl_solver.inputs.case import Case
+from edl_solver.inputs.domain import SIZE_RANGE
 
 __all__ = ["boundary", "boundary_curve"]
 
@@ -60,12 +61,12 @@ def _default_bracket(base: Case, axis: str) -> tuple[float, float]:
     """The solver's kappa h range, in the units of ``axis``, for the axes along which it is known."""
     low, high = _KAPPA_H_RANGE
     geometry = base.geometry
-    if axis == "kappa_h":
-        return low, high
-    if axis == geometry.size_path:
-        # size / half_size is exactly 2 (slit) or 1 (capillary): the size at kappa h is kappa h lambda_D that much
+    if axis in ("kappa_h", geometry.size_path):
+        # size / half_size is exactly 2 (slit) or 1 (capillary): the size at kappa h is kappa h lambda_D that much;
+        # the sizes stay inside the ones a case takes (kappa h = 0.01 is below 0.1 nm above a few mM)
         scale = base.debye_length * (geometry.size / geometry.half_size)
-        return low * scale, high * scale
+        low, high = max(low, SIZE_RANGE[0] / scale), min(high, SIZE_RANGE[1] / scale)
+        return (low, high) if axis == "kappa_h" else (low * scale, high * scale)
     if axis in SIZE_PATHS:
         raise InputError(f"axis: {axis!r} is not the size of a {geometry.kind}, expected {geometry.size_path!r}")
     if axis == "electrolyte.concentration":

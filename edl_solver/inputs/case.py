@@ -18,6 +18,7 @@ from numbers import Integral
 from typing import Literal
 
 from edl_solver.errors import InputError
+from edl_solver.inputs.domain import check_case
 from edl_solver.inputs.electrolyte import Electrolyte
 from edl_solver.inputs.frozen import assign as _set
 from edl_solver.inputs.geometry import GEOMETRIES, Geometry
@@ -109,6 +110,9 @@ class Case:
     tolerance : float or str
         Relative error up to which the thin-layer slip model is called valid (default 5 %).
     numerics : Numerics
+
+    A case outside the solver's domain (``inputs.domain``: kappa times the half-size outside 1e-3 to 1e4, a
+    given zeta, charge or gate beyond 15 kT/e) is refused with an ``InputError`` naming the field.
     """
 
     geometry: Geometry
@@ -159,6 +163,7 @@ class Case:
         _set(self, "tolerance", tolerance)
         if not isinstance(self.numerics, Numerics):
             raise InputError(f"numerics: {self.numerics!r} is not Numerics, expected Numerics(...)")
+        check_case(self)  # last: the domain is judged on inputs that are each valid
 
     @property
     def walls(self) -> tuple[Wall, Wall]:

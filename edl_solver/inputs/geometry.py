@@ -14,6 +14,7 @@ import math
 from dataclasses import dataclass
 from typing import ClassVar, Literal
 
+from edl_solver.inputs.domain import check_size
 from edl_solver.inputs.frozen import assign
 from edl_solver.inputs.units import to_positive_si
 
@@ -29,7 +30,7 @@ class Slit:
     Parameters
     ----------
     height : float or str
-        Full wall-to-wall height H, m (or "50 nm").
+        Full wall-to-wall height H, m (or "50 nm"), from 0.1 nm to 1 m (``inputs.domain``).
     """
 
     height: float | str
@@ -57,7 +58,9 @@ class Slit:
     origin_text: ClassVar[str] = "the bottom wall"
 
     def __post_init__(self) -> None:
-        assign(self, "height", to_positive_si(self.height, "m", "geometry.height", "a positive height in m"))
+        size = to_positive_si(self.height, "m", "geometry.height", "a positive height in m")
+        check_size(self.height, size, "geometry.height")
+        assign(self, "height", size)
 
     @property
     def size(self) -> float:
@@ -121,7 +124,7 @@ class Capillary:
     Parameters
     ----------
     radius : float or str
-        Radius a, m (or "20 nm").
+        Radius a, m (or "20 nm"), from 0.1 nm to 1 m (``inputs.domain``).
     """
 
     radius: float | str
@@ -142,7 +145,9 @@ class Capillary:
     origin_text: ClassVar[str] = "the axis"
 
     def __post_init__(self) -> None:
-        assign(self, "radius", to_positive_si(self.radius, "m", "geometry.radius", "a positive radius in m"))
+        size = to_positive_si(self.radius, "m", "geometry.radius", "a positive radius in m")
+        check_size(self.radius, size, "geometry.radius")
+        assign(self, "radius", size)
 
     @property
     def size(self) -> float:
