@@ -217,6 +217,19 @@ def _scaled_norms(res, scale):
 ROUNDOFF_STEP = 1e-13
 
 
+@njit(cache=True, inline="always")
+def _step_size(step, psi, tol):
+    """The largest |step| and whether it is below the tolerance: ``tol`` (kT/e) up to potentials of ~100 kT/e,
+    beyond (a linear layer of large charge reaches 1e5 kT/e) ``ROUNDOFF_STEP`` relative to the largest |psi|, since
+    a step cannot fall below the round-off of psi itself."""
+    biggest = 0.0
+    largest = 0.0
+    for i in range(psi.size):
+        biggest = max(biggest, abs(step[i]))
+        largest = max(largest, abs(psi[i]))
+    return biggest, biggest < max(tol, ROUNDOFF_STEP * largest)
+
+
 @njit(cache=True, error_model="numpy")
 def pb_newton(psi, cells, problem, walls, tol, max_iter, max_step):
     """Damped Newton iteration for the discrete Poisson-Boltzmann equation of ``problem`` with the wall rows
@@ -256,16 +269,10 @@ def pb_newton(psi, cells, problem, walls, tol, max_iter, max_step):
                 lower[i] = 0.0
                 upper[i] = 0.0
         tridiagonal_solve(lower, jac, upper, rhs, step, work)
-        biggest = 0.0
-        largest = 0.0
-        for i in range(n):
-            biggest = max(biggest, abs(step[i]))
-            largest = max(largest, abs(psi[i]))
+        biggest, small = _step_size(step, psi, tol)
         if not np.isfinite(biggest + step.sum()):  # max() skips NaN (a zero pivot of a too stretched grid)
             return 2, it, worst
-        # ``tol`` is absolute (kT/e) up to potentials of ~100 kT/e; beyond (a linear layer of large charge
-        # reaches 1e5 kT/e) it is relative, since the step cannot fall below the round-off of psi itself
-        if biggest < max(tol, ROUNDOFF_STEP * largest):
+        if small:
             for i in range(n):
                 psi[i] += step[i]
             _pb_residual(psi, link, volume, kappa2, ions, model, walls, res, scale, jac)

@@ -22,6 +22,6 @@ def test_each_rule_fires_on_its_own() -> None:
     multivalent = edl.Electrolyte.from_ions({"Ca2+": "1 mM", "Cl-": "2 mM"})
     assert any("correlations" in n for n in notes_of(electrolyte=multivalent, wall=edl.Wall(zeta="-150 mV")))
     assert not any("correlations" in n for n in notes_of(electrolyte=multivalent, wall=edl.Wall(zeta="-50 mV")))
-    assert any("close packing" in n for n in notes_of(wall=edl.Wall(zeta="-400 mV")))
+    assert any("close packing" in n for n in notes_of(wall=edl.Wall(zeta="-380 mV")))
     assert any("Debye-Hueckel linearisation" in n for n in notes_of(wall=edl.Wall(zeta="-60 mV"), model="dh"))
     assert not notes_of(wall=edl.Wall(zeta="-10 mV"), model="dh")
