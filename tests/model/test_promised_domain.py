@@ -66,11 +66,12 @@ def test_stretching_and_start_stay_finite_at_any_wall_potential():
 
 @pytest.mark.parametrize("seed", [11, 12])
 def test_random_cases_of_the_promised_domain_solve_or_refuse_in_words(seed):
-    for case in cases(seed, 150):
+    # the only refusal left in the domain is physical: a steric section that cannot hold its walls' counter-charge
+    for case in cases(seed, 2500):
         try:
             result = edl.solve(case)
         except ConvergenceError as error:
-            assert case.describe() in str(error)
+            assert case.describe() in str(error) and "close packing" in str(error), str(error)
             continue
         summary = result.summary
         for key in CORE_KEYS:
