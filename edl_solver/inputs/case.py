@@ -184,12 +184,22 @@ class Case:
         """One-line description used in messages and reports."""
         size = self.geometry.describe()
         ions = ", ".join(f"{ion.name} {ion.concentration:.4g} mol/m^3" for ion in self.electrolyte.ions)
-        walls = []
-        for w in (self.walls[:1] if self.symmetric else self.walls):
-            if w.kind == "potential":
-                walls.append(f"zeta = {w.zeta:.4g} V")
-            elif w.kind == "charge":
-                walls.append(f"sigma = {w.charge_density:.4g} C/m^2")
-            else:
-                walls.append("regulated (" + ", ".join(f"{site.name} pK {site.pK}" for site in w.sites) + ")")
+        walls = [_describe_wall(w) for w in (self.walls[:1] if self.symmetric else self.walls)]
         return f"{size}; {ions}; wall {' / '.join(walls)}; model {self.model}"
+
+
+def _describe_wall(wall: Wall) -> str:
+    """The wall's condition in a few words: its zeta, its charge, or what regulates its charge (sites, a fixed
+    charge behind a Stern layer, a gate)."""
+    if wall.kind == "potential":
+        return f"zeta = {wall.zeta:.4g} V"
+    if wall.kind == "charge":
+        return f"sigma = {wall.charge_density:.4g} C/m^2"
+    parts = [f"{site.name} pK {'/'.join(f'{pk:g}' for pk in site.pks)}" for site in wall.sites]
+    if wall.charge_density is not None:
+        parts.append(f"sigma = {wall.charge_density:.4g} C/m^2")
+    if wall.stern_capacitance is not None:
+        parts.append(f"Stern {wall.stern_capacitance:.4g} F/m^2")
+    if wall.gate_voltage is not None:
+        parts.append(f"gate {wall.gate_voltage:.4g} V")
+    return "regulated (" + ", ".join(parts) + ")"

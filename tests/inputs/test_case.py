@@ -109,3 +109,11 @@ def test_garbage_strings_never_escape_as_other_errors(text: str) -> None:
         edl.Wall(zeta=text)
     except edl.InputError as error:
         assert "wall.zeta" in str(error) and "\n" not in str(error)
+
+
+def test_a_fixed_charge_behind_a_stern_layer_is_described_by_its_charge_and_capacitance() -> None:
+    # it read "wall regulated ()" in every message about such a case
+    kcl = edl.Electrolyte.from_ions({"K+": "1 mM", "Cl-": "1 mM"})
+    case = edl.Case(geometry=edl.Slit(height="20 nm"), electrolyte=kcl,
+                    wall=edl.Wall(charge_density="-10 mC/m^2", stern_capacitance="2 F/m^2"))
+    assert "wall regulated (sigma = -0.01 C/m^2, Stern 2 F/m^2)" in case.describe()
