@@ -2,8 +2,8 @@
 
 One case: solve on four nested grids (each halving the spacing of the previous), extrapolate the
 section integrals from the three finest (h^2 and h^4 error terms removed) and from the three coarsest;
-their difference, divided by 8, is the error estimate, and the grid is doubled until it meets the
-requested accuracy. Batches of cases run in ``batch.py``.
+their difference, divided by 8 and taken relative to each integral's own size (``error_scale``), is the
+error estimate, and the grid is doubled until it meets the requested accuracy. Batches of cases run in ``batch.py``.
 
 Takes arrays, scalars and the records of ``kernels.records``; see ``kernels.fv1d`` for the single-grid
 arithmetic and ``model.equilibrium`` for the Python side.
