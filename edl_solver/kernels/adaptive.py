@@ -2,8 +2,8 @@
 
 One case: solve on four nested grids (each halving the spacing of the previous), extrapolate the
 section integrals from the three finest (h^2 and h^4 error terms removed) and from the three coarsest;
-their difference, divided by 8, is the error estimate, and the grid is doubled until it meets the
-requested accuracy. Batches of cases run in ``batch.py``.
+their difference, divided by 8 and taken relative to each integral's own size (``error_scale``), is the
+error estimate, and the grid is doubled until it meets the requested accuracy. Batches of cases run in ``batch.py``.
 
 Takes arrays, scalars and the records of ``kernels.records``; see ``kernels.fv1d`` for the single-grid
 arithmetic and ``model.equilibrium`` for the Python side.
@@ -18,6 +18,7 @@ from edl_solver.kernels.fv1d import finite_volume_metric, pb_newton, response_of
 from edl_solver.kernels.layout import (
     ACCURACY_MISSED,
     CONVERGED,
+    FLUX,
     I_FLUX_LEFT,
     I_FLUX_RIGHT,
     I_PSI,
@@ -36,6 +37,7 @@ from edl_solver.kernels.layout import (
     PROFILE_ROWS,
     PROFILE_U_EO,
     PROFILE_U_P,
+    W_TYPE,
 )
 from edl_solver.kernels.records import NestedSolve, SectionSolve
 
@@ -151,29 +153,54 @@ def extrapolate(fine, medium, coarse, out):
         out[j] = (64.0 * fine[j] - 20.0 * medium[j] + coarse[j]) / 45.0
 
 
+#: A value counts as vanishing, and is measured against its natural scale instead of its own size, only below this
+#: fraction of that scale (e.g. the EO flow between walls of exactly opposite potential).
+VANISHING = 1e-6
+#: Round-off of an extrapolated integral relative to its natural scale: the floor rises to stay above it at tight
+#: accuracies, so that a value that vanishes exactly does not refine for ever on its round-off.
+ROUNDOFF = 1e-13
+
+
 @njit(cache=True)
-def error_scale(values, measure, n_ions, kappa, scale):
-    """Magnitudes the errors of the integrals are measured against: the value itself, or, where it may
-    vanish (the centre potential of a wide channel, flows between walls of opposite sign), the natural
-    size built from the wall potential, the wall charge and the pressure-flow scale."""
-    # Floors: 1e-6 kT/e for potentials and the charge such a potential holds on a Debye-Hueckel wall, so that
-    # walls at (or near) zero potential or charge, e.g. at their point of zero charge, are measured against
-    # a physical size rather than their own round-off.
+def error_scale(values, measure, half, walls, n_ions, kappa, accuracy, scale):
+    """Magnitudes the errors of the integrals are measured against: each its own size, so that every summary
+    value built from it (the flows, the currents, the mean and wall potentials, the wall charges) meets the
+    accuracy relative to itself, even a small difference such as the EO flow between walls of opposite sign.
+
+    Only a value below a tiny fraction of its natural size (``VANISHING``; raised with ``ROUNDOFF / accuracy``)
+    counts as vanishing and is measured against that fraction of it: the natural sizes are built from the
+    wall potential, the wall charge (the space charge it holds is the charge over kappa^2, Gauss) and the
+    pressure-flow scale. The centre potential, exponentially small in a wide channel, is measured against the
+    wall potential (so is the left end of a half section, the centre), and a prescribed charge against the
+    wall charge; each ion's integral against the section (it enters the summary only in sums that the
+    section's size dominates); the response blocks against their own sizes.
+    """
+    # Natural scales, with floors of 1e-6 kT/e for potentials and the charge such a potential holds on a
+    # Debye-Hueckel wall, so that walls at (or near) zero potential or charge are measured against a physical size
+    zero_charge = POTENTIAL_FLOOR * max(1.0, kappa)
     psi_scale = max(abs(values[I_PSI_LEFT]), abs(values[I_PSI_RIGHT]), POTENTIAL_FLOOR)
-    wall_charge = abs(values[I_FLUX_LEFT]) + abs(values[I_FLUX_RIGHT]) + POTENTIAL_FLOOR * max(1.0, kappa)
+    wall_charge = abs(values[I_FLUX_LEFT]) + abs(values[I_FLUX_RIGHT]) + zero_charge
     up_scale = abs(values[I_UP]) / measure
+    # the sizes below which a value vanishes; never below what counts as zero potential or charge
+    fraction = max(VANISHING, min(1.0, ROUNDOFF / accuracy))
+    psi_small = max(fraction * psi_scale, POTENTIAL_FLOOR)
+    charge_small = max(fraction * wall_charge, zero_charge)
+    space_small = charge_small / (kappa * kappa)  # the space charge a wall charge holds (Gauss)
     for j in range(values.size):
         scale[j] = abs(values[j])
-    scale[I_PSI] = max(scale[I_PSI], psi_scale * measure)
-    scale[I_UEO] = max(scale[I_UEO], psi_scale * measure)
-    scale[I_PSI_LEFT] = max(scale[I_PSI_LEFT], psi_scale)
-    scale[I_PSI_RIGHT] = max(scale[I_PSI_RIGHT], psi_scale)
+    scale[I_PSI] = max(scale[I_PSI], psi_small * measure)
+    scale[I_UEO] = max(scale[I_UEO], psi_small * measure)
+    # the left end of a half section is the centre: its potential is measured as the centre's
+    scale[I_PSI_LEFT] = max(scale[I_PSI_LEFT], psi_scale if half else psi_small)
+    scale[I_PSI_RIGHT] = max(scale[I_PSI_RIGHT], psi_small)
     scale[I_PSI_CENTRE] = max(scale[I_PSI_CENTRE], psi_scale)
-    scale[I_RHO] = max(scale[I_RHO], wall_charge)
-    scale[I_FLUX_LEFT] = max(scale[I_FLUX_LEFT], wall_charge)
-    scale[I_FLUX_RIGHT] = max(scale[I_FLUX_RIGHT], wall_charge)
-    scale[I_RHO_UEO] = max(scale[I_RHO_UEO], wall_charge * psi_scale)
-    scale[I_RHO_UP] = max(scale[I_RHO_UP], wall_charge * up_scale)
+    scale[I_RHO] = max(scale[I_RHO], space_small)
+    # a prescribed charge (or the symmetry plane) is the input itself: only its round-off varies, so it is measured
+    # against the wall charge as a whole
+    for end, at in ((0, I_FLUX_LEFT), (1, I_FLUX_RIGHT)):
+        scale[at] = max(scale[at], wall_charge if int(walls[end, W_TYPE]) == FLUX else charge_small)
+    scale[I_RHO_UEO] = max(scale[I_RHO_UEO], space_small * psi_scale)
+    scale[I_RHO_UP] = max(scale[I_RHO_UP], space_small * up_scale)
     for k in range(n_ions):
         scale[ION_INTEGRALS + k] = max(scale[ION_INTEGRALS + k], measure)
     for j in range(values.size):
@@ -303,7 +330,7 @@ def solve_adaptive(problem, controls, guess):
         extrapolate(levels[3], levels[2], levels[1], out)
         extrapolate(levels[2], levels[1], levels[0], lower)
         measure = 1.0 if (half and metric == PLANAR) else (2.0 if metric == PLANAR else 0.5)
-        error_scale(out, measure, n_ions, np.sqrt(kappa2), scale)
+        error_scale(out, measure, half, problem.walls, n_ions, np.sqrt(kappa2), controls.accuracy, scale)
         estimate = 0.0
         for j in range(out.size):
             estimate = max(estimate, abs(out[j] - lower[j]) / scale[j])
