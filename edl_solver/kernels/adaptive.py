@@ -40,6 +40,7 @@ from edl_solver.kernels.layout import (
     W_TYPE,
 )
 from edl_solver.kernels.records import NestedSolve, SectionSolve
+from edl_solver.kernels.value_errors import difference_error
 
 LEVELS = 4
 #: Newton stops when a full step is below this (kT/e).
@@ -292,12 +293,14 @@ def _start(problem, s, beta, guess):
 
 
 @njit(cache=True)
-def solve_adaptive(problem, controls, guess):
+def solve_adaptive(problem, controls, guess, case, case_scales):
     """One case (``SectionProblem``) to the accuracy of its ``Controls``.
 
     ``controls.intervals`` > 0 fixes the finest grid (no refinement); 0 chooses it from the stiffness and
     refines, each refinement solving only the new finest grid (the coarser three are the previous ones).
-    ``guess`` is a start profile on the first grid's nodes, or empty for the Gouy-Chapman guess.
+    ``guess`` is a start profile on the first grid's nodes, or empty for the Gouy-Chapman guess. ``case`` and
+    ``case_scales`` are the case vector and its ``S_*`` scales, whose lab values that may cancel join the estimate
+    (``value_errors.difference_error``); empty arrays leave them out (a section solved without its summary).
 
     Returns
     -------
@@ -335,6 +338,9 @@ def solve_adaptive(problem, controls, guess):
         for j in range(out.size):
             estimate = max(estimate, abs(out[j] - lower[j]) / scale[j])
         estimate /= 8.0
+        if estimate <= controls.accuracy and case.size > 0:  # the lab values that may cancel, on a final candidate
+            estimate = max(estimate, difference_error(case, case_scales, out, lower,
+                                                      max(VANISHING, min(1.0, ROUNDOFF / controls.accuracy))))
         done = estimate <= controls.accuracy or intervals > 0
         if done or 2 * n_half > max_intervals:
             return SectionSolve(CONVERGED if done else ACCURACY_MISSED, iterations, estimate, run.residual, n_half,

@@ -22,7 +22,7 @@ from edl_solver.kernels.summary import identities_hold, summarize_solution
 def solve_one(p, out):
     """One packed case: fill its summary vector ``out``; returns the status and the Newton iterations."""
     inputs = section_inputs(p)
-    solved = solve_adaptive(inputs.problem, controls(p), np.empty(0))
+    solved = solve_adaptive(inputs.problem, controls(p), np.empty(0), p, inputs.scales)
     if solved.status != CONVERGED:
         return solved.status, solved.iterations
     summarize_solution(p, inputs, solved, out)

@@ -33,7 +33,7 @@ def solve_summarized(p, inputs, guess, out):
         (``thin_layer.thin_slip``).
     """
     slip = thin_slip(p, inputs.isolated)
-    solved = solve_adaptive(inputs.problem, controls(p), guess)
+    solved = solve_adaptive(inputs.problem, controls(p), guess, p, inputs.scales)
     if solved.status != CONVERGED:
         return solved, np.empty((0, 0)), np.empty((0, 0)), slip
     # as summary.summarize_solution, with the slip computed once

@@ -109,8 +109,10 @@ def solve_section(problem: SectionProblem, accuracy: float, intervals: int | Non
         ``accuracy`` at ``max_intervals`` cells per half section. ``label`` names the case.
     """
     controls = Controls(float(accuracy), int(intervals or 0), int(max_intervals), int(max_iterations))
-    section, _ = _settle(problem, lambda guess, posed: (_adaptive.solve_adaptive(posed, controls, guess),),
-                         accuracy, max_iterations, label)
+    def run(guess: np.ndarray, posed: SectionProblem) -> tuple:
+        return (_adaptive.solve_adaptive(posed, controls, guess, _NO_GUESS, _NO_GUESS),)  # no summary: no case
+
+    section, _ = _settle(problem, run, accuracy, max_iterations, label)
     return section
 
 
