@@ -52,6 +52,11 @@ MAX_STEP = 5.0
 POTENTIAL_FLOOR = 1e-6
 
 
+#: The accuracy the lab values that are differences of response-matrix terms are held to at least
+#: (``value_errors``): their terms carry the round-off of bulk-sized integrals (~1e-8 of them in a channel
+#: 1e4 Debye lengths wide), which no grid removes.
+DIFFERENCE_FLOOR = 1e-7
+
 #: Floor of the inner length in ``stretching`` (units of L): far below any layer the solver can resolve, so a
 #: solve that reaches it fails as Newton's, not as an overflow.
 SMALLEST_INNER_LENGTH = 1e-300
@@ -339,8 +344,10 @@ def solve_adaptive(problem, controls, guess, case, case_scales):
             estimate = max(estimate, abs(out[j] - lower[j]) / scale[j])
         estimate /= 8.0
         if estimate <= controls.accuracy and case.size > 0:  # the lab values that may cancel, on a final candidate
-            estimate = max(estimate, difference_error(case, case_scales, out, lower,
-                                                      max(VANISHING, min(1.0, ROUNDOFF / controls.accuracy))))
+            derived = difference_error(case, case_scales, out, lower,
+                                       max(VANISHING, min(1.0, ROUNDOFF / controls.accuracy)))
+            target = max(controls.accuracy, DIFFERENCE_FLOOR)
+            estimate = derived if derived > target else max(estimate, min(derived, controls.accuracy))
         done = estimate <= controls.accuracy or intervals > 0
         if done or 2 * n_half > max_intervals:
             return SectionSolve(CONVERGED if done else ACCURACY_MISSED, iterations, estimate, run.residual, n_half,
