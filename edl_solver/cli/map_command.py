@@ -56,8 +56,8 @@ examples:
 The map file opens with xarray.open_dataset(path, engine="h5netcdf"): the errors
 thin_layer_flow_rate_error and thin_layer_current_error ((thin - full)/full) on the two axes, every
 summary value, the status of each case and the root-found boundaries at --tolerance (boundary for the
-EO flow rate, boundary_current for the current). An existing map
-file is kept unless --overwrite is given; a second run on a map being written is refused.
+EO flow rate, boundary_current for the current). An existing map file is kept unless --overwrite is
+given; a second run on a map being written is refused.
 """
 
 
