@@ -36,7 +36,10 @@ from edl_solver.inputs.case import Case
 from edl_solver.io.files import checked_output_path, output_lock
 from edl_solver.io.map_file import write_map
 
-__all__ = ["validity_map"]
+__all__ = ["BOUNDARY_VARIABLES", "validity_map"]
+
+#: The root-found boundary of each mapped quantity: the variable of the map that holds it.
+BOUNDARY_VARIABLES = {"flow_rate": "boundary", "current": "boundary_current"}
 
 #: Axes along which the thin-layer error falls steadily: the boundary of a map is found along the
 #: first of these that the map has (size, then concentration), else along its y axis.
@@ -68,7 +71,8 @@ def validity_map(base: Case, x_axis: tuple[str, Any], y_axis: tuple[str, Any], *
         Also find the boundary where |EO flow-rate error| equals this tolerance, by root-finding along
         the map's size axis ("kappa_h", "geometry.height" or "geometry.radius"), else its concentration
         axis, else its y axis, for each value of the other axis, within the map's range (NaN where the
-        boundary lies outside it); stored as the variable ``boundary``.
+        boundary lies outside it); stored as the variable ``boundary``. The same for |current error|, as
+        ``boundary_current``.
     overwrite : bool
         Replace a file that already exists at ``path`` (by default it is kept and the map refused).
     **sweep_options
@@ -81,8 +85,8 @@ def validity_map(base: Case, x_axis: tuple[str, Any], y_axis: tuple[str, Any], *
         it sets is a coordinate along it (the axis "kappa_h" takes the place of the summary variable of
         that name, which holds the same values). Every summary key of the sweep, plus
         ``thin_layer_current_per_field`` (S or S·m) and ``thin_layer_current_error`` ((thin − full)/full,
-        "1"), ``status`` per case and, when asked, ``boundary``. Attributes: ``x_axis``, ``y_axis``,
-        ``tolerances``, ``case_json`` (the base case), ``title``.
+        "1"), ``status`` per case and, when asked, ``boundary`` and ``boundary_current``. Attributes:
+        ``x_axis``, ``y_axis``, ``tolerances``, ``case_json`` (the base case), ``title``.
 
     Raises
     ------
@@ -121,10 +125,12 @@ def _solve_map(base: Case, axes: tuple[MapAxis, MapAxis], levels: tuple[float, .
     data = _map_dataset(data, base, x, y, levels)
     if overlay is not None:
         along, other = (x, y) if _boundary_along(x, y) is x else (y, x)
-        curve = boundary_curve(base, along.name, other.name, other.values, overlay,
-                               bracket=(float(along.values.min()), float(along.values.max())))
-        data["boundary"] = curve.variable
-        data["boundary"].attrs.update(curve.attrs)
+        for quantity, name in BOUNDARY_VARIABLES.items():
+            curve = boundary_curve(base, along.name, other.name, other.values, overlay,
+                                   quantity,  # type: ignore[arg-type]
+                                   bracket=(float(along.values.min()), float(along.values.max())))
+            data[name] = curve.variable
+            data[name].attrs.update(curve.attrs)
     if target is not None:
         write_map(data, target)
         raw.unlink(missing_ok=True)

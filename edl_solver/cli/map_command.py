@@ -1,4 +1,5 @@
-"""The ``edl map`` command: a validity map of the thin-layer model over two inputs of a case file.
+"""The ``edl map`` command: a validity map of the thin-layer model over two inputs of a case, given as for
+``edl solve`` by a case file and/or the case flags (``edl_solver.cli.case_flags``).
 
 Registered by ``edl_solver.cli.app`` through :func:`add_map_command`; :func:`run_map_command` runs it (and
 reports its own errors, so that a parser built elsewhere can run it too).
@@ -16,13 +17,14 @@ from contextlib import nullcontext
 from pathlib import Path
 from typing import Any
 
+from edl_solver.cli.case_flags import CASE_VALUE_FLAGS, add_case_flags
 from edl_solver.cli.exit_codes import EXIT_CONVERGENCE, EXIT_INPUT, EXIT_INTERRUPTED, EXIT_OK, fail
 from edl_solver.cli.output_files import existing_output, writable
 
 __all__ = ["VALUE_FLAGS", "add_map_command", "parse_axis", "run_map_command"]
 
-#: Flags of ``edl map`` that take a value (its axes never start with "-").
-VALUE_FLAGS = frozenset({"--tolerance", "-o", "--output", "--figure", "--workers"})
+#: Flags of ``edl map`` that take a value (its axes never start with "-"), the case flags among them.
+VALUE_FLAGS = frozenset({"-o", "--output", "--figure", "--workers"}) | CASE_VALUE_FLAGS
 
 #: Tolerances always drawn as contour lines, besides the one of --tolerance.
 _CONTOUR_TOLERANCES = (0.01, 0.05, 0.10)
@@ -37,16 +39,25 @@ axes:
   electrolyte.concentration scales every ion so that the first ion has the value.
   Values carry their units, without a space: 2nm, 0.1mM (millimolar), -50mV, -2mC/m^2.
 
+case:
+  The base case is built as by 'edl solve': a case file, the case flags (--slit, --ion, --zeta,
+  --charge-density, --silica, --pH, --model, ...; see 'edl solve --help'), or a case file with flags
+  overriding its values; the axes then set their inputs over it. --tolerance is the case's tolerance
+  (5 % unless the case file sets one): the boundary is found where the error equals it.
+
 examples:
   edl map case.toml --x electrolyte.concentration:0.1mM:100mM:40 --y geometry.height:2nm:2um:60 \\
       --tolerance 5% -o map.h5 --figure map.png
+  edl map --slit 50nm --ion K+=1mM --ion Cl-=1mM --silica --pH 7 \\
+      --x electrolyte.concentration:0.1mM:100mM:20 --y geometry.height:5nm:2um:20 --figure map.png
   edl map case.toml --x kappa_h:0.3:300:50 --y zeta_kT:-8:-0.5:30:lin --figure map.png
   edl map case.toml --x wall.charge_density:-50mC/m^2:-0.5mC/m^2:30 --y geometry.height:5nm:1um:30
 
 The map file opens with xarray.open_dataset(path, engine="h5netcdf"): the errors
 thin_layer_flow_rate_error and thin_layer_current_error ((thin - full)/full) on the two axes, every
-summary value, the status of each case and the root-found boundary at --tolerance. An existing map
-file is kept unless --overwrite is given; a second run on a map being written is refused.
+summary value, the status of each case and the root-found boundaries at --tolerance (boundary for the
+EO flow rate, boundary_current for the current). An existing map file is kept unless --overwrite is
+given; a second run on a map being written is refused.
 """
 
 
@@ -65,13 +76,12 @@ def add_map_command(subparsers: Any) -> None:
         description="Solve a case over a plane of two inputs and map the error of the thin-layer slip model\n"
                     "for the EO flow rate and for the current, with the boundary where it equals the\n"
                     "tolerance found by root-finding. Prints where the boundary lies.")
-    parser.add_argument("case", metavar="CASE.toml", help="the base case file (see 'edl demo --print-case')")
+    parser.add_argument("case", nargs="?", metavar="CASE.toml",
+                        help="the base case file (see 'edl demo --print-case'); the case flags override it")
     parser.add_argument("--x", dest="x_axis", metavar="AXIS", required=True,
                         help="the horizontal axis, PATH:FROM:TO:COUNT[:log|lin]")
     parser.add_argument("--y", dest="y_axis", metavar="AXIS", required=True,
                         help="the vertical axis, PATH:FROM:TO:COUNT[:log|lin]")
-    parser.add_argument("--tolerance", metavar="TOL", default="5%",
-                        help="error at which the boundary is found, e.g. 5%% or 0.05 (default: %(default)s)")
     parser.add_argument("-o", "--output", metavar="MAP.h5", help="write the map (HDF5/netCDF, read by xarray)")
     parser.add_argument("--figure", metavar="MAP.png", help="write a figure of the map (PNG)")
     parser.add_argument("--workers", metavar="N", default="1", help="local worker processes (default: 1)")
@@ -79,6 +89,7 @@ def add_map_command(subparsers: Any) -> None:
                         help="finish a map interrupted by Ctrl-C or a crash (its cases are kept next to -o MAP.h5)")
     parser.add_argument("--overwrite", action="store_true", help="replace MAP.h5 if it exists (by default it is kept)")
     parser.add_argument("-q", "--quiet", action="store_true", help="print nothing but errors")
+    add_case_flags(parser)  # with --tolerance, the case's: the boundary is found where the error equals it
     parser.set_defaults(run=run_map_command)
 
 
@@ -146,21 +157,17 @@ def run_map_command(args: argparse.Namespace) -> int:
 
 def _run(args: argparse.Namespace) -> int:
     from edl_solver.analysis.map_axes import check_axes
+    from edl_solver.cli.case_flags import case_from_args
     from edl_solver.errors import InputError
-    from edl_solver.inputs.casefile import load_case
-    from edl_solver.inputs.units import to_si
     from edl_solver.io.files import output_lock
 
-    base = load_case(args.case)
+    base = case_from_args(args)  # as edl solve builds it: the case file, the case flags over it
     x_axis, y_axis = parse_axis(args.x_axis, "--x"), parse_axis(args.y_axis, "--y")
     try:
         check_axes(base, x_axis, y_axis)
     except InputError as exc:  # name the flags rather than the Python arguments
         raise InputError(str(exc).replace("x_axis", "--x").replace("y_axis", "--y")) from None
-    tolerance = to_si(args.tolerance, "dimensionless", "--tolerance")
-    if not 0.0 < tolerance < 1.0:
-        raise InputError(f"--tolerance: {args.tolerance!r} is out of range, expected a fraction between 0 and 1, "
-                         "e.g. 5% or 0.05")
+    tolerance = float(base.tolerance)  # checked by the case: a fraction between 0 and 1
     workers = args.workers.strip() if isinstance(args.workers, str) else str(args.workers)
     if not workers.isdigit() or int(workers) < 1:
         raise InputError(f"--workers: {args.workers!r} is not allowed, expected a positive whole number")
@@ -194,7 +201,8 @@ def _solve_and_write(args: argparse.Namespace, base: Any, axes: tuple[Any, Any],
     if converged == 0:
         first = str(data["message"].values.flat[0])
         where = f"; every case's reason is in {outputs['map']}" if "map" in outputs else ""
-        raise ConvergenceError(f"{args.case}: none of the {data['status'].size} cases of the map converged "
+        source = args.case or "the case of the flags"
+        raise ConvergenceError(f"{source}: none of the {data['status'].size} cases of the map converged "
                                f"(the first: {first}){where}")
     written = []
     if "map" in outputs:
@@ -277,18 +285,24 @@ def _summary(data: Any, tolerance: float) -> str:
     for name, key in errors:
         within = int((abs(data[key].values[status == CONVERGED]) <= tolerance).sum())
         lines.append(f"thin-layer {name} within {percent} in {within} of {converged} cases")
-    if "boundary" in data.variables:
-        curve = data["boundary"]
-        other, axis = curve.dims[0], curve.attrs["axis"]
-        found = [(float(o), float(b)) for o, b in zip(curve[other].values, curve.values) if math.isfinite(b)]
-        side = {"above": "larger", "below": "smaller"}.get(curve.attrs.get("valid_side", ""))
-        lines.append(f"boundary where |EO flow-rate error| = {percent}, root-found along {axis}"
-                     + (f" (thin-layer model valid at {side} {axis}):" if side else ":"))
-        if not found:
-            lines.append(f"  outside the map for every {other}")
-        # a long curve is shown at five evenly spread points, ends included
-        picks = sorted({round(i * (len(found) - 1) / 4) for i in range(5)}) if len(found) > 6 else range(len(found))
-        for i in picks:
-            o, b = found[i]
-            lines.append(f"  at {_shown(other, o, table, 4)}: {_shown(axis, b, table, 6)}")
+    for variable, name in (("boundary", "EO flow-rate"), ("boundary_current", "current")):
+        if variable in data.variables:
+            lines.extend(_boundary_lines(data[variable], f"|{name} error| = {percent}", table))
     return "\n".join(lines)
+
+
+def _boundary_lines(curve: Any, where: str, table: dict[str, Any]) -> list[str]:
+    """Where a root-found boundary lies: a heading and up to five points of the curve."""
+    other, axis = curve.dims[0], curve.attrs["axis"]
+    found = [(float(o), float(b)) for o, b in zip(curve[other].values, curve.values) if math.isfinite(b)]
+    side = {"above": "larger", "below": "smaller"}.get(curve.attrs.get("valid_side", ""))
+    lines = [f"boundary where {where}, root-found along {axis}"
+             + (f" (thin-layer model valid at {side} {axis}):" if side else ":")]
+    if not found:
+        lines.append(f"  outside the map for every {other}")
+    # a long curve is shown at five evenly spread points, ends included
+    picks = sorted({round(i * (len(found) - 1) / 4) for i in range(5)}) if len(found) > 6 else range(len(found))
+    for i in picks:
+        o, b = found[i]
+        lines.append(f"  at {_shown(other, o, table, 4)}: {_shown(axis, b, table, 6)}")
+    return lines

@@ -2,9 +2,10 @@
 
 The file holds the Dataset as it is (``xarray.open_dataset(path, engine="h5netcdf")`` reads it back):
 dimensions (y, x) named after the map's axes, every summary variable of the sweep, the thin-layer current
-and its error, ``status`` per case and, when asked, the ``boundary`` curve; the attributes carry the axes,
-tolerances and the base case as JSON (``edl_solver.analysis.validity_map`` builds it). Numeric arrays of two
-or more dimensions are gzip-compressed with the shuffle filter (readable everywhere, unlike lzf).
+and its error, ``status`` per case and, when asked, the ``boundary`` curves (of the EO flow rate and, as
+``boundary_current``, of the current); the attributes carry the axes, tolerances and the base case as JSON
+(``edl_solver.analysis.validity_map`` builds it). Numeric arrays of two or more dimensions are gzip-compressed
+with the shuffle filter (readable everywhere, unlike lzf).
 
 This module is given the data: it knows nothing of how a map is computed.
 """

@@ -98,8 +98,26 @@ def _percent(value: float) -> str:
     return f"{number:,.0f} %" if number >= 1000.0 else f"{number:.3g} %"
 
 
+def _wall_brief(wall: Any) -> str:
+    """A wall's condition in display units: ζ, σ, or what regulates its charge (sites, a fixed charge behind a
+    Stern layer, a gate)."""
+    if wall.kind == "potential":
+        return f"ζ = {wall.zeta * 1e3:.3g} mV"
+    if wall.kind == "charge":
+        return f"σ = {wall.charge_density * 1e3:.3g} mC/m²"
+    parts = [f"{site.name} pK {'/'.join(f'{pk:g}' for pk in site.pks)}" for site in wall.sites]
+    if wall.charge_density is not None:
+        parts.append(f"σ = {wall.charge_density * 1e3:.3g} mC/m²")
+    if wall.gate_voltage is not None:
+        parts.append(f"gate {wall.gate_voltage:.3g} V behind {wall.gate_capacitance:.3g} F/m²")
+    if wall.stern_capacitance is not None:
+        parts.append(f"Stern layer {wall.stern_capacitance:.3g} F/m²")
+    return "charge regulated: " + ", ".join(parts)
+
+
 def _case_brief(table: Mapping[str, Any], swept: set[str]) -> str:
     """The fixed part of the base case in one line (inputs set by the axes are left out)."""
+    from edl_solver.inputs.casefile import case_from_mapping
     from edl_solver.report.formatting import MODEL_NAMES
 
     parts = []
@@ -109,19 +127,23 @@ def _case_brief(table: Mapping[str, Any], swept: set[str]) -> str:
     else:  # "slit H = 30 nm": the geometry's label, in the middle of a line
         label = kind(table["geometry"][kind.size_name]).label()
         parts.append(label[:1].lower() + label[1:])
-    ions = table["electrolyte"]["ions"]
+    case = case_from_mapping(table)
+    ions = case.electrolyte.ions
     if "electrolyte.concentration" in swept:
-        parts.append("ions " + ", ".join(ion["name"] for ion in ions) + " (concentrations swept together)")
+        parts.append("ions " + ", ".join(ion.name for ion in ions) + " (concentrations swept together)")
     else:
-        parts.append(", ".join(f"{ion['name']} {ion['concentration']:.3g} mM" for ion in ions))
+        parts.append(", ".join(f"{ion.name} {ion.concentration:.3g} mM" for ion in ions))
+    if case.electrolyte.pH is not None:
+        parts.append(f"pH {case.electrolyte.pH:.3g}")
     if not any(path.startswith("wall.") for path in swept):
-        walls = table["wall"]
-        sides = [("bottom ", walls["bottom"]), ("top ", walls["top"])] if "bottom" in walls else [("", walls)]
-        parts.append(", ".join(f"{side}wall ζ = {w['zeta'] * 1e3:.3g} mV" if "zeta" in w
-                               else f"{side}wall σ = {w['charge_density'] * 1e3:.3g} mC/m²" for side, w in sides))
+        parts.append(f"wall {_wall_brief(case.walls[0])}" if case.symmetric else
+                     f"walls {_wall_brief(case.walls[0])} (bottom), {_wall_brief(case.walls[1])} (top)")
     if "solvent.temperature" not in swept:
-        parts.append(f"{table['solvent']['temperature'] - 273.15:.3g} °C")
-    parts.append(MODEL_NAMES.get(table["model"], table["model"]))
+        parts.append(f"{case.solvent.temperature - 273.15:.3g} °C")
+    model = MODEL_NAMES.get(case.model, case.model)
+    if case.model == "steric" and ions[0].diameter is not None:
+        model += f", ion diameter {ions[0].diameter * 1e9:.3g} nm"
+    parts.append(model)
     return "; ".join(parts)
 
 
@@ -140,12 +162,13 @@ def _boundary_label(curve: Any, along_x: bool) -> str:
 def map_figure(ds: Any, path: str | os.PathLike[str], boundary: Any = None) -> Path:
     """Write a PNG of a validity map: |thin-layer error| of the EO flow rate and of the current.
 
-    One panel per quantity: filled contours of |(thin − full)/full| on a log colour scale with
-    percent labels, the contour lines at the map's tolerances labelled ("5 %"), and the root-found
-    boundary curve of ``edl_solver.analysis.boundary.boundary_curve`` overlaid (dashed, with the side
-    where the thin-layer model holds). Axes in the units of the field (nm, mM, mV, mC/m², or κh and
-    ζ/(kT/e)), logarithmic where the values are. Cases without a converged solution (or with an
-    undefined error) are grey.
+    One panel per quantity: filled contours of |(thin − full)/full| on a log colour scale whose range
+    is centred on the boundary's tolerance (0.1 % to 100 % for 5 %; values beyond are clipped, the
+    colour bar's arrows), the contour lines at the map's tolerances labelled inside the axes ("1 %"),
+    and on each panel its own root-found boundary (``edl_solver.analysis.boundary.boundary_curve``,
+    dashed, labelled with its tolerance, the legend below saying where the thin-layer model holds).
+    Axes in the units of the field (nm, mM, mV, mC/m², or κh and ζ/(kT/e)), logarithmic where the
+    values are. Cases without a converged solution (or with an undefined error) are grey.
 
     Parameters
     ----------
@@ -155,8 +178,9 @@ def map_figure(ds: Any, path: str | os.PathLike[str], boundary: Any = None) -> P
     path : str or PathLike
         PNG file to create or replace (atomically); its directory must exist.
     boundary : xarray.DataArray or False, optional
-        The curve to overlay, from ``boundary_curve`` on one axis of the map against the other;
-        by default the dataset's ``boundary`` variable when it has one; False for none.
+        A curve to overlay, from ``boundary_curve`` on one axis of the map against the other; it is
+        drawn on the panel of its quantity, the other panel keeping the dataset's curve. By default the
+        dataset's ``boundary`` and ``boundary_current`` variables where it has them; False for none.
 
     Returns
     -------
@@ -169,38 +193,67 @@ def map_figure(ds: Any, path: str | os.PathLike[str], boundary: Any = None) -> P
         be written.
     """
     x_name, y_name, table = _map_parts(ds)
-    curve = _curve_for(ds, boundary, x_name, y_name)
+    curves = _curves_for(ds, boundary, x_name, y_name)
     quantities = [q for q, key in QUANTITIES.items() if key in ds]
     plane = _Plane.of(ds, x_name, y_name, table)
     tolerances = [float(t) for t in np.atleast_1d(ds.attrs.get("tolerances", [0.05]))]
+    scale = _ColourScale.around(_main_tolerance(curves, tolerances))
 
-    figure = new_figure(6.2 * len(quantities), 5.6)
+    figure = new_figure(6.4 * len(quantities), 5.9)
     panels = np.atleast_1d(figure.subplots(1, len(quantities), squeeze=False)[0])
     for axes, quantity in zip(panels, quantities):
         error = np.abs(ds[QUANTITIES[quantity]].transpose(y_name, x_name).values.astype(float))
-        # the boundary's own tolerance is drawn by the root-found curve, not twice
-        overlaid = curve if curve is not None and quantity == curve.attrs.get("quantity", "flow_rate") else None
-        _draw_panel(figure, axes, plane, error, tolerances, overlaid)
+        _draw_panel(figure, axes, plane, error, (tolerances, scale), curves.get(quantity))
         axes.set_title(_PANEL_TITLES[quantity], fontsize="medium")
     figure.suptitle(_figure_title(ds, table, x_name, y_name), fontsize="medium")
     return save_png(figure, path)
 
 
-def _draw_panel(figure: Any, axes: Any, plane: _Plane, error: np.ndarray, tolerances: list[float],
-                curve: Any) -> None:
+def _main_tolerance(curves: Mapping[str, Any], tolerances: list[float]) -> float:
+    """The tolerance the colour scale is centred on: the boundary's, else 5 % if the map has it, else the
+    middle one of the map's."""
+    for curve in curves.values():
+        return float(curve.attrs["tolerance"])
+    return 0.05 if any(math.isclose(t, 0.05) for t in tolerances) else sorted(tolerances)[len(tolerances) // 2]
+
+
+@dataclass(frozen=True)
+class _ColourScale:
+    """The colour scale of the errors, in log10|error|: from ``low`` to ``high`` (whole decades about three
+    apart, the tolerance inside, nearer the middle), values beyond clipped to the ends' colours."""
+
+    low: int
+    high: int
+    tolerance: float
+
+    @classmethod
+    def around(cls, tolerance: float) -> _ColourScale:
+        # 5 % -> 0.1 % ... 100 %: the 1-10 % band around the tolerance gets a third of the colours
+        centre = math.log10(tolerance)
+        return cls(math.floor(centre - 1.5), math.ceil(centre + 1.2), tolerance)
+
+    def levels(self, tolerances: list[float]) -> np.ndarray:
+        """Eight bands a decade, the tolerances among the edges (so that a colour changes exactly there)."""
+        steps = np.arange(self.low, self.high + 1e-9, 0.125)
+        marks = [math.log10(t) for t in tolerances if self.low < math.log10(t) < self.high]
+        return np.unique(np.round(np.concatenate([steps, marks]), 12))
+
+
+def _draw_panel(figure: Any, axes: Any, plane: _Plane, error: np.ndarray,
+                scale: tuple[list[float], _ColourScale], curve: Any) -> None:
     """One quantity's panel: the contours of |error|, the boundary ``curve`` (None for none), the axes."""
     shown = plane.converged & np.isfinite(error)
     axes.set_facecolor(_FAILED_COLOUR)  # what the contours leave uncovered: failed or undefined cases
+    axes.set_xlim(plane.x.min(), plane.x.max())
+    axes.set_ylim(plane.y.min(), plane.y.max())
     if shown.any():
         overlaid = float(curve.attrs["tolerance"]) if curve is not None else math.nan
-        _contours(figure, axes, plane, error, shown, tolerances, overlaid)
+        _contours(figure, axes, plane, error, shown, scale, overlaid)
     if curve is not None:
         _draw_curve(axes, curve, plane.x_name, plane.shown_x, plane.shown_y)
     if not shown.all():
         axes.text(0.01, 0.01, "grey: no converged solution or undefined error", transform=axes.transAxes,
                   fontsize="x-small", color="0.25")
-    axes.set_xlim(plane.x.min(), plane.x.max())
-    axes.set_ylim(plane.y.min(), plane.y.max())
     plane.shown_x.ticks(axes.xaxis)
     plane.shown_y.ticks(axes.yaxis)
     axes.set_xlabel(plane.shown_x.label)
@@ -208,33 +261,62 @@ def _draw_panel(figure: Any, axes: Any, plane: _Plane, error: np.ndarray, tolera
 
 
 def _contours(figure: Any, axes: Any, plane: _Plane, error: np.ndarray, shown: np.ndarray,
-              tolerances: list[float], overlaid: float) -> None:
+              scale: tuple[list[float], _ColourScale], overlaid: float) -> None:
     """Filled contours of log10|error| with a percent colour bar, and the tolerance lines (all but
-    ``overlaid``, the boundary's own, which is marked on the colour bar in the boundary's colour)."""
-    from matplotlib.ticker import FuncFormatter
+    ``overlaid``, the boundary's own, which the root-found curve draws), labelled inside the axes; every
+    tolerance is a labelled tick of the colour bar."""
+    from matplotlib.ticker import FixedFormatter, FixedLocator
 
+    tolerances, colours = scale
     x, y = plane.x, plane.y
     # Contoured in log10|error| over log10 of the log axes: the error follows near power laws, so
     # linear interpolation there keeps the tolerance lines smooth on coarse maps.
-    positive = error[shown & (error > 0.0)]
-    low = math.floor(math.log10(max(float(positive.min()) if positive.size else 1e-6, 1e-6)))
-    high = max(math.ceil(math.log10(max(float(error[shown].max()), 1e-6))), low + 1)
-    levels = np.arange(low, high + 1e-9, 0.25)
-    data = np.where(shown, np.log10(np.clip(error, 10.0**low, 10.0**high)), np.nan)
-    filled = axes.contourf(x, y, data, levels=levels, cmap="viridis")
+    data = np.where(shown, np.log10(np.clip(error, 1e-300, None)), np.nan)
+    filled = axes.contourf(x, y, data, levels=colours.levels(tolerances), cmap="viridis", extend="both",
+                           vmin=colours.low, vmax=colours.high)
     bar = figure.colorbar(filled, ax=axes, shrink=0.9)
     bar.set_label("|(thin − full) / full|")
-    bar.set_ticks(np.arange(low, high + 1))
-    bar.ax.yaxis.set_major_formatter(FuncFormatter(lambda level, _: _percent(10.0**level)))
-    inside = [math.log10(t) for t in tolerances if low < math.log10(t) < high and not math.isclose(t, overlaid)]
+    marks = [math.log10(t) for t in tolerances if colours.low < math.log10(t) < colours.high]
+    ticks = sorted({*range(colours.low, colours.high + 1), *marks})
+    bar.ax.yaxis.set_major_locator(FixedLocator(ticks))
+    bar.ax.yaxis.set_major_formatter(FixedFormatter([_percent(10.0**t) for t in ticks]))
+    bar.ax.yaxis.set_minor_locator(FixedLocator([]))
+    inside = [m for m in marks if not math.isclose(m, math.log10(overlaid))] if math.isfinite(overlaid) else marks
     if inside:
         lines = axes.contour(x, y, data, levels=inside, colors="white", linewidths=1.3,
                              linestyles="solid")  # log levels are negative: not dashed
-        axes.clabel(lines, fmt=lambda level: _percent(10.0**level), fontsize="small", inline=True)
-        for level in inside:
-            bar.ax.axhline(level, color="white", lw=1.3)
-    if low < math.log10(overlaid) < high:
-        bar.ax.axhline(math.log10(overlaid), color=_BOUNDARY_COLOUR, lw=2.0)
+        _label_lines(axes, lines)
+    for level in marks:
+        overlay = math.isfinite(overlaid) and math.isclose(level, math.log10(overlaid))
+        bar.ax.axhline(level, color=_BOUNDARY_COLOUR if overlay else "white", lw=2.0 if overlay else 1.3)
+
+
+def _inner_point(axes: Any, xs: np.ndarray, ys: np.ndarray) -> tuple[float, float] | None:
+    """The point of a line (xs, ys) nearest its middle among those well inside the axes (10 % from each
+    edge), where a label stays within the axes; None if the line has none."""
+    (x0, x1), (y0, y1) = sorted(axes.get_xlim()), sorted(axes.get_ylim())
+    mx, my = 0.1 * (x1 - x0), 0.1 * (y1 - y0)
+    inner = np.flatnonzero((xs > x0 + mx) & (xs < x1 - mx) & (ys > y0 + my) & (ys < y1 - my))
+    if inner.size == 0:
+        return None
+    pick = inner[np.argmin(np.abs(inner - (xs.size - 1) / 2.0))]
+    return float(xs[pick]), float(ys[pick])
+
+
+def _label_lines(axes: Any, lines: Any) -> None:
+    """Label each tolerance line once ("5 %"), on its longest piece, at a point well inside the axes: the
+    automatic placement puts labels at the ends of the lines, half outside the axes."""
+    positions = []
+    for segments in lines.allsegs:
+        longest = max(segments, key=len, default=None)
+        point = _inner_point(axes, longest[:, 0], longest[:, 1]) if longest is not None and len(longest) else None
+        if point is not None:
+            positions.append(point)
+    if positions:
+        texts = axes.clabel(lines, fmt=lambda level: _percent(10.0**level), fontsize="small", inline=True,
+                            manual=positions)
+        for text in texts:
+            text.set_clip_on(True)
 
 
 def _figure_title(ds: Any, table: Mapping[str, Any], x_name: str, y_name: str) -> str:
@@ -327,17 +409,22 @@ def _map_parts(ds: Any) -> tuple[str, str, dict[str, Any]]:
     return x_name, y_name, json.loads(attrs["case_json"])
 
 
-def _curve_for(ds: Any, boundary: Any, x_name: str, y_name: str) -> Any:
+def _curves_for(ds: Any, boundary: Any, x_name: str, y_name: str) -> dict[str, Any]:
+    """The boundary curve of each quantity: the dataset's, replaced by ``boundary`` for its quantity."""
+    from edl_solver.analysis.validity_map import BOUNDARY_VARIABLES
+
     if boundary is False:
-        return None
+        return {}
+    curves = {q: ds[name] for q, name in BOUNDARY_VARIABLES.items() if name in ds.variables}
     if boundary is None:
-        return ds["boundary"] if "boundary" in ds.variables else None
+        return curves
     dims = getattr(boundary, "dims", None)
-    axis = getattr(boundary, "attrs", {}).get("axis")
-    if dims is None or len(dims) != 1 or {dims[0], axis} != {x_name, y_name}:
+    attrs = getattr(boundary, "attrs", {})
+    if dims is None or len(dims) != 1 or {dims[0], attrs.get("axis")} != {x_name, y_name}:
         raise InputError(f"boundary: {type(boundary).__name__} is not a curve of this map, expected "
                          f"boundary_curve() along {x_name!r} or {y_name!r} against the other")
-    return boundary
+    curves[attrs.get("quantity", "flow_rate")] = boundary
+    return curves
 
 
 def _draw_curve(axes: Any, curve: Any, x_name: str, shown_x: _Shown, shown_y: _Shown) -> None:
@@ -349,9 +436,15 @@ def _draw_curve(axes: Any, curve: Any, x_name: str, shown_x: _Shown, shown_y: _S
     against = np.asarray(curve[other].values, dtype=float)
     along_x = other != x_name
     xs, ys = (along, against) if along_x else (against, along)
-    axes.plot(shown_x.place(xs), shown_y.place(ys), color=_BOUNDARY_COLOUR, lw=2.2, ls=(0, (5, 2)),
-              label=_boundary_label(curve, along_x),
+    px, py = shown_x.place(xs), shown_y.place(ys)
+    axes.plot(px, py, color=_BOUNDARY_COLOUR, lw=2.2, ls=(0, (5, 2)), label=_boundary_label(curve, along_x),
               path_effects=[effects.Stroke(linewidth=4.0, foreground="white"), effects.Normal()])
+    finite = np.isfinite(px) & np.isfinite(py)
+    point = _inner_point(axes, px[finite], py[finite])
+    if point is not None:  # the tolerance on the curve, as on the contour lines, inside the axes
+        axes.text(*point, _percent(float(curve.attrs["tolerance"])), color=_BOUNDARY_COLOUR, fontsize="small",
+                  fontweight="bold", ha="center", va="center", clip_on=True, zorder=5,
+                  bbox={"boxstyle": "round,pad=0.2", "facecolor": "white", "edgecolor": "none", "alpha": 0.85})
     # below the axes: inside, it would hide part of the map (often the curve itself)
     axes.legend(loc="upper center", bbox_to_anchor=(0.5, -0.11), fontsize="small", frameon=False)
 
