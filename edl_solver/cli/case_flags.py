@@ -171,7 +171,7 @@ def _file_ion(data: dict[str, Any], name: str) -> dict[str, Any]:
         entries = electrolyte.get(key)
         for entry in entries if isinstance(entries, list) else ():
             if isinstance(entry, dict) and entry.get("name") == name:
-                return {k: entry[k] for k in ("valence", "diffusivity") if k in entry}
+                return {k: entry[k] for k in ("valence", "diffusivity", "temperature_dependence") if k in entry}
     return {}
 
 

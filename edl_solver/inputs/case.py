@@ -163,6 +163,7 @@ class Case:
         _set(self, "tolerance", tolerance)
         if not isinstance(self.numerics, Numerics):
             raise InputError(f"numerics: {self.numerics!r} is not Numerics, expected Numerics(...)")
+        self.electrolyte.diffusivities(self.solvent.temperature)  # refuses a temperature outside the ions' laws
         check_case(self)  # last: the domain is judged on inputs that are each valid
 
     @property

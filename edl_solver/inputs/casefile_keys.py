@@ -16,7 +16,7 @@ from edl_solver.inputs.geometry import GEOMETRIES
 __all__ = ["CASE_KEYS", "ELECTROLYTE_KEYS", "ION_KEYS", "NUMERICS_KEYS", "SCALARS", "SITE_KEYS", "SOLVENT_KEYS",
            "SOLVENT_PROPERTIES", "WALL_KEYS", "check_keys", "single_wall"]
 
-ION_KEYS = ("name", "valence", "concentration", "diffusivity", "diameter")
+ION_KEYS = ("name", "valence", "concentration", "diffusivity", "diameter", "temperature_dependence")
 ELECTROLYTE_KEYS = ("ions", "ion", "pH", "water_ions", "diameter")
 SITE_KEYS = ("density", "pK", "charges", "name")
 #: Keys of a wall table other than its list of sites.

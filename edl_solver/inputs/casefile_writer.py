@@ -44,7 +44,8 @@ def case_to_mapping(case: Case) -> dict[str, Any]:
     dict
         The shape :func:`case_from_mapping` reads: ``{"geometry": {"kind": "slit", "height": H} |
         {"kind": "capillary", "radius": a}, "electrolyte": {"ions": [{"name", "valence", "concentration",
-        "diffusivity"[, "diameter"]}, ...][, "pH"]}, "wall": {...} | {"bottom": {...}, "top": {...}},
+        "diffusivity"[, "diameter", "temperature_dependence"]}, ...][, "pH"]}, "wall": {...} | {"bottom": {...},
+        "top": {...}},
         "solvent": {"temperature", "relative_permittivity", "viscosity", "name"[,
         "viscoelectric_coefficient"]}, "field", "pressure_gradient", "model", "tolerance", "numerics":
         {"accuracy", "max_iterations", "max_intervals"[, "intervals"]}}``; a wall holds its non-default
@@ -78,6 +79,8 @@ def case_to_mapping(case: Case) -> dict[str, Any]:
                  "diffusivity": ion.diffusivity}
         if ion.diameter is not None:
             entry["diameter"] = ion.diameter
+        if ion.temperature_dependence:  # a diffusivity at 25 degC that follows the temperature (a given one does not)
+            entry["temperature_dependence"] = True
         ions.append(entry)
     electrolyte: dict[str, Any] = {"ions": ions}
     if case.electrolyte.pH is not None:

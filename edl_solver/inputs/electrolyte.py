@@ -16,6 +16,7 @@ import numpy as np
 from edl_solver.constants import AVOGADRO, ELEMENTARY_CHARGE
 from edl_solver.errors import InputError
 from edl_solver.inputs.frozen import assign as _set
+from edl_solver.inputs.ion_temperature import diffusivity_ratio
 from edl_solver.inputs.ions import lookup_ion
 from edl_solver.inputs.solvent import Solvent
 from edl_solver.inputs.units import to_positive_si, to_si
@@ -47,6 +48,11 @@ class Ion:
         Diffusion coefficient, m^2/s; sets the ion's mobility through Nernst-Einstein, D/(kT).
     diameter : float or str, optional
         Ion (hydrated) diameter, m, for the steric model (``Case(model="steric")``).
+    temperature_dependence : bool, optional
+        Whether ``diffusivity`` is the value at 25 degC and follows the case temperature
+        (``inputs.ion_temperature``: tabulated limiting conductivities where known, else Walden's rule D ~ T/eta).
+        By default True for a diffusivity taken from the table and False for a given one, which is then used
+        as given at every temperature. ``diffusivity_at`` gives the value used.
     """
 
     name: str
@@ -54,12 +60,18 @@ class Ion:
     concentration: float | str | None = None
     diffusivity: float | str | None = None
     diameter: float | str | None = None
+    temperature_dependence: bool | None = None
 
     def __post_init__(self) -> None:
         if not isinstance(self.name, str) or not self.name.strip() or not self.name.isprintable():
             # the name labels every message about the ion: a line break in it would split those messages
             raise InputError(f"ion.name: {self.name!r} is not a name, expected a non-empty printable string like 'K+'")
         label = f"ion {self.name}"
+        follows = self.diffusivity is None if self.temperature_dependence is None else self.temperature_dependence
+        if not isinstance(follows, (bool, np.bool_)):  # "no" or 1 would count as true
+            raise InputError(f"{label}.temperature_dependence: {self.temperature_dependence!r} is not True or "
+                             "False, expected a boolean")
+        _set(self, "temperature_dependence", bool(follows))
         known = None
         if self.valence is None or self.diffusivity is None:
             known = lookup_ion(self.name)
@@ -73,6 +85,13 @@ class Ion:
                                             "a positive diffusivity in m^2/s"))
         if self.diameter is not None:
             _set(self, "diameter", to_positive_si(self.diameter, "m", f"{label}.diameter", "a positive diameter in m"))
+
+    def diffusivity_at(self, temperature: float) -> float:
+        """The diffusivity used at ``temperature`` (K), m^2/s: ``diffusivity`` itself without a temperature
+        dependence or at 25 degC, else scaled from 25 degC (``inputs.ion_temperature.diffusivity_ratio``)."""
+        if not self.temperature_dependence:
+            return self.diffusivity
+        return self.diffusivity * diffusivity_ratio(self.name, float(temperature))
 
 
 @dataclass(frozen=True)
@@ -132,6 +151,11 @@ class Electrolyte:
                              "concentrations, expected e.g. {'K+': '1 mM', 'Cl-': '1 mM'}")
         return cls(tuple(Ion(name=name, concentration=c) for name, c in concentrations.items()), pH=pH,
                    water_ions=water_ions)
+
+    def diffusivities(self, temperature: float) -> tuple[float, ...]:
+        """The diffusivities of the ions at ``temperature`` (K), m^2/s, as the solver uses them
+        (``Ion.diffusivity_at``)."""
+        return tuple(ion.diffusivity_at(temperature) for ion in self.ions)
 
     @property
     def proton_concentration(self) -> float | None:
@@ -204,5 +228,6 @@ def _with_water_ions(ions: tuple[Ion, ...], ph: float) -> tuple[Ion, ...]:
                          "the pH, expected one among the ions")
     partner = max(candidates, key=lambda ion: ion.concentration)
     balanced = tuple(Ion(name=i.name, valence=i.valence, concentration=i.concentration + abs(excess),
-                         diffusivity=i.diffusivity, diameter=i.diameter) if i is partner else i for i in ions)
+                         diffusivity=i.diffusivity, diameter=i.diameter,
+                         temperature_dependence=i.temperature_dependence) if i is partner else i for i in ions)
     return (*balanced, Ion(name="H+", concentration=proton), Ion(name="OH-", concentration=hydroxide))

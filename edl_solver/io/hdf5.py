@@ -201,8 +201,8 @@ def _write_ions(file: Any, case: Case) -> None:
                "charge number of the ion")
     _add_array(file, "bulk_concentration", ("ion",), [ion.concentration for ion in ions], "mol/m^3",
                "ion concentration in the reservoir (bulk)")
-    _add_array(file, "diffusivity", ("ion",), [ion.diffusivity for ion in ions], "m^2/s",
-               "ion diffusion coefficient")
+    _add_array(file, "diffusivity", ("ion",), list(case.electrolyte.diffusivities(case.solvent.temperature)),
+               "m^2/s", "ion diffusion coefficient at the case temperature (the one used)")
     if any(ion.diameter is not None for ion in ions):
         _add_array(file, "diameter", ("ion",), [math.nan if ion.diameter is None else ion.diameter for ion in ions],
                    "m", "ion diameter (steric model; NaN where not given)")

@@ -4,7 +4,7 @@ A single solve packs one case (``case_vector``); a sweep assembles the vectors o
 its axes (``sweeping.plan``). Both then run the same compiled steps (``kernels.prepare``, ``kernels.summary``),
 so a sweep's values equal single solves. The layout is ``kernels.layout``'s (indices ``P_*``): scalars, the
 two slip lengths, the two walls as SI rows in the ``W_*`` layout (see ``wall_row_si``), then an ``ION_*`` row
-per ion (valence, bulk concentration, diffusivity).
+per ion (valence, bulk concentration, diffusivity at the case temperature).
 """
 
 from __future__ import annotations
@@ -95,10 +95,12 @@ def wall_row_si(wall: Wall) -> np.ndarray:
     return row
 
 
-def ion_rows(electrolyte: Electrolyte) -> np.ndarray:
+def ion_rows(electrolyte: Electrolyte, temperature: float | None = None) -> np.ndarray:
     """The ions as ``ION_*`` rows (valence, concentration mol/m^3, diffusivity m^2/s), as the case vector holds
-    them."""
-    return np.array([[ion.valence, ion.concentration, ion.diffusivity] for ion in electrolyte.ions], dtype=float)
+    them: the diffusivities at ``temperature`` (K; ``Ion.diffusivity_at``), as given when it is None."""
+    return np.array([[ion.valence, ion.concentration,
+                      ion.diffusivity if temperature is None else ion.diffusivity_at(temperature)]
+                     for ion in electrolyte.ions], dtype=float)
 
 
 def case_vector(case: Case) -> np.ndarray:
@@ -128,6 +130,8 @@ def case_vector(case: Case) -> np.ndarray:
     row = wall_row_si(bottom)
     p[P_WALLS:P_WALLS + WALL_SIZE] = row
     p[P_WALLS + WALL_SIZE:P_WALLS + 2 * WALL_SIZE] = row if top is bottom else wall_row_si(top)
-    # the ION_* rows, flat (a list converts faster than building the 2-D array of ion_rows)
-    p[P_IONS:] = [value for ion in ions for value in (ion.valence, ion.concentration, ion.diffusivity)]
+    # the ION_* rows, flat (a list converts faster than building the 2-D array of ion_rows); the diffusivities at
+    # the case temperature, so every compiled step (sweeps included) sees the mobilities of that temperature
+    diffusivities = case.electrolyte.diffusivities(solvent.temperature)
+    p[P_IONS:] = [value for ion, d in zip(ions, diffusivities) for value in (ion.valence, ion.concentration, d)]
     return p

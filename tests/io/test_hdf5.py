@@ -412,11 +412,15 @@ def test_water_ions_are_stored_once(results: dict[str, edl.Result], tmp_path: Pa
 def test_version_1_shape_is_unchanged_for_inputs_it_had() -> None:
     # Files of schema version 1 written before regulated walls, slip, the steric model and viscoelectric
     # solvents must still read the same: a case without them has the very dict the first writer wrote.
+    # Table ions now carry "temperature_dependence": True (their diffusivity is the 25 degC value and follows the
+    # temperature); a file without the key gives its diffusivities, used as given: the numbers it was written with.
     assert io.SCHEMA_VERSION == "1"
     assert case_to_mapping(CASES["slit"]) == {
         "geometry": {"kind": "slit", "height": 5e-08},
-        "electrolyte": {"ions": [{"name": "K+", "valence": 1, "concentration": 1.0, "diffusivity": 1.957e-09},
-                                 {"name": "Cl-", "valence": -1, "concentration": 1.0, "diffusivity": 2.032e-09}]},
+        "electrolyte": {"ions": [{"name": "K+", "valence": 1, "concentration": 1.0, "diffusivity": 1.957e-09,
+                                  "temperature_dependence": True},
+                                 {"name": "Cl-", "valence": -1, "concentration": 1.0, "diffusivity": 2.032e-09,
+                                  "temperature_dependence": True}]},
         "wall": {"zeta": -0.05},
         "solvent": {"temperature": 298.15, "relative_permittivity": 78.30334375,
                     "viscosity": 0.0008897608881015455, "name": "water"},
