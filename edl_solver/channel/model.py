@@ -40,9 +40,10 @@ entries and of the correlations L_ij / sqrt(L_ii L_jj) of the ion-resolved matri
 conditioned where the reduced M does not), then checks the interpolation against direct solves at the
 midpoints of the grid and stores the error.
 
-Access resistance (the geometry's ``access_resistance``; a capillary's only): R = 1/(4 K a) per end, K the
-reservoir's bulk conductivity (Hall 1975, J. Gen. Physiol. 66, 531, from memory), in series; the
-concentration at each end is the reservoir's, and no hydraulic access resistance is added.
+Access resistance (``edl_solver.channel.access``), in series: R = 1/(4 K a) per end of a capillary, K the
+reservoir's bulk conductivity (Hall 1975, J. Gen. Physiol. 66, 531, from memory); (ln(8 W/H) - 1)/(pi K W)
+per end of a slit of width W (given as ``width``), times W per unit width. The concentration at each end is
+the reservoir's, and no hydraulic access resistance is added.
 """
 
 from __future__ import annotations
@@ -91,10 +92,14 @@ class Channel:
         Salt concentration of the left (x = 0) and right (x = L) reservoirs: the first ion's concentration,
         mol/m^3 (or "1 mM"), as for the sweep path "electrolyte.concentration".
     access_resistance : bool
-        Add the reservoirs' access resistances 1/(4 K a) per end in series (Hall 1975, J. Gen. Physiol. 66,
-        531, from memory); capillaries only.
+        Add the reservoirs' access resistances in series: 1/(4 K a) per end of a capillary (Hall 1975, J. Gen.
+        Physiol. 66, 531, from memory); (ln(8 W/H) - 1)/(pi K W) per end of a slit of width W (needs
+        ``width``; ``edl_solver.channel.access``).
     points : int
         Concentrations of the table of cross-section solves (``tabulate``), at least 8.
+    width : float or str, optional
+        Width W of a slit, m (or "1 um"), at least ten times its height; used for its access resistance (and
+        by ``Device`` to turn per-width values into a channel's). None for a capillary.
     """
 
     case: Case
@@ -103,6 +108,7 @@ class Channel:
     right_concentration: float | str
     access_resistance: bool = False
     points: int = 32
+    width: float | str | None = None
 
     def __post_init__(self) -> None:
         if not isinstance(self.case, Case):
@@ -116,12 +122,25 @@ class Channel:
         if not isinstance(self.access_resistance, bool):
             raise InputError(f"channel.access_resistance: {self.access_resistance!r} is not a bool, "
                              "expected True or False")
-        geometry = self.case.geometry
-        if self.access_resistance and geometry.access_resistance(bulk_conductivity(self.case)) is None:
-            raise InputError(f"channel.access_resistance: True for a {geometry.kind}, expected False (only the "
-                             "circular pore's access resistance, Hall 1975, is implemented)")
+        self._check_width()
         if isinstance(self.points, bool) or not isinstance(self.points, int) or not 8 <= self.points <= 400:
             raise InputError(f"channel.points: {self.points!r} is not allowed, expected an integer from 8 to 400")
+
+    def _check_width(self) -> None:
+        from edl_solver.channel.access import slit_access_resistance
+
+        geometry = self.case.geometry
+        if self.width is None:
+            if self.access_resistance and geometry.kind == "slit":
+                raise InputError("channel.access_resistance: True for a slit without a width, expected width= the "
+                                 "slit's width (e.g. '1 um'), on which its access resistance depends")
+            return
+        if geometry.kind != "slit":
+            raise InputError(f"channel.width: {self.width!r} for a {geometry.kind}, expected None (a width belongs "
+                             "to a slit)")
+        width = to_positive_si(self.width, "m", "channel.width", "a slit width in m (or '1 um')")
+        object.__setattr__(self, "width", width)
+        slit_access_resistance(1.0, geometry.height, width)  # refuses a width under ten heights
 
     @property
     def equal_reservoirs(self) -> bool:
@@ -236,15 +255,18 @@ class ChannelTable:
 
 
 def _access_resistance(channel: Channel) -> float:
-    """Both ends' access resistances in series, ohm: the geometry's for an opening into each reservoir
-    (1/(4 K a) for a capillary; Hall 1975, from memory), K = F^2/(RT) sum z_i^2 D_i c_i the reservoir's
+    """Both ends' access resistances in series, ohm (ohm m per unit width of a slit: one channel's times W):
+    ``channel.access``'s for an opening into each reservoir, K = F^2/(RT) sum z_i^2 D_i c_i the reservoir's
     conductivity (Kohlrausch-free dilute limit, Nernst-Einstein)."""
+    from edl_solver.channel.access import end_access_resistance
+
     if not channel.access_resistance:
         return 0.0
     per_salt = bulk_conductivity(channel.case) / channel.case.electrolyte.ions[0].concentration
     geometry = channel.case.geometry
-    return sum(geometry.access_resistance(per_salt * c) for c in (channel.left_concentration,
-                                                                  channel.right_concentration))
+    total = sum(end_access_resistance(geometry, per_salt * c, channel.width)
+                for c in (channel.left_concentration, channel.right_concentration))
+    return total * channel.width if geometry.kind == "slit" else total
 
 
 def tabulate(channel: Channel) -> ChannelTable:

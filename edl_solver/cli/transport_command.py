@@ -22,7 +22,7 @@ __all__ = ["VALUE_FLAGS", "add_transport_command", "run_transport_command"]
 #: Flags of ``edl transport`` that take a value.
 VALUE_FLAGS = CASE_VALUE_FLAGS | frozenset(OUTPUT_FLAGS) | frozenset(
     {"--length", "--pump-figure", "--conductance", "--conductance-figure", "--iv", "--left", "--right",
-     "--iv-figure"})
+     "--iv-figure", "--width", "--channels", "--voltage", "--pressure-difference", "--access-resistance"})
 
 _EPILOG = """\
 examples:
@@ -31,6 +31,8 @@ examples:
   edl transport case.toml --conductance 0.001mM:100mM:30 --conductance-figure conductance.png
   edl transport case.toml --length 5um --left 1mM --right 10mM --iv -150mV:150mV:31 \\
       --iv-figure iv.png -o channel.h5
+  edl transport --slit 1um --ion K+=1mM --ion Cl-=1mM --zeta -50mV --length 1cm --width 100um \\
+      --channels 20 --voltage 100V --pressure-difference 100mbar --access-resistance on   # a device
   edl transport --slit 20nm --ion K+=1mM --ion Cl-=1mM --charge-density -5mC/m^2 --length 2um \\
       --left 0.1mM --right 1mM                             # membrane potential and osmotic power
 
@@ -44,6 +46,11 @@ reservoirs' concentrations of the first ion; both or neither, default the case's
 potential, short-circuit current, maximum osmotic power and efficiency. --iv V1:V2:N adds its I-V
 curve at N voltages V(right) - V(left), evenly spaced. --conductance C1:C2:N solves the section at
 N concentrations, evenly spaced in log (per unit length, or of the channel with --length).
+A device: --width W (of each slit), --channels N (in parallel), --voltage V and --pressure-difference
+DP (e.g. 10V, 100mbar, -1bar; both as V(right) - V(left), p(right) - p(left)) print its flow rate in
+uL/min or nL/min, current and conductance, its pump curve and stall pressure at V and the streaming
+potential at DP (needs --length). --access-resistance on adds each end's access resistance: 1/(4 K a)
+for a capillary (Hall 1975), (ln(8W/H) - 1)/(pi K W) for a slit of width W.
 -o OUT.h5 holds the result (as 'edl solve' writes it) and the groups "conductance" and "channel":
   xarray.open_dataset("OUT.h5", engine="h5netcdf", group="channel")
 """
@@ -68,6 +75,7 @@ def add_transport_command(commands: Any) -> None:
     channel.add_argument("--iv", metavar="V1:V2:N", help="I-V curve at N voltages V(right) - V(left) from V1 to V2, "
                                                          "e.g. -150mV:150mV:31 (needs --length)")
     channel.add_argument("--iv-figure", metavar="PNG", help="write a figure of the I-V curve (needs --iv)")
+    _add_device_flags(transport)
     curves = transport.add_argument_group("pump curve and conductance curve")
     curves.add_argument("--pump-figure", metavar="PNG",
                         help="write the linear EO pump curve at the case's field, full and thin-layer model "
@@ -80,6 +88,61 @@ def add_transport_command(commands: Any) -> None:
                              "(needs --conductance)")
     add_case_flags(transport)
     transport.set_defaults(run=run_transport_command)
+
+
+def _add_device_flags(transport: Any) -> None:
+    device = transport.add_argument_group("device: channels in parallel, applied voltage and pressure (need --length)")
+    device.add_argument("--width", metavar="W", help="width of each slit, e.g. 100um (at least ten heights; slits "
+                                                     "only): device values in uL/min, A, S instead of per metre")
+    device.add_argument("--channels", metavar="N", help="number of identical channels in parallel (default 1)")
+    device.add_argument("--voltage", metavar="V", help="applied voltage V(right) - V(left), e.g. 100V: the device's "
+                                                       "flow, current, pump curve and stall pressure")
+    device.add_argument("--pressure-difference", metavar="DP",
+                        help="pressure difference p(right) - p(left), e.g. 100mbar or -1bar: the flow it drives and "
+                             "the streaming potential")
+    device.add_argument("--access-resistance", choices=("on", "off"), default="off",
+                        help="add each end's access resistance in series (capillary: Hall 1975; slit: needs "
+                             "--width); default off")
+
+
+def _device_plan(args: argparse.Namespace, case: Any, plan: dict[str, Any]) -> None:
+    """The device flags, checked: plan["device"] = (channels, voltage, dp) when any is given; plan["width"]."""
+    from edl_solver.errors import InputError
+    from edl_solver.inputs.units import to_si
+
+    given = {flag: value for flag, value in (("--width", args.width), ("--channels", args.channels),
+                                             ("--voltage", args.voltage),
+                                             ("--pressure-difference", args.pressure_difference)) if value is not None}
+    if args.access_resistance == "on":
+        given.setdefault("--access-resistance", "on")
+    plan["device"], plan["width"] = None, None
+    if not given:
+        return
+    first = next(iter(given))
+    if plan["length"] is None:
+        raise InputError(f"{first}: needs --length, the length of the channels, expected e.g. --length 1cm")
+    slit = case.geometry.kind == "slit"
+    if args.width is not None:
+        if not slit:
+            raise InputError(f"--width: {args.width!r} for a {case.geometry.kind}, expected no --width (a width "
+                             "belongs to a slit)")
+        plan["width"] = _positive(args.width, "--width", "m", "a slit width, e.g. 100um")
+        from edl_solver.channel.access import SLIT_MIN_ASPECT
+
+        if plan["width"] < SLIT_MIN_ASPECT * case.geometry.height:
+            raise InputError(f"--width: {args.width!r} is less than {SLIT_MIN_ASPECT:g} times the slit height, "
+                             f"expected at least {SLIT_MIN_ASPECT * case.geometry.height:.4g} m (the per-width "
+                             "section assumes W >> H)")
+    elif slit:
+        raise InputError(f"{first}: a slit device needs --width, the width of each slit, expected e.g. --width 100um")
+    count = (args.channels or "1").strip()
+    if not count.isdigit() or int(count) < 1:
+        raise InputError(f"--channels: {args.channels!r} is not allowed, expected a whole number of channels, "
+                         "at least 1")
+    voltage = to_si(args.voltage, "V", "--voltage") if args.voltage is not None else 0.0
+    dp = to_si(args.pressure_difference, "Pa", "--pressure-difference") if args.pressure_difference is not None \
+        else 0.0
+    plan["device"] = (int(count), voltage, dp)
 
 
 #: Most points of an I-V or conductance curve (each one or more solves).
@@ -148,6 +211,7 @@ def _transport_plan(args: argparse.Namespace, case: Any) -> dict[str, Any]:
     if args.conductance is not None:
         plan["concentrations"] = _parse_range(args.conductance, "--conductance", "mol/m^3", log=True)
         cases_at(case, plan["concentrations"][:1])
+    _device_plan(args, case, plan)
     if args.pump_figure is not None and case.field == 0.0:
         raise InputError("--pump-figure: the case has no field, expected --field E (e.g. --field 10kV/m) or a "
                          "field in the case file")
@@ -184,7 +248,7 @@ def run_transport_command(args: argparse.Namespace) -> int:
     plan = _transport_plan(args, case)
     outputs = _transport_outputs(args)
     result = solver.solve(case)
-    curve = channel = None
+    curve = channel = device_text = None
     if plan["concentrations"] is not None:
         from edl_solver.channel.conductance import conductance_curve
 
@@ -197,8 +261,15 @@ def run_transport_command(args: argparse.Namespace) -> int:
         from edl_solver.channel.conductance import channel_characteristics
         from edl_solver.channel.model import Channel
 
-        spec = Channel(case, plan["length"], *plan["reservoirs"])
+        spec = Channel(case, plan["length"], *plan["reservoirs"], access_resistance=args.access_resistance == "on",
+                       width=plan["width"])
         channel = channel_characteristics(spec, plan["voltages"])
+        if plan["device"] is not None:
+            from edl_solver.channel.device import Device
+            from edl_solver.channel.device_text import device_lines
+
+            count, voltage, dp = plan["device"]
+            device_text = device_lines(Device(spec, count), voltage, dp)
     written: list[tuple[str, Path]] = []
     failure = None
     try:
@@ -213,6 +284,8 @@ def run_transport_command(args: argparse.Namespace) -> int:
             print(conductance_lines(curve))
         if channel is not None:
             print(channel_lines(channel, result))
+        if device_text is not None:
+            print(device_text)
         for what, path in written:
             print(f"wrote the {what} to {Path(path).resolve()}")
     return fail(failure, EXIT_WRITE_FAILED) if failure else EXIT_OK
