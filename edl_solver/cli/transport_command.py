@@ -15,7 +15,7 @@ from typing import Any
 from edl_solver.cli.case_flags import CASE_VALUE_FLAGS, add_case_flags, case_from_args
 from edl_solver.cli.exit_codes import EXIT_OK, EXIT_WRITE_FAILED, fail
 from edl_solver.cli.output_files import OUTPUT_FLAGS, add_output_flags, writable
-from edl_solver.cli.transport_text import channel_lines, conductance_lines
+from edl_solver.cli.transport_text import channel_lines, conductance_lines, flags_line
 
 __all__ = ["VALUE_FLAGS", "add_transport_command", "run_transport_command"]
 
@@ -44,7 +44,8 @@ reservoirs' concentrations of the first ion; both or neither, default the case's
 potential, short-circuit current, maximum osmotic power and efficiency. --iv V1:V2:N adds its I-V
 curve at N voltages V(right) - V(left), evenly spaced. --conductance C1:C2:N solves the section at
 N concentrations, evenly spaced in log (per unit length, or of the channel with --length).
--o OUT.h5 holds the result (as 'edl solve' writes it) and the groups "conductance" and "channel":
+-o OUT.h5 holds the result (as 'edl solve' writes it, with its group "transport"), the group
+"conductance" with --conductance and the group "channel" with --length:
   xarray.open_dataset("OUT.h5", engine="h5netcdf", group="channel")
 """
 
@@ -213,6 +214,8 @@ def run_transport_command(args: argparse.Namespace) -> int:
             print(conductance_lines(curve))
         if channel is not None:
             print(channel_lines(channel, result))
+        if curve is None and channel is None:
+            print(flags_line())
         for what, path in written:
             print(f"wrote the {what} to {Path(path).resolve()}")
     return fail(failure, EXIT_WRITE_FAILED) if failure else EXIT_OK
