@@ -15,7 +15,7 @@ from typing import Any
 from edl_solver.cli.case_flags import CASE_VALUE_FLAGS, add_case_flags, case_from_args
 from edl_solver.cli.exit_codes import EXIT_OK, EXIT_WRITE_FAILED, fail
 from edl_solver.cli.output_files import OUTPUT_FLAGS, add_output_flags, writable
-from edl_solver.cli.transport_text import channel_lines, conductance_lines
+from edl_solver.cli.transport_text import channel_lines, conductance_lines, flags_line
 
 __all__ = ["VALUE_FLAGS", "add_transport_command", "run_transport_command"]
 
@@ -51,7 +51,8 @@ DP (e.g. 10V, 100mbar, -1bar; both as V(right) - V(left), p(right) - p(left)) pr
 uL/min or nL/min, current and conductance, its pump curve and stall pressure at V and the streaming
 potential at DP (needs --length). --access-resistance on adds each end's access resistance: 1/(4 K a)
 for a capillary (Hall 1975), (ln(8W/H) - 1)/(pi K W) for a slit of width W.
--o OUT.h5 holds the result (as 'edl solve' writes it) and the groups "conductance" and "channel":
+-o OUT.h5 holds the result (as 'edl solve' writes it, with its group "transport"), the group
+"conductance" with --conductance and the group "channel" with --length:
   xarray.open_dataset("OUT.h5", engine="h5netcdf", group="channel")
 """
 
@@ -286,6 +287,8 @@ def run_transport_command(args: argparse.Namespace) -> int:
             print(channel_lines(channel, result))
         if device_text is not None:
             print(device_text)
+        if curve is None and channel is None and device_text is None:
+            print(flags_line())
         for what, path in written:
             print(f"wrote the {what} to {Path(path).resolve()}")
     return fail(failure, EXIT_WRITE_FAILED) if failure else EXIT_OK

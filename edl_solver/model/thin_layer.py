@@ -20,6 +20,7 @@ from edl_solver.inputs.geometry import Geometry
 from edl_solver.inputs.solvent import Solvent
 from edl_solver.inputs.wall import Wall
 from edl_solver.model.walls import isolated_wall
+from edl_solver.report.formatting import percent
 
 
 def grahame_zeta(charge_density: float, electrolyte: Electrolyte, solvent: Solvent, linear: bool = False
@@ -58,8 +59,7 @@ def verdict(error: float, tolerance: float, quantity: str = "EO flow rate") -> s
     if not math.isfinite(error):
         return (f"the full {quantity} vanishes here (uncharged walls, or walls of opposite sign): the "
                 "relative error of the thin-layer model is undefined; compare the profiles")
-    percent = abs(error) * 100.0
-    amount = f"{percent:.2g} %" if percent < 10 else f"{percent:.0f} %"
+    amount = percent(abs(error))  # the report's error line prints this same number
     limit = f"{tolerance * 100:g} %"
     if abs(error) <= tolerance:
         return f"thin-layer slip is within {amount} of the full {quantity} here: valid at {limit}"

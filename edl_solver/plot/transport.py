@@ -3,8 +3,8 @@ concentration, and the I-V curve of a finite channel.
 
 matplotlib is imported only when a figure is asked for; each figure is a ``matplotlib.figure.Figure`` on its
 own Agg canvas (no pyplot state, the process-wide backend untouched) and is written atomically.
-Axes are in the units of the field with an SI prefix picked from the data (mV, nA, kPa, µm²/s, fL/s);
-slit values are per unit width, said so on the axis.
+Axes are in the units of the text report (``report.units``: mV, one prefix per quantity, µm²/s or fL/s);
+slit values are per metre of width, said so on the axis.
 """
 
 from __future__ import annotations
@@ -21,11 +21,14 @@ from edl_solver.channel.conductance import checked_length, crossover_concentrati
 from edl_solver.errors import InputError
 from edl_solver.inputs.geometry import GEOMETRIES
 from edl_solver.plot.shared import case_of, new_figure, number, prefix, require_dataset, save_png, section_text
+from edl_solver.report.units import REFERENCE_LENGTH, show, unit_of
 from edl_solver.results.result import Result
 
 __all__ = ["conductance_figure", "iv_figure", "pump_curve_figure"]
 
 _FULL, _THIN, _BULK, _PLATEAU, _MARK = "C0", "C3", "0.45", "C2", "C1"
+#: A geometry per unit width, for ``report.units`` where a dataset says only that its values are per width.
+_SLIT = GEOMETRIES["slit"]
 
 
 # ----------------------------------------------------------------------------------------------
@@ -42,16 +45,12 @@ def _pick(largest: float, candidates: tuple[tuple[str, float], ...]) -> tuple[st
 
 
 def _flow_display(per_channel: bool, largest: float) -> tuple[float, str, str]:
-    """Scale, unit and axis label of a flow rate: per channel (a capillary), litres with a prefix
-    (1 fL = 1 µm³); per unit width (a slit), µm²/s (µm³/s per µm of width) unless far off."""
+    """Scale, unit and axis label of a flow rate, in the report's unit (``report.units``): per channel (a
+    capillary), litres with a prefix (1 fL = 1 µm³); per unit width (a slit), µm²/s (µm³/s per µm of width)."""
+    shown = show("flow_rate", None if per_channel else _SLIT, largest)
     if per_channel:
-        unit, scale = _pick(largest, (("fL/s", 1e18), ("aL/s", 1e21), ("pL/s", 1e15), ("nL/s", 1e12)))
-        note = {"fL/s": "1 fL = 1 µm³", "aL/s": "1 aL = 10⁻³ µm³", "pL/s": "1 pL = 1000 µm³",
-                "nL/s": "1 nL = 10⁶ µm³"}[unit]
-        return scale, unit, f"flow rate Q ({unit}, {note})"
-    unit, scale = _pick(largest, (("µm²/s", 1e12), ("nm²/s", 1e18), ("mm²/s", 1e6)))
-    per = unit.split("²")[0]
-    return scale, unit, f"flow rate per unit width Q/W ({unit},\ni.e. {per}³/s per {per} of width)"
+        return shown.scale, shown.unit, f"flow rate Q ({shown.unit}; 1 fL = 1 µm³)"
+    return shown.scale, shown.unit, f"flow rate per unit width Q/W ({shown.unit},\ni.e. µm³/s per µm of width)"
 
 
 def _pressure_display(largest: float, length: float | None) -> tuple[float, str, str]:
@@ -161,7 +160,8 @@ def pump_curve_figure(result: Result, path: str | os.PathLike[str], length: floa
     axes.legend(fontsize="small", loc="upper right")
     drive = f"E = {number(field / 1e3)} kV/m" if abs(field) >= 1e3 else f"E = {number(field)} V/m"
     if channel_length is not None:
-        drive += f" over L = {number(channel_length * 1e6)} µm (ΔV = {number(abs(field) * channel_length)} V)"
+        drive += (f" over L = {show('length', None, channel_length)(channel_length)} "
+                  f"(ΔV = {show('potential', None)(abs(field) * channel_length)})")
     figure.suptitle(f"Electroosmotic pump curve at {drive}\n{section_text(case)}", fontsize="medium")
     return save_png(figure, path)
 
@@ -172,18 +172,14 @@ def pump_curve_figure(result: Result, path: str | os.PathLike[str], length: floa
 
 def _conductance_display(per_channel: bool, per_length: bool, largest: float) -> tuple[float, str]:
     """Scale and axis label of a conductance in its dataset unit (S*m, S or S/m; see
-    ``conductance.conductance_units``)."""
-    if per_length and per_channel:  # S m
-        scale, unit = prefix(largest * 1e6, "S")
-        return scale * 1e6, f"conductance × length, G·L ({unit}·µm)"
-    if per_length:  # S, per unit width
-        scale, unit = prefix(largest, "S")
-        return scale, f"conductance × length per unit width, G·L/W ({unit})"
-    if per_channel:  # S
-        scale, unit = prefix(largest, "S")
-        return scale, f"conductance G ({unit})"
-    scale, unit = prefix(largest * 1e-6, "S")  # S/m -> per µm of width
-    return scale * 1e-6, f"conductance per unit width G/W ({unit} per µm of width)"
+    ``conductance.conductance_units``), in the report's unit (``report.units``): a conductance per unit length
+    as the conductance of a channel 1 µm long; per metre of width for a slit."""
+    shown = show("conductance_length" if per_length else "conductance", None if per_channel else _SLIT, largest)
+    width = "" if per_channel else " per unit width"
+    if per_length:
+        return shown.scale, (f"conductance{width} of a {number(REFERENCE_LENGTH * 1e6)} µm long channel, "
+                             f"G·L / 1 µm ({shown.unit})")
+    return shown.scale, f"conductance{width} G{'' if per_channel else '/W'} ({shown.unit})"
 
 
 #: The counter-ion conduction of a wall of uniform charge, perimeter x mu |sigma|, in the symbols of each
@@ -290,7 +286,8 @@ def conductance_figure(dataset: Any, path: str | os.PathLike[str]) -> Path:
     axes.legend(fontsize="small", loc="upper left")
     title = "Conductance against salt concentration"
     if not per_length:
-        title += f", channel length L = {number(float(dataset.attrs['length_m']) * 1e6)} µm"
+        length = float(dataset.attrs["length_m"])
+        title += f", channel length L = {show('length', None, length)(length)}"
     if case is not None:
         title += f"\n{section_text(case, concentrations=False)}"
     figure.suptitle("\n".join([title, *(f"({note})" for note in notes)]), fontsize="medium")
@@ -312,13 +309,13 @@ def _zero_crossing(v: np.ndarray, i: np.ndarray) -> float:
 
 
 def _current_display(per_channel: bool, largest: float) -> tuple[float, str, str]:
-    """Scale, unit and axis label of a current: per channel in A with a prefix, per unit width per µm."""
+    """Scale, unit and axis label of a current, in the report's unit (``report.units``): per channel in A,
+    per metre of width in A/m, with one prefix."""
+    shown = show("current", None if per_channel else _SLIT, largest)
     if per_channel:
-        scale, unit = prefix(largest, "A")
-        return scale, unit, f"current I, positive from left to right ({unit})"
-    scale, amperes = prefix(largest * 1e-6, "A")
-    return (scale * 1e-6, f"{amperes}/µm",
-            f"current per unit width I/W, positive from left to right\n({amperes} per µm of width)")
+        return shown.scale, shown.unit, f"current I, positive from left to right ({shown.unit})"
+    return (shown.scale, shown.unit,
+            f"current per unit width I/W, positive from left to right\n({shown.unit}, per metre of width)")
 
 
 @dataclass(frozen=True)
@@ -348,7 +345,7 @@ def _open_circuit(axes: Any, iv: _IV) -> float:
         v_oc, how = _zero_crossing(iv.v[iv.ok], iv.current[iv.ok]), " (interpolated)"
     if math.isfinite(v_oc):
         text = "zero current at ΔV = 0 (equal reservoirs)" if iv.equal else \
-            f"zero current: membrane potential {v_oc * iv.v_scale:+.4g} {iv.v_unit}{how}"
+            f"zero current: membrane potential {show('potential', None)(v_oc, signed=True)}{how}"
         axes.plot([v_oc * iv.v_scale], [0.0], ls="none", marker="D", ms=8, color=_THIN, zorder=5, label=text)
     return v_oc
 
@@ -363,21 +360,23 @@ def _power_points(axes: Any, iv: _IV, v_oc: float) -> None:
         i_sc, how = float(np.interp(0.0, iv.v[iv.ok], iv.current[iv.ok])), " (interpolated)"
     if math.isfinite(i_sc):
         axes.plot([0.0], [i_sc * iv.i_scale], ls="none", marker="s", ms=8, color=_MARK, zorder=5,
-                  label=f"short circuit (ΔV = 0): I = {i_sc * iv.i_scale:+.4g} {iv.i_unit}{how}")
+                  label=f"short circuit (ΔV = 0): I = {_signed(i_sc * iv.i_scale)} {iv.i_unit}{how}")
     if math.isfinite(v_oc) and v_oc != 0.0:
         axes.axvspan(0.0, v_oc * iv.v_scale, color=_MARK, alpha=0.08, lw=0,
                      label="the channel delivers power to a load here (I·ΔV > 0)")
     if "max_power" in data.variables and math.isfinite(float(data["max_power"])):
         v_max = float(data["voltage_at_max_power"])
         power = float(data["max_power"])
-        if iv.per_channel:
-            p_scale, p_unit = prefix(abs(power), "W")
-        else:  # per unit width: W/m -> per µm of width
-            p_scale, p_unit = prefix(abs(power) * 1e-6, "W")
-            p_scale, p_unit = p_scale * 1e-6, f"{p_unit} per µm of width"
+        watts = show("power", None if iv.per_channel else _SLIT, power)
         axes.plot([v_max * iv.v_scale], [power / v_max * iv.i_scale if v_max else 0.0], ls="none", marker="*",
                   ms=12, color=_PLATEAU, zorder=5,
-                  label=f"maximum power {power * p_scale:.3g} {p_unit} at ΔV = {v_max * iv.v_scale:+.3g} {iv.v_unit}")
+                  label=f"maximum power {watts(power)} at ΔV = {show('potential', None)(v_max, signed=True)}")
+
+
+def _signed(value: float) -> str:
+    """A number to 3 significant figures with its sign: '+1.5', '-60.3'."""
+    text = number(value)
+    return text if text.startswith("-") or text == "0" else f"+{text}"
 
 
 def _read_iv(dataset: Any) -> _IV:
@@ -392,8 +391,8 @@ def _read_iv(dataset: Any) -> _IV:
     finite = np.abs(current[np.isfinite(current)])
     largest = float(finite.max()) if finite.size and finite.max() > 0 else 1.0
     i_scale, i_unit, i_label = _current_display(per_channel, largest)
-    millivolts = float(np.max(np.abs(v))) < 2.0
-    v_scale, v_unit = (1e3, "mV") if millivolts else (1.0, "V")
+    millivolts = unit_of("potential")  # voltages in mV, as in the report
+    v_scale, v_unit = millivolts.factor, millivolts.symbol
     return _IV(data, v, current, ok, v_scale, v_unit, i_scale, i_unit, i_label, per_channel, equal)
 
 
@@ -450,7 +449,7 @@ def iv_figure(dataset: Any, path: str | os.PathLike[str]) -> Path:
     axes.legend(fontsize="small", loc="best")
     left, right = (float(dataset.attrs.get(k, math.nan)) for k in ("left_concentration", "right_concentration"))
     length = float(dataset.attrs.get("length", math.nan))
-    title = (f"I–V curve of a channel of length {number(length * 1e6)} µm between reservoirs of "
+    title = (f"I–V curve of a channel of length {show('length', None, length)(length)} between reservoirs of "
              f"{number(left)} mM (left) and {number(right)} mM (right)")
     case = case_of(dataset)
     if case is not None:

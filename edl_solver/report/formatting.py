@@ -9,6 +9,8 @@ from __future__ import annotations
 import math
 from typing import Any
 
+from edl_solver.report.units import NOISE
+
 __all__ = ["MODEL_NAMES", "number", "percent", "prefixed", "scaled"]
 
 #: Plain names of the models, for reports and figure titles.
@@ -66,8 +68,11 @@ def prefixed(value: float, unit: str, digits: int = 3) -> str:
 
 
 def percent(fraction: float, signed: bool = False) -> str:
-    """A fraction in per cent, '+' before a positive one when ``signed``: 0.0236 -> '+2.36 %'."""
+    """A fraction in per cent to 3 significant figures, '+' before a positive one when ``signed``:
+    0.0236 -> '+2.36 %'; 0 below round-off (``units.NOISE``). The thin-layer verdict quotes this same text."""
     if not math.isfinite(fraction):
         return "undefined"
+    if abs(fraction) < NOISE:  # round-off of a zero (e.g. a profile deviation between opposite walls)
+        return "0 %"
     text = number(100.0 * fraction)  # 2360, not 2.36e+03
     return f"{'+' if signed and fraction > 0 else ''}{text} %"

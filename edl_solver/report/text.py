@@ -10,12 +10,13 @@ from __future__ import annotations
 import math
 from typing import TYPE_CHECKING, Any
 
-from edl_solver.constants import ZERO_CELSIUS
+from edl_solver.constants import BOLTZMANN, ELEMENTARY_CHARGE, ZERO_CELSIUS
 from edl_solver.inputs.case import Case
-from edl_solver.inputs.geometry import Geometry, extent_unit
+from edl_solver.inputs.geometry import Geometry
 from edl_solver.inputs.ion_size import close_packing
 from edl_solver.inputs.wall import Site, Wall
 from edl_solver.report.formatting import MODEL_NAMES, number, percent, prefixed, scaled
+from edl_solver.report.units import REFERENCE_LENGTH, Shown, show
 
 if TYPE_CHECKING:
     from edl_solver.results.result import Result
@@ -118,71 +119,88 @@ def _case_lines(case: Case) -> list[str]:
 # The full solution and the thin-layer model
 
 
-def _flow(value: Any, geometry: Geometry) -> str:
+def _pair(shown: Shown, value: Any, signed: bool = False) -> str:
+    """One value, or a (bottom, top) pair, in ``shown``'s unit."""
+    if isinstance(value, tuple):
+        return f"bottom {shown(value[0], signed)}, top {shown(value[1], signed)}"
+    return shown(value, signed)
+
+
+def _flat(*values: Any) -> list[float]:
+    """The numbers of values and (bottom, top) pairs, for a common display scale."""
+    return [float(v) for value in values for v in (value if isinstance(value, tuple) else (value,))]
+
+
+def _flow(shown: Shown, value: Any, geometry: Geometry) -> str:
     """A flow rate: µm²/s (= µm³/s per µm of width) per unit width; litres with a prefix per channel, since
     prefixes on cubic metres (µm³ is not µ·m³) confuse."""
-    if geometry.extent == "per_width":
-        return scaled(value, 1e12, "µm²/s")
-    return f"{prefixed(float(value) * 1e3, 'L/s')} ({scaled(value, 1.0, 'm³/s')})"
+    if geometry.extent == "per_width" or shown.is_zero(value):
+        return shown(value)
+    return f"{shown(value)} ({number(float(value))} m³/s)"
 
 
-def _stern(value: Any) -> str:
+def _stern(shown: Shown, value: Any) -> str:
     """The charge-plane potential, mV; a wall without Stern layer (NaN in a pair) says so."""
     if not isinstance(value, tuple):
-        return scaled(value, 1e3, "mV")
-    shown = [scaled(v, 1e3, "mV") if math.isfinite(v) else "none (no Stern layer)" for v in value]
-    return f"bottom {shown[0]}, top {shown[1]}"
+        return shown(value)
+    texts = [shown(v) if math.isfinite(v) else "none (no Stern layer)" for v in value]
+    return f"bottom {texts[0]}, top {texts[1]}"
 
 
 def _full_solution_lines(case: Case, s: dict[str, Any]) -> list[str]:
-    """Potentials, velocities, flow rates and currents of the full solution."""
+    """Potentials, velocities, flow rates and currents of the full solution; each quantity in one unit
+    (``report.units``), round-off of a zero (e.g. the EO flow between walls of opposite charge) as 0."""
     g = case.geometry
-
-    def mv(key: str) -> str:
-        return scaled(_value(s, key), 1e3, "mV")
-
-    def um_s(key: str) -> str:
-        return scaled(_value(s, key), 1e6, "µm/s")
-
-    def amps(key: str) -> str:
-        return prefixed(_value(s, key), extent_unit(("A/m", "A"), g))
-
+    thermal = BOLTZMANN * case.solvent.temperature / ELEMENTARY_CHARGE
+    potentials = _flat(*(_value(s, k) for k in ("zeta", "centre_potential", "mean_potential")))
+    mv = show("potential", g, natural=max([thermal, *(abs(v) for v in potentials if math.isfinite(v))]))
+    velocities = _flat(*(_value(s, k) for k in ("hs_velocity", "mean_velocity_eo", "mean_velocity_pressure")))
+    speed = show("velocity", g, *velocities)
+    flows = _flat(_value(s, "flow_rate_eo"), _value(s, "flow_rate_pressure"))
+    flow = show("flow_rate", g, *flows, natural=speed.natural * g.area)
+    currents = ("conduction_current", "eo_convection_current", "streaming_current", "current")
+    amps = show("current", g, *_flat(*(_value(s, k) for k in currents)))
     lines = [
         "Full solution" + (f" (flow rates and currents per metre of {g.kind} width)" if g.extent == "per_width"
                            else ""),
-        _row("wall potential (zeta)", mv("zeta")),
-        _row("wall charge density", scaled(_value(s, "wall_charge_density"), 1e3, "mC/m²")),
-        *([_row("charge-plane potential ψ0 = ζ + σ/C_S (Stern)", _stern(s["stern_potential"]))]
+        _row("wall potential (zeta)", _pair(mv, _value(s, "zeta"))),
+        _row("wall charge density", _pair(show("charge_density", g), _value(s, "wall_charge_density"))),
+        *([_row("charge-plane potential ψ0 = ζ + σ/C_S (Stern)", _stern(mv, s["stern_potential"]))]
           if "stern_potential" in s else []),
-        _row(f"{g.centre_text} / section mean", f"{mv('centre_potential')} / {mv('mean_potential')}"),
+        _row(f"{g.centre_text} / section mean",
+             f"{_pair(mv, _value(s, 'centre_potential'))} / {_pair(mv, _value(s, 'mean_potential'))}"),
         _row("electroosmotic (EO) mean velocity / flow rate",
-             f"{um_s('mean_velocity_eo')} / {_flow(_value(s, 'flow_rate_eo'), g)}"),
+             f"{speed(_value(s, 'mean_velocity_eo'))} / {_flow(flow, _value(s, 'flow_rate_eo'), g)}"),
     ]
     if case.pressure_gradient != 0.0:
         lines.append(_row("pressure-driven mean velocity / flow rate",
-                          f"{um_s('mean_velocity_pressure')} / {_flow(_value(s, 'flow_rate_pressure'), g)}"))
+                          f"{speed(_value(s, 'mean_velocity_pressure'))} / "
+                          f"{_flow(flow, _value(s, 'flow_rate_pressure'), g)}"))
     lines.append(_row("current: conduction / EO convection",
-                      f"{amps('conduction_current')} / {amps('eo_convection_current')}"))
-    lines.append(_row("current: streaming / total", f"{amps('streaming_current')} / {amps('current')}"))
+                      f"{amps(_value(s, 'conduction_current'))} / {amps(_value(s, 'eo_convection_current'))}"))
+    lines.append(_row("current: streaming / total",
+                      f"{amps(_value(s, 'streaming_current'))} / {amps(_value(s, 'current'))}"))
     return lines
 
 
 def _thin_layer_lines(result: Result) -> list[str]:
-    """The thin-layer (Helmholtz-Smoluchowski slip) model beside the full solution, and the verdict."""
+    """The thin-layer (Helmholtz-Smoluchowski slip) model beside the full solution, and the verdict, whose
+    number is the error line's (both ``formatting.percent``)."""
     case, s = result.case, result.summary
     slip = any(w.slip_length > 0.0 for w in case.walls)
     lines = ["Thin-layer model (" + ("slip velocity u_s = -(εE/η)(ζ + bσ/ε) at the wall: Helmholtz-Smoluchowski "
                                     "with Navier slip length b)" if slip else
                                     "Helmholtz-Smoluchowski slip u_s = -εζE/η at the wall)")]
     kinds = {wall.kind for wall in case.walls}
-    thin_zeta = scaled(_value(s, "thin_layer_zeta"), 1e3, "mV")
+    thin_zeta = _pair(show("potential", case.geometry), _value(s, "thin_layer_zeta"))
     if "regulated" in kinds:
         lines.append(_row("zeta it uses (isolated wall, regulated charge)", thin_zeta))
     elif "charge" in kinds:
         lines.append(_row("zeta it uses (Grahame, from the wall charge)", thin_zeta))
+    velocities = _flat(_value(s, "hs_velocity"), _value(s, "mean_velocity_eo"))
     return [
         *lines,
-        _row("slip velocity u_s", scaled(_value(s, "hs_velocity"), 1e6, "µm/s")),
+        _row("slip velocity u_s", _pair(show("velocity", case.geometry, *velocities), _value(s, "hs_velocity"))),
         _row("eo_ratio (full / thin-layer mean EO velocity)", number(_value(s, "eo_ratio"))),
         _row("flow-rate error (thin-layer - full) / full",
              percent(_value(s, "thin_layer_flow_rate_error"), signed=True)),
@@ -192,31 +210,48 @@ def _thin_layer_lines(result: Result) -> list[str]:
     ]
 
 
-def _transport_lines(s: dict[str, Any], geometry: Geometry) -> list[str]:
-    """Lab quantities per unit channel length, each beside its thin-layer value and that value's error."""
+def _transport_scales(case: Case, s: dict[str, Any]) -> dict[str, float]:
+    """Natural scales of the transport coefficients in this case, for telling round-off of a zero from a value:
+    Smoluchowski's εζ/(ηK) and the pump pressure ε ζ/h² per volt of a wall at ζ = kT/e."""
+    thermal = BOLTZMANN * case.solvent.temperature / ELEMENTARY_CHARGE
+    solvent, g = case.solvent, case.geometry
+    conductivity = float(s.get("thin_layer_conductance_per_length", math.nan)) / g.area
+    return {"streaming_potential_coefficient": solvent.permittivity * thermal / (solvent.viscosity * conductivity),
+            "eo_pump_pressure_per_voltage": solvent.permittivity * thermal / g.half_size ** 2,
+            "electroviscous_ratio": 1.0, "max_efficiency": 1.0}
+
+
+def _transport_lines(case: Case, s: dict[str, Any]) -> list[str]:
+    """Lab quantities per unit channel length, each beside its thin-layer value and that value's error; the
+    conductance per length as the conductance of a channel 1 µm long (``report.units``)."""
     if "conductance_per_length" not in s:
         return []
+    geometry = case.geometry
     per = "per unit length" + (", per metre of width" if geometry.extent == "per_width" else "")
+    scales = _transport_scales(case, s)
 
-    def pair(key: str, scale: float, unit: str) -> str:
-        full = scaled(s[key], scale, unit).rstrip()
+    def pair(key: str, quantity: str) -> str:
         thin = s.get(f"thin_layer_{key}", math.nan)
+        shown = show(quantity, geometry, s[key], thin, natural=scales.get(key, 0.0))
         error = s.get(f"thin_layer_{key}_error", math.nan)
         if not math.isfinite(thin):  # e.g. a coupling beyond the second law (q^2 >= 1) in an overlapped channel
-            return f"{full}   (thin-layer: no consistent value here)"
-        return f"{full}   (thin-layer {scaled(thin, scale, unit).rstrip()}, {percent(error, signed=True)})"
+            return f"{shown(s[key])}   (thin-layer: no consistent value here)"
+        if shown.is_zero(s[key]):  # a relative error against round-off of a zero means nothing
+            return f"{shown(s[key])}   (thin-layer {shown(thin)})"
+        return f"{shown(s[key])}   (thin-layer {shown(thin)}, {percent(error, signed=True)})"
 
     return [
         f"Transport and energy conversion ({per}; in brackets the thin-layer value and its error)",
-        _row("conductance × length", pair("conductance_per_length", 1e9, extent_unit(("nS", "nS·m"), geometry))),
-        _row("streaming potential per pressure", pair("streaming_potential_coefficient", 1e9, "mV/MPa")),
-        _row("EO pump pressure per volt (no flow)", pair("eo_pump_pressure_per_voltage", 1e-3, "kPa/V")),
-        _row("electroviscous ratio η_app/η", pair("electroviscous_ratio", 1.0, "")),
+        _row(f"conductance of a {number(REFERENCE_LENGTH * 1e6)} µm long channel",
+             pair("conductance_per_length", "conductance_length")),
+        _row("streaming potential per pressure", pair("streaming_potential_coefficient", "streaming_potential")),
+        _row("EO pump pressure per volt (no flow)", pair("eo_pump_pressure_per_voltage", "pump_pressure")),
+        _row("electroviscous ratio η_app/η", pair("electroviscous_ratio", "ratio")),
         _row("cation transference / selectivity",
              f"{number(s['cation_transference'])} / {number(s['selectivity'])}   (thin-layer "
              f"{number(s['thin_layer_cation_transference'])})"),
-        _row("diffusion potential per unit ln c", pair("diffusion_potential", 1e3, "mV")),
-        _row("max efficiency, pressure -> electric", pair("max_efficiency", 100.0, "%")),
+        _row("diffusion potential per unit ln c", pair("diffusion_potential", "potential")),
+        _row("max efficiency, pressure -> electric", pair("max_efficiency", "fraction")),
     ]
 
 
@@ -247,7 +282,7 @@ def text(result: Result) -> str:
         "",
         *_thin_layer_lines(result),
         "",
-        *_transport_lines(s, case.geometry),
+        *_transport_lines(case, s),
         "",
         f"Solver: {result.message or result.status}",
         *(f"Warning: {warning}" for warning in result.warnings),

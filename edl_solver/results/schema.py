@@ -1,7 +1,8 @@
-"""The schema of what a solve returns: the unit and long name of every summary value and profile.
+"""The schema of what a solve returns: the SI unit and long name of every summary value and profile.
 
 Units of extensive values (flow rates, currents, conductances) are a pair (per unit width, per channel);
-the geometry's ``extent`` picks one (``inputs.geometry.extent_unit``).
+the geometry's ``extent`` picks one (``inputs.geometry.extent_unit``). Files store these SI units; reports and
+figures show the same quantities in the units of ``report.units`` (one prefix per quantity).
 """
 
 from __future__ import annotations
@@ -73,7 +74,8 @@ _UNITS: dict[str, tuple[str | tuple[str, str], str]] = {
     "thin_layer_mean_velocity_error": ("1", "(thin-layer - full) / full mean EO velocity"),
     "thin_layer_max_outer_deviation": (
         "1", "largest |thin-layer - full| EO velocity outside the double layers over the largest slip speed"),
-    "conductance_per_length": (("S", "S*m"), "current per unit field at no pressure or salt gradient"),
+    "conductance_per_length": (("S", "S*m"), "conductance x channel length, i.e. current per unit field at no "
+                               "pressure or salt gradient (per unit width for a slit); reports show it over 1 um"),
     "streaming_conductance": (("A/Pa", "A*m/Pa"), "streaming current per unit -dp/dx"),
     "streaming_potential_coefficient": ("V/Pa", "streaming potential per pressure difference, at zero current"),
     "electroviscous_ratio": ("1", "apparent over true viscosity for pressure-driven flow at zero current"),
@@ -89,7 +91,7 @@ _UNITS: dict[str, tuple[str | tuple[str, str], str]] = {
     "efficiency_at_max_power": ("1", "efficiency of pressure-to-electrical conversion at maximum power"),
     "max_power_per_length": (("W/m^2", "W/m"), "maximum electrical power per channel length at this pressure gradient"),
     **{f"thin_layer_{key}": (unit, f"thin-layer model: {text}") for key, (unit, text) in {
-        "conductance_per_length": (("S", "S*m"), "conductance per length (bulk conductivity)"),
+        "conductance_per_length": (("S", "S*m"), "conductance x channel length (bulk conductivity)"),
         "streaming_potential_coefficient": ("V/Pa", "streaming potential coefficient (Smoluchowski)"),
         "electroviscous_ratio": ("1", "electroviscous ratio"),
         "eo_pump_pressure_per_voltage": ("Pa/V", "EO pump pressure per voltage"),
