@@ -40,7 +40,8 @@ _PLAIN_FLAGS = ("--temperature", "--field", "--pressure-gradient", "--tolerance"
 #: Flags of the physical models that set one value each at their dotted field (switches set true).
 _MODEL_PATHS = (("--pH", "pH", "electrolyte.pH"), ("--diameter", "diameter", "electrolyte.diameter"))
 #: Every case flag that takes a value (a value after it may start with "-", as in "--zeta -40mV").
-CASE_VALUE_FLAGS = frozenset({flag for flag, *_ in CASE_FLAGS} | {"--model", "--pH", "--diameter", "--slip-length"})
+CASE_VALUE_FLAGS = frozenset({flag for flag, *_ in CASE_FLAGS} | {"--model", "--pH", "--diameter", "--slip-length",
+                                                                       "--bulk-conductivity"})
 
 _CHARGE_SIGNS = ("+", "-", "\u207a", "\u207b", "\u2212")  # also superscript signs and the minus sign
 
@@ -61,6 +62,10 @@ def add_case_flags(parser: argparse.ArgumentParser) -> None:
     conditions.add_argument("--model", choices=("pb", "dh", "steric"),
                             help="pb: Poisson-Boltzmann; dh: its linearisation (Debye-Hueckel); steric: finite "
                                  "ion size, needs --diameter [model]")
+    conditions.add_argument("--bulk-conductivity", choices=("limiting", "onsager"),
+                            help="bulk conductivity of the bulk and thin-layer values: limiting (infinite dilution, "
+                                 "the default) or onsager (corrected for the ion atmosphere, to ~0.1 M) "
+                                 "[bulk_conductivity]")
     electrolyte.add_argument("--pH", metavar="PH", help="bulk pH, for charge-regulating walls [electrolyte.pH]")
     electrolyte.add_argument("--diameter", metavar="D",
                              help="one ion diameter for every ion (steric model), e.g. 0.7nm [electrolyte.diameter]")
@@ -145,6 +150,8 @@ def _apply_flags(data: dict[str, Any], args: argparse.Namespace, ions: list[tupl
             origins[fields[flag]] = flag
     if args.model is not None:
         set_input(data, "model", args.model)
+    if getattr(args, "bulk_conductivity", None) is not None:
+        set_input(data, "bulk_conductivity", args.bulk_conductivity)
     _apply_model_flags(data, args, origins)
     return origins
 

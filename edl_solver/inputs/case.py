@@ -28,6 +28,8 @@ from edl_solver.inputs.wall import Wall
 
 Model = Literal["pb", "dh", "steric"]
 MODELS: tuple[str, ...] = ("pb", "dh", "steric")
+#: Laws of the bulk conductivity: infinite dilution, or corrected for the ion atmosphere (model.conductivity).
+BULK_CONDUCTIVITY_LAWS: tuple[str, ...] = ("limiting", "onsager")
 
 #: Grid cells per half section: the nested grids halve the finest one three times (``kernels.adaptive.LEVELS``
 #: = 4), so a grid is a multiple of 8 with at least one cell on the coarsest; at most 2^20 (memory).
@@ -110,6 +112,10 @@ class Case:
     tolerance : float or str
         Relative error up to which the thin-layer slip model is called valid (default 5 %).
     numerics : Numerics
+    bulk_conductivity : {"limiting", "onsager"}
+        The conductivity of the bulk electrolyte in the bulk and thin-layer values: infinite dilution
+        (Nernst-Einstein, the default) or corrected for the ion atmosphere (``model.conductivity``). The double
+        layer always uses the point-ion mobilities.
 
     A case outside the solver's domain (``inputs.domain``: kappa times the half-size outside 1e-3 to 1e4, a
     given zeta, charge or gate beyond 15 kT/e) is refused with an ``InputError`` naming the field.
@@ -124,6 +130,7 @@ class Case:
     model: Model = "pb"
     tolerance: float | str = 0.05
     numerics: Numerics = _field(default_factory=Numerics)
+    bulk_conductivity: str = "limiting"
 
     def __post_init__(self) -> None:
         if not isinstance(self.geometry, tuple(GEOMETRIES.values())):
@@ -161,6 +168,9 @@ class Case:
             raise InputError(f"tolerance: {self.tolerance!r} is out of range, expected a fraction "
                              "between 0 and 1 (e.g. 0.05 or '5 %')")
         _set(self, "tolerance", tolerance)
+        if self.bulk_conductivity not in BULK_CONDUCTIVITY_LAWS:
+            raise InputError(f"bulk_conductivity: {self.bulk_conductivity!r} is not a conductivity law, expected one "
+                             f"of {', '.join(BULK_CONDUCTIVITY_LAWS)}")
         if not isinstance(self.numerics, Numerics):
             raise InputError(f"numerics: {self.numerics!r} is not Numerics, expected Numerics(...)")
         self.electrolyte.diffusivities(self.solvent.temperature)  # refuses a temperature outside the ions' laws

@@ -28,7 +28,7 @@ SOLVENT_KEYS = (*SOLVENT_PROPERTIES, "name", "viscoelectric_coefficient", "visco
 NUMERICS_KEYS = ("accuracy", "intervals", "max_iterations", "max_intervals")
 #: Keys of [geometry]: its kind and the size input of each geometry ("height", "radius").
 GEOMETRY_KEYS = ("kind", *(geometry.size_name for geometry in GEOMETRIES.values()))
-SCALARS = ("model", "field", "pressure_gradient", "tolerance")
+SCALARS = ("model", "field", "pressure_gradient", "tolerance", "bulk_conductivity")
 _WALL_TABLES = ("wall", "wall.bottom", "wall.top")
 
 #: Every key a case file may hold, as dotted paths (list entries as "electrolyte.ion[].name" and

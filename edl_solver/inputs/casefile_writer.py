@@ -47,7 +47,8 @@ def case_to_mapping(case: Case) -> dict[str, Any]:
         "diffusivity"[, "diameter", "temperature_dependence"]}, ...][, "pH"]}, "wall": {...} | {"bottom": {...},
         "top": {...}},
         "solvent": {"temperature", "relative_permittivity", "viscosity", "name"[,
-        "viscoelectric_coefficient"]}, "field", "pressure_gradient", "model", "tolerance", "numerics":
+        "viscoelectric_coefficient"]}, "field", "pressure_gradient", "model", "tolerance"[,
+        "bulk_conductivity"], "numerics":
         {"accuracy", "max_iterations", "max_intervals"[, "intervals"]}}``; a wall holds its non-default
         fields and its sites as ``"site": [{"name", "density", "pK", "charges"}, ...]``. Optional keys
         are left out when not set. ``case_from_mapping`` rebuilds an equal case, except that an
@@ -100,6 +101,8 @@ def case_to_mapping(case: Case) -> dict[str, Any]:
         "model": case.model,
         "tolerance": case.tolerance,
         "numerics": numerics,
+        # only when it is not the default, so that files of cases without it keep their shape
+        **({"bulk_conductivity": case.bulk_conductivity} if case.bulk_conductivity != "limiting" else {}),
     }
 
 

@@ -118,6 +118,7 @@ P_ACCURACY = CASE.take()
 P_INTERVALS = CASE.take()  # fixed cells per half section, 0: adaptive
 P_MAX_ITERATIONS = CASE.take()
 P_MAX_INTERVALS = CASE.take()
+P_BULK_FACTOR = CASE.take()  # bulk conductivity over its infinite-dilution value (1: the limiting law)
 P_SLIP = CASE.take(2)  # Navier slip lengths of the (bottom, top) walls, m
 P_WALLS = CASE.take(2 * WALL_SIZE)  # (bottom, top) SI wall rows
 P_IONS = CASE.size  # then ION_SIZE values per ion, as many as the case has

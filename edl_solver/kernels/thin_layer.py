@@ -19,6 +19,7 @@ from edl_solver.kernels.layout import (
     ION_VALENCE,
     ISO_SIGMA,
     ISO_ZETA,
+    P_BULK_FACTOR,
     P_METRIC,
     P_PERMITTIVITY,
     P_SLIP,
@@ -200,8 +201,9 @@ def thin_layer_matrix(p, sc, iso, slip):
 
     Bulk electrolyte everywhere, the double layers reduced to slip velocities: Poiseuille flow with the walls'
     slip lengths; EO slip (mean of the walls' Helmholtz-Smoluchowski velocities) coupling flow and field both
-    ways (Smoluchowski's streaming relation); bulk conduction K = (F^2 / RT) sum z_i^2 D_i c_i; bulk diffusion
-    and convection of the salt; chemiosmotic slip for the salt force (any electrolyte, ``_chemiosmotic_slip``).
+    ways (Smoluchowski's streaming relation); bulk conduction K = (F^2 / RT) sum z_i^2 D_i c_i times the factor
+    of the case's conductivity law (P_BULK_FACTOR); bulk diffusion and convection of the salt; chemiosmotic
+    slip for the salt force (any electrolyte, ``_chemiosmotic_slip``).
     """
     ions = ion_block(p)
     rt = GAS_CONSTANT * p[P_TEMPERATURE]
@@ -221,7 +223,7 @@ def thin_layer_matrix(p, sc, iso, slip):
         conduction += z * z * d * c
         diffusion += z * d * c
         salt += d * c
-    conductance = FARADAY**2 / rt * area * conduction
+    conductance = FARADAY**2 / rt * area * conduction * p[P_BULK_FACTOR]  # the case's bulk conductivity law
     diffusion_current = FARADAY * area / (rt * total_nu) * diffusion
     salt_diffusion = area / (rt * total_nu**2) * salt
     salt_current = total_c / total_nu * eo + diffusion_current

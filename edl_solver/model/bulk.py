@@ -24,15 +24,16 @@ def salt_stoichiometry(case: Case) -> np.ndarray:
     return bulk / bulk.min()
 
 
-def bulk_conductivity(case: Case, law: str = "limiting") -> float:
+def bulk_conductivity(case: Case, law: str | None = None) -> float:
     """Bulk conductivity of the case's electrolyte, S/m.
 
     ``law="limiting"`` (what the solver uses everywhere): K = (F^2 / RT) sum_i z_i^2 D_i c_i, the Nernst-Einstein
     mobilities D_i / kT of infinite dilution (common practice), with the diffusivities at the case temperature
     (``Ion.diffusivity_at``). ``law="onsager"`` corrects it for the ion atmosphere of the concentrated bulk
     (``model.conductivity.onsager_conductivities``): 0.1413 S/m for 10 mM KCl at 25 degC, where the limiting
-    value is 0.1499 S/m.
+    value is 0.1499 S/m. ``None``: the case's own choice, ``case.bulk_conductivity``.
     """
+    law = case.bulk_conductivity if law is None else law
     if law not in CONDUCTIVITY_LAWS:
         raise InputError(f"bulk_conductivity: {law!r} is not a conductivity law, expected one of "
                          f"{', '.join(CONDUCTIVITY_LAWS)}")

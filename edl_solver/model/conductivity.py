@@ -32,12 +32,12 @@ import math
 import numpy as np
 
 from edl_solver.constants import ELEMENTARY_CHARGE, FARADAY, GAS_CONSTANT
-from edl_solver.inputs.case import Case
+from edl_solver.inputs.case import BULK_CONDUCTIVITY_LAWS, Case
 
 __all__ = ["CLOSEST_APPROACH", "CONDUCTIVITY_LAWS", "onsager_conductivities"]
 
-#: Bulk conductivity laws: infinite dilution (the solver's) or corrected for the ion atmosphere.
-CONDUCTIVITY_LAWS = ("limiting", "onsager")
+#: Bulk conductivity laws: infinite dilution (the default) or corrected for the ion atmosphere.
+CONDUCTIVITY_LAWS = BULK_CONDUCTIVITY_LAWS
 
 #: Distance of closest approach a of the extended law, m, when the ions give no diameter: 0.4 nm puts 10 mM
 #: and 100 mM KCl within 0.5 % of their calibration standards (tests/model/test_bulk_conductivity.py).

@@ -21,6 +21,7 @@ from edl_solver.kernels.layout import (
     FLUX,
     MODEL_CODES,
     P_ACCURACY,
+    P_BULK_FACTOR,
     P_DIAMETER,
     P_FIELD,
     P_INTERVALS,
@@ -103,6 +104,16 @@ def ion_rows(electrolyte: Electrolyte, temperature: float | None = None) -> np.n
                      for ion in electrolyte.ions], dtype=float)
 
 
+def bulk_factor(case: Case) -> float:
+    """The bulk conductivity of the case's law over its infinite-dilution value (1 for the limiting law): the
+    factor on the bulk conduction of the thin-layer values (``kernels.thin_layer``)."""
+    if case.bulk_conductivity == "limiting":
+        return 1.0
+    from edl_solver.model.bulk import bulk_conductivity
+
+    return bulk_conductivity(case) / bulk_conductivity(case, "limiting")
+
+
 def case_vector(case: Case) -> np.ndarray:
     """The packed inputs of ``case`` (layout ``P_*``)."""
     ions = case.electrolyte.ions
@@ -125,6 +136,7 @@ def case_vector(case: Case) -> np.ndarray:
     p[P_INTERVALS] = numerics.intervals or 0
     p[P_MAX_ITERATIONS] = numerics.max_iterations
     p[P_MAX_INTERVALS] = numerics.max_intervals
+    p[P_BULK_FACTOR] = bulk_factor(case)
     bottom, top = case.walls
     p[P_SLIP], p[P_SLIP + 1] = bottom.slip_length, top.slip_length
     row = wall_row_si(bottom)
