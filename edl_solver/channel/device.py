@@ -195,8 +195,8 @@ def flow_in_lab_units(flow: float) -> str:
     """A volume flow (m^3/s) in uL/min at and above 1 uL/min, else in nL/min: 1 uL = 1e-9 m^3."""
     microlitres = flow * 1e9 * 60.0
     if abs(microlitres) >= 1.0:
-        return f"{microlitres:.4g} µL/min"
-    return f"{microlitres * 1e3:.4g} nL/min"
+        return f"{microlitres:.3g} µL/min"
+    return f"{microlitres * 1e3:.3g} nL/min"
 
 
 def pressure_in_lab_units(pressure: float) -> str:
@@ -204,5 +204,5 @@ def pressure_in_lab_units(pressure: float) -> str:
     if not math.isfinite(pressure):
         return str(pressure)
     if abs(pressure) >= 1e5:
-        return f"{pressure / 1e5:.4g} bar"
-    return f"{pressure / 1e2:.4g} mbar"
+        return f"{pressure / 1e5:.3g} bar"
+    return f"{pressure / 1e2:.3g} mbar"

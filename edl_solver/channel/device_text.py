@@ -44,28 +44,28 @@ def device_lines(device: Device, voltage: float, pressure_difference: float) -> 
 
     state = device.state(voltage, pressure_difference)
     lines = [_describe(device),
-             _row("at ΔV = V(right) - V(left)", f"{voltage:+.4g} V and Δp = p(right) - p(left) "
+             _row("at ΔV = V(right) - V(left)", f"{voltage:+.3g} V and Δp = p(right) - p(left) "
                                                  f"{pressure_in_lab_units(pressure_difference)}"),
              _row("flow rate (+ from left to right)", f"{flow_in_lab_units(state.flow_rate)} "
-                                                      f"({state.flow_rate:.4g} m³/s)"),
-             _row("current", prefixed(state.current, "A", 4)),
-             _row("conductance -dI/dΔV", prefixed(device.conductance(voltage), "S", 4))]
+                                                      f"({state.flow_rate:.3g} m³/s)"),
+             _row("current", prefixed(state.current, "A")),
+             _row("conductance -dI/dΔV", prefixed(device.conductance(voltage), "S"))]
     if device.channel.access_resistance:
         per_channel = table_of(device.channel).access_resistance / (device.channel.width or 1.0)
-        lines.append(_row("access resistance, both ends of one channel", prefixed(per_channel, "Ω", 4)))
+        lines.append(_row("access resistance, both ends of one channel", prefixed(per_channel, "Ω")))
     if voltage != 0.0:
         curve = device.pump_curve(voltage)
         lines += [_row("pump curve at this voltage: free flow (Δp = 0)", flow_in_lab_units(curve.free_flow)),
                   _row("stall pressure Δp (flow 0)", f"{pressure_in_lab_units(curve.stall_pressure)} "
-                                                     f"({curve.stall_pressure:.4g} Pa)"),
+                                                     f"({curve.stall_pressure:.3g} Pa)"),
                   _row("", "(flow falls linearly from the free flow to 0 at the stall pressure)"),
-                  _row("electrical power of the supply", prefixed(state.power, "W", 4))]
+                  _row("electrical power of the supply", prefixed(state.power, "W"))]
     if pressure_difference != 0.0:
         potential = device.streaming_potential(pressure_difference)
         streaming = device.streaming_current(pressure_difference)
         lines += [_row("streaming potential (open circuit, at this Δp)",
-                       f"{potential * 1e3:+.4g} mV (no current: access resistance plays no part)"),
-                  _row("streaming current (ΔV = 0, at this Δp)", prefixed(streaming, "A", 4))]
+                       f"{potential * 1e3:+.3g} mV (no current: access resistance plays no part)"),
+                  _row("streaming current (ΔV = 0, at this Δp)", prefixed(streaming, "A"))]
     if voltage != 0.0:
         lines.append(HIGH_VOLTAGE_CAUTION)
     return "\n".join(lines) + "\n"

@@ -46,11 +46,14 @@ def _results(text: str) -> list[str]:
     return [line for line in lines[start + 1:] if not line.startswith(("Solver:", "wrote "))]
 
 
-@pytest.mark.parametrize("shape", [["--slit", "20nm"], ["--capillary", "10nm"]])
+@pytest.mark.parametrize("shape", [["--slit", "20nm"], ["--capillary", "10nm"],
+                                   ["--slit", "20nm", "--width", "100um", "--channels", "20", "--voltage", "1V",
+                                    "--pressure-difference", "100mbar", "--access-resistance", "on"]])
 def test_no_value_has_more_than_three_significant_figures(shape: list[str]) -> None:
-    """The issue: '-44.5279 mV' beside three-figure values, '0.005179' mM, '+1.112 mV'."""
-    text = _transport(*shape, "--length", "10um", "--left", "0.1mM", "--right", "1mM", "--iv", "-150mV:150mV:3",
-                      "--conductance", "0.001mM:100mM:8")
+    """The issue: '-44.5279 mV' beside three-figure values, '0.005179' mM, '+1.112 mV'; the device lines too."""
+    device = "--width" in shape  # a device between equal reservoirs
+    reservoirs = [] if device else ["--left", "0.1mM", "--right", "1mM", "--iv", "-150mV:150mV:3"]
+    text = _transport(*shape, "--length", "10um", *reservoirs, "--conductance", "0.001mM:100mM:8")
     long = [(token, line) for line in _results(text) for token in _NUMBER.findall(line) if _digits(token) > 3]
     assert long == [], long
 
