@@ -187,7 +187,6 @@ def sweep(base: Case, axes: Mapping[str, Any], *, zipped: Sequence[Sequence[str]
     """
     from edl_solver.inputs.casefile import case_to_mapping
 
-    _check_not_starting_a_worker()
     _check_options(base, workers, overwrite)
     sweep_axes = make_axes(axes, _checked_zipped(zipped))
     base_table = case_to_mapping(base)
@@ -202,8 +201,7 @@ def sweep(base: Case, axes: Mapping[str, Any], *, zipped: Sequence[Sequence[str]
         with _local_pool(workers if dask is None else 1) as pool:
             store = _open_store(base, base_table, sweep_axes, profile_points, target, resume)
             try:
-                _fill(store, (base_table, sweep_axes, profile_points), (workers, pool), dask, rows_per_task,
-                      progress)
+                _fill(store, (base_table, sweep_axes, profile_points), (workers, pool), dask, rows_per_task, progress)
             except BaseException:
                 store.abandon()
                 raise
@@ -212,7 +210,8 @@ def sweep(base: Case, axes: Mapping[str, Any], *, zipped: Sequence[Sequence[str]
 
 def _check_options(base: Case, workers: int, overwrite: bool) -> None:
     """One-line InputErrors for a base that is not a Case, a worker count that is not a positive integer and
-    an overwrite that is not a bool."""
+    an overwrite that is not a bool; a RuntimeError in a worker being started (``_check_not_starting_a_worker``)."""
+    _check_not_starting_a_worker()
     if not isinstance(base, Case):
         raise InputError(f"base: {type(base).__name__} is not a Case, expected edl_solver.Case(...)")
     if isinstance(workers, bool) or not isinstance(workers, int) or workers < 1:
