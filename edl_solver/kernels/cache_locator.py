@@ -110,6 +110,8 @@ class KernelCacheLocator(*(_BASES if SUPPORTED else (object,))):
     def from_function(cls, py_func, py_file: str) -> KernelCacheLocator | None:
         """A locator for a kernel function, or None (numba tries its next locator) for any other
         function or when the cache folder cannot be created and written."""
+        if not os.path.isfile(py_file):  # inside a zip archive: numba's own zip locator serves it
+            return None
         try:
             Path(py_file).resolve().relative_to(KERNELS)
         except (OSError, ValueError):

@@ -89,6 +89,7 @@ def test_the_locator_serves_kernels_only_and_gives_way_when_it_cannot_write(tmp_
     kernel_file = str(cache_locator.KERNELS / "walls.py")
     monkeypatch.setenv("EDL_SOLVER_CACHE_DIR", str(tmp_path / "cache"))
     assert cache_locator.KernelCacheLocator.from_function(kernel, kernel_file) is not None
+    (tmp_path / "script.py").write_text("")
     assert cache_locator.KernelCacheLocator.from_function(kernel, str(tmp_path / "script.py")) is None
     (tmp_path / "a file").write_text("")
     monkeypatch.setenv("EDL_SOLVER_CACHE_DIR", str(tmp_path / "a file"))  # numba's own locators then decide
