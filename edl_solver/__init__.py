@@ -11,10 +11,10 @@ Public API::
     result.summary["eo_ratio"], result.verdict
 """
 
-from __future__ import annotations
-
-import os
-from typing import TYPE_CHECKING, Any
+# No ``from __future__ import annotations`` and private aliases for the standard modules: what this module
+# defines is what ``dir(edl_solver)`` shows (see ``__dir__`` below).
+import os as _os
+import typing as _typing
 
 from edl_solver.errors import ConvergenceError, InputError
 from edl_solver.inputs.case import Case, Numerics
@@ -25,7 +25,7 @@ from edl_solver.inputs.wall import Site, Wall
 from edl_solver.results.profiles import Profiles
 from edl_solver.results.result import Result
 
-if TYPE_CHECKING:
+if _typing.TYPE_CHECKING:
     from edl_solver.channel.model import Channel
     from edl_solver.pipeline import solve
     from edl_solver.sweeping.run import sweep
@@ -33,7 +33,7 @@ if TYPE_CHECKING:
 __version__ = "0.1.0"
 
 
-def load(path: str | os.PathLike[str]) -> Result:
+def load(path: str | _os.PathLike[str]) -> Result:
     """Read a result written by ``Result.to_hdf5``.
 
     Parameters
@@ -55,7 +55,7 @@ def load(path: str | os.PathLike[str]) -> Result:
     return Result(**read_result_fields(path))
 
 
-def __getattr__(name: str) -> Any:
+def __getattr__(name: str) -> _typing.Any:
     # The solver pulls in numba and scipy (~0.5 s); it is loaded on first use so that the command line
     # and the input checks start fast.
     if name == "solve":
@@ -95,3 +95,8 @@ __all__ = [
     "solve",
     "sweep",
 ]
+
+
+def __dir__() -> list[str]:
+    # The public API only: not the submodules that importing it sets as attributes, nor the helpers above.
+    return sorted(__all__)

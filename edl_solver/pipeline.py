@@ -56,7 +56,8 @@ def solve(case: Case) -> Result:
         message=Deferred(lambda result: _message(solved)),
         iterations=solved.iterations,
         residual=solved.residual,
-        warnings=Deferred(lambda result: validity.notes(case, result.profiles, solved.units.thermal_voltage)
+        warnings=Deferred(lambda result: validity.notes(case, result.profiles, solved.units.thermal_voltage,
+                                                          result.summary)
                           + validity.coupling_notes(result.summary)),
         response_matrix=solved.matrix,
         ion_response_matrix=solved.ion_matrix,

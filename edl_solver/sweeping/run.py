@@ -197,18 +197,21 @@ def sweep(base: Case, axes: Mapping[str, Any], *, zipped: Sequence[Sequence[str]
         if target is not None and target.exists() and not overwrite:
             raise InputError(f"path: {str(path)!r} already exists, expected a new file name, or overwrite=True "
                              "to replace it")
-        store = _open_store(base, base_table, sweep_axes, profile_points, target, resume)
-        try:
-            _fill(store, (base_table, sweep_axes, profile_points), workers, dask, rows_per_task, progress)
-        except BaseException:
-            store.abandon()
-            raise
-        return store.finish()
+        # the workers start (or fail to) before the store is opened: a sweep that cannot run leaves no file
+        with _local_pool(workers if dask is None else 1) as pool:
+            store = _open_store(base, base_table, sweep_axes, profile_points, target, resume)
+            try:
+                _fill(store, (base_table, sweep_axes, profile_points), (workers, pool), dask, rows_per_task, progress)
+            except BaseException:
+                store.abandon()
+                raise
+            return store.finish()
 
 
 def _check_options(base: Case, workers: int, overwrite: bool) -> None:
     """One-line InputErrors for a base that is not a Case, a worker count that is not a positive integer and
-    an overwrite that is not a bool."""
+    an overwrite that is not a bool; a RuntimeError in a worker being started (``_check_not_starting_a_worker``)."""
+    _check_not_starting_a_worker()
     if not isinstance(base, Case):
         raise InputError(f"base: {type(base).__name__} is not a Case, expected edl_solver.Case(...)")
     if isinstance(workers, bool) or not isinstance(workers, int) or workers < 1:
@@ -247,14 +250,16 @@ def _open_store(base: Case, base_table: dict[str, Any], sweep_axes: Sequence[Axi
                       ions=[ion.name for ion in base.electrolyte.ions], profile_points=profile_points)
 
 
-def _fill(store: SweepStore, job: tuple[Mapping[str, Any], Sequence[Axis], int], workers: int, dask: Any,
-          rows_per_task: int | None, progress: bool | None) -> None:
+def _fill(store: SweepStore, job: tuple[Mapping[str, Any], Sequence[Axis], int], local: tuple[int, Any],
+          dask: Any, rows_per_task: int | None, progress: bool | None) -> None:
     """Solve the rows the store still lacks, task by task, writing each task's results as it completes.
 
-    ``job`` is the base table, the axes and the profile points; Ctrl-C stops the sweep between cases
-    (``_interruptible``), keeping what was written.
+    ``job`` is the base table, the axes and the profile points; ``local`` the worker count and their
+    started pool (None for one); Ctrl-C stops the sweep between cases (``_interruptible``), keeping what
+    was written.
     """
     base_table, sweep_axes, profile_points = job
+    workers, pool = local
     # profiles come from single solves, so a sweep that stores them needs no compiled batch
     plan = None if profile_points else make_plan(base_table, sweep_axes)
     todo = rows_todo(store.status)
@@ -262,7 +267,7 @@ def _fill(store: SweepStore, job: tuple[Mapping[str, Any], Sequence[Axis], int],
     per_task = rows_per_task or max(1, _cases_per_task(plan, workers, dask) // last)
     tasks = [todo[i:i + per_task] for i in range(0, len(todo), per_task)]
     with _progress_bar(len(todo) * last, progress) as bar, _interruptible():
-        for part in _run(tasks, (base_table, sweep_axes, plan, profile_points), workers, dask):
+        for part in _run(tasks, (base_table, sweep_axes, plan, profile_points), pool, dask):
             store.write(part)
             bar.update(len(part["rows"]) * last)
             _stop_if_asked()
@@ -311,37 +316,84 @@ def _stop_if_asked() -> None:
         raise KeyboardInterrupt
 
 
-def _run(tasks: list[list[int]], job: tuple[Any, ...], workers: int, dask: Any) -> Iterable[dict[str, Any]]:
-    """Yield each task's results as it completes (in this process, local processes, or Dask); ``job`` holds
-    the arguments of ``solve_rows`` other than the rows: base table, axes, plan, profile points."""
+def _run(tasks: list[list[int]], job: tuple[Any, ...], pool: Any, dask: Any) -> Iterable[dict[str, Any]]:
+    """Yield each task's results as it completes (in this process, a started pool of local processes, or
+    Dask); ``job`` holds the arguments of ``solve_rows`` other than the rows: base table, axes, plan,
+    profile points."""
     base_table, axes, plan, profile_points = job
     if dask is not None:
         yield from _run_dask(tasks, job, dask)
-    elif workers == 1:
+    elif pool is None:
         for rows in tasks:
             yield solve_rows(base_table, axes, rows, plan, profile_points)
     else:
         import concurrent.futures as cf
-        import multiprocessing
 
-        context = multiprocessing.get_context("spawn")
-        with cf.ProcessPoolExecutor(workers, mp_context=context, initializer=_one_thread) as pool:
-            futures = [pool.submit(solve_rows, base_table, axes, rows, plan, profile_points) for rows in tasks]
-            try:
-                for future in cf.as_completed(futures):
-                    yield future.result()
-            except BaseException:
-                for future in futures:
-                    future.cancel()
-                raise
+        futures = [pool.submit(solve_rows, base_table, axes, rows, plan, profile_points) for rows in tasks]
+        try:
+            for future in cf.as_completed(futures):
+                yield future.result()
+        except BaseException:
+            for future in futures:
+                future.cancel()
+            raise
+
+
+#: Why local workers fail to start, nearly always: spawned workers import the calling script again.
+_UNGUARDED = ("workers: the worker processes could not start; a script that calls edl.sweep(..., workers=N) "
+              "must make that call under `if __name__ == \"__main__\":` (each worker imports the script again), "
+              "or use workers=1")
+
+
+@contextmanager
+def _local_pool(workers: int) -> Iterator[Any]:
+    """A started pool of ``workers`` spawned processes (None for one worker), shut down on exit.
+
+    Raises
+    ------
+    InputError
+        If the first worker cannot start: nearly always a script without the ``__main__`` guard
+        (``_UNGUARDED``). Checked here, before the output file is opened.
+    """
+    if workers == 1:
+        yield None
+        return
+    import multiprocessing
+    from concurrent.futures import ProcessPoolExecutor
+    from concurrent.futures.process import BrokenProcessPool
+
+    context = multiprocessing.get_context("spawn")
+    with ProcessPoolExecutor(workers, mp_context=context, initializer=_one_thread) as pool:
+        try:
+            pool.submit(_started).result()
+        except BrokenProcessPool:
+            raise InputError(_UNGUARDED) from None
+        yield pool
+
+
+def _started() -> None:
+    """The first task of a pool: returns once a worker is up."""
+
+
+def _check_not_starting_a_worker() -> None:
+    # A worker being spawned imports the main script again; a script without the `__main__` guard would
+    # sweep once more in every worker (and start workers of its own): stop it at once.
+    import multiprocessing
+
+    if getattr(multiprocessing.current_process(), "_inheriting", False):
+        raise RuntimeError(_UNGUARDED)
 
 
 def _one_thread() -> None:
     # Each worker is one process on one core: keep numba from spawning threads of its own. The variable
-    # only counts before numba starts its threads, so set the live value as well.
+    # only counts before numba starts its threads, so set the live value as well. numba may already be
+    # imported (the kernels' cache locator imports it): reload its configuration before the threads start,
+    # or the first compilation in the worker finds the variable changed under live threads and fails.
     os.environ["NUMBA_NUM_THREADS"] = "1"
     import numba
+    from numba.core import config
 
+    config.reload_config()
     numba.set_num_threads(1)
 
 
