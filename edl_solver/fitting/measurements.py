@@ -162,6 +162,8 @@ def read_measurements(path: str | os.PathLike[str], *, length: float | str | Non
         ``min_points``.
     """
     device = _device(length, width, channels, geometry)
+    if min_points is not None and (isinstance(min_points, bool) or not isinstance(min_points, int)):
+        raise InputError(f"min_points: {min_points!r} is not allowed, expected a whole number of points or None")
     name = os.fspath(path) if isinstance(path, (str, os.PathLike)) else path
     rows = _rows(path)
     if not rows:
@@ -186,7 +188,7 @@ def _device(length: Any, width: Any, channels: Any, geometry: Any) -> _Device:
     if isinstance(channels, bool) or not isinstance(channels, int) or channels < 1:
         raise InputError(f"channels: {channels!r} is not allowed, expected a whole number of channels, at least 1")
     kind = getattr(getattr(geometry, "geometry", geometry), "kind", geometry)
-    if kind not in (None, "slit", "capillary"):
+    if not (kind is None or (isinstance(kind, str) and kind in ("slit", "capillary"))):
         raise InputError(f"geometry: {geometry!r} is not a channel geometry, expected 'slit' or 'capillary' "
                          "(or a Slit, Capillary or Case)")
     length = None if length is None else to_positive_si(length, "m", "length", "a positive channel length")

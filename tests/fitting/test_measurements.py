@@ -262,6 +262,8 @@ def test_a_file_without_points_or_with_too_few(tmp_path: Path) -> None:
     ({"channels": True}, "channels: True is not allowed"),
     ({"channels": 2.0}, "channels: 2.0 is not allowed"),
     ({"geometry": "rectangle"}, "geometry: 'rectangle' is not a channel geometry"),
+    ({"geometry": np.array([1.0, 2.0])}, "is not a channel geometry"),
+    ({"min_points": "3"}, "min_points: '3' is not allowed"),
     ({"length": "-1 um"}, "length: '-1 um' is not positive"),
     ({"length": "1 + 1 um"}, "length: '1 + 1 um' is not a quantity with units"),
     ({"width": "2 mM"}, "width: '2 mM' has units of"),
