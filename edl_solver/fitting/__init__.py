@@ -1,0 +1,1 @@
+"""Fitting case inputs to measurements."""
