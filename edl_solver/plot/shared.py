@@ -46,8 +46,14 @@ def wall_text(wall: Wall) -> str:
         return f"ζ = {wall.zeta * 1e3:.3g} mV"
     if wall.kind == "charge":
         return f"σ = {wall.charge_density * 1e3:.3g} mC/m²"
-    return "regulated (" + ", ".join(f"{site.name} pK {'/'.join(f'{pk:g}' for pk in site.pks)}"
-                                     for site in wall.sites) + ")"
+    parts = [f"{site.name} pK {'/'.join(f'{pk:g}' for pk in site.pks)}" for site in wall.sites]
+    if wall.charge_density is not None:
+        parts.append(f"σ = {wall.charge_density * 1e3:.3g} mC/m²")
+    if wall.stern_capacitance is not None:
+        parts.append(f"Stern {wall.stern_capacitance:.3g} F/m²")
+    if wall.gate_voltage is not None:
+        parts.append(f"gate {wall.gate_voltage:.3g} V")
+    return "regulated (" + ", ".join(parts) + ")"
 
 
 def size_text(geometry: Geometry) -> str:

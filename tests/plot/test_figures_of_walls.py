@@ -93,3 +93,12 @@ def test_map_figure_of_every_wall(case: edl.Case, tmp_path: Path, monkeypatch: p
         assert len(lines) == 1 and np.isfinite(lines[0].get_xdata()).any()
     assert [str(data[v].attrs["quantity"]) for v in ("boundary", "boundary_current")] == ["flow_rate", "current"]
     assert sorted(p.name for p in tmp_path.iterdir()) == ["map.png"]
+
+
+def test_a_wall_regulated_without_sites_is_described_by_what_regulates_it() -> None:
+    # it read "regulated ()" for a fixed charge behind a Stern layer, and for a gate
+    from edl_solver.plot.shared import wall_text
+
+    assert wall_text(edl.Wall(charge_density="-10 mC/m^2", stern_capacitance="2 F/m^2")) == \
+        "regulated (σ = -10 mC/m², Stern 2 F/m²)"
+    assert wall_text(edl.Wall(gate_voltage="0.1 V", gate_capacitance="0.01 F/m^2")).startswith("regulated (gate 0.1 V")
