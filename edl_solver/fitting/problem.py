@@ -128,8 +128,9 @@ def parse_dataset(data: Any, label: str = "data") -> Dataset:
         uncertainty = _column(UNCERTAINTY, data[UNCERTAINTY], _unit_of(quantity))
         bad = np.nonzero(uncertainty <= 0)[0]
         if bad.size:
-            raise InputError(f"{label}['uncertainty'][{bad[0]}]: {float(uncertainty[bad[0]])!r} is not positive, expected "
-                             f"one standard deviation > 0 in {_unit_of(quantity)}")
+            value = float(uncertainty[bad[0]])
+            raise InputError(f"{label}['uncertainty'][{bad[0]}]: {value!r} is not positive, expected one standard "
+                             f"deviation > 0 in {_unit_of(quantity)}")
     for key, column in [*inputs.items(), *([(UNCERTAINTY, uncertainty)] if uncertainty is not None else [])]:
         if column.size != values.size:
             raise InputError(f"{label}[{key!r}]: {column.size} values, expected one per measured point "
@@ -137,8 +138,9 @@ def parse_dataset(data: Any, label: str = "data") -> Dataset:
     for key, column in inputs.items():
         bad = np.nonzero(column <= 0)[0] if is_positive_path(key) else np.array([], dtype=int)
         if bad.size:
-            raise InputError(f"{label}[{key!r}][{bad[0]}]: {float(column[bad[0]])!r} is not positive, expected a value > 0 "
-                             f"in {PATH_UNITS[key]}")
+            value = float(column[bad[0]])
+            raise InputError(f"{label}[{key!r}][{bad[0]}]: {value!r} is not positive, expected a value > 0 in "
+                             f"{PATH_UNITS[key]}")
     return Dataset(inputs=inputs, quantity=quantity, values=values, uncertainty=uncertainty)
 
 

@@ -157,7 +157,7 @@ def _result(objective: Objective, datasets: Sequence[Dataset], paths: Sequence[s
     scale = 1.0 if objective.absolute else (reduced if dof > 0 else math.inf)
     cov = covariance(jac, scaling.dx_dz(z), scale)
     errors = np.sqrt(np.diag(cov))
-    notes = identifiability(jac, paths)
+    notes = identifiability(jac, paths, scale)
     for note in notes:
         _warnings.warn(note, IdentifiabilityWarning, stacklevel=3)
     model = objective.measured + residuals * objective.sigma

@@ -2,9 +2,11 @@
 
 The covariance is (J^T J)^-1 of the weighted residuals (Gauss-Newton, common practice), scaled by the reduced
 chi^2 when the data carry no uncertainties (their scatter then estimates the noise). A parameter is not
-identifiable when the column-normalised Jacobian has a (nearly) flat direction: a singular value below
-``FLAT`` times the largest (for two parameters, a correlation above about 0.9998), or a parameter that moves
-no residual at all; the warning names the parameters that make up that direction.
+identifiable when the Jacobian has a (nearly) flat direction: in the column-normalised Jacobian a singular
+value below ``FLAT`` times the largest (for two parameters, a correlation above about 0.999998), or a direction
+along which the data leave the scaled parameters (the logarithm of a positive quantity) undetermined by more
+than ``LOOSE`` standard deviations' worth, or a parameter that moves no residual at all; the warning names the
+parameters that make up that direction.
 """
 
 from __future__ import annotations
@@ -17,7 +19,10 @@ import numpy as np
 from .least_squares import Objective, minimise
 
 #: Smallest over largest singular value of the column-normalised Jacobian below which a direction is flat.
-FLAT = 1e-2
+FLAT = 1e-3
+#: Standard deviation along the flattest direction, in the scaled coordinates (a factor e for a positive quantity),
+#: above which the data do not fix that combination of parameters.
+LOOSE = 1.0
 #: Share of the flat direction a parameter must carry to be named in the warning.
 _NAMED = 0.2
 
@@ -46,8 +51,9 @@ def correlation(cov: np.ndarray) -> np.ndarray:
     return corr
 
 
-def identifiability(jac_z: np.ndarray, names: Sequence[str]) -> list[str]:
-    """Warnings naming the parameters of flat directions of the Jacobian (none when all are identifiable)."""
+def identifiability(jac_z: np.ndarray, names: Sequence[str], scale: float = 1.0) -> list[str]:
+    """Warnings naming the parameters of flat directions of the Jacobian (none when all are identifiable);
+    ``scale`` multiplies the covariance (the reduced chi^2 without uncertainties)."""
     norms = np.linalg.norm(jac_z, axis=0)
     warnings = [f"{name} is not identifiable from the data: the model does not change with it"
                 for name, norm in zip(names, norms) if not norm > 1e-12 * max(norms.max(), 1e-300)]
@@ -55,13 +61,15 @@ def identifiability(jac_z: np.ndarray, names: Sequence[str]) -> list[str]:
         return warnings
     _, s, vt = np.linalg.svd(jac_z / norms, full_matrices=False)
     ratio = s[-1] / s[0]
-    if ratio < FLAT:
-        flat = vt[-1]
-        named = [name for name, part in zip(names, flat) if abs(part) >= _NAMED]
-        combo = " + ".join(f"{part:.3g} {name}" for name, part in zip(names, flat) if abs(part) >= _NAMED)
-        warnings.append(f"{' and '.join(named)} are not identifiable from the data: the fit is nearly flat along "
-                        f"{combo} (in scaled parameters; smallest/largest singular value {ratio:.2g}), so only a "
-                        "combination of them is determined")
+    spread = math.sqrt(scale) * float(np.linalg.norm(vt[-1] / norms)) / s[-1] if s[-1] > 0 else math.inf
+    if ratio < FLAT or (ratio < 0.1 and spread > LOOSE):
+        # named along the direction of the normalised columns: it does not depend on how each parameter is scaled
+        named = [name for name, part in zip(names, vt[-1]) if abs(part) >= _NAMED]
+        combo = " ".join(f"{part:+.3g} {name}" for name, part in zip(names, vt[-1]) if abs(part) >= _NAMED)
+        warnings.append(f"{' and '.join(named)} {'are' if len(named) > 1 else 'is'} not identifiable from the data: "
+                        f"the fit is nearly flat along {combo} (relative to each parameter's effect; smallest/largest "
+                        f"singular value {ratio:.2g}, standard deviation along it {spread:.2g} in scaled parameters), "
+                        "so only a combination is determined")
     return warnings
 
 
