@@ -165,6 +165,12 @@ class Forward:
         values = summaries[np.arange(vectors.shape[0]), slots]
         for row in np.nonzero(codes != layout.CONVERGED)[0].tolist():
             values[row] = self._solve_one(thetas[row // n], row % n)
+        missing = np.nonzero(~np.isfinite(values))[0]
+        if missing.size:  # a key the case does not have (stern_potential without a Stern layer)
+            p = int(missing[0]) % n
+            raise InputError(f"data: {self._quantity(p)!r} is not defined for this case (the model gives no value "
+                             f"at point {self.points[p][1]} of data set {self.points[p][0]}), expected a summary "
+                             "quantity the case has")
         return values.reshape(thetas.shape[0], n)
 
     def _solve_one(self, theta: np.ndarray, p: int) -> float:

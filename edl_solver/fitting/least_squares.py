@@ -89,6 +89,18 @@ def scaled_bounds(paths: Sequence[str], scaling: Scaling, bounds: Mapping[str, S
     return lo, hi
 
 
+def residual_scale(datasets: Sequence[Dataset]) -> np.ndarray:
+    """The divisor of each residual: its uncertainty, or the root mean square of its data set's values."""
+    sigma = []
+    for one in datasets:
+        if one.uncertainty is not None:
+            sigma.append(one.uncertainty)
+        else:
+            rms = float(np.sqrt(np.mean(one.values**2)))
+            sigma.append(np.full(one.size, rms if rms > 0 else 1.0))
+    return np.concatenate(sigma)
+
+
 class Objective:
     """Weighted residuals and their Jacobian in the scaled coordinates, counting batches."""
 
@@ -96,14 +108,7 @@ class Objective:
         self.forward = forward
         self.scaling = scaling
         self.measured = np.concatenate([one.values for one in datasets])
-        sigma = []
-        for one in datasets:
-            if one.uncertainty is not None:
-                sigma.append(one.uncertainty)
-            else:
-                rms = float(np.sqrt(np.mean(one.values**2)))
-                sigma.append(np.full(one.size, rms if rms > 0 else 1.0))
-        self.sigma = np.concatenate(sigma)
+        self.sigma = residual_scale(datasets)
         self.absolute = all(one.uncertainty is not None for one in datasets)
         self._last: tuple[np.ndarray, np.ndarray] | None = None
 

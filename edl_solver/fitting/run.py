@@ -20,7 +20,7 @@ from edl_solver.inputs.case import Case
 
 from . import thin_layer
 from .forward import Forward
-from .least_squares import Objective, make_scaling, minimise, scaled_bounds
+from .least_squares import Objective, make_scaling, minimise, residual_scale, scaled_bounds
 from .problem import Dataset, parse_data, parse_parameters
 from .result import Fit, FittedDataset
 from .uncertainty import IdentifiabilityWarning, correlation, covariance, identifiability, profile_interval
@@ -70,14 +70,17 @@ def fit(case: Case, data: Any, parameters: Sequence[str] | Mapping[str, Any], *,
         raise InputError(f"case: {type(case).__name__} is not a Case, expected edl_solver.Case(...)")
     datasets = parse_data(data)
     paths, given = parse_parameters(parameters, datasets)
+    _check_options(profile, max_evaluations)
     template = Forward(case, datasets, paths, np.array([_template_value(case, p, given) for p in paths]))
     cases = [[template.case(d, i) for i in range(one.size)] for d, one in enumerate(datasets)]
-    objective_sigma = Objective(template, datasets, make_scaling(paths, template_start(template, paths))).sigma
     absolute = all(one.uncertainty is not None for one in datasets)
-    thin = None
+    thin, notes = None, []
     if thin_layer.applies(datasets, paths):
-        thin = thin_layer.make_thin_layer(cases, datasets, paths[0], _sign(case, paths[0]), objective_sigma,
-                                          absolute, None)
+        try:
+            thin = thin_layer.make_thin_layer(cases, datasets, paths[0], _sign(case, paths[0]),
+                                              residual_scale(datasets), absolute, None)
+        except (ValueError, ArithmeticError, RuntimeError) as error:  # the full fit does not need it
+            notes.append(f"the thin-layer fit failed ({error}); the full fit starts from the template")
     start = np.array([given.get(p, thin.parameters[p] if thin is not None and p not in given
                                 else template_start(template, [p])[0]) for p in paths])
     forward = Forward(case, datasets, paths, start) if thin is not None else template
@@ -86,7 +89,14 @@ def fit(case: Case, data: Any, parameters: Sequence[str] | Mapping[str, Any], *,
     objective = Objective(forward, datasets, scaling)
     solution = minimise(objective, scaling.to_z(start), lo, hi, max_nfev=max_evaluations)
     z = solution.z_full
-    return _result(objective, datasets, paths, z, solution, thin, cases, (lo, hi, profile), start)
+    return _result(objective, datasets, paths, z, solution, thin, notes, (lo, hi, profile), start)
+
+
+def _check_options(profile: Any, max_evaluations: Any) -> None:
+    if not isinstance(profile, bool):
+        raise InputError(f"profile: {profile!r} is not allowed, expected True or False")
+    if isinstance(max_evaluations, bool) or not isinstance(max_evaluations, int) or max_evaluations < 1:
+        raise InputError(f"max_evaluations: {max_evaluations!r} is not allowed, expected a positive integer")
 
 
 def template_start(forward: Forward, paths: Sequence[str]) -> np.ndarray:
@@ -145,7 +155,7 @@ def _template_value(case: Case, path: str, given: Mapping[str, float]) -> float:
 
 
 def _result(objective: Objective, datasets: Sequence[Dataset], paths: Sequence[str], z: np.ndarray, solution: Any,
-            thin: Any, cases: Any, options: tuple[Any, ...], start: np.ndarray) -> Fit:
+            thin: Any, notes: list[str], options: tuple[Any, ...], start: np.ndarray) -> Fit:
     """The ``Fit`` at the optimum ``z``: uncertainty, warnings, data sets, thin-layer comparison."""
     lo, hi, profile = options
     scaling = objective.scaling
@@ -157,9 +167,10 @@ def _result(objective: Objective, datasets: Sequence[Dataset], paths: Sequence[s
     scale = 1.0 if objective.absolute else (reduced if dof > 0 else math.inf)
     cov = covariance(jac, scaling.dx_dz(z), scale)
     errors = np.sqrt(np.diag(cov))
-    notes = identifiability(jac, paths, scale)
-    for note in notes:
+    flat = identifiability(jac, paths, scale)
+    for note in flat:
         _warnings.warn(note, IdentifiabilityWarning, stacklevel=3)
+    notes = [*flat, *notes]
     model = objective.measured + residuals * objective.sigma
     fitted, at = [], 0
     for one in datasets:

@@ -53,3 +53,15 @@ def test_bad_case_bounds_and_start() -> None:
         edl.fit(CASE, data, ["wall.charge_density"], bounds={"geometry.height": (1e-9, 1e-6)})
     with pytest.raises(edl.InputError, match=r"parameters\['geometry.height'\]: start value -1.0 is not positive"):
         edl.fit(CASE, data, {"geometry.height": -1.0})
+
+
+def test_a_quantity_the_case_does_not_have_and_bad_options() -> None:
+    # stern_potential exists only with a Stern layer: the fit refuses it instead of fitting NaN
+    data = {"electrolyte.concentration": C, "stern_potential": [-0.05, -0.04, -0.03]}
+    with pytest.raises(edl.InputError, match=r"data: 'stern_potential' is not defined for this case"):
+        edl.fit(CASE, data, ["wall.charge_density"])
+    data = {"electrolyte.concentration": C, "conductance_per_length": G}
+    with pytest.raises(edl.InputError, match=r"profile: 'yes' is not allowed"):
+        edl.fit(CASE, data, ["wall.charge_density"], profile="yes")
+    with pytest.raises(edl.InputError, match=r"max_evaluations: 0 is not allowed"):
+        edl.fit(CASE, data, ["wall.charge_density"], max_evaluations=0)
