@@ -81,9 +81,13 @@ def fit(case: Case, data: Any, parameters: Sequence[str] | Mapping[str, Any], *,
                                               residual_scale(datasets), absolute, None)
         except (ValueError, ArithmeticError, RuntimeError) as error:  # the full fit does not need it
             notes.append(f"the thin-layer fit failed ({error}); the full fit starts from the template")
-    start = np.array([given.get(p, thin.parameters[p] if thin is not None and p not in given
+    if thin is not None and abs(thin.parameters[paths[0]]) < (1e-4 if paths[0] == "wall.zeta" else 1e-5):
+        thin_start = None  # conductance is even in the charge: no slope at 0, so the full fit starts elsewhere
+    else:
+        thin_start = thin.parameters if thin is not None else None
+    start = np.array([given.get(p, thin_start[p] if thin_start is not None and p in thin_start
                                 else template_start(template, [p])[0]) for p in paths])
-    forward = Forward(case, datasets, paths, start) if thin is not None else template
+    forward = Forward(case, datasets, paths, start) if thin_start is not None else template
     scaling = make_scaling(paths, start)
     lo, hi = scaled_bounds(paths, scaling, bounds)
     objective = Objective(forward, datasets, scaling)
