@@ -70,7 +70,7 @@ class Forward:
                                                                                     one.inputs.values()))
                            if one.inputs else None for one in datasets]
         self.slots = np.array([SLOTS[datasets[d].quantity] for d, _ in self.points])
-        self.vectors0 = np.array([packing.case_vector(self.case(d, i)) for d, i in self.points])
+        self.vectors0 = np.array([self._point_vector(datasets, d, i) for d, i in self.points])
         if self.vectors0.shape[1] != self.base.size:
             raise InputError("data: an independent variable changes the number of ions, expected the ions of the case")
         self.forward_solves = 0
@@ -78,6 +78,15 @@ class Forward:
         self._columns = [self._parameter_columns(k, float(v)) for k, v in enumerate(start)]
         self._cache: dict[tuple[int, float], np.ndarray] = {}
         self.assembled = self._assembly_holds(np.asarray(start, dtype=float))
+
+    def _point_vector(self, datasets: Sequence[Dataset], d: int, i: int) -> np.ndarray:
+        """The packed vector of a point at the start values; InputError naming the point when it is no valid case."""
+        try:
+            return packing.case_vector(self.case(d, i))
+        except InputError as error:
+            label = "data" if len(datasets) == 1 else f"data[{d}]"
+            shown = ", ".join(f"{path} = {values[i]:g}" for path, values in datasets[d].inputs.items())
+            raise InputError(f"{label}: point {i} ({shown}) is not a valid case: {error}") from None
 
     def case(self, d: int, i: int, theta: Sequence[float] | None = None) -> Case:
         """The case of point ``i`` of data set ``d``, built in full (at ``theta``, or the start values)."""

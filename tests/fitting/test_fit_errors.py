@@ -65,3 +65,12 @@ def test_a_quantity_the_case_does_not_have_and_bad_options() -> None:
         edl.fit(CASE, data, ["wall.charge_density"], profile="yes")
     with pytest.raises(edl.InputError, match=r"max_evaluations: 0 is not allowed"):
         edl.fit(CASE, data, ["wall.charge_density"], max_evaluations=0)
+
+
+def test_a_point_that_makes_no_valid_case_is_named() -> None:
+    data = {"electrolyte.pH": [7.0, 20.0, 8.0], "conductance_per_length": G}
+    case = edl.Case(geometry=edl.Slit(height="20 nm"), wall=edl.Wall.silica(),
+                    electrolyte=edl.Electrolyte.from_ions({"K+": "1 mM", "Cl-": "1 mM"}, pH=7))
+    with pytest.raises(edl.InputError, match=r"data: point 1 \(electrolyte.pH = 20\) is not a valid case") as error:
+        edl.fit(case, data, ["wall.site[0].density"])
+    assert "\n" not in str(error.value)
