@@ -27,6 +27,8 @@ from edl_solver.results.result import Result
 
 if _typing.TYPE_CHECKING:
     from edl_solver.channel.model import Channel
+    from edl_solver.fitting.result import Fit
+    from edl_solver.fitting.run import fit
     from edl_solver.pipeline import solve
     from edl_solver.sweeping.run import sweep
 
@@ -67,6 +69,14 @@ def __getattr__(name: str) -> _typing.Any:
         from edl_solver.sweeping.run import sweep
 
         return sweep
+    if name == "fit":
+        from edl_solver.fitting.run import fit
+
+        return fit
+    if name == "Fit":
+        from edl_solver.fitting.result import Fit
+
+        return Fit
     if name == "Channel":
         from edl_solver.channel.model import Channel
 
@@ -80,6 +90,7 @@ __all__ = [
     "Channel",
     "ConvergenceError",
     "Electrolyte",
+    "Fit",
     "InputError",
     "Ion",
     "Numerics",
@@ -91,6 +102,7 @@ __all__ = [
     "Wall",
     "Water",
     "__version__",
+    "fit",
     "load",
     "solve",
     "sweep",

@@ -32,6 +32,7 @@ LAYERS: dict[str, int] = {
     "edl_solver.sweeping": 8,
     "edl_solver.channel": 9,
     "edl_solver.analysis": 9,
+    "edl_solver.fitting": 9,
     "edl_solver.plot": 10,
     "edl_solver.cli": 11,
     "edl_solver": 12,  # the public face: __init__ and __main__

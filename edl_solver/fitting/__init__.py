@@ -1,1 +1,1 @@
-"""Fitting case inputs to measurements."""
+"""Fitting case inputs to measurements (edl.fit): data, forward model, least squares, uncertainty, thin-layer fit."""
