@@ -8,7 +8,7 @@ import edl_solver as edl
 
 PUBLIC = {"Case", "Slit", "Capillary", "Electrolyte", "Ion", "Site", "Wall", "Solvent", "Water", "Numerics",
           "solve", "sweep", "load", "Channel", "Profiles", "Result", "InputError", "ConvergenceError",
-          "__version__"}
+          "fit", "Fit", "__version__"}
 
 
 def test_dir_shows_the_public_api_and_nothing_else() -> None:
