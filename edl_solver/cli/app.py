@@ -35,9 +35,10 @@ _COMMANDS: tuple[tuple[str, str], ...] = (
     ("demo", "edl_solver.cli.demo"),
     ("sweep", "edl_solver.cli.sweep_command"),
     ("map", "edl_solver.cli.map_command"),
+    ("fit", "edl_solver.cli.fit_command"),
 )
 #: Flags that take no value (a value that is one of them is not attached to the flag before it).
-_SWITCHES = frozenset({"-h", "--help", "--version", "-q", "--quiet", "--print-case", "--resume"})
+_SWITCHES = frozenset({"-h", "--help", "--version", "-q", "--quiet", "--print-case", "--resume", "--profile"})
 
 _MAIN_EPILOG = """\
 examples:
@@ -47,6 +48,7 @@ examples:
   edl solve --slit 20nm --ion Na+=1mM --ion Cl-=1mM --zeta -40mV --field 1kV/m
   edl sweep design.toml -o design.h5 --workers 4
   edl transport case.toml --length 10um --left 1mM --right 10mM --iv -0.2V:0.2V:41 --iv-figure iv.png
+  edl fit data.csv --case case.toml --fit wall.charge_density --length 20um --width 10um -o fit.h5
 
 'edl COMMAND --help' describes each command.
 exit codes: 0 done, 1 output not written, 2 bad input, 3 no convergence, 130 interrupted.
