@@ -57,6 +57,21 @@ def _title(data: Any) -> str:
     return "full-model fit: " + ", ".join(parts) + f"\n{chi}, {int(data.attrs['dof'])} degrees of freedom"
 
 
+#: Axis words of the inputs a measurement varies most often (the path itself otherwise).
+_INPUT_WORDS = {"electrolyte.concentration": "bulk concentration", "electrolyte.pH": "pH",
+                "geometry.height": "channel height H", "geometry.radius": "capillary radius a",
+                "solvent.temperature": "temperature", "pressure_gradient": "pressure gradient dp/dx",
+                "field": "electric field E"}
+
+
+def _quantity_words(key: str) -> str:
+    """The summary key's meaning in words (its long name up to the first comma), or the key."""
+    from edl_solver.results.schema import SUMMARY_UNITS
+
+    entry = SUMMARY_UNITS.get(key)
+    return entry[1].split(",")[0].split(" (")[0] if entry else key
+
+
 def _x_of(data: Any, d: int) -> tuple[str | None, np.ndarray | None]:
     """The x path of data set ``d`` (the curve's variable, else its first input) and its data values."""
     curve = [name for name in data.variables if name.startswith(f"data{d}.curve.") and name != f"data{d}.curve.model"]
@@ -107,10 +122,11 @@ def _panel_pair(data: Any, d: int, top: Any, bottom: Any) -> None:
         top.set_yscale("log")
     source = json.loads(data.attrs.get("sources", "[]"))
     top.set_title(f"{quantity}" + (f" ({Path(source[d]).name})" if d < len(source) else ""), fontsize=9)
-    top.set_ylabel(f"{quantity} ({shown})")
+    top.set_ylabel(f"{_quantity_words(quantity)} ({shown})")
     top.legend(fontsize=8, frameon=False)
     top.tick_params(labelbottom=False)
-    bottom.set_xlabel(f"{path} ({x_unit})" if path and x_unit else (path or "point"))
+    words = _INPUT_WORDS.get(path, path) if path else None
+    bottom.set_xlabel(f"{words} ({x_unit})" if words and x_unit else (words or "point"))
     for axes in (top, bottom):
         axes.grid(True, which="major", alpha=0.3)
 
