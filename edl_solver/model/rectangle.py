@@ -180,12 +180,15 @@ def solve_rectangle_section(width: float, height: float, debye_length: float, va
     _check("model", model, '"pb" or "dh"', model in ("pb", "dh"))
     _check("zeta", zeta, "a finite potential in kT/e", np.isfinite(zeta))
     _check("accuracy", accuracy, "a number in [1e-13, 0.1]", 1e-13 <= accuracy <= 0.1)
+    zeta = float(zeta)  # an integer zeta would make integer node arrays
     h = 0.5 * min(width, height)
     half_w, half_h, kappa = 0.5 * width / h, 0.5 * height / h, h / debye_length
     weights = z_k * c_k / (z_k**2 @ c_k)
     counter = float(z_k.max() if zeta < 0 else -z_k.min())
     physics = (zeta, kappa, z_k, weights, model == "dh", counter)
-    inner = inner_length(kappa**2, np.array([zeta, zeta]), np.array([counter, counter]))
+    # the layer's smallest scale: a linear (DH) layer has only the Debye length, whatever its wall potential
+    wall_guess = np.full(2, 0.0 if model == "dh" else zeta)
+    inner = inner_length(kappa**2, wall_guess, np.array([counter, counter]))
     betas = (stretching(inner / half_w), stretching(inner / half_h))
     n = intervals if intervals > 0 else min(starting_intervals(max(betas), accuracy), max_intervals)
     _check("intervals", n, f"a multiple of {2 ** (LEVELS - 1)}", n % 2 ** (LEVELS - 1) == 0)

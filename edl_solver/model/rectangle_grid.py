@@ -164,7 +164,7 @@ class GridSolution:
 def _full(op: Operator, inner: np.ndarray, wall_value: float) -> np.ndarray:
     """The unknowns as the quarter's node array, with the wall nodes set to ``wall_value``."""
     ny, nz = op.y.x.size, op.z.x.size
-    out = np.full((ny, nz), wall_value)
+    out = np.full((ny, nz), wall_value, dtype=float)
     out[:-1, :-1] = inner.reshape(ny - 1, nz - 1)
     return out
 
