@@ -1,0 +1,221 @@
+"""Equilibrium double layer and flow across a rectangular cross-section, with nested grids and error control.
+
+The numerical core of issue 13, dimensionless and not yet wired into ``Case``: width W along y, height H along
+z, lengths in h = min(W, H) / 2 (so kappa h is the Debye parameter of the narrower direction), potentials in
+kT/e, the same wall potential zeta on all four walls. The quarter is solved (``rectangle_grid``) on four
+nested tensor-product grids, each halving the spacing of the previous; the section integrals are extrapolated
+(Richardson, h^2 and h^4 removed, ``kernels.adaptive.extrapolate``) from the three finest and from the three
+coarsest, their difference over 8 relative to each integral's size is the error estimate, and the grid is
+doubled until the estimate meets the accuracy, as the 1-D solver does (``kernels.adaptive.solve_adaptive``).
+"""
+
+from __future__ import annotations
+
+from dataclasses import dataclass
+
+import numpy as np
+
+from edl_solver.errors import ConvergenceError, InputError
+from edl_solver.kernels.adaptive import LEVELS, extrapolate, inner_length, starting_intervals, stretching
+from edl_solver.model import rectangle_grid as fv
+from edl_solver.model.rectangle_grid import I_FLUX, I_PSI, I_RHO, I_RHO_UEO, I_RHO_UP, I_UEO, I_UP, GridSolution
+
+#: Discrete identities (charge balance, reciprocity, u_eo = psi - zeta) hold to round-off and Newton's residual
+#: in this scheme; beyond this a solve is declared failed rather than returned (as ``kernels.identities``).
+IDENTITY_TOLERANCE = 1e-8
+#: Potentials below this (kT/e) count as zero when errors are measured (``kernels.adaptive.POTENTIAL_FLOOR``).
+POTENTIAL_FLOOR = 1e-6
+#: A value below this fraction of its natural size is measured against that fraction (``adaptive.VANISHING``).
+VANISHING = 1e-6
+
+
+@dataclass(frozen=True)
+class RectangleSection:
+    """Dimensionless solution of a rectangular section (lengths in h = min(W, H) / 2, potentials in kT/e).
+
+    Attributes
+    ----------
+    width, height : float
+        W / h and H / h.
+    kappa : float
+        kappa h.
+    zeta : float
+        The wall potential.
+    integrals : dict
+        Extrapolated full-section integrals (``rectangle_grid.INTEGRALS``): ``psi`` int psi dA, ``u_eo`` int u_eo dA
+        (the EO flow rate per unit field, units eps kT h^2 / (e eta)), ``u_p`` int u_p dA (the pressure flow per
+        unit (dp/dx), units h^4 / eta; laplacian u_p = 1), ``rho`` int rho_hat dA, ``rho_u_p`` and ``rho_u_eo``
+        (the streaming and EO convection integrals), ``wall_flux`` the outward-normal derivative of psi over the
+        perimeter (the wall charge, units eps kT / e).
+    area, perimeter : float
+        W H / h^2 and 2 (W + H) / h.
+    finest : GridSolution
+        The finest grid's quarter (y, z nodes; psi, u_eo, u_p on them, not extrapolated).
+    intervals : int
+        Cells per direction of the quarter on the finest grid.
+    iterations : int
+        Newton iterations, all grids together.
+    estimate : float
+        Error estimate: the largest relative error of the integrals.
+    charge_balance, reciprocity, eo_identity : float
+        Residuals of wall_flux + kappa^2 int rho = 0, int u_eo = -kappa^2 int rho u_p and u_eo = psi - zeta
+        (finest grid, the last pointwise), each relative to its natural size.
+    """
+
+    width: float
+    height: float
+    kappa: float
+    zeta: float
+    integrals: dict[str, float]
+    area: float
+    perimeter: float
+    finest: GridSolution
+    intervals: int
+    iterations: int
+    estimate: float
+    charge_balance: float
+    reciprocity: float
+    eo_identity: float
+
+    @property
+    def mean_velocity_eo(self) -> float:
+        """Mean EO velocity per unit field (units eps kT / (e eta)); 1 - mean psi / zeta times -zeta."""
+        return self.integrals["u_eo"] / self.area
+
+    @property
+    def mean_potential(self) -> float:
+        """Mean potential over the section (kT/e)."""
+        return self.integrals["psi"] / self.area
+
+
+def _check(name: str, value: float, expected: str, ok: bool) -> None:
+    if not ok:
+        raise InputError(f"{name} = {value!r}: expected {expected}")
+
+
+def _error_scale(values: np.ndarray, zeta: float, area: float, kappa: float) -> np.ndarray:
+    """Magnitudes the integrals' errors are measured against: each its own size, floored at a tiny fraction of
+    its natural size (as ``kernels.adaptive.error_scale``), so that a vanishing value does not refine for ever."""
+    psi_small = max(VANISHING * abs(zeta), POTENTIAL_FLOOR)
+    charge_small = max(VANISHING * abs(values[I_FLUX]), POTENTIAL_FLOOR * max(1.0, kappa))
+    space_small = charge_small / kappa**2
+    up_scale = abs(values[I_UP]) / area
+    floors = np.zeros(values.size)
+    floors[[I_PSI, I_UEO]] = psi_small * area
+    floors[I_UP] = 1e-300
+    floors[I_RHO] = space_small
+    floors[I_RHO_UP] = space_small * up_scale
+    floors[I_RHO_UEO] = space_small * abs(zeta)
+    floors[I_FLUX] = charge_small
+    return np.maximum(np.abs(values), np.maximum(floors, 1e-300))
+
+
+def _solve_grid(half_w: float, half_h: float, betas: tuple[float, float], intervals: int, start: np.ndarray | None,
+                physics: tuple) -> GridSolution:
+    """One grid of ``intervals`` cells per direction, Newton from ``start`` (quarter node array) or, if None, from
+    the Gouy-Chapman start."""
+    zeta, kappa, valences, weights, dh, counter = physics
+    y, z = fv.axis(half_w, intervals, betas[0]), fv.axis(half_h, intervals, betas[1])
+    op = fv.operator(y, z)
+    if start is None:
+        start = fv.gouy_chapman_start(y, z, zeta, kappa, counter)
+    psi = start[:-1, :-1].ravel().copy()
+    status, its = fv.newton(op, psi, zeta, kappa**2, valences, weights, dh)
+    if status != 0:
+        why = "the iteration limit was reached" if status == 1 else "the line search failed"
+        raise ConvergenceError(f"rectangle {2 * half_w:g} x {2 * half_h:g} h, kappa h = {kappa:g}, "
+                               f"zeta = {zeta:g} kT/e: Newton failed on the {intervals} x {intervals} grid ({why})")
+    return fv.flows_and_integrals(op, psi, zeta, kappa**2, valences, weights, dh, its)
+
+
+def _identities(sol: GridSolution, zeta: float, kappa: float, area: float, perimeter: float) -> tuple[float, ...]:
+    """Charge balance, reciprocity and the pointwise u_eo = psi - zeta of one grid, relative residuals."""
+    v = sol.integrals
+    wall = abs(v[I_FLUX]) + POTENTIAL_FLOOR * max(1.0, kappa) * perimeter
+    balance = abs(v[I_FLUX] + kappa**2 * v[I_RHO]) / wall
+    streaming = -kappa**2 * v[I_RHO_UP]
+    size = max(abs(v[I_UEO]), abs(streaming), max(abs(zeta), POTENTIAL_FLOOR) * area, 1e-300)
+    reciprocity = abs(v[I_UEO] - streaming) / size
+    eo = np.max(np.abs(sol.u_eo - (sol.psi - zeta))) / max(abs(zeta), POTENTIAL_FLOOR)
+    return balance, reciprocity, eo
+
+
+def solve_rectangle_section(width: float, height: float, debye_length: float, valences, concentrations,
+                            model: str = "pb", zeta: float = 0.0, accuracy: float = 1e-6,
+                            max_intervals: int = 512, intervals: int = 0) -> RectangleSection:
+    """Solve the double layer and the EO and pressure-driven flow across a W x H rectangle.
+
+    Parameters
+    ----------
+    width, height : float
+        W and H, any one length unit (only ratios enter).
+    debye_length : float
+        lambda_D in the same unit.
+    valences, concentrations : sequence of float
+        The ions' valences z_k and bulk concentrations c_k (any unit; electroneutral: sum z_k c_k = 0).
+    model : {"pb", "dh"}
+        Poisson-Boltzmann or its Debye-Hueckel linearisation.
+    zeta : float
+        Wall potential in kT/e, the same on all four walls.
+    accuracy : float
+        Relative accuracy every integral is refined to (estimated as in the 1-D solver).
+    max_intervals : int
+        Largest number of cells per direction of the quarter; ConvergenceError beyond.
+    intervals : int
+        If > 0, the finest grid's cells per direction, fixed (no refinement; the estimate is still returned).
+
+    Raises
+    ------
+    InputError
+        A field out of range. ConvergenceError: Newton failed, the accuracy was missed within ``max_intervals``,
+        or an identity of the scheme failed.
+    """
+    z_k, c_k = np.asarray(valences, float), np.asarray(concentrations, float)
+    for name, value in (("width", width), ("height", height), ("debye_length", debye_length)):
+        _check(name, value, "a positive finite length", np.isfinite(value) and value > 0)
+    _check("valences", list(z_k), "nonzero valences of both signs, one per concentration",
+           z_k.size == c_k.size and z_k.size >= 2 and np.all(z_k != 0) and z_k.min() < 0 < z_k.max())
+    _check("concentrations", list(c_k), "positive and electroneutral (sum z c = 0)",
+           np.all(c_k > 0) and abs(z_k @ c_k) <= 1e-9 * (np.abs(z_k) @ c_k))
+    _check("model", model, '"pb" or "dh"', model in ("pb", "dh"))
+    _check("zeta", zeta, "a finite potential in kT/e", np.isfinite(zeta))
+    _check("accuracy", accuracy, "a number in [1e-13, 0.1]", 1e-13 <= accuracy <= 0.1)
+    zeta = float(zeta)  # an integer zeta would make integer node arrays
+    h = 0.5 * min(width, height)
+    half_w, half_h, kappa = 0.5 * width / h, 0.5 * height / h, h / debye_length
+    weights = z_k * c_k / (z_k**2 @ c_k)
+    counter = float(z_k.max() if zeta < 0 else -z_k.min())
+    physics = (zeta, kappa, z_k, weights, model == "dh", counter)
+    # the layer's smallest scale: a linear (DH) layer has only the Debye length, whatever its wall potential
+    wall_guess = np.full(2, 0.0 if model == "dh" else zeta)
+    inner = inner_length(kappa**2, wall_guess, np.array([counter, counter]))
+    betas = (stretching(inner / half_w), stretching(inner / half_h))
+    n = intervals if intervals > 0 else min(starting_intervals(max(betas), accuracy), max_intervals)
+    _check("intervals", n, f"a multiple of {2 ** (LEVELS - 1)}", n % 2 ** (LEVELS - 1) == 0)
+    area, perimeter = width * height / h**2, 2.0 * (width + height) / h
+    levels: list[GridSolution] = []
+    start = None
+    for level in range(LEVELS):
+        levels.append(_solve_grid(half_w, half_h, betas, n // 2 ** (LEVELS - 1 - level), start, physics))
+        start = fv.prolong(levels[-1].psi)
+    while True:
+        values = [s.integrals for s in levels]
+        out, lower = np.empty(values[0].size), np.empty(values[0].size)
+        extrapolate(values[3], values[2], values[1], out)
+        extrapolate(values[2], values[1], values[0], lower)
+        estimate = float(np.max(np.abs(out - lower) / _error_scale(out, zeta, area, kappa)) / 8.0)
+        if estimate <= accuracy or intervals > 0:
+            break
+        if 2 * n > max_intervals:
+            raise ConvergenceError(f"rectangle {width:g} x {height:g}, kappa h = {kappa:g}, zeta = {zeta:g} kT/e: "
+                                   f"accuracy {accuracy:g} missed (estimate {estimate:.2g}) with {n} cells per "
+                                   f"direction (max_intervals = {max_intervals})")
+        n *= 2
+        levels = [*levels[1:], _solve_grid(half_w, half_h, betas, n, fv.prolong(levels[-1].psi), physics)]
+    finest = levels[-1]
+    checks = _identities(finest, zeta, kappa, area, perimeter)
+    if max(checks) > IDENTITY_TOLERANCE:
+        raise ConvergenceError(f"rectangle {width:g} x {height:g}: an identity of the scheme failed (charge balance "
+                               f"{checks[0]:.2g}, reciprocity {checks[1]:.2g}, u_eo = psi - zeta {checks[2]:.2g})")
+    return RectangleSection(2 * half_w, 2 * half_h, kappa, zeta, dict(zip(fv.INTEGRALS, out.tolist())), area,
+                            perimeter, finest, n, sum(s.iterations for s in levels), estimate, *checks)

@@ -1,0 +1,229 @@
+"""One grid of the rectangular cross-section: the 2-D finite-volume operator, the Poisson-Boltzmann Newton
+iteration, the Stokes solves and the section integrals (nested grids and error control are in rectangle.py).
+
+Dimensionless as the 1-D solver (``kernels.fv1d``): psi = e phi / kT, lengths in h = min(W, H) / 2, charge
+rho_hat(psi) with laplacian(psi) = -kappa2 rho_hat. The quarter [0, W/2h] x [0, H/2h] is solved, with zero normal
+derivative on the two inner edges (the symmetry planes) and psi = zeta on the two outer ones (the walls).
+
+Vertex-centred finite volumes on a tensor-product grid: each direction is the 1-D half-section grid of
+``kernels.fv1d.finite_volume_metric`` (tanh map clustered at its wall, ``kernels.adaptive.stretching``), the
+cell of node (i, j) the product of the 1-D cells. The 5-point operator L (flux balance of each cell) is
+symmetric and used for Poisson and both Stokes problems alike, so that u_eo = psi - zeta holds to round-off on
+the grid (equal walls, no slip, uniform viscosity) and reciprocity int u_eo = -kappa2 int rho u_p is exact.
+"""
+
+from __future__ import annotations
+
+from dataclasses import dataclass
+
+import numpy as np
+import scipy.sparse as sp
+from scipy.sparse.linalg import splu
+
+from edl_solver.kernels.adaptive import computational_nodes
+from edl_solver.kernels.fv1d import finite_volume_metric
+from edl_solver.kernels.layout import PLANAR
+
+#: Newton stops when a full step is below this (kT/e), as ``kernels.adaptive.NEWTON_TOLERANCE``.
+NEWTON_TOLERANCE = 1e-11
+#: Newton steps are capped at this size (kT/e) before the line search (not for DH), as ``kernels.adaptive``.
+MAX_STEP = 5.0
+#: Newton iterations per grid before the solve counts as failed.
+MAX_ITERATIONS = 100
+
+#: Order of the section integrals (``GridSolution.integrals``), full section, lengths in h:
+#: int psi dA, int u_eo dA, int u_p dA, int rho dA, int rho u_p dA, int rho u_eo dA, the wall flux
+#: (the outward-normal derivative of psi integrated over the perimeter: the total wall charge in units of eps kT/(e h)).
+INTEGRALS = ("psi", "u_eo", "u_p", "rho", "rho_u_p", "rho_u_eo", "wall_flux")
+I_PSI, I_UEO, I_UP, I_RHO, I_RHO_UP, I_RHO_UEO, I_FLUX = range(len(INTEGRALS))
+
+
+@dataclass(frozen=True)
+class Axis:
+    """One direction of the quarter: nodes x from the symmetry plane (0) to the wall (``half_length``), link
+    conductances 1/dx (n), node volumes (n + 1, half cells at both ends) and the stretching beta of the map."""
+
+    x: np.ndarray
+    link: np.ndarray
+    volume: np.ndarray
+    beta: float
+
+
+def axis(half_length: float, intervals: int, beta: float) -> Axis:
+    """The 1-D grid of ``intervals`` cells over [0, half_length], clustered at the wall by the tanh map of
+    stretching ``beta`` (``kernels.fv1d.finite_volume_metric`` in units of the half-length, then rescaled)."""
+    cells = finite_volume_metric(computational_nodes(intervals, True), beta, PLANAR)
+    return Axis(cells.x * half_length, cells.link / half_length, cells.volume * half_length, beta)
+
+
+def _axis_matrix(ax: Axis) -> sp.csr_matrix:
+    """The 1-D flux balance of the n unknown nodes (the wall node excluded): symmetric, the wall link on the
+    diagonal of the last row, no link beyond the symmetry plane."""
+    link = ax.link
+    diag = -link.copy()
+    diag[1:] -= link[:-1]
+    return sp.diags([link[:-1], diag, link[:-1]], [-1, 0, 1], format="csr")
+
+
+@dataclass(frozen=True)
+class Operator:
+    """The 2-D operator on the unknown nodes (all but the walls), in the order index = i * nz + j.
+
+    ``matrix`` is L, the flux balance of each cell; ``wall`` the balance's part from the wall nodes at unit
+    potential (L psi + zeta * wall is the whole balance); ``volume`` the cells' areas; ``diagonal`` |diag L|.
+    """
+
+    y: Axis
+    z: Axis
+    matrix: sp.csc_matrix
+    wall: np.ndarray
+    volume: np.ndarray
+    diagonal: np.ndarray
+
+
+def operator(y: Axis, z: Axis) -> Operator:
+    """The 5-point operator of the tensor-product grid ``y`` x ``z`` (``Operator``)."""
+    vy, vz = y.volume[:-1], z.volume[:-1]
+    ky, kz = _axis_matrix(y), _axis_matrix(z)
+    matrix = (sp.kron(ky, sp.diags(vz)) + sp.kron(sp.diags(vy), kz)).tocsc()
+    wall = np.zeros((vy.size, vz.size))
+    wall[-1, :] += y.link[-1] * vz
+    wall[:, -1] += vy * z.link[-1]
+    return Operator(y, z, matrix, wall.ravel(), np.outer(vy, vz).ravel(), -matrix.diagonal())
+
+
+def charge(psi: np.ndarray, valences: np.ndarray, weights: np.ndarray, dh: bool) -> tuple[np.ndarray, np.ndarray]:
+    """rho_hat(psi) and its derivative: sum_k w_k exp(-z_k psi) (PB) or -psi (DH), as ``kernels.fv1d.charge``."""
+    if dh:
+        return -psi, -np.ones_like(psi)
+    e = np.exp(-np.multiply.outer(psi, valences))
+    return e @ weights, -(e @ (weights * valences))
+
+
+def newton(op: Operator, psi: np.ndarray, zeta: float, kappa2: float, valences: np.ndarray, weights: np.ndarray,
+           dh: bool) -> tuple[int, int]:
+    """Damped Newton iteration for L psi + zeta wall + kappa2 V rho(psi) = 0, in place on ``psi`` (the unknown
+    nodes), as ``kernels.fv1d.pb_newton``: the Jacobian L + kappa2 V rho'(psi) (negative definite) factored by
+    splu each step (once for DH, where it is constant), steps capped at ``MAX_STEP`` and halved until the
+    row-scaled residual decreases.
+
+    Returns
+    -------
+    status : int
+        0 converged (a full step below ``NEWTON_TOLERANCE``), 1 iteration limit, 2 line search failed.
+    iterations : int
+    """
+    def residual(p: np.ndarray) -> tuple[np.ndarray, np.ndarray]:
+        rho, drho = charge(p, valences, weights, dh)
+        return op.matrix @ p + zeta * op.wall + kappa2 * op.volume * rho, kappa2 * op.volume * drho
+
+    res, jac = residual(psi)
+    scale = op.diagonal + np.abs(jac)
+    norm = np.linalg.norm(res / scale)
+    factor = None
+    for it in range(1, MAX_ITERATIONS + 1):
+        if factor is None or not dh:
+            factor = splu((op.matrix + sp.diags(jac)).tocsc())
+        step = factor.solve(-res)
+        biggest = np.max(np.abs(step))
+        if not np.isfinite(biggest):
+            return 2, it
+        if biggest < max(NEWTON_TOLERANCE, 1e-13 * np.max(np.abs(psi))):
+            psi += step
+            return 0, it
+        lam = 1.0 if (biggest <= MAX_STEP or dh) else MAX_STEP / biggest
+        for _ in range(60):
+            trial = psi + lam * step
+            res, jac = residual(trial)
+            new = np.linalg.norm(res / scale)
+            if np.isfinite(new) and new <= (1.0 - 1e-4 * lam) * norm:
+                break
+            lam *= 0.5
+        else:
+            return 2, it
+        psi[:] = trial
+        scale = op.diagonal + np.abs(jac)
+        norm = np.linalg.norm(res / scale)
+    return 1, MAX_ITERATIONS
+
+
+@dataclass(frozen=True)
+class GridSolution:
+    """The solution on one grid: the fields on the quarter's (ny + 1) x (nz + 1) nodes (walls included; index
+    [i, j] at (y[i], z[j])), the section integrals (``INTEGRALS`` order, full section) and Newton's iterations."""
+
+    y: np.ndarray
+    z: np.ndarray
+    psi: np.ndarray
+    u_eo: np.ndarray
+    u_p: np.ndarray
+    integrals: np.ndarray
+    iterations: int
+
+
+def _full(op: Operator, inner: np.ndarray, wall_value: float) -> np.ndarray:
+    """The unknowns as the quarter's node array, with the wall nodes set to ``wall_value``."""
+    ny, nz = op.y.x.size, op.z.x.size
+    out = np.full((ny, nz), wall_value, dtype=float)
+    out[:-1, :-1] = inner.reshape(ny - 1, nz - 1)
+    return out
+
+
+def flows_and_integrals(op: Operator, psi: np.ndarray, zeta: float, kappa2: float, valences: np.ndarray,
+                        weights: np.ndarray, dh: bool, iterations: int) -> GridSolution:
+    """The Stokes solves (L factored once for both right-hand sides; u = 0 on the walls) and the integrals of a
+    converged ``psi`` (the unknown nodes). EO: laplacian u_eo = -kappa2 rho (units eps kT E / (e eta)); pressure:
+    laplacian u_p = 1 (units (dp/dx) h^2 / eta). The wall flux is the wall nodes' cell balances, so that it
+    equals -kappa2 int rho dA up to Newton's residual."""
+    rho, _ = charge(psi, valences, weights, dh)
+    rhs = np.column_stack([kappa2 * op.volume * rho, -op.volume])
+    flows = splu(-op.matrix).solve(rhs)
+    y, z = op.y, op.z
+    grid_psi = _full(op, psi, zeta)
+    u_eo, u_p = _full(op, flows[:, 0], 0.0), _full(op, flows[:, 1], 0.0)
+    grid_rho = charge(grid_psi.ravel(), valences, weights, dh)[0].reshape(grid_psi.shape)
+    dA = np.outer(y.volume, z.volume)
+    out = np.empty(len(INTEGRALS))
+    out[I_PSI] = np.sum(dA * grid_psi)
+    out[I_UEO] = np.sum(dA * u_eo)
+    out[I_UP] = np.sum(dA * u_p)
+    out[I_RHO] = np.sum(dA * grid_rho)
+    out[I_RHO_UP] = np.sum(dA * grid_rho * u_p)
+    out[I_RHO_UEO] = np.sum(dA * grid_rho * u_eo)
+    # wall nodes: sigma = -kappa2 V rho(zeta) - sum over links of a (psi_neighbour - zeta); only the links into
+    # the unknown nodes carry a difference (along a wall, psi = zeta throughout)
+    wall_area = np.sum(dA[-1, :]) + np.sum(dA[:-1, -1])
+    rho_wall = charge(np.array([zeta]), valences, weights, dh)[0][0]
+    inward = (y.link[-1] * np.sum(z.volume[:-1] * (grid_psi[-2, :-1] - zeta))
+              + z.link[-1] * np.sum(y.volume[:-1] * (grid_psi[:-1, -2] - zeta)))
+    out[I_FLUX] = -kappa2 * rho_wall * wall_area - inward
+    out *= 4.0  # the quarter to the full section
+    return GridSolution(y.x, z.x, grid_psi, u_eo, u_p, out, iterations)
+
+
+def prolong(coarse: np.ndarray) -> np.ndarray:
+    """Bilinear interpolation (in grid index) of a node array onto the grid with every interval halved."""
+    def along(a: np.ndarray) -> np.ndarray:
+        fine = np.empty((2 * a.shape[0] - 1, *a.shape[1:]))
+        fine[::2] = a
+        fine[1::2] = 0.5 * (a[:-1] + a[1:])
+        return fine
+
+    return along(along(coarse).T).T
+
+
+def gouy_chapman_start(y: Axis, z: Axis, zeta: float, kappa: float, counter: float) -> np.ndarray:
+    """Start potential on the quarter's nodes: the Gouy-Chapman profile (Gouy 1910; Chapman 1913)
+    g(d) = (4/z) artanh[tanh(z zeta / 4) exp(-kappa d)] of each wall and its mirror, combined as
+    zeta [1 - (1 - g_y / zeta)(1 - g_z / zeta)], which is zeta on every wall."""
+    if zeta == 0.0:
+        return np.zeros((y.x.size, z.x.size))
+    t = np.tanh(counter * zeta / 4.0)
+
+    def fraction(ax: Axis) -> np.ndarray:
+        wall = ax.x[-1]
+        g = sum(np.arctanh(np.clip(t * np.exp(-kappa * d), -1 + 1e-16, 1 - 1e-16)) for d in (wall - ax.x, wall + ax.x))
+        return np.clip(4.0 / counter * g / zeta, 0.0, 1.0)
+
+    fy, fz = fraction(y), fraction(z)
+    return zeta * (1.0 - np.outer(1.0 - fy, 1.0 - fz))
