@@ -51,19 +51,17 @@ def edl_available() -> bool:
 def edl_mean_eo(aspect: float, kappa_h: float, zeta: float, model: str, accuracy: float) -> float:
     """The edl solver's mean EO velocity for one case, in units of eps kT E / (e eta).
 
-    Calls ``edl_solver.model.rectangle.solve_rectangle_section(width, height, debye_length, ions, model,
-    wall_potential, accuracy=accuracy)`` with width = aspect * height, height = 2 h (h = 10 nm), the Debye length
-    h / kappa_h, a 1:1 salt given as (valence, relative concentration) pairs, model "dh" or "pb" and the wall
-    potential zeta * kT/e in volts, and reads the extrapolated mean EO velocity from the returned object's
-    ``mean_eo_velocity`` (dimensionless, as here). Names and units follow the interface announced for issue 13;
-    this function is the one place to change if the merged module differs.
+    Calls ``edl_solver.model.rectangle.solve_rectangle_section(width, height, debye_length, valences,
+    concentrations, model, zeta, accuracy=accuracy)`` with width = aspect * height, height = 2 h (h = 10 nm), the
+    Debye length h / kappa_h, a 1:1 salt, model "dh" or "pb" and zeta in kT/e, and reads the extrapolated
+    ``mean_velocity_eo`` (dimensionless, as here).
     """
     from edl_solver.model import rectangle
 
     height = 2.0 * HALF_SHORT_SIDE
-    out = rectangle.solve_rectangle_section(aspect * height, height, HALF_SHORT_SIDE / kappa_h, ((1, 1.0), (-1, 1.0)),
-                                            model, zeta * THERMAL_VOLTAGE, accuracy=accuracy)
-    return float(out.mean_eo_velocity)
+    out = rectangle.solve_rectangle_section(aspect * height, height, HALF_SHORT_SIDE / kappa_h, (1, -1), (1.0, 1.0),
+                                            model, zeta, accuracy=accuracy)
+    return float(out.mean_velocity_eo)
 
 
 def timed(call, repeats: int) -> float:
