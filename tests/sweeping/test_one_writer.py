@@ -34,6 +34,7 @@ path, gate = sys.argv[1], sys.argv[2]
 solve_rows = sweep_run.solve_rows
 
 def gated(*args, **kwargs):
+    open(gate + ".waiting", "w").close()  # the .partial is laid out: tell the test, then wait
     while not os.path.exists(gate):
         time.sleep(0.01)
     return solve_rows(*args, **kwargs)
@@ -57,9 +58,12 @@ def running_sweep(path: Path) -> Iterator[subprocess.Popen[str]]:
                           stdout=subprocess.PIPE, stderr=subprocess.PIPE, text=True) as process:
         try:
             deadline = time.monotonic() + 120.0
-            while time.monotonic() < deadline and process.poll() is None and not partial.exists():
+            # wait for the child at its gate, not for the .partial to appear: the file exists before its layout
+            # is written, and a stat taken in between saw it change later (a flaky comparison)
+            waiting = gate.with_name(gate.name + ".waiting")
+            while time.monotonic() < deadline and process.poll() is None and not waiting.exists():
                 time.sleep(0.01)
-            assert partial.exists(), f"the sweep did not start: {process.communicate()}"
+            assert waiting.exists() and partial.exists(), f"the sweep did not start: {process.communicate()}"
             yield process
             gate.touch()
             _, err = process.communicate(timeout=120)
