@@ -6,7 +6,7 @@ kT/e, the same wall potential zeta on all four walls. The quarter is solved (``r
 nested tensor-product grids, each halving the spacing of the previous; the section integrals are extrapolated
 (Richardson, h^2 and h^4 removed, ``kernels.adaptive.extrapolate``) from the three finest and from the three
 coarsest, their difference over 8 relative to each integral's size is the error estimate, and the grid is
-doubled until the estimate meets the accuracy, as the 1-D solver does (``kernels.adaptive.solve_adaptive``).
+refined until the estimate meets the accuracy (to the size the estimate predicts, ``_next_intervals``).
 """
 
 from __future__ import annotations
@@ -128,6 +128,35 @@ def _solve_grid(half_w: float, half_h: float, betas: tuple[float, float], interv
     return fv.flows_and_integrals(op, psi, zeta, kappa**2, valences, weights, dh, its)
 
 
+#: Order the extrapolated integrals are taken to converge at when the next grid is chosen (between the corners'
+#: ~4 and the smooth part's 6; a guess too low only over-refines, one too high costs another refinement).
+PREDICTED_ORDER = 5.0
+#: Margin on the predicted grid, so that the estimate there lands below the accuracy rather than just above it.
+PREDICTION_MARGIN = 1.5
+
+
+def _next_intervals(n: int, excess: float, max_intervals: int) -> int:
+    """Cells per direction of the next try after an estimate ``excess`` times the accuracy on ``n`` cells: the
+    grid the observed error predicts (``PREDICTED_ORDER``), at least 1.25 n, a multiple of 2^(LEVELS - 1), at most
+    ``max_intervals``. The estimate is measured again there, so a prediction only decides the cost, never the
+    accuracy. Returns n or less where no larger grid is allowed."""
+    step = 2 ** (LEVELS - 1)
+    wanted = max(1.25 * n, n * (PREDICTION_MARGIN * excess) ** (1.0 / PREDICTED_ORDER))
+    wanted = min(int(np.ceil(wanted / step)) * step, max_intervals // step * step)
+    return 2 * n if n < wanted <= 2 * n and 2 * n <= max_intervals and wanted > 1.75 * n else wanted
+
+
+def _nested(half_w: float, half_h: float, betas: tuple[float, float], n: int, physics: tuple) -> list[GridSolution]:
+    """The LEVELS nested grids of n / 2^(LEVELS - 1), ..., n cells per direction, coarsest first, each Newton
+    starting from the prolonged coarser solution (nested iteration: the fine grids need one or two steps)."""
+    levels: list[GridSolution] = []
+    start = None
+    for level in range(LEVELS):
+        levels.append(_solve_grid(half_w, half_h, betas, n // 2 ** (LEVELS - 1 - level), start, physics))
+        start = fv.prolong(levels[-1].psi)
+    return levels
+
+
 def _identities(sol: GridSolution, zeta: float, kappa: float, area: float, perimeter: float) -> tuple[float, ...]:
     """Charge balance, reciprocity and the pointwise u_eo = psi - zeta of one grid, relative residuals."""
     v = sol.integrals
@@ -193,11 +222,7 @@ def solve_rectangle_section(width: float, height: float, debye_length: float, va
     n = intervals if intervals > 0 else min(starting_intervals(max(betas), accuracy), max_intervals)
     _check("intervals", n, f"a multiple of {2 ** (LEVELS - 1)}", n % 2 ** (LEVELS - 1) == 0)
     area, perimeter = width * height / h**2, 2.0 * (width + height) / h
-    levels: list[GridSolution] = []
-    start = None
-    for level in range(LEVELS):
-        levels.append(_solve_grid(half_w, half_h, betas, n // 2 ** (LEVELS - 1 - level), start, physics))
-        start = fv.prolong(levels[-1].psi)
+    levels = _nested(half_w, half_h, betas, n, physics)
     while True:
         values = [s.integrals for s in levels]
         out, lower = np.empty(values[0].size), np.empty(values[0].size)
@@ -206,12 +231,16 @@ def solve_rectangle_section(width: float, height: float, debye_length: float, va
         estimate = float(np.max(np.abs(out - lower) / _error_scale(out, zeta, area, kappa)) / 8.0)
         if estimate <= accuracy or intervals > 0:
             break
-        if 2 * n > max_intervals:
+        wanted = _next_intervals(n, estimate / accuracy, max_intervals)
+        if wanted <= n:
             raise ConvergenceError(f"rectangle {width:g} x {height:g}, kappa h = {kappa:g}, zeta = {zeta:g} kT/e: "
                                    f"accuracy {accuracy:g} missed (estimate {estimate:.2g}) with {n} cells per "
                                    f"direction (max_intervals = {max_intervals})")
-        n *= 2
-        levels = [*levels[1:], _solve_grid(half_w, half_h, betas, n, fv.prolong(levels[-1].psi), physics)]
+        if wanted == 2 * n:  # the three finest grids are the next set's coarser ones
+            levels = [*levels[1:], _solve_grid(half_w, half_h, betas, wanted, fv.prolong(levels[-1].psi), physics)]
+        else:
+            levels = _nested(half_w, half_h, betas, wanted, physics)
+        n = wanted
     finest = levels[-1]
     checks = _identities(finest, zeta, kappa, area, perimeter)
     if max(checks) > IDENTITY_TOLERANCE:
