@@ -35,10 +35,10 @@ MAX_ITERATIONS = 100
 REUSE_STEP = 1e-3
 
 
-def factor(matrix: sp.spmatrix):
+def factor(matrix: sp.csc_matrix):
     """Sparse LU of a symmetric 5-point matrix: a minimum-degree ordering of A^T + A (about half the fill of the
     default column ordering on these grids) and the diagonal pivots (the matrices are definite)."""
-    return splu(sp.csc_matrix(matrix), permc_spec="MMD_AT_PLUS_A", diag_pivot_thresh=0.0,
+    return splu(matrix, permc_spec="MMD_AT_PLUS_A", diag_pivot_thresh=0.0,
                 options={"SymmetricMode": True})
 
 #: Order of the section integrals (``GridSolution.integrals``), full section, lengths in h:
@@ -80,7 +80,8 @@ class Operator:
     """The 2-D operator on the unknown nodes (all but the walls), in the order index = i * nz + j.
 
     ``matrix`` is L, the flux balance of each cell; ``wall`` the balance's part from the wall nodes at unit
-    potential (L psi + zeta * wall is the whole balance); ``volume`` the cells' areas; ``diagonal`` |diag L|.
+    potential (L psi + zeta * wall is the whole balance); ``volume`` the cells' areas; ``diagonal`` |diag L|;
+    ``diagonal_index`` where the diagonal sits in ``matrix.data`` (Jacobians are L with its diagonal shifted).
     """
 
     y: Axis
@@ -89,6 +90,13 @@ class Operator:
     wall: np.ndarray
     volume: np.ndarray
     diagonal: np.ndarray
+    diagonal_index: np.ndarray
+
+    def shifted(self, shift: np.ndarray) -> sp.csc_matrix:
+        """L + diag(shift), on L's own sparsity structure (no sparse addition)."""
+        data = self.matrix.data.copy()
+        data[self.diagonal_index] += shift
+        return sp.csc_matrix((data, self.matrix.indices, self.matrix.indptr), shape=self.matrix.shape)
 
 
 def operator(y: Axis, z: Axis) -> Operator:
@@ -99,7 +107,11 @@ def operator(y: Axis, z: Axis) -> Operator:
     wall = np.zeros((vy.size, vz.size))
     wall[-1, :] += y.link[-1] * vz
     wall[:, -1] += vy * z.link[-1]
-    return Operator(y, z, matrix, wall.ravel(), np.outer(vy, vz).ravel(), -matrix.diagonal())
+    matrix.sort_indices()
+    rows = matrix.indices
+    columns = np.repeat(np.arange(matrix.shape[1]), np.diff(matrix.indptr))
+    index = np.flatnonzero(rows == columns)
+    return Operator(y, z, matrix, wall.ravel(), np.outer(vy, vz).ravel(), -matrix.data[index], index)
 
 
 def charge(psi: np.ndarray, valences: np.ndarray, weights: np.ndarray, dh: bool) -> tuple[np.ndarray, np.ndarray]:
@@ -133,7 +145,7 @@ def newton(op: Operator, psi: np.ndarray, zeta: float, kappa2: float, valences: 
     lu, last = None, np.inf
     for it in range(1, MAX_ITERATIONS + 1):
         if lu is None or (not dh and last > REUSE_STEP):
-            lu = factor(op.matrix + sp.diags(jac))
+            lu = factor(op.shifted(jac))
         step = lu.solve(-res)
         biggest = last = np.max(np.abs(step))
         if not np.isfinite(biggest):
