@@ -30,9 +30,10 @@ NEWTON_TOLERANCE = 1e-11
 MAX_STEP = 5.0
 #: Newton iterations per grid before the solve counts as failed.
 MAX_ITERATIONS = 100
-#: Below this step (kT/e) the Jacobian is kept (chord steps): its change is then far below its size, so the steps
-#: still contract by orders of magnitude each, and a factorisation (most of a solve's time) is saved.
-REUSE_STEP = 1e-3
+#: Below this step (kT/e) the Jacobian is kept (chord steps): it then changes by about z * step of its charge part
+#: (rho' ~ cosh psi), so the chord steps still contract by a factor of ten or more each, and the factorisations,
+#: most of a solve's time, are saved for the large steps.
+REUSE_STEP = 0.05
 
 
 def factor(matrix: sp.csc_matrix):
