@@ -67,13 +67,32 @@ def axis(half_length: float, intervals: int, beta: float) -> Axis:
     return Axis(cells.x * half_length, cells.link / half_length, cells.volume * half_length, beta)
 
 
-def _axis_matrix(ax: Axis) -> sp.csr_matrix:
-    """The 1-D flux balance of the n unknown nodes (the wall node excluded): symmetric, the wall link on the
-    diagonal of the last row, no link beyond the symmetry plane."""
-    link = ax.link
-    diag = -link.copy()
-    diag[1:] -= link[:-1]
-    return sp.diags([link[:-1], diag, link[:-1]], [-1, 0, 1], format="csr")
+def _axis_diagonal(ax: Axis) -> np.ndarray:
+    """Diagonal of the 1-D flux balance of the n unknown nodes (the wall node excluded): the wall link on the last
+    row, no link beyond the symmetry plane; the off-diagonals are the links themselves."""
+    diag = -ax.link.copy()
+    diag[1:] -= ax.link[:-1]
+    return diag
+
+
+def _five_point(y: Axis, z: Axis) -> tuple[sp.csc_matrix, np.ndarray]:
+    """K_y x V_z + V_y x K_z (the 1-D balances times the other direction's volumes) assembled straight into CSC
+    arrays (symmetric, so column c holds row c: neighbours (i-1, j), (i, j-1), (i, j), (i, j+1), (i+1, j) in row
+    order), and the positions of the diagonal in its data."""
+    ny, nz = y.link.size, z.link.size
+    vy, vz = y.volume[:-1], z.volume[:-1]
+    i, j = np.divmod(np.arange(ny * nz), nz)
+    values = np.zeros((ny * nz, 5))
+    rows = np.arange(ny * nz)[:, None] + np.array([-nz, -1, 0, 1, nz])
+    present = np.column_stack([i > 0, j > 0, np.ones(i.size, bool), j < nz - 1, i < ny - 1])
+    values[:, 0] = y.link[np.maximum(i - 1, 0)] * vz[j]
+    values[:, 1] = vy[i] * z.link[np.maximum(j - 1, 0)]
+    values[:, 2] = _axis_diagonal(y)[i] * vz[j] + vy[i] * _axis_diagonal(z)[j]
+    values[:, 3] = vy[i] * z.link[j]
+    values[:, 4] = y.link[i] * vz[j]
+    indptr = np.concatenate([[0], np.cumsum(present.sum(axis=1))])
+    matrix = sp.csc_matrix((values[present], rows[present], indptr), shape=(ny * nz, ny * nz))
+    return matrix, indptr[:-1] + present[:, :2].sum(axis=1)
 
 
 @dataclass(frozen=True)
@@ -103,15 +122,10 @@ class Operator:
 def operator(y: Axis, z: Axis) -> Operator:
     """The 5-point operator of the tensor-product grid ``y`` x ``z`` (``Operator``)."""
     vy, vz = y.volume[:-1], z.volume[:-1]
-    ky, kz = _axis_matrix(y), _axis_matrix(z)
-    matrix = (sp.kron(ky, sp.diags(vz)) + sp.kron(sp.diags(vy), kz)).tocsc()
+    matrix, index = _five_point(y, z)
     wall = np.zeros((vy.size, vz.size))
     wall[-1, :] += y.link[-1] * vz
     wall[:, -1] += vy * z.link[-1]
-    matrix.sort_indices()
-    rows = matrix.indices
-    columns = np.repeat(np.arange(matrix.shape[1]), np.diff(matrix.indptr))
-    index = np.flatnonzero(rows == columns)
     return Operator(y, z, matrix, wall.ravel(), np.outer(vy, vz).ravel(), -matrix.data[index], index)
 
 
