@@ -14,11 +14,25 @@ from __future__ import annotations
 from dataclasses import dataclass
 
 import numpy as np
+from scipy.optimize import brentq
 
 from edl_solver.errors import ConvergenceError, InputError
 from edl_solver.kernels.adaptive import LEVELS, extrapolate, inner_length, starting_intervals, stretching
 from edl_solver.model import rectangle_grid as fv
-from edl_solver.model.rectangle_grid import I_FLUX, I_PSI, I_RHO, I_RHO_UEO, I_RHO_UP, I_UEO, I_UP, GridSolution
+from edl_solver.model.rectangle_grid import (
+    I_CORNER,
+    I_FLUX,
+    I_MID_Y,
+    I_MID_Z,
+    I_PSI,
+    I_RHO,
+    I_RHO_UEO,
+    I_RHO_UP,
+    I_UEO,
+    I_UP,
+    I_WALL,
+    GridSolution,
+)
 
 #: Discrete identities (charge balance, reciprocity, u_eo = psi - zeta) hold to round-off and Newton's residual
 #: in this scheme; beyond this a solve is declared failed rather than returned (as ``kernels.identities``).
@@ -40,7 +54,7 @@ class RectangleSection:
     kappa : float
         kappa h.
     zeta : float
-        The wall potential.
+        The wall potential (charged walls: its mean over the perimeter, an output).
     integrals : dict
         Extrapolated full-section integrals (``rectangle_grid.INTEGRALS``): ``psi`` int psi dA, ``u_eo`` int u_eo dA
         (the EO flow rate per unit field, units eps kT h^2 / (e eta)), ``u_p`` int u_p dA (the pressure flow per
@@ -76,6 +90,15 @@ class RectangleSection:
     charge_balance: float
     reciprocity: float
     eo_identity: float
+    charge_density: float | None = None
+
+    @property
+    def wall_potentials(self) -> dict[str, float]:
+        """The wall potential (kT/e): ``mean`` over the perimeter, at the ``corner``, and mid-way along the walls
+        ``y = W/2`` (``mid_y``) and ``z = H/2`` (``mid_z``), all extrapolated; zeta throughout on zeta walls."""
+        v = self.integrals
+        return {"mean": v["wall_psi"] / self.perimeter, "corner": v["psi_corner"], "mid_y": v["psi_mid_y"],
+                "mid_z": v["psi_mid_z"]}
 
     @property
     def mean_velocity_eo(self) -> float:
@@ -88,12 +111,29 @@ class RectangleSection:
         return self.integrals["psi"] / self.area
 
 
+def grahame_potential(sigma: float, kappa: float, valences: np.ndarray, strengths: np.ndarray, dh: bool) -> float:
+    """Potential (kT/e) of an isolated flat wall of charge sigma_hat (Grahame 1947, from memory; as
+    ``kernels.walls.isolated_charge``): sigma_hat = sign(psi) kappa sqrt(2 sum_k q_k (exp(-z_k psi) - 1)), q_k =
+    c_k / sum z^2 c (``strengths``); DH: sigma_hat = kappa psi. Bisection-safe root (brentq) on a doubling bracket."""
+    if dh or sigma == 0.0:
+        return sigma / kappa
+
+    def mismatch(psi: float) -> float:
+        pressure = max(float(strengths @ np.expm1(-valences * psi)), 0.0)
+        return float(np.copysign(kappa * np.sqrt(2.0 * pressure), psi)) - sigma
+
+    bound = np.copysign(1.0, sigma)
+    while mismatch(bound) * np.sign(sigma) < 0:
+        bound *= 2.0
+    return float(brentq(mismatch, 0.0, bound, xtol=1e-14, rtol=1e-14))
+
+
 def _check(name: str, value: float, expected: str, ok: bool) -> None:
     if not ok:
         raise InputError(f"{name} = {value!r}: expected {expected}")
 
 
-def _error_scale(values: np.ndarray, zeta: float, area: float, kappa: float) -> np.ndarray:
+def _error_scale(values: np.ndarray, zeta: float, area: float, kappa: float, perimeter: float) -> np.ndarray:
     """Magnitudes the integrals' errors are measured against: each its own size, floored at a tiny fraction of
     its natural size (as ``kernels.adaptive.error_scale``), so that a vanishing value does not refine for ever."""
     psi_small = max(VANISHING * abs(zeta), POTENTIAL_FLOOR)
@@ -107,25 +147,31 @@ def _error_scale(values: np.ndarray, zeta: float, area: float, kappa: float) -> 
     floors[I_RHO_UP] = space_small * up_scale
     floors[I_RHO_UEO] = space_small * abs(zeta)
     floors[I_FLUX] = charge_small
+    floors[I_WALL] = psi_small * perimeter
+    floors[[I_CORNER, I_MID_Y, I_MID_Z]] = psi_small
     return np.maximum(np.abs(values), np.maximum(floors, 1e-300))
 
 
 def _solve_grid(half_w: float, half_h: float, betas: tuple[float, float], intervals: int, start: np.ndarray | None,
                 physics: tuple) -> GridSolution:
     """One grid of ``intervals`` cells per direction, Newton from ``start`` (quarter node array) or, if None, from
-    the Gouy-Chapman start."""
-    zeta, kappa, valences, weights, dh, counter = physics
+    the Gouy-Chapman start (of the wall potential guess on charged walls)."""
+    zeta, kappa, valences, weights, dh, counter, sigma = physics
     y, z = fv.axis(half_w, intervals, betas[0]), fv.axis(half_h, intervals, betas[1])
     op = fv.operator(y, z)
     if start is None:
         start = fv.gouy_chapman_start(y, z, zeta, kappa, counter)
-    psi = start[:-1, :-1].ravel().copy()
-    status, its = fv.newton(op, psi, zeta, kappa**2, valences, weights, dh)
+    charged = sigma is not None
+    psi = (start if charged else start[:-1, :-1]).ravel().copy()
+    poisson = fv.operator(y, z, walls=True) if charged else op
+    status, its = fv.newton(poisson, psi, sigma if charged else zeta, kappa**2, valences, weights, dh)
     if status != 0:
         why = "the iteration limit was reached" if status == 1 else "the line search failed"
+        wall = f"sigma_hat = {sigma:g}" if charged else f"zeta = {zeta:g} kT/e"
         raise ConvergenceError(f"rectangle {2 * half_w:g} x {2 * half_h:g} h, kappa h = {kappa:g}, "
-                               f"zeta = {zeta:g} kT/e: Newton failed on the {intervals} x {intervals} grid ({why})")
-    return fv.flows_and_integrals(op, psi, zeta, kappa**2, valences, weights, dh, its)
+                               f"{wall}: Newton failed on the {intervals} x {intervals} grid ({why})")
+    grid_psi = psi.reshape(start.shape) if charged else fv.full_nodes(op, psi, zeta)
+    return fv.flows_and_integrals(op, grid_psi, kappa**2, valences, weights, dh, its, sigma)
 
 
 #: Order the extrapolated integrals are taken to converge at when the next grid is chosen (between the corners'
@@ -157,21 +203,46 @@ def _nested(half_w: float, half_h: float, betas: tuple[float, float], n: int, ph
     return levels
 
 
-def _identities(sol: GridSolution, zeta: float, kappa: float, area: float, perimeter: float) -> tuple[float, ...]:
-    """Charge balance, reciprocity and the pointwise u_eo = psi - zeta of one grid, relative residuals."""
+def _identities(sol: GridSolution, zeta: float, kappa: float, area: float, perimeter: float,
+                charged: bool) -> tuple[float, ...]:
+    """Charge balance, reciprocity and the pointwise u_eo = psi - zeta (zeta walls; 0 on charged walls) of one
+    grid, relative residuals."""
     v = sol.integrals
     wall = abs(v[I_FLUX]) + POTENTIAL_FLOOR * max(1.0, kappa) * perimeter
     balance = abs(v[I_FLUX] + kappa**2 * v[I_RHO]) / wall
     streaming = -kappa**2 * v[I_RHO_UP]
     size = max(abs(v[I_UEO]), abs(streaming), max(abs(zeta), POTENTIAL_FLOOR) * area, 1e-300)
     reciprocity = abs(v[I_UEO] - streaming) / size
+    if charged:  # the wall potential is not uniform: u_eo = psi - psi_wall holds nowhere in particular
+        return balance, reciprocity, 0.0
     eo = np.max(np.abs(sol.u_eo - (sol.psi - zeta))) / max(abs(zeta), POTENTIAL_FLOOR)
     return balance, reciprocity, eo
 
 
+def _validate(width: float, height: float, debye_length: float, z_k: np.ndarray, c_k: np.ndarray, model: str,
+              zeta: float | None, charge_density: float | None, accuracy: float) -> float:
+    """InputError for a field out of range (``solve_rectangle_section``); returns zeta (0 if not given)."""
+    for name, value in (("width", width), ("height", height), ("debye_length", debye_length)):
+        _check(name, value, "a positive finite length", np.isfinite(value) and value > 0)
+    _check("valences", list(z_k), "nonzero valences of both signs, one per concentration",
+           z_k.size == c_k.size and z_k.size >= 2 and np.all(z_k != 0) and z_k.min() < 0 < z_k.max())
+    _check("concentrations", list(c_k), "positive and electroneutral (sum z c = 0)",
+           np.all(c_k > 0) and abs(z_k @ c_k) <= 1e-9 * (np.abs(z_k) @ c_k))
+    _check("model", model, '"pb" or "dh"', model in ("pb", "dh"))
+    if charge_density is not None:
+        _check("zeta", zeta, "None when charge_density is given (one wall condition)", zeta is None)
+        _check("charge_density", charge_density, "a finite dimensionless charge density",
+               np.isfinite(charge_density))
+    zeta = 0.0 if zeta is None else zeta
+    _check("zeta", zeta, "a finite potential in kT/e", np.isfinite(zeta))
+    _check("accuracy", accuracy, "a number in [1e-13, 0.1]", 1e-13 <= accuracy <= 0.1)
+    return zeta
+
+
 def solve_rectangle_section(width: float, height: float, debye_length: float, valences, concentrations,
-                            model: str = "pb", zeta: float = 0.0, accuracy: float = 1e-6,
-                            max_intervals: int = 512, intervals: int = 0) -> RectangleSection:
+                            model: str = "pb", zeta: float | None = None, accuracy: float = 1e-6,
+                            max_intervals: int = 512, intervals: int = 0,
+                            charge_density: float | None = None) -> RectangleSection:
     """Solve the double layer and the EO and pressure-driven flow across a W x H rectangle.
 
     Parameters
@@ -185,13 +256,17 @@ def solve_rectangle_section(width: float, height: float, debye_length: float, va
     model : {"pb", "dh"}
         Poisson-Boltzmann or its Debye-Hueckel linearisation.
     zeta : float
-        Wall potential in kT/e, the same on all four walls.
+        Wall potential in kT/e, the same on all four walls (0 if neither it nor ``charge_density`` is given).
     accuracy : float
         Relative accuracy every integral is refined to (estimated as in the 1-D solver).
     max_intervals : int
         Largest number of cells per direction of the quarter; ConvergenceError beyond.
     intervals : int
         If > 0, the finest grid's cells per direction, fixed (no refinement; the estimate is still returned).
+    charge_density : float, optional
+        Instead of ``zeta``: the walls' charge density sigma_hat = sigma h e / (eps kT), the same on all four walls
+        (the outward-normal derivative of psi; ``kernels.walls.dimensionless_wall``'s scaling with lengths in h).
+        The wall potential is then an output (``RectangleSection.wall_potentials``).
 
     Raises
     ------
@@ -200,21 +275,15 @@ def solve_rectangle_section(width: float, height: float, debye_length: float, va
         or an identity of the scheme failed.
     """
     z_k, c_k = np.asarray(valences, float), np.asarray(concentrations, float)
-    for name, value in (("width", width), ("height", height), ("debye_length", debye_length)):
-        _check(name, value, "a positive finite length", np.isfinite(value) and value > 0)
-    _check("valences", list(z_k), "nonzero valences of both signs, one per concentration",
-           z_k.size == c_k.size and z_k.size >= 2 and np.all(z_k != 0) and z_k.min() < 0 < z_k.max())
-    _check("concentrations", list(c_k), "positive and electroneutral (sum z c = 0)",
-           np.all(c_k > 0) and abs(z_k @ c_k) <= 1e-9 * (np.abs(z_k) @ c_k))
-    _check("model", model, '"pb" or "dh"', model in ("pb", "dh"))
-    _check("zeta", zeta, "a finite potential in kT/e", np.isfinite(zeta))
-    _check("accuracy", accuracy, "a number in [1e-13, 0.1]", 1e-13 <= accuracy <= 0.1)
+    zeta = _validate(width, height, debye_length, z_k, c_k, model, zeta, charge_density, accuracy)
     zeta = float(zeta)  # an integer zeta would make integer node arrays
     h = 0.5 * min(width, height)
     half_w, half_h, kappa = 0.5 * width / h, 0.5 * height / h, h / debye_length
     weights = z_k * c_k / (z_k**2 @ c_k)
+    sigma = None if charge_density is None else float(charge_density)  # charged: the isolated wall's potential
+    zeta = zeta if sigma is None else grahame_potential(sigma, kappa, z_k, c_k / (z_k**2 @ c_k), model == "dh")
     counter = float(z_k.max() if zeta < 0 else -z_k.min())
-    physics = (zeta, kappa, z_k, weights, model == "dh", counter)
+    physics = (zeta, kappa, z_k, weights, model == "dh", counter, sigma)
     # the layer's smallest scale: a linear (DH) layer has only the Debye length, whatever its wall potential
     wall_guess = np.full(2, 0.0 if model == "dh" else zeta)
     inner = inner_length(kappa**2, wall_guess, np.array([counter, counter]))
@@ -228,7 +297,7 @@ def solve_rectangle_section(width: float, height: float, debye_length: float, va
         out, lower = np.empty(values[0].size), np.empty(values[0].size)
         extrapolate(values[3], values[2], values[1], out)
         extrapolate(values[2], values[1], values[0], lower)
-        estimate = float(np.max(np.abs(out - lower) / _error_scale(out, zeta, area, kappa)) / 8.0)
+        estimate = float(np.max(np.abs(out - lower) / _error_scale(out, zeta, area, kappa, perimeter)) / 8.0)
         if estimate <= accuracy or intervals > 0:
             break
         wanted = _next_intervals(n, estimate / accuracy, max_intervals)
@@ -242,9 +311,11 @@ def solve_rectangle_section(width: float, height: float, debye_length: float, va
             levels = _nested(half_w, half_h, betas, wanted, physics)
         n = wanted
     finest = levels[-1]
-    checks = _identities(finest, zeta, kappa, area, perimeter)
+    checks = _identities(finest, zeta, kappa, area, perimeter, sigma is not None)
     if max(checks) > IDENTITY_TOLERANCE:
         raise ConvergenceError(f"rectangle {width:g} x {height:g}: an identity of the scheme failed (charge balance "
                                f"{checks[0]:.2g}, reciprocity {checks[1]:.2g}, u_eo = psi - zeta {checks[2]:.2g})")
-    return RectangleSection(2 * half_w, 2 * half_h, kappa, zeta, dict(zip(fv.INTEGRALS, out.tolist())), area,
-                            perimeter, finest, n, sum(s.iterations for s in levels), estimate, *checks)
+    integrals = dict(zip(fv.INTEGRALS, out.tolist()))
+    zeta = zeta if sigma is None else integrals["wall_psi"] / perimeter
+    return RectangleSection(2 * half_w, 2 * half_h, kappa, zeta, integrals, area, perimeter, finest, n,
+                            sum(s.iterations for s in levels), estimate, *checks, sigma)

@@ -3,7 +3,9 @@ iteration, the Stokes solves and the section integrals (nested grids and error c
 
 Dimensionless as the 1-D solver (``kernels.fv1d``): psi = e phi / kT, lengths in h = min(W, H) / 2, charge
 rho_hat(psi) with laplacian(psi) = -kappa2 rho_hat. The quarter [0, W/2h] x [0, H/2h] is solved, with zero normal
-derivative on the two inner edges (the symmetry planes) and psi = zeta on the two outer ones (the walls).
+derivative on the two inner edges (the symmetry planes) and on the two outer ones (the walls) either psi = zeta
+or a given outward-normal derivative sigma_hat (charged walls: Gauss, the wall nodes' balances take sigma_hat times
+their wall faces, as ``kernels.fv1d`` does at a charged end).
 
 Vertex-centred finite volumes on a tensor-product grid: each direction is the 1-D half-section grid of
 ``kernels.fv1d.finite_volume_metric`` (tanh map clustered at its wall, ``kernels.adaptive.stretching``), the
@@ -45,8 +47,11 @@ def factor(matrix: sp.csc_matrix):
 #: Order of the section integrals (``GridSolution.integrals``), full section, lengths in h:
 #: int psi dA, int u_eo dA, int u_p dA, int rho dA, int rho u_p dA, int rho u_eo dA, the wall flux
 #: (the outward-normal derivative of psi integrated over the perimeter: the total wall charge in units of eps kT/(e h)).
-INTEGRALS = ("psi", "u_eo", "u_p", "rho", "rho_u_p", "rho_u_eo", "wall_flux")
-I_PSI, I_UEO, I_UP, I_RHO, I_RHO_UP, I_RHO_UEO, I_FLUX = range(len(INTEGRALS))
+#: Then the wall potential: int psi ds over the perimeter, and psi at the corner, mid-way along the walls y = W/2
+#: and z = H/2 (nodes every grid shares, so they extrapolate as the integrals do; zeta throughout on zeta walls).
+INTEGRALS = ("psi", "u_eo", "u_p", "rho", "rho_u_p", "rho_u_eo", "wall_flux", "wall_psi", "psi_corner",
+             "psi_mid_y", "psi_mid_z")
+I_PSI, I_UEO, I_UP, I_RHO, I_RHO_UP, I_RHO_UEO, I_FLUX, I_WALL, I_CORNER, I_MID_Y, I_MID_Z = range(len(INTEGRALS))
 
 
 @dataclass(frozen=True)
@@ -67,29 +72,31 @@ def axis(half_length: float, intervals: int, beta: float) -> Axis:
     return Axis(cells.x * half_length, cells.link / half_length, cells.volume * half_length, beta)
 
 
-def _axis_diagonal(ax: Axis) -> np.ndarray:
-    """Diagonal of the 1-D flux balance of the n unknown nodes (the wall node excluded): the wall link on the last
-    row, no link beyond the symmetry plane; the off-diagonals are the links themselves."""
-    diag = -ax.link.copy()
-    diag[1:] -= ax.link[:-1]
+def _axis_diagonal(ax: Axis, walls: bool) -> np.ndarray:
+    """Diagonal of the 1-D flux balance of the unknown nodes: without ``walls`` the n nodes before the wall (the
+    wall link on the last row), with them all n + 1 (no link beyond the wall: its flux is given); no link beyond
+    the symmetry plane; the off-diagonals are the links themselves."""
+    diag = np.zeros(ax.link.size + walls)
+    diag[: ax.link.size] -= ax.link
+    diag[1:] -= ax.link[: diag.size - 1]
     return diag
 
 
-def _five_point(y: Axis, z: Axis) -> tuple[sp.csc_matrix, np.ndarray]:
+def _five_point(y: Axis, z: Axis, walls: bool = False) -> tuple[sp.csc_matrix, np.ndarray]:
     """K_y x V_z + V_y x K_z (the 1-D balances times the other direction's volumes) assembled straight into CSC
     arrays (symmetric, so column c holds row c: neighbours (i-1, j), (i, j-1), (i, j), (i, j+1), (i+1, j) in row
-    order), and the positions of the diagonal in its data."""
-    ny, nz = y.link.size, z.link.size
-    vy, vz = y.volume[:-1], z.volume[:-1]
+    order), and the positions of the diagonal in its data. ``walls``: the wall nodes are unknowns too."""
+    ny, nz = y.link.size + walls, z.link.size + walls
+    vy, vz = y.volume[:ny], z.volume[:nz]
     i, j = np.divmod(np.arange(ny * nz), nz)
     values = np.zeros((ny * nz, 5))
     rows = np.arange(ny * nz)[:, None] + np.array([-nz, -1, 0, 1, nz])
     present = np.column_stack([i > 0, j > 0, np.ones(i.size, bool), j < nz - 1, i < ny - 1])
     values[:, 0] = y.link[np.maximum(i - 1, 0)] * vz[j]
     values[:, 1] = vy[i] * z.link[np.maximum(j - 1, 0)]
-    values[:, 2] = _axis_diagonal(y)[i] * vz[j] + vy[i] * _axis_diagonal(z)[j]
-    values[:, 3] = vy[i] * z.link[j]
-    values[:, 4] = y.link[i] * vz[j]
+    values[:, 2] = _axis_diagonal(y, walls)[i] * vz[j] + vy[i] * _axis_diagonal(z, walls)[j]
+    values[:, 3] = vy[i] * z.link[np.minimum(j, nz - 2)]
+    values[:, 4] = y.link[np.minimum(i, ny - 2)] * vz[j]
     indptr = np.concatenate([[0], np.cumsum(present.sum(axis=1))])
     matrix = sp.csc_matrix((values[present], rows[present], indptr), shape=(ny * nz, ny * nz))
     return matrix, indptr[:-1] + present[:, :2].sum(axis=1)
@@ -99,8 +106,10 @@ def _five_point(y: Axis, z: Axis) -> tuple[sp.csc_matrix, np.ndarray]:
 class Operator:
     """The 2-D operator on the unknown nodes (all but the walls), in the order index = i * nz + j.
 
-    ``matrix`` is L, the flux balance of each cell; ``wall`` the balance's part from the wall nodes at unit
-    potential (L psi + zeta * wall is the whole balance); ``volume`` the cells' areas; ``diagonal`` |diag L|;
+    ``matrix`` is L, the flux balance of each cell; ``wall`` the balance's part from the walls at unit value
+    (L psi + value * wall is the whole balance): zeta walls, the wall nodes at unit potential; charged walls
+    (``walls``, the wall nodes unknowns too), a unit outward-normal derivative of psi on each wall node's wall
+    faces (their lengths); ``volume`` the cells' areas; ``diagonal`` |diag L|;
     ``diagonal_index`` where the diagonal sits in ``matrix.data`` (Jacobians are L with its diagonal shifted).
     """
 
@@ -111,6 +120,7 @@ class Operator:
     volume: np.ndarray
     diagonal: np.ndarray
     diagonal_index: np.ndarray
+    walls: bool = False
 
     def shifted(self, shift: np.ndarray) -> sp.csc_matrix:
         """L + diag(shift), on L's own sparsity structure (no sparse addition)."""
@@ -119,14 +129,16 @@ class Operator:
         return sp.csc_matrix((data, self.matrix.indices, self.matrix.indptr), shape=self.matrix.shape)
 
 
-def operator(y: Axis, z: Axis) -> Operator:
-    """The 5-point operator of the tensor-product grid ``y`` x ``z`` (``Operator``)."""
-    vy, vz = y.volume[:-1], z.volume[:-1]
-    matrix, index = _five_point(y, z)
+def operator(y: Axis, z: Axis, walls: bool = False) -> Operator:
+    """The 5-point operator of the tensor-product grid ``y`` x ``z`` (``Operator``); ``walls``: with the wall nodes
+    as unknowns (charged walls, their flux given)."""
+    end = None if walls else -1
+    vy, vz = y.volume[:end], z.volume[:end]
+    matrix, index = _five_point(y, z, walls)
     wall = np.zeros((vy.size, vz.size))
-    wall[-1, :] += y.link[-1] * vz
-    wall[:, -1] += vy * z.link[-1]
-    return Operator(y, z, matrix, wall.ravel(), np.outer(vy, vz).ravel(), -matrix.data[index], index)
+    wall[-1, :] += vz if walls else y.link[-1] * vz
+    wall[:, -1] += vy if walls else vy * z.link[-1]
+    return Operator(y, z, matrix, wall.ravel(), np.outer(vy, vz).ravel(), -matrix.data[index], index, walls)
 
 
 def charge(psi: np.ndarray, valences: np.ndarray, weights: np.ndarray, dh: bool) -> tuple[np.ndarray, np.ndarray]:
@@ -137,10 +149,11 @@ def charge(psi: np.ndarray, valences: np.ndarray, weights: np.ndarray, dh: bool)
     return e @ weights, -(e @ (weights * valences))
 
 
-def newton(op: Operator, psi: np.ndarray, zeta: float, kappa2: float, valences: np.ndarray, weights: np.ndarray,
+def newton(op: Operator, psi: np.ndarray, value: float, kappa2: float, valences: np.ndarray, weights: np.ndarray,
            dh: bool) -> tuple[int, int]:
-    """Damped Newton iteration for L psi + zeta wall + kappa2 V rho(psi) = 0, in place on ``psi`` (the unknown
-    nodes), as ``kernels.fv1d.pb_newton``: the Jacobian L + kappa2 V rho'(psi) (negative definite) factored by
+    """Damped Newton iteration for L psi + value wall + kappa2 V rho(psi) = 0, in place on ``psi`` (the unknown
+    nodes; ``value`` zeta or, on charged walls, sigma_hat), as ``kernels.fv1d.pb_newton``: the Jacobian
+    L + kappa2 V rho'(psi) (negative definite) factored by
     sparse LU each step (once for DH, where it is constant; kept once the steps are below ``REUSE_STEP``), steps
     capped at ``MAX_STEP`` and halved until the row-scaled residual decreases.
 
@@ -152,7 +165,7 @@ def newton(op: Operator, psi: np.ndarray, zeta: float, kappa2: float, valences: 
     """
     def residual(p: np.ndarray) -> tuple[np.ndarray, np.ndarray]:
         rho, drho = charge(p, valences, weights, dh)
-        return op.matrix @ p + zeta * op.wall + kappa2 * op.volume * rho, kappa2 * op.volume * drho
+        return op.matrix @ p + value * op.wall + kappa2 * op.volume * rho, kappa2 * op.volume * drho
 
     res, jac = residual(psi)
     scale = op.diagonal + np.abs(jac)
@@ -198,7 +211,7 @@ class GridSolution:
     iterations: int
 
 
-def _full(op: Operator, inner: np.ndarray, wall_value: float) -> np.ndarray:
+def full_nodes(op: Operator, inner: np.ndarray, wall_value: float) -> np.ndarray:
     """The unknowns as the quarter's node array, with the wall nodes set to ``wall_value``."""
     ny, nz = op.y.x.size, op.z.x.size
     out = np.full((ny, nz), wall_value, dtype=float)
@@ -206,19 +219,19 @@ def _full(op: Operator, inner: np.ndarray, wall_value: float) -> np.ndarray:
     return out
 
 
-def flows_and_integrals(op: Operator, psi: np.ndarray, zeta: float, kappa2: float, valences: np.ndarray,
-                        weights: np.ndarray, dh: bool, iterations: int) -> GridSolution:
-    """The Stokes solves (L factored once for both right-hand sides; u = 0 on the walls) and the integrals of a
-    converged ``psi`` (the unknown nodes). EO: laplacian u_eo = -kappa2 rho (units eps kT E / (e eta)); pressure:
-    laplacian u_p = 1 (units (dp/dx) h^2 / eta). The wall flux is the wall nodes' cell balances, so that it
-    equals -kappa2 int rho dA up to Newton's residual."""
-    rho, _ = charge(psi, valences, weights, dh)
-    rhs = np.column_stack([kappa2 * op.volume * rho, -op.volume])
-    flows = factor(-op.matrix).solve(rhs)
+def flows_and_integrals(op: Operator, grid_psi: np.ndarray, kappa2: float, valences: np.ndarray,
+                        weights: np.ndarray, dh: bool, iterations: int, sigma: float | None = None) -> GridSolution:
+    """The Stokes solves (L of the zeta-wall ``op`` factored once for both right-hand sides; u = 0 on the walls)
+    and the integrals of a converged ``grid_psi`` (the quarter's node array, walls included). EO: laplacian u_eo =
+    -kappa2 rho (units eps kT E / (e eta)); pressure: laplacian u_p = 1 (units (dp/dx) h^2 / eta). On zeta walls
+    (``sigma`` None) the wall flux is the wall nodes' cell balances, so that it equals -kappa2 int rho dA up to
+    Newton's residual; on charged walls it is sigma_hat times the perimeter, and the balance holds up to Newton's
+    residual likewise (the rows of L sum to zero)."""
     y, z = op.y, op.z
-    grid_psi = _full(op, psi, zeta)
-    u_eo, u_p = _full(op, flows[:, 0], 0.0), _full(op, flows[:, 1], 0.0)
     grid_rho = charge(grid_psi.ravel(), valences, weights, dh)[0].reshape(grid_psi.shape)
+    rhs = np.column_stack([kappa2 * op.volume * grid_rho[:-1, :-1].ravel(), -op.volume])
+    flows = factor(-op.matrix).solve(rhs)
+    u_eo, u_p = full_nodes(op, flows[:, 0], 0.0), full_nodes(op, flows[:, 1], 0.0)
     dA = np.outer(y.volume, z.volume)
     out = np.empty(len(INTEGRALS))
     out[I_PSI] = np.sum(dA * grid_psi)
@@ -227,14 +240,19 @@ def flows_and_integrals(op: Operator, psi: np.ndarray, zeta: float, kappa2: floa
     out[I_RHO] = np.sum(dA * grid_rho)
     out[I_RHO_UP] = np.sum(dA * grid_rho * u_p)
     out[I_RHO_UEO] = np.sum(dA * grid_rho * u_eo)
-    # wall nodes: sigma = -kappa2 V rho(zeta) - sum over links of a (psi_neighbour - zeta); only the links into
-    # the unknown nodes carry a difference (along a wall, psi = zeta throughout)
-    wall_area = np.sum(dA[-1, :]) + np.sum(dA[:-1, -1])
-    rho_wall = charge(np.array([zeta]), valences, weights, dh)[0][0]
-    inward = (y.link[-1] * np.sum(z.volume[:-1] * (grid_psi[-2, :-1] - zeta))
-              + z.link[-1] * np.sum(y.volume[:-1] * (grid_psi[:-1, -2] - zeta)))
-    out[I_FLUX] = -kappa2 * rho_wall * wall_area - inward
-    out *= 4.0  # the quarter to the full section
+    if sigma is None:
+        # wall nodes: sigma = -kappa2 V rho(zeta) - sum over links of a (psi_neighbour - zeta); only the links into
+        # the unknown nodes carry a difference (along a wall, psi = zeta throughout)
+        zeta = grid_psi[-1, -1]
+        wall_area = np.sum(dA[-1, :]) + np.sum(dA[:-1, -1])
+        inward = (y.link[-1] * np.sum(z.volume[:-1] * (grid_psi[-2, :-1] - zeta))
+                  + z.link[-1] * np.sum(y.volume[:-1] * (grid_psi[:-1, -2] - zeta)))
+        out[I_FLUX] = -kappa2 * grid_rho[-1, -1] * wall_area - inward
+    else:
+        out[I_FLUX] = sigma * (y.x[-1] + z.x[-1])
+    out[I_WALL] = np.sum(z.volume * grid_psi[-1, :]) + np.sum(y.volume * grid_psi[:, -1])
+    out[: I_WALL + 1] *= 4.0  # the quarter to the full section
+    out[[I_CORNER, I_MID_Y, I_MID_Z]] = grid_psi[-1, -1], grid_psi[-1, 0], grid_psi[0, -1]
     return GridSolution(y.x, z.x, grid_psi, u_eo, u_p, out, iterations)
 
 
