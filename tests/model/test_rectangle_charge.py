@@ -76,3 +76,32 @@ def test_zeta_and_charge_density_together_is_an_input_error() -> None:
     """One wall condition: zeta and charge_density both given is refused, naming the field."""
     with pytest.raises(InputError, match="zeta"):
         solve_rectangle_section(2.0, 2.0, 1.0, *SYMMETRIC, zeta=-1.0, charge_density=-1.0)
+
+
+def test_wide_charged_rectangle_tends_to_the_slit() -> None:
+    """As W/H grows, a charged rectangle tends to the charged slit of height H (the 1-D solver): mid-way along the
+    long wall its potential is the slit's wall potential, and its mean EO velocity tends to the slit's, the side
+    walls' correction shrinking as H/W (each side wall removes a strip of fixed width; common practice). The slit's
+    EO ratio is taken from the 1-D solve with zeta walls at the charged slit's wall potential (the same profile)."""
+    import edl_solver as edl
+    from tests.helpers import SOLVENT, kcl
+
+    sigma, height = -0.02, 20e-9
+
+    def slit(wall: edl.Wall) -> dict:
+        return edl.solve(edl.Case(geometry=edl.Slit(height=height), electrolyte=kcl(10.0), wall=wall, solvent=SOLVENT,
+                                  model="pb", numerics=edl.Numerics(accuracy=1e-9))).summary
+
+    charged = slit(edl.Wall(charge_density=sigma))
+    eo_ratio = slit(edl.Wall(zeta=charged["zeta"]))["eo_ratio"]
+    zeta = charged["zeta"] / SOLVENT.thermal_voltage
+    h = height / 2
+    sigma_hat = sigma * h / (SOLVENT.permittivity * SOLVENT.thermal_voltage)
+    corrections = {}
+    for ratio in (20, 50):
+        sol = solve_rectangle_section(2.0 * ratio, 2.0, charged["debye_length"] / h, *SYMMETRIC, model="pb",
+                                      charge_density=sigma_hat, accuracy=1e-7)
+        corrections[ratio] = sol.mean_velocity_eo / (-zeta * eo_ratio) - 1.0
+        assert sol.wall_potentials["mid_z"] == pytest.approx(zeta, rel=1e-8)
+    assert -0.02 < corrections[20] < 0.0
+    assert corrections[50] * 50 == pytest.approx(corrections[20] * 20, rel=1e-6)
