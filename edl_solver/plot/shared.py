@@ -41,7 +41,8 @@ def number(value: float, digits: int = 3) -> str:
 
 
 def wall_text(wall: Wall) -> str:
-    """A wall in brief: ζ, σ, or its regulating sites."""
+    """A wall's condition in display units: ζ, σ, or what regulates its charge (sites, a fixed charge behind a
+    Stern layer, a gate)."""
     if wall.kind == "potential":
         return f"ζ = {wall.zeta * 1e3:.3g} mV"
     if wall.kind == "charge":
@@ -49,11 +50,11 @@ def wall_text(wall: Wall) -> str:
     parts = [f"{site.name} pK {'/'.join(f'{pk:g}' for pk in site.pks)}" for site in wall.sites]
     if wall.charge_density is not None:
         parts.append(f"σ = {wall.charge_density * 1e3:.3g} mC/m²")
-    if wall.stern_capacitance is not None:
-        parts.append(f"Stern {wall.stern_capacitance:.3g} F/m²")
     if wall.gate_voltage is not None:
-        parts.append(f"gate {wall.gate_voltage:.3g} V")
-    return "regulated (" + ", ".join(parts) + ")"
+        parts.append(f"gate {wall.gate_voltage:.3g} V behind {wall.gate_capacitance:.3g} F/m²")
+    if wall.stern_capacitance is not None:
+        parts.append(f"Stern layer {wall.stern_capacitance:.3g} F/m²")
+    return "charge regulated: " + ", ".join(parts)
 
 
 def size_text(geometry: Geometry) -> str:

@@ -21,7 +21,7 @@ import numpy as np
 from edl_solver.analysis.thin_layer_errors import QUANTITIES
 from edl_solver.errors import InputError
 from edl_solver.inputs.geometry import GEOMETRIES
-from edl_solver.plot.shared import new_figure, save_png
+from edl_solver.plot.shared import new_figure, save_png, wall_text
 
 __all__ = ["axis_display", "map_figure"]
 
@@ -98,23 +98,6 @@ def _percent(value: float) -> str:
     return f"{number:,.0f} %" if number >= 1000.0 else f"{number:.3g} %"
 
 
-def _wall_brief(wall: Any) -> str:
-    """A wall's condition in display units: ζ, σ, or what regulates its charge (sites, a fixed charge behind a
-    Stern layer, a gate)."""
-    if wall.kind == "potential":
-        return f"ζ = {wall.zeta * 1e3:.3g} mV"
-    if wall.kind == "charge":
-        return f"σ = {wall.charge_density * 1e3:.3g} mC/m²"
-    parts = [f"{site.name} pK {'/'.join(f'{pk:g}' for pk in site.pks)}" for site in wall.sites]
-    if wall.charge_density is not None:
-        parts.append(f"σ = {wall.charge_density * 1e3:.3g} mC/m²")
-    if wall.gate_voltage is not None:
-        parts.append(f"gate {wall.gate_voltage:.3g} V behind {wall.gate_capacitance:.3g} F/m²")
-    if wall.stern_capacitance is not None:
-        parts.append(f"Stern layer {wall.stern_capacitance:.3g} F/m²")
-    return "charge regulated: " + ", ".join(parts)
-
-
 def _case_brief(table: Mapping[str, Any], swept: set[str]) -> str:
     """The fixed part of the base case in one line (inputs set by the axes are left out)."""
     from edl_solver.inputs.casefile import case_from_mapping
@@ -136,8 +119,8 @@ def _case_brief(table: Mapping[str, Any], swept: set[str]) -> str:
     if case.electrolyte.pH is not None:
         parts.append(f"pH {case.electrolyte.pH:.3g}")
     if not any(path.startswith("wall.") for path in swept):
-        parts.append(f"wall {_wall_brief(case.walls[0])}" if case.symmetric else
-                     f"walls {_wall_brief(case.walls[0])} (bottom), {_wall_brief(case.walls[1])} (top)")
+        parts.append(f"wall {wall_text(case.walls[0])}" if case.symmetric else
+                     f"walls {wall_text(case.walls[0])} (bottom), {wall_text(case.walls[1])} (top)")
     if "solvent.temperature" not in swept:
         parts.append(f"{case.solvent.temperature - 273.15:.3g} °C")
     model = MODEL_NAMES.get(case.model, case.model)

@@ -100,5 +100,6 @@ def test_a_wall_regulated_without_sites_is_described_by_what_regulates_it() -> N
     from edl_solver.plot.shared import wall_text
 
     assert wall_text(edl.Wall(charge_density="-10 mC/m^2", stern_capacitance="2 F/m^2")) == \
-        "regulated (σ = -10 mC/m², Stern 2 F/m²)"
-    assert wall_text(edl.Wall(gate_voltage="0.1 V", gate_capacitance="0.01 F/m^2")).startswith("regulated (gate 0.1 V")
+        "charge regulated: σ = -10 mC/m², Stern layer 2 F/m²"
+    gated = wall_text(edl.Wall(gate_voltage="0.1 V", gate_capacitance="0.01 F/m^2"))
+    assert gated.startswith("charge regulated: gate 0.1 V")
