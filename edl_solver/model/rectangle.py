@@ -18,6 +18,7 @@ from scipy.optimize import brentq
 
 from edl_solver.errors import ConvergenceError, InputError
 from edl_solver.kernels.adaptive import LEVELS, extrapolate, inner_length, starting_intervals, stretching
+from edl_solver.kernels.layout import REGULATED, W_TYPE, WALL_SIZE
 from edl_solver.model import rectangle_grid as fv
 from edl_solver.model.rectangle_grid import (
     I_CORNER,
@@ -128,6 +129,26 @@ def grahame_potential(sigma: float, kappa: float, valences: np.ndarray, strength
     return float(brentq(mismatch, 0.0, bound, xtol=1e-14, rtol=1e-14))
 
 
+def regulated_potential(wall_row: np.ndarray, kappa: float, valences: np.ndarray, strengths: np.ndarray,
+                        dh: bool) -> float:
+    """Potential (kT/e) of an isolated flat regulated wall: the root of Grahame's layer charge (as
+    ``grahame_potential``) = the wall's law sigma_hat(psi) (``kernels.walls.regulated_charge``), unique as the
+    layer charge rises and the wall's falls with psi (as ``kernels.walls.isolated_wall``), on a doubling bracket."""
+    def mismatch(psi: float) -> float:
+        pressure = 0.5 * psi * psi if dh else max(float(strengths @ np.expm1(-valences * psi)), 0.0)
+        return float(np.copysign(kappa * np.sqrt(2.0 * pressure), psi)) - fv.regulated_wall(np.array([psi]),
+                                                                                            wall_row)[0][0]
+
+    a, b = -1.0, 1.0
+    while mismatch(a) > 0 and a > -1e3:
+        a *= 2.0
+    while mismatch(b) < 0 and b < 1e3:
+        b *= 2.0
+    _check("wall_row", "(regulated wall)", "a wall law whose isolated wall potential lies within 1000 kT/e",
+           mismatch(a) <= 0 <= mismatch(b))
+    return float(brentq(mismatch, a, b, xtol=1e-14, rtol=1e-14))
+
+
 def _check(name: str, value: float, expected: str, ok: bool) -> None:
     if not ok:
         raise InputError(f"{name} = {value!r}: expected {expected}")
@@ -156,21 +177,26 @@ def _solve_grid(half_w: float, half_h: float, betas: tuple[float, float], interv
                 physics: tuple) -> GridSolution:
     """One grid of ``intervals`` cells per direction, Newton from ``start`` (quarter node array) or, if None, from
     the Gouy-Chapman start (of the wall potential guess on charged walls)."""
-    zeta, kappa, valences, weights, dh, counter, sigma = physics
+    zeta, kappa, valences, weights, dh, counter, sigma, wall_row = physics
     y, z = fv.axis(half_w, intervals, betas[0]), fv.axis(half_h, intervals, betas[1])
     op = fv.operator(y, z)
     if start is None:
         start = fv.gouy_chapman_start(y, z, zeta, kappa, counter)
-    charged = sigma is not None
+    charged = sigma is not None or wall_row is not None
     psi = (start if charged else start[:-1, :-1]).ravel().copy()
     poisson = fv.operator(y, z, walls=True) if charged else op
-    status, its = fv.newton(poisson, psi, sigma if charged else zeta, kappa**2, valences, weights, dh)
+    status, its = fv.newton(poisson, psi, zeta if sigma is None else sigma, kappa**2, valences, weights, dh, wall_row)
     if status != 0:
         why = "the iteration limit was reached" if status == 1 else "the line search failed"
-        wall = f"sigma_hat = {sigma:g}" if charged else f"zeta = {zeta:g} kT/e"
+        wall = "regulated walls" if wall_row is not None else f"zeta = {zeta:g} kT/e" if not charged else \
+            f"sigma_hat = {sigma:g}"
         raise ConvergenceError(f"rectangle {2 * half_w:g} x {2 * half_h:g} h, kappa h = {kappa:g}, "
                                f"{wall}: Newton failed on the {intervals} x {intervals} grid ({why})")
     grid_psi = psi.reshape(start.shape) if charged else fv.full_nodes(op, psi, zeta)
+    if wall_row is not None:  # the walls' mean charge density: their charge over the quarter's wall length
+        nodes = np.flatnonzero(poisson.wall)
+        charge = poisson.wall[nodes] @ fv.regulated_wall(psi[nodes], wall_row)[0]
+        sigma = float(charge / (half_w + half_h))
     return fv.flows_and_integrals(op, grid_psi, kappa**2, valences, weights, dh, its, sigma)
 
 
@@ -220,7 +246,7 @@ def _identities(sol: GridSolution, zeta: float, kappa: float, area: float, perim
 
 
 def _validate(width: float, height: float, debye_length: float, z_k: np.ndarray, c_k: np.ndarray, model: str,
-              zeta: float | None, charge_density: float | None, accuracy: float) -> float:
+              zeta: float | None, charge_density: float | None, wall_row: np.ndarray | None, accuracy: float) -> float:
     """InputError for a field out of range (``solve_rectangle_section``); returns zeta (0 if not given)."""
     for name, value in (("width", width), ("height", height), ("debye_length", debye_length)):
         _check(name, value, "a positive finite length", np.isfinite(value) and value > 0)
@@ -229,6 +255,12 @@ def _validate(width: float, height: float, debye_length: float, z_k: np.ndarray,
     _check("concentrations", list(c_k), "positive and electroneutral (sum z c = 0)",
            np.all(c_k > 0) and abs(z_k @ c_k) <= 1e-9 * (np.abs(z_k) @ c_k))
     _check("model", model, '"pb" or "dh"', model in ("pb", "dh"))
+    given = [name for name, v in (("zeta", zeta), ("charge_density", charge_density), ("wall_row", wall_row))
+             if v is not None]
+    _check("wall condition", given, "at most one of zeta, charge_density, wall_row", len(given) <= 1)
+    if wall_row is not None:
+        _check("wall_row", "(array)", "the dimensionless row of a REGULATED wall (kernels.walls.dimensionless_wall)",
+               wall_row.shape == (WALL_SIZE,) and wall_row[W_TYPE] == REGULATED and np.all(np.isfinite(wall_row)))
     if charge_density is not None:
         _check("zeta", zeta, "None when charge_density is given (one wall condition)", zeta is None)
         _check("charge_density", charge_density, "a finite dimensionless charge density",
@@ -239,10 +271,41 @@ def _validate(width: float, height: float, debye_length: float, z_k: np.ndarray,
     return zeta
 
 
+def _refine(half_w: float, half_h: float, betas: tuple[float, float], n: int, physics: tuple,
+            control: tuple[float, int, int]) -> tuple[list[GridSolution], np.ndarray, float, int]:
+    """Nested grids from n cells per direction, refined until the error estimate meets the accuracy (``control``:
+    accuracy, fixed intervals or 0, max_intervals); returns the grids, the extrapolated integrals, the estimate and
+    the finest grid's cells per direction."""
+    accuracy, intervals, max_intervals = control
+    zeta, kappa = physics[:2]
+    width, height = 2 * half_w, 2 * half_h
+    area, perimeter = width * height, 2.0 * (width + height)
+    levels = _nested(half_w, half_h, betas, n, physics)
+    while True:
+        values = [s.integrals for s in levels]
+        out, lower = np.empty(values[0].size), np.empty(values[0].size)
+        extrapolate(values[3], values[2], values[1], out)
+        extrapolate(values[2], values[1], values[0], lower)
+        estimate = float(np.max(np.abs(out - lower) / _error_scale(out, zeta, area, kappa, perimeter)) / 8.0)
+        if estimate <= accuracy or intervals > 0:
+            break
+        wanted = _next_intervals(n, estimate / accuracy, max_intervals)
+        if wanted <= n:
+            raise ConvergenceError(f"rectangle {width:g} x {height:g} h, kappa h = {kappa:g}, zeta = {zeta:g} kT/e: "
+                                   f"accuracy {accuracy:g} missed (estimate {estimate:.2g}) with {n} cells per "
+                                   f"direction (max_intervals = {max_intervals})")
+        if wanted == 2 * n:  # the three finest grids are the next set's coarser ones
+            levels = [*levels[1:], _solve_grid(half_w, half_h, betas, wanted, fv.prolong(levels[-1].psi), physics)]
+        else:
+            levels = _nested(half_w, half_h, betas, wanted, physics)
+        n = wanted
+    return levels, out, estimate, n
+
+
 def solve_rectangle_section(width: float, height: float, debye_length: float, valences, concentrations,
                             model: str = "pb", zeta: float | None = None, accuracy: float = 1e-6,
                             max_intervals: int = 512, intervals: int = 0,
-                            charge_density: float | None = None) -> RectangleSection:
+                            charge_density: float | None = None, wall_row=None) -> RectangleSection:
     """Solve the double layer and the EO and pressure-driven flow across a W x H rectangle.
 
     Parameters
@@ -267,6 +330,12 @@ def solve_rectangle_section(width: float, height: float, debye_length: float, va
         Instead of ``zeta``: the walls' charge density sigma_hat = sigma h e / (eps kT), the same on all four walls
         (the outward-normal derivative of psi; ``kernels.walls.dimensionless_wall``'s scaling with lengths in h).
         The wall potential is then an output (``RectangleSection.wall_potentials``).
+    wall_row : numpy.ndarray, optional
+        Instead of ``zeta`` or ``charge_density``: charge-regulated walls, the same on all four, the kernels'
+        dimensionless row of a REGULATED wall (``kernels.walls.dimensionless_wall`` of ``model.packing.wall_row_si``
+        with length h = min(W, H) / 2 in the unit of W and H). Each wall node's charge is the 1-D solver's law
+        (``kernels.walls.regulated_charge``) at its potential; the start is the isolated wall's potential
+        (``regulated_potential``). Wall potentials and the mean charge density (``charge_density``) are outputs.
 
     Raises
     ------
@@ -275,15 +344,20 @@ def solve_rectangle_section(width: float, height: float, debye_length: float, va
         or an identity of the scheme failed.
     """
     z_k, c_k = np.asarray(valences, float), np.asarray(concentrations, float)
-    zeta = _validate(width, height, debye_length, z_k, c_k, model, zeta, charge_density, accuracy)
+    wall_row = None if wall_row is None else np.asarray(wall_row, float)
+    zeta = _validate(width, height, debye_length, z_k, c_k, model, zeta, charge_density, wall_row, accuracy)
     zeta = float(zeta)  # an integer zeta would make integer node arrays
     h = 0.5 * min(width, height)
     half_w, half_h, kappa = 0.5 * width / h, 0.5 * height / h, h / debye_length
     weights = z_k * c_k / (z_k**2 @ c_k)
     sigma = None if charge_density is None else float(charge_density)  # charged: the isolated wall's potential
-    zeta = zeta if sigma is None else grahame_potential(sigma, kappa, z_k, c_k / (z_k**2 @ c_k), model == "dh")
+    strengths = c_k / (z_k**2 @ c_k)
+    if sigma is not None:
+        zeta = grahame_potential(sigma, kappa, z_k, strengths, model == "dh")
+    elif wall_row is not None:
+        zeta = regulated_potential(wall_row, kappa, z_k, strengths, model == "dh")
     counter = float(z_k.max() if zeta < 0 else -z_k.min())
-    physics = (zeta, kappa, z_k, weights, model == "dh", counter, sigma)
+    physics = (zeta, kappa, z_k, weights, model == "dh", counter, sigma, wall_row)
     # the layer's smallest scale: a linear (DH) layer has only the Debye length, whatever its wall potential
     wall_guess = np.full(2, 0.0 if model == "dh" else zeta)
     inner = inner_length(kappa**2, wall_guess, np.array([counter, counter]))
@@ -291,31 +365,15 @@ def solve_rectangle_section(width: float, height: float, debye_length: float, va
     n = intervals if intervals > 0 else min(starting_intervals(max(betas), accuracy), max_intervals)
     _check("intervals", n, f"a multiple of {2 ** (LEVELS - 1)}", n % 2 ** (LEVELS - 1) == 0)
     area, perimeter = width * height / h**2, 2.0 * (width + height) / h
-    levels = _nested(half_w, half_h, betas, n, physics)
-    while True:
-        values = [s.integrals for s in levels]
-        out, lower = np.empty(values[0].size), np.empty(values[0].size)
-        extrapolate(values[3], values[2], values[1], out)
-        extrapolate(values[2], values[1], values[0], lower)
-        estimate = float(np.max(np.abs(out - lower) / _error_scale(out, zeta, area, kappa, perimeter)) / 8.0)
-        if estimate <= accuracy or intervals > 0:
-            break
-        wanted = _next_intervals(n, estimate / accuracy, max_intervals)
-        if wanted <= n:
-            raise ConvergenceError(f"rectangle {width:g} x {height:g}, kappa h = {kappa:g}, zeta = {zeta:g} kT/e: "
-                                   f"accuracy {accuracy:g} missed (estimate {estimate:.2g}) with {n} cells per "
-                                   f"direction (max_intervals = {max_intervals})")
-        if wanted == 2 * n:  # the three finest grids are the next set's coarser ones
-            levels = [*levels[1:], _solve_grid(half_w, half_h, betas, wanted, fv.prolong(levels[-1].psi), physics)]
-        else:
-            levels = _nested(half_w, half_h, betas, wanted, physics)
-        n = wanted
+    levels, out, estimate, n = _refine(half_w, half_h, betas, n, physics, (accuracy, intervals, max_intervals))
     finest = levels[-1]
-    checks = _identities(finest, zeta, kappa, area, perimeter, sigma is not None)
+    charged = sigma is not None or wall_row is not None
+    checks = _identities(finest, zeta, kappa, area, perimeter, charged)
     if max(checks) > IDENTITY_TOLERANCE:
         raise ConvergenceError(f"rectangle {width:g} x {height:g}: an identity of the scheme failed (charge balance "
                                f"{checks[0]:.2g}, reciprocity {checks[1]:.2g}, u_eo = psi - zeta {checks[2]:.2g})")
     integrals = dict(zip(fv.INTEGRALS, out.tolist()))
-    zeta = zeta if sigma is None else integrals["wall_psi"] / perimeter
+    zeta = integrals["wall_psi"] / perimeter if charged else zeta
+    sigma = integrals["wall_flux"] / perimeter if wall_row is not None else sigma
     return RectangleSection(2 * half_w, 2 * half_h, kappa, zeta, integrals, area, perimeter, finest, n,
                             sum(s.iterations for s in levels), estimate, *checks, sigma)

@@ -25,6 +25,7 @@ from scipy.sparse.linalg import splu
 from edl_solver.kernels.adaptive import computational_nodes
 from edl_solver.kernels.fv1d import finite_volume_metric
 from edl_solver.kernels.layout import PLANAR
+from edl_solver.kernels.walls import regulated_charge
 
 #: Newton stops when a full step is below this (kT/e), as ``kernels.adaptive.NEWTON_TOLERANCE``.
 NEWTON_TOLERANCE = 1e-11
@@ -149,11 +150,20 @@ def charge(psi: np.ndarray, valences: np.ndarray, weights: np.ndarray, dh: bool)
     return e @ weights, -(e @ (weights * valences))
 
 
+def regulated_wall(psi: np.ndarray, wall_row: np.ndarray) -> tuple[np.ndarray, np.ndarray]:
+    """sigma_hat and d sigma_hat / d psi of a regulated wall (``kernels.walls.regulated_charge``, the 1-D solver's
+    law, sites, Stern layer and gate) at each wall potential of ``psi``."""
+    out = np.array([regulated_charge(p, wall_row)[:2] for p in psi.tolist()]).reshape(-1, 2)
+    return out[:, 0], out[:, 1]
+
+
 def newton(op: Operator, psi: np.ndarray, value: float, kappa2: float, valences: np.ndarray, weights: np.ndarray,
-           dh: bool) -> tuple[int, int]:
+           dh: bool, wall_row: np.ndarray | None = None) -> tuple[int, int]:
     """Damped Newton iteration for L psi + value wall + kappa2 V rho(psi) = 0, in place on ``psi`` (the unknown
-    nodes; ``value`` zeta or, on charged walls, sigma_hat), as ``kernels.fv1d.pb_newton``: the Jacobian
-    L + kappa2 V rho'(psi) (negative definite) factored by
+    nodes; ``value`` zeta or, on charged walls, sigma_hat; on regulated walls, ``wall_row`` given, value is
+    ignored and each wall node's row takes sigma_hat(psi) times its wall faces, its Jacobian diagonal d sigma_hat /
+    d psi times them, as ``kernels.fv1d._regulated_ends``), as ``kernels.fv1d.pb_newton``: the Jacobian
+    L + kappa2 V rho'(psi) (negative definite; the regulated wall's d sigma / d psi <= 0 keeps it so) factored by
     sparse LU each step (once for DH, where it is constant; kept once the steps are below ``REUSE_STEP``), steps
     capped at ``MAX_STEP`` and halved until the row-scaled residual decreases.
 
@@ -163,16 +173,25 @@ def newton(op: Operator, psi: np.ndarray, value: float, kappa2: float, valences:
         0 converged (a full step below ``NEWTON_TOLERANCE``), 1 iteration limit, 2 line search failed.
     iterations : int
     """
+    nodes = np.flatnonzero(op.wall)
+
     def residual(p: np.ndarray) -> tuple[np.ndarray, np.ndarray]:
         rho, drho = charge(p, valences, weights, dh)
-        return op.matrix @ p + value * op.wall + kappa2 * op.volume * rho, kappa2 * op.volume * drho
+        res, jac = op.matrix @ p + kappa2 * op.volume * rho, kappa2 * op.volume * drho
+        if wall_row is None:
+            return res + value * op.wall, jac
+        sigma, dsigma = regulated_wall(p[nodes], wall_row)
+        res[nodes] += sigma * op.wall[nodes]
+        jac[nodes] += dsigma * op.wall[nodes]
+        return res, jac
 
+    linear = dh and wall_row is None  # a regulated wall's law is nonlinear even in a DH layer
     res, jac = residual(psi)
     scale = op.diagonal + np.abs(jac)
     norm = np.linalg.norm(res / scale)
     lu, last = None, np.inf
     for it in range(1, MAX_ITERATIONS + 1):
-        if lu is None or (not dh and last > REUSE_STEP):
+        if lu is None or (not linear and last > REUSE_STEP):
             lu = factor(op.shifted(jac))
         step = lu.solve(-res)
         biggest = last = np.max(np.abs(step))
@@ -181,7 +200,7 @@ def newton(op: Operator, psi: np.ndarray, value: float, kappa2: float, valences:
         if biggest < max(NEWTON_TOLERANCE, 1e-13 * np.max(np.abs(psi))):
             psi += step
             return 0, it
-        lam = 1.0 if (biggest <= MAX_STEP or dh) else MAX_STEP / biggest
+        lam = 1.0 if (biggest <= MAX_STEP or linear) else MAX_STEP / biggest
         for _ in range(60):
             trial = psi + lam * step
             res, jac = residual(trial)
