@@ -19,7 +19,7 @@ from typing import Any
 
 from edl_solver.cli.case_flags import CASE_VALUE_FLAGS, add_case_flags
 from edl_solver.cli.exit_codes import EXIT_CONVERGENCE, EXIT_INPUT, EXIT_OK, fail
-from edl_solver.cli.output_files import writable
+from edl_solver.cli.output_files import result_and_figure
 
 __all__ = ["VALUE_FLAGS", "add_fit_command", "parse_fit_flag", "run_fit_command"]
 
@@ -162,12 +162,7 @@ def _outputs(args: argparse.Namespace) -> dict[str, Path]:
     """Check the output paths before any solve, so that a bad one costs nothing and writes nothing."""
     from edl_solver.errors import InputError
 
-    outputs: dict[str, Path] = {}
-    for what, flag, value in (("fit", "-o", args.output), ("figure", "--figure", args.figure)):
-        if value is not None:
-            outputs[what] = writable(flag, value)
-    if len(outputs) == 2 and outputs["fit"].resolve() == outputs["figure"].resolve():
-        raise InputError(f"--figure: {args.figure!r} is also the fit file (-o), expected another file name")
+    outputs = result_and_figure(args, "fit")
     if any(Path(source).expanduser().resolve() == path.resolve() for source in args.data for path in outputs.values()):
         raise InputError("-o/--figure: an output file is also a data file, expected another file name")
     return outputs

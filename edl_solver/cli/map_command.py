@@ -19,7 +19,7 @@ from typing import Any
 
 from edl_solver.cli.case_flags import CASE_VALUE_FLAGS, add_case_flags
 from edl_solver.cli.exit_codes import EXIT_CONVERGENCE, EXIT_INPUT, EXIT_INTERRUPTED, EXIT_OK, fail
-from edl_solver.cli.output_files import existing_output, writable
+from edl_solver.cli.output_files import existing_output, result_and_figure
 
 __all__ = ["VALUE_FLAGS", "add_map_command", "parse_axis", "run_map_command"]
 
@@ -171,7 +171,7 @@ def _run(args: argparse.Namespace) -> int:
     workers = args.workers.strip() if isinstance(args.workers, str) else str(args.workers)
     if not workers.isdigit() or int(workers) < 1:
         raise InputError(f"--workers: {args.workers!r} is not allowed, expected a positive whole number")
-    outputs = _outputs(args)
+    outputs = result_and_figure(args, "map")
     # the map file's lock, held to the end (validity_map takes it again), before the look for an interrupted map
     with output_lock(outputs["map"], "-o") if "map" in outputs else nullcontext():
         if "map" in outputs:
@@ -214,19 +214,6 @@ def _solve_and_write(args: argparse.Namespace, base: Any, axes: tuple[Any, Any],
         for what, path in written:
             print(f"wrote the {what} to {Path(path).resolve()}")
     return EXIT_OK
-
-
-def _outputs(args: argparse.Namespace) -> dict[str, Path]:
-    """Check the output paths before any solve, so that a bad one costs nothing and writes nothing."""
-    from edl_solver.errors import InputError
-
-    outputs: dict[str, Path] = {}
-    for what, flag, value in (("map", "-o", args.output), ("figure", "--figure", args.figure)):
-        if value is not None:
-            outputs[what] = writable(flag, value)
-    if len(outputs) == 2 and outputs["map"].resolve() == outputs["figure"].resolve():
-        raise InputError(f"--figure: {args.figure!r} is also the map file (-o), expected another file name")
-    return outputs
 
 
 def _interrupted_sweep(args: argparse.Namespace, outputs: dict[str, Path]) -> Path | None:

@@ -24,16 +24,17 @@ def add_output_flags(parser: argparse.ArgumentParser, result_default: str | None
     parser.add_argument("-q", "--quiet", action="store_true", help="print nothing but errors")
 
 
-def result_and_figure(args: argparse.Namespace) -> dict[str, Path]:
-    """The files of -o and --figure ({"result": ..., "figure": ...}, those given), checked and different."""
+def result_and_figure(args: argparse.Namespace, kind: str = "result") -> dict[str, Path]:
+    """The files of -o and --figure ({kind: ..., "figure": ...}, those given), checked and different: before
+    any solve, so that a bad one costs nothing and writes nothing. ``kind`` names the -o file (result, map, fit)."""
     from edl_solver.errors import InputError
 
     outputs = {}
-    for what, flag, value in (("result", "-o", args.output), ("figure", "--figure", args.figure)):
+    for what, flag, value in ((kind, "-o", args.output), ("figure", "--figure", args.figure)):
         if value is not None:
             outputs[what] = writable(flag, value)
-    if len(outputs) == 2 and outputs["result"].resolve() == outputs["figure"].resolve():
-        raise InputError(f"--figure: {args.figure!r} is also the result file (-o), expected another file name")
+    if len(outputs) == 2 and outputs[kind].resolve() == outputs["figure"].resolve():
+        raise InputError(f"--figure: {args.figure!r} is also the {kind} file (-o), expected another file name")
     return outputs
 
 
