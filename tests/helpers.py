@@ -24,6 +24,19 @@ RT = GAS_CONSTANT * 298.15
 #: 1 mM KCl with the table's diffusivities.
 KCL = edl.Electrolyte.from_ions({"K+": "1 mM", "Cl-": "1 mM"})
 
+#: A 100 nm slit of -10 mC/m^2 in 1 mM KCl: the base case of the map command's tests.
+CHARGED_SLIT_TOML = """\
+[geometry]
+kind = "slit"
+height = "100 nm"
+
+[electrolyte]
+ions = { "K+" = "1 mM", "Cl-" = "1 mM" }
+
+[wall]
+charge_density = "-10 mC/m^2"
+"""
+
 #: The base case of the sweep files (a slit with both drives) ...
 SWEEP_BASE_TOML = """\
 field = "1 kV/m"

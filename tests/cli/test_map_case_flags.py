@@ -11,19 +11,9 @@ import pytest
 import xarray as xr
 
 from edl_solver.inputs.casefile import load_case
-from tests.helpers import PNG_SIGNATURE, run, write
+from tests.helpers import CHARGED_SLIT_TOML, PNG_SIGNATURE, run, write
 
-CASE_TOML = """\
-[geometry]
-kind = "slit"
-height = "100 nm"
-
-[electrolyte]
-ions = { "K+" = "1 mM", "Cl-" = "1 mM" }
-
-[wall]
-charge_density = "-10 mC/m^2"
-"""
+CASE_TOML = CHARGED_SLIT_TOML
 SILICA_TOML = """\
 [geometry]
 kind = "slit"

@@ -15,23 +15,13 @@ import pytest
 import xarray as xr
 
 from edl_solver.cli.map_command import add_map_command, parse_axis
-from tests.helpers import PNG_SIGNATURE, write
+from tests.helpers import CHARGED_SLIT_TOML, PNG_SIGNATURE, write
 from tests.interrupting import interrupt_after_first_write
 from tests.reference_solutions import gouy_chapman_boundary
 
 # -- the edl map command -----------------------------------------------------------------------------
 
-CASE_TOML = """\
-[geometry]
-kind = "slit"
-height = "100 nm"
-
-[electrolyte]
-ions = { "K+" = "1 mM", "Cl-" = "1 mM" }
-
-[wall]
-charge_density = "-10 mC/m^2"
-"""
+CASE_TOML = CHARGED_SLIT_TOML
 
 
 def run_map(argv: list[str]) -> tuple[int, str, str]:
