@@ -21,11 +21,16 @@ from edl_solver.kernels.adaptive import LEVELS, extrapolate, inner_length, start
 from edl_solver.kernels.layout import REGULATED, W_TYPE, WALL_SIZE
 from edl_solver.model import rectangle_grid as fv
 from edl_solver.model.rectangle_grid import (
+    I_CENTRE,
     I_CORNER,
     I_FLUX,
+    I_FLUX_SIDES,
+    I_FLUX_TB,
     I_MID_Y,
     I_MID_Z,
     I_PSI,
+    I_PSI_SIDES,
+    I_PSI_TB,
     I_RHO,
     I_RHO_UEO,
     I_RHO_UP,
@@ -61,7 +66,11 @@ class RectangleSection:
         (the EO flow rate per unit field, units eps kT h^2 / (e eta)), ``u_p`` int u_p dA (the pressure flow per
         unit (dp/dx), units h^4 / eta; laplacian u_p = 1), ``rho`` int rho_hat dA, ``rho_u_p`` and ``rho_u_eo``
         (the streaming and EO convection integrals), ``wall_flux`` the outward-normal derivative of psi over the
-        perimeter (the wall charge, units eps kT / e).
+        perimeter (the wall charge, units eps kT / e), ``flux_tb`` and ``flux_sides`` its parts on the walls z = 0, H
+        and y = 0, W, ``wall_psi`` int psi ds over the perimeter (``psi_tb``, ``psi_sides`` its parts), ``psi_centre``.
+    ion_integrals : ndarray
+        The ion blocks (``rectangle_grid.ion_offsets`` less ``len(INTEGRALS)``): int c_k / c_k,bulk dA, int u_k dA,
+        int (c_i / c_i,bulk) u_p dA, int (c_i / c_i,bulk) u_k dA, extrapolated; the 1-D solver's layout.
     area, perimeter : float
         W H / h^2 and 2 (W + H) / h.
     finest : GridSolution
@@ -92,6 +101,7 @@ class RectangleSection:
     reciprocity: float
     eo_identity: float
     charge_density: float | None = None
+    ion_integrals: np.ndarray | None = None
 
     @property
     def wall_potentials(self) -> dict[str, float]:
@@ -170,6 +180,15 @@ def _error_scale(values: np.ndarray, zeta: float, area: float, kappa: float, per
     floors[I_FLUX] = charge_small
     floors[I_WALL] = psi_small * perimeter
     floors[[I_CORNER, I_MID_Y, I_MID_Z]] = psi_small
+    # as the 1-D solver: the centre potential, exponentially small in a wide channel, against the wall potential; a
+    # pair's wall charge against the whole (given charges vary only by round-off); each ion's integral against the
+    # section (it enters the summary only in sums the section dominates); the response blocks against their own sizes
+    floors[I_CENTRE] = max(abs(zeta), POTENTIAL_FLOOR)
+    floors[[I_FLUX_TB, I_FLUX_SIDES]] = max(abs(values[I_FLUX]), charge_small)
+    floors[[I_PSI_TB, I_PSI_SIDES]] = psi_small * perimeter
+    first = len(fv.INTEGRALS)
+    n_ions = round((np.sqrt(9.0 + 4.0 * (values.size - first)) - 3.0) / 2.0)  # the ion blocks hold n (3 + n)
+    floors[first: first + n_ions] = area
     return np.maximum(np.abs(values), np.maximum(floors, 1e-300))
 
 
@@ -193,11 +212,12 @@ def _solve_grid(half_w: float, half_h: float, betas: tuple[float, float], interv
         raise ConvergenceError(f"rectangle {2 * half_w:g} x {2 * half_h:g} h, kappa h = {kappa:g}, "
                                f"{wall}: Newton failed on the {intervals} x {intervals} grid ({why})")
     grid_psi = psi.reshape(start.shape) if charged else fv.full_nodes(op, psi, zeta)
-    if wall_row is not None:  # the walls' mean charge density: their charge over the quarter's wall length
-        nodes = np.flatnonzero(poisson.wall)
-        charge = poisson.wall[nodes] @ fv.regulated_wall(psi[nodes], wall_row)[0]
-        sigma = float(charge / (half_w + half_h))
-    return fv.flows_and_integrals(op, grid_psi, kappa**2, valences, weights, dh, its, sigma)
+    wall_charge = None
+    if wall_row is not None:  # each wall node's charge density at its potential
+        wall_charge = (fv.regulated_wall(grid_psi[-1, :], wall_row)[0], fv.regulated_wall(grid_psi[:, -1], wall_row)[0])
+    elif sigma is not None:
+        wall_charge = (np.full(grid_psi.shape[1], sigma), np.full(grid_psi.shape[0], sigma))
+    return fv.flows_and_integrals(op, grid_psi, kappa**2, valences, weights, dh, its, wall_charge)
 
 
 #: Order the extrapolated integrals are taken to converge at when the next grid is chosen (between the corners'
@@ -286,7 +306,7 @@ def _refine(half_w: float, half_h: float, betas: tuple[float, float], n: int, ph
         out, lower = np.empty(values[0].size), np.empty(values[0].size)
         extrapolate(values[3], values[2], values[1], out)
         extrapolate(values[2], values[1], values[0], lower)
-        estimate = float(np.max(np.abs(out - lower) / _error_scale(out, zeta, area, kappa, perimeter)) / 8.0)
+        estimate = float(np.nanmax(np.abs(out - lower) / _error_scale(out, zeta, area, kappa, perimeter)) / 8.0)
         if estimate <= accuracy or intervals > 0:
             break
         wanted = _next_intervals(n, estimate / accuracy, max_intervals)
@@ -376,4 +396,4 @@ def solve_rectangle_section(width: float, height: float, debye_length: float, va
     zeta = integrals["wall_psi"] / perimeter if charged else zeta
     sigma = integrals["wall_flux"] / perimeter if wall_row is not None else sigma
     return RectangleSection(2 * half_w, 2 * half_h, kappa, zeta, integrals, area, perimeter, finest, n,
-                            sum(s.iterations for s in levels), estimate, *checks, sigma)
+                            sum(s.iterations for s in levels), estimate, *checks, sigma, out[len(fv.INTEGRALS):])

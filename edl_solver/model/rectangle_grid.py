@@ -50,9 +50,21 @@ def factor(matrix: sp.csc_matrix):
 #: (the outward-normal derivative of psi integrated over the perimeter: the total wall charge in units of eps kT/(e h)).
 #: Then the wall potential: int psi ds over the perimeter, and psi at the corner, mid-way along the walls y = W/2
 #: and z = H/2 (nodes every grid shares, so they extrapolate as the integrals do; zeta throughout on zeta walls).
+#: Then the same wall flux and int psi ds split between the two walls z = 0, H (``_tb``, top and bottom) and the
+#: two walls y = 0, W (``_sides``), and psi at the centre. The ion blocks follow (``ion_offsets``).
 INTEGRALS = ("psi", "u_eo", "u_p", "rho", "rho_u_p", "rho_u_eo", "wall_flux", "wall_psi", "psi_corner",
-             "psi_mid_y", "psi_mid_z")
-I_PSI, I_UEO, I_UP, I_RHO, I_RHO_UP, I_RHO_UEO, I_FLUX, I_WALL, I_CORNER, I_MID_Y, I_MID_Z = range(len(INTEGRALS))
+             "psi_mid_y", "psi_mid_z", "flux_tb", "flux_sides", "psi_tb", "psi_sides", "psi_centre")
+(I_PSI, I_UEO, I_UP, I_RHO, I_RHO_UP, I_RHO_UEO, I_FLUX, I_WALL, I_CORNER, I_MID_Y, I_MID_Z, I_FLUX_TB,
+ I_FLUX_SIDES, I_PSI_TB, I_PSI_SIDES, I_CENTRE) = range(len(INTEGRALS))
+
+
+def ion_offsets(n_ions: int) -> tuple[int, int, int, int, int]:
+    """Where the ion blocks of the integral vector start, and its length (the 1-D layout, ``kernels.layout``):
+    int c_k / c_k,bulk dA (n), int u_k dA for the flow of the body force on ion k (laplacian u_k = -c_k / c_k,bulk;
+    n), int (c_i / c_i,bulk) u_p dA (n), int (c_i / c_i,bulk) u_k dA (n * n, row i, column k)."""
+    first = len(INTEGRALS)
+    return first, first + n_ions, first + 2 * n_ions, first + 3 * n_ions, first + 3 * n_ions + n_ions**2
+
 
 
 @dataclass(frozen=True)
@@ -238,40 +250,70 @@ def full_nodes(op: Operator, inner: np.ndarray, wall_value: float) -> np.ndarray
     return out
 
 
+def concentrations(psi: np.ndarray, valences: np.ndarray, dh: bool) -> np.ndarray:
+    """c_k / c_k,bulk at each potential of ``psi`` (last axis the ion): exp(-z_k psi), linearised 1 - z_k psi for DH
+    (as ``kernels.fv1d._concentrations``)."""
+    product = np.multiply.outer(psi, valences)
+    return 1.0 - product if dh else np.exp(-product)
+
+
 def flows_and_integrals(op: Operator, grid_psi: np.ndarray, kappa2: float, valences: np.ndarray,
-                        weights: np.ndarray, dh: bool, iterations: int, sigma: float | None = None) -> GridSolution:
-    """The Stokes solves (L of the zeta-wall ``op`` factored once for both right-hand sides; u = 0 on the walls)
+                        weights: np.ndarray, dh: bool, iterations: int,
+                        wall_charge: tuple[np.ndarray, np.ndarray] | None = None) -> GridSolution:
+    """The Stokes solves (L of the zeta-wall ``op`` factored once for all right-hand sides; u = 0 on the walls)
     and the integrals of a converged ``grid_psi`` (the quarter's node array, walls included). EO: laplacian u_eo =
-    -kappa2 rho (units eps kT E / (e eta)); pressure: laplacian u_p = 1 (units (dp/dx) h^2 / eta). On zeta walls
-    (``sigma`` None) the wall flux is the wall nodes' cell balances, so that it equals -kappa2 int rho dA up to
-    Newton's residual; on charged walls it is sigma_hat times the perimeter, and the balance holds up to Newton's
-    residual likewise (the rows of L sum to zero)."""
+    -kappa2 rho (units eps kT E / (e eta)); pressure: laplacian u_p = 1 (units (dp/dx) h^2 / eta); ion k:
+    laplacian u_k = -c_k / c_k,bulk (the columns of the linear-response matrix, ``kernels.response``). On zeta walls
+    (``wall_charge`` None) the wall flux is the wall nodes' cell balances, so that it equals -kappa2 int rho dA up
+    to Newton's residual; on charged walls ``wall_charge`` holds sigma_hat at the side wall's nodes (y = W/2) and at
+    the top wall's (z = H/2), times their wall faces, and the balance holds up to Newton's residual likewise (the
+    rows of L sum to zero)."""
     y, z = op.y, op.z
     grid_rho = charge(grid_psi.ravel(), valences, weights, dh)[0].reshape(grid_psi.shape)
-    rhs = np.column_stack([kappa2 * op.volume * grid_rho[:-1, :-1].ravel(), -op.volume])
+    ratios = concentrations(grid_psi, valences, dh)  # (ny, nz, ions)
+    inner = ratios[:-1, :-1].reshape(-1, valences.size)
+    rhs = np.column_stack([kappa2 * op.volume * grid_rho[:-1, :-1].ravel(), -op.volume, op.volume[:, None] * inner])
     flows = factor(-op.matrix).solve(rhs)
     u_eo, u_p = full_nodes(op, flows[:, 0], 0.0), full_nodes(op, flows[:, 1], 0.0)
+    ion_flows = np.zeros((*grid_psi.shape, valences.size))
+    ion_flows[:-1, :-1] = flows[:, 2:].reshape(*(n - 1 for n in grid_psi.shape), valences.size)
     dA = np.outer(y.volume, z.volume)
-    out = np.empty(len(INTEGRALS))
+    n = valences.size
+    first, flow_at, conc_up_at, conc_flow_at, size = ion_offsets(n)
+    out = np.empty(size)
     out[I_PSI] = np.sum(dA * grid_psi)
     out[I_UEO] = np.sum(dA * u_eo)
     out[I_UP] = np.sum(dA * u_p)
     out[I_RHO] = np.sum(dA * grid_rho)
     out[I_RHO_UP] = np.sum(dA * grid_rho * u_p)
     out[I_RHO_UEO] = np.sum(dA * grid_rho * u_eo)
-    if sigma is None:
+    if wall_charge is None:
         # wall nodes: sigma = -kappa2 V rho(zeta) - sum over links of a (psi_neighbour - zeta); only the links into
-        # the unknown nodes carry a difference (along a wall, psi = zeta throughout)
+        # the unknown nodes carry a difference (along a wall, psi = zeta throughout). Its split between the walls
+        # is left undefined (NaN): near the corner the wall charge density goes as r log r (a right-angle wedge
+        # with a source), and the split's grid error, h^2 log h, defeats the extrapolation; equal zeta walls need
+        # only the total
         zeta = grid_psi[-1, -1]
         wall_area = np.sum(dA[-1, :]) + np.sum(dA[:-1, -1])
         inward = (y.link[-1] * np.sum(z.volume[:-1] * (grid_psi[-2, :-1] - zeta))
                   + z.link[-1] * np.sum(y.volume[:-1] * (grid_psi[:-1, -2] - zeta)))
         out[I_FLUX] = -kappa2 * grid_rho[-1, -1] * wall_area - inward
+        out[I_FLUX_TB] = out[I_FLUX_SIDES] = np.nan
     else:
-        out[I_FLUX] = sigma * (y.x[-1] + z.x[-1])
-    out[I_WALL] = np.sum(z.volume * grid_psi[-1, :]) + np.sum(y.volume * grid_psi[:, -1])
-    out[: I_WALL + 1] *= 4.0  # the quarter to the full section
-    out[[I_CORNER, I_MID_Y, I_MID_Z]] = grid_psi[-1, -1], grid_psi[-1, 0], grid_psi[0, -1]
+        out[I_FLUX_SIDES] = wall_charge[0] @ z.volume
+        out[I_FLUX_TB] = wall_charge[1] @ y.volume
+        out[I_FLUX] = out[I_FLUX_TB] + out[I_FLUX_SIDES]
+    out[I_PSI_SIDES] = np.sum(z.volume * grid_psi[-1, :])
+    out[I_PSI_TB] = np.sum(y.volume * grid_psi[:, -1])
+    out[I_WALL] = out[I_PSI_TB] + out[I_PSI_SIDES]
+    weighted = dA[..., None] * ratios
+    out[first:flow_at] = np.sum(weighted, axis=(0, 1))
+    out[flow_at:conc_up_at] = np.sum(dA[..., None] * ion_flows, axis=(0, 1))
+    out[conc_up_at:conc_flow_at] = np.sum(weighted * u_p[..., None], axis=(0, 1))
+    out[conc_flow_at:] = np.einsum("yzi,yzk->ik", weighted, ion_flows).ravel()
+    whole = np.r_[I_PSI:I_WALL + 1, I_FLUX_TB:I_CENTRE, first:size]
+    out[whole] *= 4.0  # the quarter to the full section
+    out[[I_CORNER, I_MID_Y, I_MID_Z, I_CENTRE]] = grid_psi[-1, -1], grid_psi[-1, 0], grid_psi[0, -1], grid_psi[0, 0]
     return GridSolution(y.x, z.x, grid_psi, u_eo, u_p, out, iterations)
 
 

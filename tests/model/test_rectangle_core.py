@@ -45,13 +45,13 @@ def test_duct_series_is_symmetric_in_its_two_directions(a: float, b: float) -> N
                                                          (2.0, 10.0, 10.0)])
 def test_debye_hueckel_rectangle_against_fourier_series(width: float, height: float, kappa_h: float) -> None:
     """Mean EO velocity (no slip: mean of psi - zeta) and mean pressure-driven velocity of a Debye-Hueckel square and
-    1:5 rectangle against the duct series (``mean_of_duct_series``), to 1e-8 with accuracy 1e-10."""
+    1:5 rectangle against the duct series (``mean_of_duct_series``), to 1e-8 with accuracy 1e-9."""
     zeta = -1.3
-    sol = solve_rectangle_section(width, height, 1.0 / kappa_h, *SYMMETRIC, model="dh", zeta=zeta, accuracy=1e-10)
+    sol = solve_rectangle_section(width, height, 1.0 / kappa_h, *SYMMETRIC, model="dh", zeta=zeta, accuracy=1e-9)
     eo = mean_of_duct_series(width, height, kappa_h, -kappa_h**2 * zeta)
     pressure = mean_of_duct_series(width, height, 0.0, -1.0)
     assert sol.area == pytest.approx(width * height, rel=1e-14)
-    assert sol.estimate <= 1e-10
+    assert sol.estimate <= 1e-9
     assert sol.mean_velocity_eo == pytest.approx(eo, rel=1e-8)
     assert sol.integrals["u_p"] / sol.area == pytest.approx(pressure, rel=1e-8)
     assert sol.mean_potential == pytest.approx(eo + zeta, rel=1e-8)
@@ -130,14 +130,17 @@ def test_error_estimate_meets_the_accuracy() -> None:
                         for acc in (1e-6, 1e-9))
         assert coarse.estimate <= 1e-6
         for key, value in fine.integrals.items():
-            assert coarse.integrals[key] == pytest.approx(value, rel=1e-6), key
+            # the centre potential, exponentially small here, is measured against the wall potential (1-D solver)
+            tolerance = 1e-6 * abs(zeta) if key == "psi_centre" else 0.0
+            assert coarse.integrals[key] == pytest.approx(value, rel=1e-6, abs=tolerance, nan_ok=True), key
+        assert coarse.ion_integrals == pytest.approx(fine.ion_integrals, rel=1e-6)
 
 
 def test_integer_inputs_solve_as_floats() -> None:
     """Integers are numbers like any other: an integer wall potential once made integer node arrays."""
     as_int = solve_rectangle_section(2, 2, 1, [1, -1], [1, 1], zeta=-2, accuracy=1e-6)
     as_float = solve_rectangle_section(2.0, 2.0, 1.0, [1.0, -1.0], [1.0, 1.0], zeta=-2.0, accuracy=1e-6)
-    assert as_int.integrals == as_float.integrals
+    np.testing.assert_equal(as_int.integrals, as_float.integrals)  # NaN (the undefined wall split) equals NaN
 
 
 @pytest.mark.parametrize(("field", "kwargs"), [("width", {"width": -1.0}), ("debye_length", {"debye_length": 0.0}),
