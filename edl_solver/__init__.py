@@ -19,10 +19,10 @@ import typing as _typing
 from edl_solver.errors import ConvergenceError, InputError
 from edl_solver.inputs.case import Case, Numerics
 from edl_solver.inputs.electrolyte import Electrolyte, Ion
-from edl_solver.inputs.geometry import Capillary, Slit
+from edl_solver.inputs.geometry import Capillary, Rectangle, Slit
 from edl_solver.inputs.solvent import Solvent, Water
 from edl_solver.inputs.wall import Site, Wall
-from edl_solver.results.profiles import Profiles
+from edl_solver.results.profiles import Profiles, RectangleProfiles
 from edl_solver.results.result import Result
 
 if _typing.TYPE_CHECKING:
@@ -95,6 +95,8 @@ __all__ = [
     "Ion",
     "Numerics",
     "Profiles",
+    "Rectangle",
+    "RectangleProfiles",
     "Result",
     "Site",
     "Slit",

@@ -17,6 +17,7 @@ import numpy as np
 
 from edl_solver.errors import ConvergenceError, InputError
 from edl_solver.inputs.case import Case
+from edl_solver.inputs.geometry import Rectangle
 from edl_solver.kernels import layout as _layout
 from edl_solver.kernels import summary as _summary
 from edl_solver.model import packing, profiles, section, thin_layer, validity
@@ -44,6 +45,8 @@ def solve(case: Case) -> Result:
     """
     if not isinstance(case, Case):
         raise InputError(f"case: {type(case).__name__} is not a Case, expected edl_solver.Case(...)")
+    if isinstance(case.geometry, Rectangle):
+        return _solve_rectangle(case)
     vector = packing.case_vector(case)
     values = np.empty(_layout.SUMMARY_SIZE)
     solved = section.solve_and_summarize(vector, case, values)
@@ -59,6 +62,31 @@ def solve(case: Case) -> Result:
         warnings=Deferred(lambda result: validity.notes(case, result.profiles, solved.units.thermal_voltage,
                                                           result.summary)
                           + validity.coupling_notes(result.summary)),
+        response_matrix=solved.matrix,
+        ion_response_matrix=solved.ion_matrix,
+    )
+
+
+def _solve_rectangle(case: Case) -> Result:
+    """The pipeline of a rectangular section: the 2-D solve and the same summary (``model.rectangle_case``)."""
+    from edl_solver.model import rectangle_case, rectangle_profiles
+
+    values = np.full(_layout.SUMMARY_SIZE, np.nan)
+    solved = rectangle_case.solve_rectangle_case(case, values)
+    section = solved.section
+    cells = section.finest.psi.shape
+    message = (f"converged: {section.iterations} Newton iterations, {cells[0]} x {cells[1]} nodes on the finest "
+               f"quarter grid, estimated relative error {section.estimate:.1g}")
+    return Result.converged(
+        case=case,
+        profiles=Deferred(lambda result: rectangle_profiles.rectangle_profiles(case, solved)),
+        summary=Deferred(lambda result: summary_dict(values, case)),
+        verdict=Deferred(_verdict),
+        message=message,
+        iterations=section.iterations,
+        residual=float("nan"),
+        warnings=Deferred(lambda result: validity.notes(case, result.profiles, solved.thermal_voltage,
+                                                          result.summary) + validity.coupling_notes(result.summary)),
         response_matrix=solved.matrix,
         ion_response_matrix=solved.ion_matrix,
     )

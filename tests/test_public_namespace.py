@@ -6,7 +6,8 @@ from __future__ import annotations
 
 import edl_solver as edl
 
-PUBLIC = {"Case", "Slit", "Capillary", "Electrolyte", "Ion", "Site", "Wall", "Solvent", "Water", "Numerics",
+PUBLIC = {"Case", "Slit", "Capillary", "Rectangle", "RectangleProfiles", "Electrolyte", "Ion", "Site", "Wall",
+          "Solvent", "Water", "Numerics",
           "solve", "sweep", "load", "Channel", "Profiles", "Result", "InputError", "ConvergenceError",
           "fit", "Fit", "__version__"}
 

@@ -97,10 +97,11 @@ class Case:
 
     Parameters
     ----------
-    geometry : Slit or Capillary
+    geometry : Slit, Capillary or Rectangle
     electrolyte : Electrolyte
     wall : Wall or (Wall, Wall)
-        One wall condition for every wall, or a (bottom, top) pair for a slit.
+        One wall condition for every wall, or a (bottom, top) pair for a slit, a (top and bottom, sides) pair for a
+        rectangle (the walls z = 0, H and the walls y = 0, W).
     solvent : Solvent
         Defaults to water at 25 degC (``Water()``).
     field : float or str
@@ -134,16 +135,17 @@ class Case:
 
     def __post_init__(self) -> None:
         if not isinstance(self.geometry, tuple(GEOMETRIES.values())):
-            raise InputError(f"geometry: {self.geometry!r} is not a geometry, expected Slit(height=...) or "
-                             "Capillary(radius=...)")
+            raise InputError(f"geometry: {self.geometry!r} is not a geometry, expected Slit(height=...), "
+                             "Capillary(radius=...) or Rectangle(width=..., height=...)")
         if not isinstance(self.electrolyte, Electrolyte):
             raise InputError(f"electrolyte: {self.electrolyte!r} is not an Electrolyte, expected "
                              "Electrolyte([...]) or Electrolyte.from_ions({...})")
         if isinstance(self.wall, (tuple, list)):
+            pair = "(" + ", ".join(self.geometry.wall_names) + ")"
             if self.geometry.wall_count == 1:
-                raise InputError(f"wall: a (bottom, top) pair was given for a {self.geometry.kind}, expected one Wall")
+                raise InputError(f"wall: a {pair} pair was given for a {self.geometry.kind}, expected one Wall")
             if len(self.wall) != 2 or not all(isinstance(w, Wall) for w in self.wall):
-                raise InputError(f"wall: {self.wall!r} is not a (bottom, top) pair of Wall, expected two")
+                raise InputError(f"wall: {self.wall!r} is not a {pair} pair of Wall, expected two")
             _set(self, "wall", tuple(self.wall))
         elif not isinstance(self.wall, Wall):
             raise InputError(f"wall: {self.wall!r} is not a Wall, expected Wall(zeta=...) or "
@@ -178,7 +180,7 @@ class Case:
 
     @property
     def walls(self) -> tuple[Wall, Wall]:
-        """(bottom, top) walls of a slit; (wall, wall) for a capillary."""
+        """(bottom, top) walls of a slit, (top and bottom, sides) of a rectangle; (wall, wall) for a capillary."""
         return self.wall if isinstance(self.wall, tuple) else (self.wall, self.wall)
 
     @property

@@ -26,8 +26,8 @@ WALL_KEYS = (*WALL_VALUE_KEYS, "site")
 SOLVENT_PROPERTIES = ("temperature", "relative_permittivity", "viscosity")
 SOLVENT_KEYS = (*SOLVENT_PROPERTIES, "name", "viscoelectric_coefficient", "viscoelectric")
 NUMERICS_KEYS = ("accuracy", "intervals", "max_iterations", "max_intervals")
-#: Keys of [geometry]: its kind and the size input of each geometry ("height", "radius").
-GEOMETRY_KEYS = ("kind", *(geometry.size_name for geometry in GEOMETRIES.values()))
+#: Keys of [geometry]: its kind and the size inputs of each geometry ("height", "radius", "width").
+GEOMETRY_KEYS = ("kind", *dict.fromkeys(key for geometry in GEOMETRIES.values() for key in geometry.size_keys))
 SCALARS = ("model", "field", "pressure_gradient", "tolerance", "bulk_conductivity")
 _WALL_TABLES = ("wall", "wall.bottom", "wall.top")
 

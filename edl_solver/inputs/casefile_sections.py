@@ -27,10 +27,11 @@ T = TypeVar("T")
 WALL_PRESETS: dict[str, Callable[..., Wall]] = {"silica": Wall.silica}
 
 #: An example size of each geometry for messages.
-_SIZE_EXAMPLES = {"slit": "'50 nm'", "capillary": "'20 nm'"}
+_SIZE_EXAMPLES = {"slit": "'50 nm'", "capillary": "'20 nm'", "rectangle": "'200 nm'"}
 
 EXAMPLES = {
-    "geometry": 'kind = "slit" and height = "50 nm" (or kind = "capillary" and radius = "20 nm")',
+    "geometry": 'kind = "slit" and height = "50 nm" (or kind = "capillary" and radius = "20 nm", or kind = '
+                '"rectangle", width = "200 nm" and height = "50 nm")',
     "electrolyte": 'ions = { "K+" = "1 mM", "Cl-" = "1 mM" }',
     "wall": 'zeta = "-50 mV", charge_density = "-2 mC/m^2" or preset = "silica"',
     "site": 'density = "8 nm^-2", pK = 7.5, charges = [0, -1]',
@@ -82,13 +83,15 @@ def _flag(table: Mapping[str, Any], key: str, path: str) -> bool | None:
 
 
 def build_geometry(table: Mapping[str, Any]) -> Geometry:
-    """[geometry]: its ``kind`` (one of ``GEOMETRIES``) and that geometry's size key."""
+    """[geometry]: its ``kind`` (one of ``GEOMETRIES``) and that geometry's size keys (``size_keys``)."""
     kind = table.get("kind")
     if kind is None:
-        # Unambiguous without kind: a height makes a slit, a radius a capillary.
-        given = [name for name, shape in GEOMETRIES.items() if shape.size_name in table]
+        # Unambiguous without kind: a width makes a rectangle, else a height a slit, a radius a capillary.
+        given = [name for name, shape in GEOMETRIES.items() if set(shape.size_keys) <= set(table)]
+        given = ["rectangle"] if "rectangle" in given else given
         if len(given) != 1:
-            choices = " or ".join(f"{name!r} (with {shape.size_name})" for name, shape in GEOMETRIES.items())
+            choices = " or ".join(f"{name!r} (with {' and '.join(shape.size_keys)})"
+                                  for name, shape in GEOMETRIES.items())
             raise InputError(f"geometry.kind: missing, expected {choices}")
         kind = given[0]
     if kind not in GEOMETRIES:
@@ -96,15 +99,17 @@ def build_geometry(table: Mapping[str, Any]) -> Geometry:
         hint = f" (did you mean {close[0]!r}?)" if close else ""
         raise InputError(f"geometry.kind: {kind!r} is not a geometry{hint}, expected "
                          f"{' or '.join(repr(name) for name in GEOMETRIES)}")
-    size = GEOMETRIES[kind].size_name
+    keys = GEOMETRIES[kind].size_keys
     for other in GEOMETRIES.values():
-        if other.kind != kind and other.size_name in table:
-            raise InputError(f"geometry.{other.size_name}: {table[other.size_name]!r} is not used by a {kind}, "
-                             f"expected geometry.{size}")
-    if size not in table:
-        raise InputError(f"geometry.{size}: missing, expected the {kind}'s {size} like "
-                         f"{_SIZE_EXAMPLES.get(kind, repr('20 nm'))}")
-    return GEOMETRIES[kind](table[size])
+        for key in other.size_keys:
+            if key not in keys and key in table:
+                raise InputError(f"geometry.{key}: {table[key]!r} is not used by a {kind}, expected "
+                                 f"{' and '.join(f'geometry.{k}' for k in keys)}")
+    for key in keys:
+        if key not in table:
+            raise InputError(f"geometry.{key}: missing, expected the {kind}'s {key} like "
+                             f"{_SIZE_EXAMPLES.get(kind, repr('20 nm'))}")
+    return GEOMETRIES[kind](*(table[key] for key in keys))
 
 
 def build_electrolyte(table: Mapping[str, Any]) -> Electrolyte:

@@ -61,9 +61,28 @@ def check_case(case: Case) -> None:
     charge or gate is beyond ``MAX_POTENTIAL`` (see the module docstring)."""
     _check_kappa_size(case)
     walls = case.wall if isinstance(case.wall, tuple) else (case.wall,)
-    names = ("wall.bottom", "wall.top") if len(walls) == 2 else ("wall",)
+    names = tuple(f"wall.{side}" for side in case.geometry.wall_names) if len(walls) == 2 else ("wall",)
     for wall, name in zip(walls, names, strict=True):
         _check_wall(wall, name, case.electrolyte, case.solvent)
+    if case.geometry.kind == "rectangle":
+        _check_rectangle(case, walls, names)
+
+
+def _check_rectangle(case: Case, walls: tuple[Wall, ...], names: tuple[str, ...]) -> None:
+    """What the rectangle's solver does not model: Navier slip, a viscoelectric solvent, and two different fixed
+    potentials (they meet at the corners, where the potential would jump and the wall charge diverge)."""
+    for wall, name in zip(walls, names, strict=True):
+        if wall.slip_length:
+            raise InputError(f"{name}.slip_length: {wall.slip_length:.4g} m is not modelled for a rectangle, "
+                             "expected 0 (no slip); slip walls are solved for slits and capillaries")
+    if case.solvent.viscoelectric_coefficient:
+        raise InputError(f"solvent.viscoelectric_coefficient: {case.solvent.viscoelectric_coefficient:.4g} m^2/V^2 is "
+                         "not modelled for a rectangle, expected 0")
+    if len(walls) == 2 and walls[0].kind == walls[1].kind == "potential" and walls[0].zeta != walls[1].zeta:
+        raise InputError(f"wall.sides.zeta: {walls[1].zeta:.4g} V differs from wall.top_bottom.zeta "
+                         f"{walls[0].zeta:.4g} V, expected one zeta for all four walls: two fixed potentials would "
+                         "jump at the corners, where the wall charge diverges; give charge densities or regulated "
+                         "walls for walls that differ")
 
 
 def _check_kappa_size(case: Case) -> None:

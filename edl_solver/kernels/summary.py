@@ -81,7 +81,13 @@ from edl_solver.kernels.layout import (
 )
 from edl_solver.kernels.prepare import ion_block, wall_si
 from edl_solver.kernels.response import ion_response_matrix, reduced_matrix
-from edl_solver.kernels.thin_layer import bulk_cation_transference, outer_deviation, thin_layer_matrix, thin_slip
+from edl_solver.kernels.thin_layer import (
+    bulk_cation_transference,
+    outer_deviation,
+    plug_shape,
+    thin_layer_matrix,
+    thin_slip,
+)
 
 #: Where each lab quantity goes in the summary vector.
 LAB_SLOTS = np.array([SLOTS[key] for key in LAB_KEYS])
@@ -160,10 +166,11 @@ def _flow_and_currents(p, sc, integrals, out):
 
 
 @njit(cache=True, error_model="numpy")
-def _thin_layer_flow(p, sc, iso, slip, eo_per_field, deviation, symmetric, out):
-    """The thin-layer model's EO flow from the slip velocities of the isolated walls, and its error."""
+def _thin_layer_flow(p, sc, iso, slip, shape, eo_per_field, deviation, symmetric, out):
+    """The thin-layer model's EO flow from the slip velocities of the isolated walls (the first wall's share of the
+    mean velocity ``shape[0]``, ``thin_layer.plug_shape``), and its error."""
     field, section = p[P_FIELD], sc[S_SECTION_AREA]
-    thin_per_field = section * 0.5 * (slip[0] + slip[1])
+    thin_per_field = section * (shape[0] * slip[0] + (1.0 - shape[0]) * slip[1])
     # between walls of opposite sign either flow may vanish; below round-off of the slip scale the relative
     # error and the ratio are undefined (NaN) rather than noise
     negligible = 1e-10 * section * max(abs(slip[0]), abs(slip[1]))
@@ -178,14 +185,14 @@ def _thin_layer_flow(p, sc, iso, slip, eo_per_field, deviation, symmetric, out):
 
 
 @njit(cache=True, error_model="numpy")
-def _transport(p, sc, iso, slip, integrals, out):
+def _transport(p, sc, iso, slip, shape, integrals, out):
     """Lab quantities of the full and the thin-layer response matrices, and the thin-layer ones' relative
     errors; returns the ion-resolved and the reduced matrices."""
     ion_matrix = ion_response_matrix(p, sc, integrals)
     matrix = reduced_matrix(p, ion_matrix)
     full = lab_quantities(matrix, p)
     full[L_TRANSFERENCE] = cation_transference(p, ion_matrix)
-    thin = lab_quantities(thin_layer_matrix(p, sc, iso, slip), p)
+    thin = lab_quantities(thin_layer_matrix(p, sc, iso, slip, shape), p)
     thin[L_TRANSFERENCE] = bulk_cation_transference(p)
     for j in range(LAB_SLOTS.size):
         out[LAB_SLOTS[j]] = full[j]
@@ -198,17 +205,26 @@ def _transport(p, sc, iso, slip, integrals, out):
 
 
 @njit(cache=True, error_model="numpy")
+def summarize_integrals(p, sc, iso, slip, shape, integrals, deviation, out):
+    """Fill ``out`` (``SLOTS`` layout) from the extrapolated section ``integrals`` (``I_*`` layout) of the case vector
+    ``p`` with scales ``sc``, all but the identity checks and the error estimate; returns the ion-resolved and the
+    reduced response matrices. ``shape`` is the thin-layer flow's shape (``thin_layer.plug_shape``); a rectangle
+    passes its own (``model.rectangle_case``), with its integrals in this layout."""
+    symmetric = p[P_SYMMETRIC] != 0.0
+    _equilibrium(p, sc, integrals, symmetric, out)
+    eo_per_field = _flow_and_currents(p, sc, integrals, out)
+    _thin_layer_flow(p, sc, iso, slip, shape, eo_per_field, deviation, symmetric, out)
+    return _transport(p, sc, iso, slip, shape, integrals, out)
+
+
+@njit(cache=True, error_model="numpy")
 def summarize(p, inputs, solved, slip, deviation, out):
     """Fill ``out`` (``SLOTS`` layout) from the extrapolated section integrals of ``solved`` (a ``SectionSolve``
     of the case vector ``p`` prepared as ``inputs``); returns the ion-resolved and the reduced response
     matrices. ``slip`` is ``thin_slip`` of the isolated walls and ``deviation`` ``outer_deviation`` of the
     finest profile."""
     sc, iso, integrals = inputs.scales, inputs.isolated, solved.integrals
-    symmetric = p[P_SYMMETRIC] != 0.0
-    _equilibrium(p, sc, integrals, symmetric, out)
-    eo_per_field = _flow_and_currents(p, sc, integrals, out)
-    _thin_layer_flow(p, sc, iso, slip, eo_per_field, deviation, symmetric, out)
-    ion_matrix, matrix = _transport(p, sc, iso, slip, integrals, out)
+    ion_matrix, matrix = summarize_integrals(p, sc, iso, slip, plug_shape(p, sc), integrals, deviation, out)
     balance, reciprocity = identity_residuals(p, inputs.problem.kappa2, integrals, ion_matrix)
     out[Z_CHARGE_BALANCE] = balance
     out[Z_RECIPROCITY_RESIDUAL] = reciprocity

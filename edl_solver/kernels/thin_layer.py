@@ -196,24 +196,37 @@ def _poiseuille(p, sc):
 
 
 @njit(cache=True, error_model="numpy")
-def thin_layer_matrix(p, sc, iso, slip):
+def plug_shape(p, sc):
+    """The thin-layer flow's shape of a slit or capillary (``thin_layer_matrix``'s ``shape``): the first wall's
+    share 1/2 of the mean slip-driven velocity (the mean of a Couette profile; a capillary's walls are one), and
+    the Poiseuille flow per unit solvent force (``_poiseuille``)."""
+    shape = np.empty(2)
+    shape[0] = 0.5
+    shape[1] = _poiseuille(p, sc)
+    return shape
+
+
+@njit(cache=True, error_model="numpy")
+def thin_layer_matrix(p, sc, iso, slip, shape):
     """The 3 x 3 response matrix of the thin-layer model (layout as ``response.reduced_matrix``).
 
     Bulk electrolyte everywhere, the double layers reduced to slip velocities: Poiseuille flow with the walls'
-    slip lengths; EO slip (mean of the walls' Helmholtz-Smoluchowski velocities) coupling flow and field both
-    ways (Smoluchowski's streaming relation); bulk conduction K = (F^2 / RT) sum z_i^2 D_i c_i times the factor
-    of the case's conductivity law (P_BULK_FACTOR); bulk diffusion and convection of the salt; chemiosmotic
-    slip for the salt force (any electrolyte, ``_chemiosmotic_slip``).
+    slip lengths; EO slip (the mean velocity the walls' Helmholtz-Smoluchowski velocities drive) coupling flow and
+    field both ways (Smoluchowski's streaming relation); bulk conduction K = (F^2 / RT) sum z_i^2 D_i c_i times the
+    factor of the case's conductivity law (P_BULK_FACTOR); bulk diffusion and convection of the salt; chemiosmotic
+    slip for the salt force (any electrolyte, ``_chemiosmotic_slip``). ``shape``: the first wall's share w of the
+    mean slip-driven velocity (mean u = w u_1 + (1 - w) u_2) and the Poiseuille flow per unit solvent force of the
+    section (``plug_shape``; a rectangle's from its duct series).
     """
     ions = ion_block(p)
     rt = GAS_CONSTANT * p[P_TEMPERATURE]
     total_c, total_nu = salt_totals(ions)
     area = sc[S_SECTION_AREA]
-    poiseuille = _poiseuille(p, sc)
-    eo = area * 0.5 * (slip[0] + slip[1])
+    share, poiseuille = shape[0], shape[1]
+    eo = area * (share * slip[0] + (1.0 - share) * slip[1])
     vt = sc[S_THERMAL_VOLTAGE]
-    chemi = 0.5 * (_chemiosmotic_slip(iso[0, ISO_ZETA], ions, p, vt)
-                   + _chemiosmotic_slip(iso[1, ISO_ZETA], ions, p, vt))
+    chemi = (share * _chemiosmotic_slip(iso[0, ISO_ZETA], ions, p, vt)
+             + (1.0 - share) * _chemiosmotic_slip(iso[1, ISO_ZETA], ions, p, vt))
     salt_flow = total_c / total_nu * poiseuille + area * chemi / (-rt * total_nu)
     conduction = 0.0
     diffusion = 0.0

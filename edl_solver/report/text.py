@@ -67,10 +67,11 @@ def _wall_text(wall: Wall) -> str:
 
 
 def _wall_lines(case: Case) -> list[str]:
-    """One line per wall when they differ; one line for the wall (or both walls) otherwise."""
+    """One line per wall (pair) when they differ; one line for every wall otherwise."""
+    names = case.geometry.wall_titles
     if isinstance(case.wall, tuple):
-        return [f"Bottom wall: {_wall_text(case.wall[0])}", f"Top wall: {_wall_text(case.wall[1])}"]
-    return [f"{'Wall' if case.geometry.wall_count == 1 else 'Both walls'}: {_wall_text(case.wall)}"]
+        return [f"{names[0]}: {_wall_text(case.wall[0])}", f"{names[1]}: {_wall_text(case.wall[1])}"]
+    return [f"{names[2]}: {_wall_text(case.wall)}"]
 
 
 def _model_text(case: Case) -> str:
@@ -104,7 +105,7 @@ def _solvent_text(case: Case) -> str:
 def _case_lines(case: Case) -> list[str]:
     g = case.geometry
     return [
-        f"{g.kind.capitalize()} of {g.size_name} {g.size_symbol} = {scaled(g.size, 1e9, 'nm', 4)}, {g.range_text}",
+        f"{g.kind.capitalize()} of {g.size_text(lambda v: scaled(v, 1e9, 'nm', 4))}, {g.range_text}",
         _electrolyte_text(case),
         _solvent_text(case),
         *_wall_lines(case),
@@ -119,10 +120,10 @@ def _case_lines(case: Case) -> list[str]:
 # The full solution and the thin-layer model
 
 
-def _pair(shown: Shown, value: Any, signed: bool = False) -> str:
-    """One value, or a (bottom, top) pair, in ``shown``'s unit."""
+def _pair(shown: Shown, value: Any, signed: bool = False, names: tuple[str, str] = ("bottom", "top")) -> str:
+    """One value, or a pair of the two walls (``names``: the geometry's ``wall_words``), in ``shown``'s unit."""
     if isinstance(value, tuple):
-        return f"bottom {shown(value[0], signed)}, top {shown(value[1], signed)}"
+        return f"{names[0]} {shown(value[0], signed)}, {names[1]} {shown(value[1], signed)}"
     return shown(value, signed)
 
 
@@ -139,12 +140,12 @@ def _flow(shown: Shown, value: Any, geometry: Geometry) -> str:
     return f"{shown(value)} ({number(float(value))} m³/s)"
 
 
-def _stern(shown: Shown, value: Any) -> str:
+def _stern(shown: Shown, value: Any, names: tuple[str, str]) -> str:
     """The charge-plane potential, mV; a wall without Stern layer (NaN in a pair) says so."""
     if not isinstance(value, tuple):
         return shown(value)
     texts = [shown(v) if math.isfinite(v) else "none (no Stern layer)" for v in value]
-    return f"bottom {texts[0]}, top {texts[1]}"
+    return f"{names[0]} {texts[0]}, {names[1]} {texts[1]}"
 
 
 def _full_solution_lines(case: Case, s: dict[str, Any]) -> list[str]:
@@ -163,9 +164,10 @@ def _full_solution_lines(case: Case, s: dict[str, Any]) -> list[str]:
     lines = [
         "Full solution" + (f" (flow rates and currents per metre of {g.kind} width)" if g.extent == "per_width"
                            else ""),
-        _row("wall potential (zeta)", _pair(mv, _value(s, "zeta"))),
-        _row("wall charge density", _pair(show("charge_density", g), _value(s, "wall_charge_density"))),
-        *([_row("charge-plane potential ψ0 = ζ + σ/C_S (Stern)", _stern(mv, s["stern_potential"]))]
+        _row("wall potential (zeta)", _pair(mv, _value(s, "zeta"), names=g.wall_words)),
+        _row("wall charge density",
+             _pair(show("charge_density", g), _value(s, "wall_charge_density"), names=g.wall_words)),
+        *([_row("charge-plane potential ψ0 = ζ + σ/C_S (Stern)", _stern(mv, s["stern_potential"], g.wall_words))]
           if "stern_potential" in s else []),
         _row(f"{g.centre_text} / section mean",
              f"{_pair(mv, _value(s, 'centre_potential'))} / {_pair(mv, _value(s, 'mean_potential'))}"),
@@ -192,7 +194,8 @@ def _thin_layer_lines(result: Result) -> list[str]:
                                     "with Navier slip length b)" if slip else
                                     "Helmholtz-Smoluchowski slip u_s = -εζE/η at the wall)")]
     kinds = {wall.kind for wall in case.walls}
-    thin_zeta = _pair(show("potential", case.geometry), _value(s, "thin_layer_zeta"))
+    thin_zeta = _pair(show("potential", case.geometry), _value(s, "thin_layer_zeta"),
+                      names=case.geometry.wall_words)
     if "regulated" in kinds:
         lines.append(_row("zeta it uses (isolated wall, regulated charge)", thin_zeta))
     elif "charge" in kinds:
@@ -200,7 +203,8 @@ def _thin_layer_lines(result: Result) -> list[str]:
     velocities = _flat(_value(s, "hs_velocity"), _value(s, "mean_velocity_eo"))
     return [
         *lines,
-        _row("slip velocity u_s", _pair(show("velocity", case.geometry, *velocities), _value(s, "hs_velocity"))),
+        _row("slip velocity u_s", _pair(show("velocity", case.geometry, *velocities), _value(s, "hs_velocity"),
+                                                 names=case.geometry.wall_words)),
         _row("eo_ratio (full / thin-layer mean EO velocity)", number(_value(s, "eo_ratio"))),
         _row("flow-rate error (thin-layer - full) / full",
              percent(_value(s, "thin_layer_flow_rate_error"), signed=True)),

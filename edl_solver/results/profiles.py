@@ -43,3 +43,46 @@ class Profiles:
     velocity_thin_layer: np.ndarray
     ion_names: tuple[str, ...]
     eo_per_field: np.ndarray
+
+
+@dataclass(frozen=True)
+class RectangleProfiles:
+    """Fields across the whole rectangular section on the finest (wall-clustered) tensor-product grid, the
+    quarter solved mirrored to the full section; second-order accurate (the summary values are extrapolated).
+
+    Attributes
+    ----------
+    y : ndarray
+        Positions across the width, 0 to W, m (ny,).
+    z : ndarray
+        Positions across the height, 0 to H, m (nz,).
+    potential : ndarray
+        phi relative to the reservoir, V, (ny, nz): index [i, j] at (y[i], z[j]).
+    concentration : ndarray
+        Ion concentrations, (ions, ny, nz), mol/m^3.
+    charge_density : ndarray
+        rho_e, C/m^3, (ny, nz).
+    velocity_eo, velocity_pressure, velocity : ndarray
+        Electroosmotic, pressure-driven and total axial velocity, m/s, (ny, nz).
+    velocity_thin_layer : ndarray
+        The thin-layer model's EO velocity, m/s, (ny, nz): the plug flow at the slip velocity of equal walls, or
+        the Stokes (Laplace) flow the two wall pairs' slip velocities drive.
+    ion_names : tuple of str
+    eo_per_field : ndarray
+        EO velocity per unit field, m^2/(V s), (ny, nz).
+    """
+
+    y: np.ndarray
+    z: np.ndarray
+    potential: np.ndarray
+    concentration: np.ndarray
+    charge_density: np.ndarray
+    velocity_eo: np.ndarray
+    velocity_pressure: np.ndarray
+    velocity: np.ndarray
+    velocity_thin_layer: np.ndarray
+    ion_names: tuple[str, ...]
+    eo_per_field: np.ndarray
+
+    #: The names of the two section coordinates (files, figures).
+    coordinate_names = ("y", "z")
