@@ -10,6 +10,7 @@ a dict, the verdict, the message, the validity notes) is built when first read (
 
 from __future__ import annotations
 
+import dataclasses
 import functools
 from typing import Any
 
@@ -17,7 +18,7 @@ import numpy as np
 
 from edl_solver.errors import ConvergenceError, InputError
 from edl_solver.inputs.case import Case
-from edl_solver.inputs.geometry import Rectangle
+from edl_solver.inputs.geometry import Rectangle, Slit
 from edl_solver.kernels import layout as _layout
 from edl_solver.kernels import summary as _summary
 from edl_solver.model import packing, profiles, section, thin_layer, validity
@@ -89,7 +90,30 @@ def _solve_rectangle(case: Case) -> Result:
                                                           result.summary) + validity.coupling_notes(result.summary)),
         response_matrix=solved.matrix,
         ion_response_matrix=solved.ion_matrix,
+        slit_comparison=Deferred(lambda result: slit_beside(case, result.summary)),
     )
+
+
+#: The slit values shown beside a rectangle's: intensive ones as they are, extensive ones (per unit width) times W.
+SLIT_INTENSIVE = ("mean_velocity_eo", "eo_ratio", "thin_layer_flow_rate_error", "streaming_potential_coefficient",
+                  "selectivity")
+SLIT_EXTENSIVE = ("flow_rate_eo", "current_per_field", "conductance_per_length", "streaming_conductance")
+
+
+def slit_beside(case: Case, summary: dict[str, Any]) -> dict[str, float]:
+    """The slit of a rectangle's height with its top and bottom walls (the rectangle without side walls): its values
+    (``SLIT_INTENSIVE`` as they are, ``SLIT_EXTENSIVE`` times the width W, so that both describe one channel) and
+    ``side_wall_effect_<key>`` (the mean EO velocity and the extensive values but the flow rate, whose effect is the
+    mean velocity's), the rectangle's value over the slit's less 1: what the side walls cost."""
+    geometry = case.geometry
+    wall = case.walls[0] if not case.symmetric else case.wall
+    slit = solve(dataclasses.replace(case, geometry=Slit(height=geometry.height), wall=wall)).summary
+    out: dict[str, float] = {"height": geometry.height, "width": geometry.width}
+    for key in (*SLIT_INTENSIVE, *SLIT_EXTENSIVE):
+        out[key] = slit[key] * (geometry.width if key in SLIT_EXTENSIVE else 1.0)
+    for key in ("mean_velocity_eo", *SLIT_EXTENSIVE[1:]):  # the EO flow rate's effect is the mean velocity's
+        out[f"side_wall_effect_{key}"] = summary[key] / out[key] - 1.0 if out[key] else float("nan")
+    return out
 
 
 def check_identities(values: np.ndarray, case: Case) -> None:

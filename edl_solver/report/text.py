@@ -214,6 +214,30 @@ def _thin_layer_lines(result: Result) -> list[str]:
     ]
 
 
+def _slit_lines(result: Result) -> list[str]:
+    """A rectangle's slit of the same height beside it (``Result.slit_comparison``): what the side walls cost."""
+    slit = result.slit_comparison
+    if not slit:
+        return []
+    g, s = result.case.geometry, result.summary
+
+    def beside(key: str, quantity: str) -> str:
+        shown = show(quantity, g, slit[key], s[key])
+        return f"{shown(slit[key])} (side walls {percent(slit[f'side_wall_effect_{key}'], signed=True)})"
+
+    conductance = show("conductance", g, 1e6 * slit["conductance_per_length"])
+    return [
+        "Slit of the same height H, no side walls, scaled to the width W (side walls: rectangle / slit - 1)",
+        _row("EO mean velocity", beside("mean_velocity_eo", "velocity")),
+        _row("eo_ratio / flow-rate error of the slip model",
+             f"{number(slit['eo_ratio'])} / {percent(slit['thin_layer_flow_rate_error'], signed=True)}"),
+        _row("conductance of a 1 µm long channel",
+             f"{conductance(1e6 * slit['conductance_per_length'])} (side walls "
+             f"{percent(slit['side_wall_effect_conductance_per_length'], signed=True)})"),
+        "",
+    ]
+
+
 def _transport_scales(case: Case, s: dict[str, Any]) -> dict[str, float]:
     """Natural scales of the transport coefficients in this case, for telling round-off of a zero from a value:
     Smoluchowski's εζ/(ηK) and the pump pressure ε ζ/h² per volt of a wall at ζ = kT/e."""
@@ -286,6 +310,7 @@ def text(result: Result) -> str:
         "",
         *_thin_layer_lines(result),
         "",
+        *_slit_lines(result),
         *_transport_lines(case, s),
         "",
         f"Solver: {result.message or result.status}",

@@ -96,6 +96,9 @@ class Result:
         + RT sum c_i d ln c/dx, field E, salt force X_s), per unit length; see ``kernels.response.reduced_matrix``.
     ion_response_matrix : ndarray, optional
         The same resolved per ion, (1 + n) x (1 + n); see ``kernels.response.ion_response_matrix``.
+    slit_comparison : dict, optional
+        A rectangle only: the slit of the same height with the top and bottom walls (no side walls), its values
+        for the rectangle's width W (``pipeline.slit_beside``); None for a slit or capillary.
 
     Notes
     -----
@@ -115,12 +118,14 @@ class Result:
     warnings: tuple[str, ...] = _DeferredField(())
     response_matrix: np.ndarray | None = None
     ion_response_matrix: np.ndarray | None = None
+    slit_comparison: dict[str, float] | None = _DeferredField(None)
 
     @classmethod
     def converged(cls, case: Case, profiles: Profiles | Deferred, summary: dict[str, Any] | Deferred,
                   verdict: str | Deferred, message: str | Deferred, iterations: int, residual: float,
                   warnings: tuple[str, ...] | Deferred, response_matrix: np.ndarray,
-                  ion_response_matrix: np.ndarray) -> Result:
+                  ion_response_matrix: np.ndarray, slit_comparison: dict[str, float] | Deferred | None = None
+                  ) -> Result:
         """The Result of a converged solve, the same as ``Result(..., status="converged", ...)``.
 
         Put together without the dataclass ``__init__``, whose eleven frozen assignments cost a warm solve
@@ -130,7 +135,7 @@ class Result:
         result.__dict__.update(case=case, _profiles=profiles, _summary=summary, _verdict=verdict,
                                status="converged", _message=message, iterations=iterations, residual=residual,
                                _warnings=warnings, response_matrix=response_matrix,
-                               ion_response_matrix=ion_response_matrix)
+                               ion_response_matrix=ion_response_matrix, _slit_comparison=slit_comparison)
         return result
 
     def __getstate__(self) -> dict[str, Any]:

@@ -74,8 +74,12 @@ def test_wide_rectangle_tends_to_the_slit_of_its_height() -> None:
     slit = edl.solve(edl.Case(edl.Slit(height="20 nm"), SALT, wall, field=FIELD)).summary
     corrections = []
     for width in (200e-9, 400e-9):
-        s = edl.solve(edl.Case(edl.Rectangle(width=width, height="20 nm"), SALT, wall, field=FIELD)).summary
+        result = edl.solve(edl.Case(edl.Rectangle(width=width, height="20 nm"), SALT, wall, field=FIELD))
+        s = result.summary
         corrections.append(abs(s["flow_rate_eo"] / width / slit["flow_rate_eo"] - 1.0))
+        beside = result.slit_comparison  # the same slit, scaled to the width, with the side walls' effect
+        assert beside["flow_rate_eo"] == pytest.approx(slit["flow_rate_eo"] * width, rel=1e-14)
+        assert beside["side_wall_effect_mean_velocity_eo"] == pytest.approx(-corrections[-1], rel=1e-12)
         assert s["current_per_field"] / width == pytest.approx(slit["current_per_field"], rel=0.2 * 20e-9 / width * 10)
     assert corrections[0] < 0.2
     assert corrections[1] == pytest.approx(corrections[0] / 2, rel=0.1)  # ~ H / W
