@@ -19,6 +19,8 @@ shows everything at once)::
                  a wall without Stern layer); the attribute ``summary_keys`` lists them in order
     group transport   response_matrix (flux x force: volume flow, current, salt flux against solvent force,
                  field, salt force) and ion_response_matrix (ion_flux x ion_force), per unit length
+    group slit_comparison   a rectangle only: the slit of its height beside it (``Result.slit_comparison``),
+                 its values (SI, extensive ones for the rectangle's width) as attributes
     attributes   every variable has ``units`` and ``long_name``; global attributes hold the case as
                  JSON (``case_json``, the source of truth on reading) and as readable scalars with
                  the unit in the name (``height_m``, ``field_V_per_m``, ``pH``,
@@ -268,6 +270,8 @@ def _write(file: Any, result: Result) -> None:
     _write_summary(file, result)
     if result.response_matrix is not None:
         _write_transport(file.create_group("transport"), result)
+    if result.slit_comparison:  # a rectangle: the slit of its height, as attributes of a group
+        file.create_group("slit_comparison").attrs.update({k: float(v) for k, v in result.slit_comparison.items()})
     for name, value in _global_attributes(result).items():
         file.attrs[name] = value
 
@@ -380,6 +384,8 @@ def _read(file: Any, shown: str) -> dict[str, Any]:
         "residual": float(attrs.get("residual", math.nan)),
         "warnings": warnings,
         **matrices,
+        "slit_comparison": ({key: float(value) for key, value in file.groups["slit_comparison"].attrs.items()}
+                            if "slit_comparison" in file.groups else None),
     }
 
 

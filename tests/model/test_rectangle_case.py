@@ -148,3 +148,4 @@ def test_refusals_name_the_field() -> None:
         _case("100 nm", "30 nm", (edl.Wall(zeta="-20 mV"), edl.Wall(zeta="-30 mV")))
     with pytest.raises(edl.InputError, match=r"geometry.width: .*below the solver's domain"):
         edl.Rectangle(width="0.01 nm", height="30 nm")
+
