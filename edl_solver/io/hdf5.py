@@ -7,25 +7,30 @@ and ``edl_solver.load`` makes the Result of them, so that io stays below results
 Layout of schema version 1 (all in the root group, so ``xarray.open_dataset(path, engine="h5netcdf")``
 shows everything at once)::
 
-    dimensions   y (slit, 0 at the bottom wall .. H) or r (capillary, 0 on the axis .. a); ion;
-                 wall = ["bottom", "top"] (only when a summary value differs between the two walls)
-    coordinates  y or r (m), ion (names), wall
+    dimensions   y (slit, 0 at the bottom wall .. H) or r (capillary, 0 on the axis .. a), or y and z
+                 (rectangle: y across the width 0 .. W, z across the height 0 .. H); ion;
+                 wall = the geometry's ``wall_names``, ["bottom", "top"] of a slit or ["top_bottom", "sides"]
+                 of a rectangle (only when a summary value differs between the two walls)
+    coordinates  y or r, or y and z (m), ion (names), wall
     profiles     potential, charge_density, velocity_eo, velocity_pressure, velocity,
-                 velocity_thin_layer, eo_per_field on (y|r); concentration on (ion, y|r)
+                 velocity_thin_layer, eo_per_field on (y|r), or on (y, z) for a rectangle; concentration on
+                 (ion, y|r) or (ion, y, z)
     inputs       valence, bulk_concentration, diffusivity on (ion); diameter on (ion) when an ion
                  has one (NaN for those without)
     summary      one variable per summary key, named as the key: 0-d, or on (wall) for a
-                 (bottom, top) pair (NaN where a wall has no such value, e.g. the stern_potential of
-                 a wall without Stern layer); the attribute ``summary_keys`` lists them in order
+                 (bottom, top) pair (rectangle: (top_bottom, sides)) (NaN where a wall has no such value,
+                 e.g. the stern_potential of a wall without Stern layer); the attribute ``summary_keys``
+                 lists them in order
     group transport   response_matrix (flux x force: volume flow, current, salt flux against solvent force,
                  field, salt force) and ion_response_matrix (ion_flux x ion_force), per unit length
     group slit_comparison   a rectangle only: the slit of its height beside it (``Result.slit_comparison``),
                  its values (SI, extensive ones for the rectangle's width) as attributes
     attributes   every variable has ``units`` and ``long_name``; global attributes hold the case as
                  JSON (``case_json``, the source of truth on reading) and as readable scalars with
-                 the unit in the name (``height_m``, ``field_V_per_m``, ``pH``,
-                 ``viscoelectric_coefficient_m2_per_V2``; per wall, prefixed ``wall_`` or
-                 ``wall_bottom_``/``wall_top_``: ``kind``, ``zeta_V`` or ``charge_density_C_per_m2``,
+                 the unit in the name (``height_m``, or ``width_m`` and ``height_m`` of a rectangle,
+                 ``field_V_per_m``, ``pH``, ``viscoelectric_coefficient_m2_per_V2``; per wall, prefixed
+                 ``wall_`` or ``wall_bottom_``/``wall_top_`` (rectangle: ``wall_top_bottom_``/``wall_sides_``):
+                 ``kind``, ``zeta_V`` or ``charge_density_C_per_m2``,
                  ``stern_capacitance_F_per_m2``, ``gate_voltage_V``, ``gate_capacitance_F_per_m2``,
                  ``slip_length_m`` and, per site n = 1, 2, ..., ``siten_name``, ``siten_density_per_m2``,
                  ``siten_pK`` and ``siten_charges`` (arrays)), the verdict, status, message,
@@ -59,10 +64,10 @@ import numpy as np
 from edl_solver.errors import InputError
 from edl_solver.inputs.case import Case
 from edl_solver.inputs.casefile import case_from_mapping, case_to_mapping
-from edl_solver.inputs.geometry import extent_unit
+from edl_solver.inputs.geometry import Rectangle, extent_unit
 from edl_solver.inputs.wall import Wall
 from edl_solver.io.files import atomic_output, checked_input_path
-from edl_solver.results.profiles import Profiles
+from edl_solver.results.profiles import Profiles, RectangleProfiles
 from edl_solver.results.schema import PROFILE_UNITS, SUMMARY_UNITS, summary_unit
 
 if TYPE_CHECKING:
@@ -81,6 +86,14 @@ _COORDINATE_LONG_NAMES = {
     "y": "distance across the slit from the bottom wall",
     "r": "radial distance from the capillary axis",
 }
+#: The same for the two coordinates of a rectangle.
+_RECTANGLE_LONG_NAMES = {
+    "y": "distance across the width from the side wall at y = 0",
+    "z": "distance across the height from the bottom wall at z = 0",
+}
+#: Long names of the wall labels, by geometry kind (a capillary has one wall: never pairs).
+_WALL_LONG_NAMES = {"slit": "wall of the slit", "rectangle": "wall pair of the rectangle (top and bottom: z = 0 "
+                    "and H; sides: y = 0 and W)"}
 
 #: Profile variables on the cross-section coordinate alone, with their long names.
 _PROFILE_LONG_NAMES = {
@@ -123,7 +136,7 @@ def _summary_array(key: str, value: Any) -> np.ndarray:
     """A summary value as float64 (int64 for counts), rejecting what a netCDF reader cannot take."""
     items = value if isinstance(value, tuple) else (value,)
     if isinstance(value, tuple) and len(value) != 2:
-        raise ValueError(f"summary[{key!r}]: {value!r} is not a (bottom, top) pair")
+        raise ValueError(f"summary[{key!r}]: {value!r} is not a pair of the two walls")
     if any(isinstance(v, (bool, np.bool_)) or not isinstance(v, Real) for v in items):
         raise ValueError(f"summary[{key!r}]: {value!r} is not a real number (bool and complex break netCDF)")
     integral = all(isinstance(v, Integral) for v in items)
@@ -150,9 +163,10 @@ def _wall_attributes(prefix: str, wall: Wall) -> dict[str, Any]:
 def _case_attributes(case: Case) -> dict[str, Any]:
     """Readable scalar inputs; the unit is in the name because attributes carry no attributes."""
     g, s = case.geometry, case.solvent
-    attrs: dict[str, Any] = {"geometry": g.kind, f"{g.size_name}_m": g.size}  # height_m or radius_m
+    # height_m, radius_m, or width_m and height_m
+    attrs: dict[str, Any] = {"geometry": g.kind, **{f"{key}_m": getattr(g, key) for key in g.size_keys}}
     walls = (("wall", case.wall),) if isinstance(case.wall, Wall) else \
-        (("wall_bottom", case.wall[0]), ("wall_top", case.wall[1]))
+        tuple((f"wall_{name}", wall) for name, wall in zip(g.wall_names, case.wall))
     for prefix, wall in walls:
         attrs.update(_wall_attributes(prefix, wall))
     if case.electrolyte.pH is not None:
@@ -176,23 +190,38 @@ def _case_attributes(case: Case) -> dict[str, Any]:
     return attrs
 
 
-def _write_profiles(file: Any, result: Result) -> None:
-    """Dimensions and coordinates (section coordinate, ion, wall when values come in pairs) and the profiles."""
-    geometry, p = result.case.geometry, result.profiles
+def _write_coordinates(file: Any, geometry: Any, p: Profiles | RectangleProfiles) -> tuple[str, ...]:
+    """The section's dimensions and coordinate variables: (y|r) of a slit or capillary, (y, z) of a rectangle;
+    returns their names."""
+    if isinstance(geometry, Rectangle):
+        if not isinstance(p, RectangleProfiles):
+            raise ValueError(f"profiles: {type(p).__name__} does not fit a rectangle, expected RectangleProfiles")
+        for name in p.coordinate_names:
+            file.dimensions[name] = getattr(p, name).size
+            _add_array(file, name, (name,), getattr(p, name), PROFILE_UNITS["coordinate"], _RECTANGLE_LONG_NAMES[name])
+        return p.coordinate_names
+    if not isinstance(p, Profiles) or p.coordinate_name != geometry.coordinate_name:
+        raise ValueError(f"profiles.coordinate_name: {getattr(p, 'coordinate_name', None)!r} does not fit a "
+                         f"{geometry.kind}")
     coordinate = p.coordinate_name
-    if coordinate != geometry.coordinate_name:
-        raise ValueError(f"profiles.coordinate_name: {coordinate!r} does not fit a {geometry.kind}")
     file.dimensions[coordinate] = p.coordinate.size
+    _add_array(file, coordinate, (coordinate,), p.coordinate, PROFILE_UNITS["coordinate"],
+               _COORDINATE_LONG_NAMES.get(coordinate, geometry.coordinate_text))
+    return (coordinate,)
+
+
+def _write_profiles(file: Any, result: Result) -> None:
+    """Dimensions and coordinates (section coordinates, ion, wall when values come in pairs) and the profiles."""
+    geometry, p = result.case.geometry, result.profiles
+    section = _write_coordinates(file, geometry, p)
     file.dimensions["ion"] = len(p.ion_names)
     if any(isinstance(value, tuple) for value in result.summary.values()):
         file.dimensions["wall"] = 2
-        _add_strings(file, "wall", ("bottom", "top"), "wall of the slit")
-    _add_array(file, coordinate, (coordinate,), p.coordinate, PROFILE_UNITS["coordinate"],
-               _COORDINATE_LONG_NAMES.get(coordinate, geometry.coordinate_text))
+        _add_strings(file, "wall", geometry.wall_names, _WALL_LONG_NAMES.get(geometry.kind, "wall"))
     _add_strings(file, "ion", p.ion_names, "ion species")
     for name, long_name in _PROFILE_LONG_NAMES.items():
-        _add_array(file, name, (coordinate,), getattr(p, name), PROFILE_UNITS[name], long_name)
-    _add_array(file, "concentration", ("ion", coordinate), p.concentration, PROFILE_UNITS["concentration"],
+        _add_array(file, name, section, getattr(p, name), PROFILE_UNITS[name], long_name)
+    _add_array(file, "concentration", ("ion", *section), p.concentration, PROFILE_UNITS["concentration"],
                "ion concentration")
 
 
@@ -298,7 +327,7 @@ def write_result(result: Result, path: str | os.PathLike[str]) -> Path:
     """
     # A Result is known by what it holds (a Case and its Profiles): results.result is a layer above io.
     if not (isinstance(getattr(result, "case", None), Case)
-            and isinstance(getattr(result, "profiles", None), Profiles)):
+            and isinstance(getattr(result, "profiles", None), (Profiles, RectangleProfiles))):
         raise InputError(f"result: {type(result).__name__} is not a Result, expected the return of solve()")
     import h5netcdf
 
@@ -337,10 +366,20 @@ def _read_case(attrs: dict[str, Any], shown: str) -> Case:
         raise InputError(f"path: {shown} has an unreadable case_json ({exc})") from None
 
 
-def _read_profiles(variables: Any, coordinate: str, shown: str) -> Profiles:
-    missing = [name for name in (coordinate, "ion", "concentration", *_PROFILE_LONG_NAMES) if name not in variables]
+def _read_profiles(variables: Any, geometry: Any, shown: str) -> Profiles | RectangleProfiles:
+    """The profiles on the section's coordinates: (y|r), or (y, z) of a rectangle."""
+    section = RectangleProfiles.coordinate_names if isinstance(geometry, Rectangle) else (geometry.coordinate_name,)
+    missing = [name for name in (*section, "ion", "concentration", *_PROFILE_LONG_NAMES) if name not in variables]
     if missing:
         raise InputError(f"path: {shown} is not a complete edl_solver result (no variable {missing[0]!r})")
+    if isinstance(geometry, Rectangle):
+        return RectangleProfiles(
+            **{name: np.asarray(variables[name][...], dtype=float) for name in section},
+            ion_names=tuple(_text(name) for name in variables["ion"][...]),
+            concentration=np.asarray(variables["concentration"][...], dtype=float),
+            **{name: np.asarray(variables[name][...], dtype=float) for name in _PROFILE_LONG_NAMES},
+        )
+    coordinate = section[0]
     return Profiles(
         coordinate=np.asarray(variables[coordinate][...], dtype=float),
         coordinate_name=coordinate,
@@ -365,7 +404,7 @@ def _read(file: Any, shown: str) -> dict[str, Any]:
     attrs = dict(file.attrs)
     case = _read_case(attrs, shown)
     variables = file.variables
-    profiles = _read_profiles(variables, case.geometry.coordinate_name, shown)
+    profiles = _read_profiles(variables, case.geometry, shown)
     summary = _read_summary(variables, _text(attrs.get("summary_keys", "")), shown)
     warnings = tuple(_text(attrs[f"warning_{n}"]) for n in range(1, int(attrs.get("warning_count", 0)) + 1))
     matrices: dict[str, Any] = {"response_matrix": None, "ion_response_matrix": None}

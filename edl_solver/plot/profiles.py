@@ -20,8 +20,10 @@ from edl_solver.inputs.case import Case
 from edl_solver.inputs.geometry import Geometry
 from edl_solver.inputs.ion_size import close_packing
 from edl_solver.inputs.wall import Wall
+from edl_solver.plot.rectangle_figure import rectangle_figure
 from edl_solver.plot.shared import new_figure, save_png
 from edl_solver.report.formatting import MODEL_NAMES, prefixed
+from edl_solver.results.profiles import RectangleProfiles
 from edl_solver.results.result import Result
 
 __all__ = ["profile_figure"]
@@ -217,6 +219,8 @@ def profile_figure(result: Result, path: str | os.PathLike[str]) -> Path:
     """
     if not isinstance(result, Result):
         raise InputError(f"result: {type(result).__name__} is not a Result, expected the return of solve()")
+    if isinstance(result.profiles, RectangleProfiles):  # 2-D fields: maps over the section
+        return rectangle_figure(result, path)
     case = result.case
     x = result.profiles.coordinate * 1e9
     low, high = float(x[0]), float(x[-1])
