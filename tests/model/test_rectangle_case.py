@@ -149,3 +149,11 @@ def test_refusals_name_the_field() -> None:
     with pytest.raises(edl.InputError, match=r"geometry.width: .*below the solver's domain"):
         edl.Rectangle(width="0.01 nm", height="30 nm")
 
+
+
+def test_slit_comparison_goes_to_the_file_and_back(tmp_path) -> None:
+    """The slit beside a rectangle is written to its HDF5 file and read back as it was (common practice: a file
+    holds what the report shows)."""
+    result = edl.solve(_case("120 nm", "40 nm", edl.Wall(zeta="-30 mV")))
+    back = edl.load(result.to_hdf5(tmp_path / "rectangle.h5"))
+    assert back.slit_comparison == result.slit_comparison
