@@ -29,6 +29,8 @@ from edl_solver.kernels.walls import regulated_charge
 
 #: Newton stops when a full step is below this (kT/e), as ``kernels.adaptive.NEWTON_TOLERANCE``.
 NEWTON_TOLERANCE = 1e-11
+#: A step below this fraction of the potential that no longer halves is at the solve's round-off floor: converged.
+ROUNDOFF_STEP = 1e-9
 #: Newton steps are capped at this size (kT/e) before the line search (not for DH), as ``kernels.adaptive``.
 MAX_STEP = 5.0
 #: Newton iterations per grid before the solve counts as failed.
@@ -206,10 +208,15 @@ def newton(op: Operator, psi: np.ndarray, value: float, kappa2: float, valences:
         if lu is None or (not linear and last > REUSE_STEP):
             lu = factor(op.shifted(jac))
         step = lu.solve(-res)
-        biggest = last = np.max(np.abs(step))
+        biggest, previous = np.max(np.abs(step)), last
+        last = biggest
         if not np.isfinite(biggest):
             return 2, it
-        if biggest < max(NEWTON_TOLERANCE, 1e-13 * np.max(np.abs(psi))):
+        size = max(1.0, np.max(np.abs(psi)))
+        # converged: a step below the tolerance, or one that no longer shrinks at the round-off floor of the solve
+        # (a condition number ~1e8 of the stretched grids puts it near 1e-8 of the potential; large potentials of
+        # thin-walled Debye-Hueckel channels, hundreds of kT/e, reach it above NEWTON_TOLERANCE)
+        if biggest < NEWTON_TOLERANCE or (biggest < ROUNDOFF_STEP * size and biggest > 0.5 * previous):
             psi += step
             return 0, it
         lam = 1.0 if (biggest <= MAX_STEP or linear) else MAX_STEP / biggest
