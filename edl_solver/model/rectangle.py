@@ -222,17 +222,25 @@ def _solve_grid(half_w: float, half_h: float, betas: tuple[float, float], interv
 #: Order the extrapolated integrals are taken to converge at when the next grid is chosen (between the corners'
 #: ~4 and the smooth part's 6; a guess too low only over-refines, one too high costs another refinement).
 PREDICTED_ORDER = 5.0
+#: Different pairs other than two fixed charges (``WallPairs.rough_corner``): a fixed potential meeting a flux leaves
+#: r log r at the corner (the right-angle wedge with one fixed-potential and one flux side has odd integer exponents,
+#: which the flux resonates with; derived here), a regulated wall meeting a charge r^2 log r (its charge varies
+#: linearly along it from the corner and resonates with the even exponents of two flux sides). Their h^2 log h error
+#: survives the extrapolation: the extrapolated integrals converge at order 2 (observed, the corner potential's and
+#: the pair integrals' steps shrink about fourfold per halving). The estimate then divides the two extrapolations'
+#: difference by 2^2 - 1 = 3 (not 8), and the next grid is predicted at that order.
+ROUGH_CORNER_ORDER = 2.0
 #: Margin on the predicted grid, so that the estimate there lands below the accuracy rather than just above it.
 PREDICTION_MARGIN = 1.5
 
 
-def _next_intervals(n: int, excess: float, max_intervals: int) -> int:
+def _next_intervals(n: int, excess: float, max_intervals: int, order: float = PREDICTED_ORDER) -> int:
     """Cells per direction of the next try after an estimate ``excess`` times the accuracy on ``n`` cells: the
-    grid the observed error predicts (``PREDICTED_ORDER``), at least 1.25 n, a multiple of 2^(LEVELS - 1), at most
+    grid the observed error predicts (at ``order``), at least 1.25 n, a multiple of 2^(LEVELS - 1), at most
     ``max_intervals``. The estimate is measured again there, so a prediction only decides the cost, never the
     accuracy. Returns n or less where no larger grid is allowed."""
     step = 2 ** (LEVELS - 1)
-    wanted = max(1.25 * n, n * (PREDICTION_MARGIN * excess) ** (1.0 / PREDICTED_ORDER))
+    wanted = max(1.25 * n, n * (PREDICTION_MARGIN * excess) ** (1.0 / order))
     wanted = min(int(np.ceil(wanted / step)) * step, max_intervals // step * step)
     return 2 * n if n < wanted <= 2 * n and 2 * n <= max_intervals and wanted > 1.75 * n else wanted
 
@@ -295,6 +303,9 @@ def _refine(half_w: float, half_h: float, betas: tuple[float, float], n: int, ph
     kappa = physics.kappa
     width, height = 2 * half_w, 2 * half_h
     area, perimeter = width * height, 2.0 * (width + height)
+    rough = physics.pairs.rough_corner
+    order = ROUGH_CORNER_ORDER if rough else PREDICTED_ORDER
+    divisor = 2.0**order - 1.0 if rough else 8.0  # 8: the 1-D solver's, for orders of 3 and beyond
     levels = _nested(half_w, half_h, betas, n, physics)
     while True:
         values = [s.integrals for s in levels]
@@ -302,10 +313,10 @@ def _refine(half_w: float, half_h: float, betas: tuple[float, float], n: int, ph
         extrapolate(values[3], values[2], values[1], out)
         extrapolate(values[2], values[1], values[0], lower)
         scale = _error_scale(out, physics.potential, area, kappa, perimeter)
-        estimate = float(np.nanmax(np.abs(out - lower) / scale) / 8.0)
+        estimate = float(np.nanmax(np.abs(out - lower) / scale) / divisor)
         if estimate <= accuracy or intervals > 0:
             break
-        wanted = _next_intervals(n, estimate / accuracy, max_intervals)
+        wanted = _next_intervals(n, estimate / accuracy, max_intervals, order)
         if wanted <= n:
             raise ConvergenceError(f"{physics.describe(half_w, half_h)}: accuracy {accuracy:g} missed (estimate "
                                    f"{estimate:.2g}) with {n} cells per direction (max_intervals = {max_intervals})")

@@ -314,9 +314,11 @@ def _wall_fluxes(grid_psi: np.ndarray, grid_rho: np.ndarray, y: Axis, z: Axis, k
     balance += kappa2 * np.outer(y.volume, z.volume) * grid_rho
     sides, tb = wall_charge
     given = (sides @ z.volume, 0.0) if sides is not None else (0.0, tb @ y.volume)
-    fixed = np.zeros(grid_psi.shape, bool)
-    fixed[:, -1] = sides is not None  # the other pair's nodes, the corner included
-    fixed[-1, :] = tb is not None
+    fixed = np.zeros(grid_psi.shape, bool)  # the fixed pair's nodes, the corner included
+    if sides is not None:
+        fixed[:, -1] = True
+    else:
+        fixed[-1, :] = True
     charged_faces = (sides[:-1] @ z.volume[:-1]) if sides is not None else (tb[:-1] @ y.volume[:-1])
     total = -np.sum(balance[fixed]) + charged_faces
     return (given[0], total - given[0]) if sides is not None else (total - given[1], given[1])

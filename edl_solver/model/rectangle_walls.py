@@ -157,6 +157,12 @@ class WallPairs:
         return self.kinds == (POTENTIAL, POTENTIAL)
 
     @property
+    def rough_corner(self) -> bool:
+        """Different pairs other than two fixed charges: a fixed potential meeting a flux, or a regulated wall
+        (whose charge varies along it) meeting another condition (``rectangle.ROUGH_CORNER_ORDER``)."""
+        return not np.array_equal(self.rows[0], self.rows[1]) and self.kinds != (FLUX, FLUX)
+
+    @property
     def unknown_walls(self) -> tuple[bool, bool]:
         """Whether each pair's wall nodes are unknowns (a charged or regulated pair)."""
         return self.kinds[0] != POTENTIAL, self.kinds[1] != POTENTIAL
