@@ -224,12 +224,12 @@ def _solve_grid(half_w: float, half_h: float, betas: tuple[float, float], interv
 PREDICTED_ORDER = 5.0
 #: Different pairs other than two fixed charges (``WallPairs.rough_corner``): a fixed potential meeting a flux leaves
 #: r log r at the corner (the right-angle wedge with one fixed-potential and one flux side has odd integer exponents,
-#: which the flux resonates with; derived here), a regulated wall meeting a charge r^2 log r (its charge varies
-#: linearly along it from the corner and resonates with the even exponents of two flux sides). Their h^2 log h error
-#: survives the extrapolation: the extrapolated integrals converge at order 2 (observed, the corner potential's and
-#: the pair integrals' steps shrink about fourfold per halving). The estimate then divides the two extrapolations'
-#: difference by 2^2 - 1 = 3 (not 8), and the next grid is predicted at that order.
-ROUGH_CORNER_ORDER = 2.0
+#: which the flux resonates with; derived here: -(2 sigma / pi)(t log r + x theta) there), a regulated wall meeting
+#: another condition r^2 log r (its charge varies along it from the corner). Their h^2 log h error survives the
+#: Richardson steps (the extrapolated wall potential integrals then converge at order 2 only), so these grids are fitted
+#: instead (``_fit_levels``): A + C h^2 log h + D h^2 + F h^4 through the four levels (observed order about 3.5), the
+#: estimate its distance from the fit without h^4 through the three finest, and the next grid predicted at this order.
+ROUGH_CORNER_ORDER = 3.0
 #: Margin on the predicted grid, so that the estimate there lands below the accuracy rather than just above it.
 PREDICTION_MARGIN = 1.5
 
@@ -294,6 +294,15 @@ def _validate(width: float, height: float, debye_length: float, z_k: np.ndarray,
     check("accuracy", accuracy, "a number in [1e-13, 0.1]", 1e-13 <= accuracy <= 0.1)
 
 
+def _fit_levels(values: list[np.ndarray], quartic: bool) -> np.ndarray:
+    """The h -> 0 limit A of A + C h^2 log h + D h^2 (+ F h^4 if ``quartic``) through the integrals of successive
+    halvings (``values``, coarsest first: one more than the terms), each integral alike (h = 2^-level: a scale of h only
+    moves C log(scale) h^2 into D)."""
+    h = 0.5 ** np.arange(len(values), dtype=float)
+    terms = [np.ones_like(h), h**2 * np.log(h), h**2] + ([h**4] if quartic else [])
+    return np.linalg.solve(np.column_stack(terms), np.array(values))[0]
+
+
 def _refine(half_w: float, half_h: float, betas: tuple[float, float], n: int, physics: _Physics,
             control: tuple[float, int, int]) -> tuple[list[GridSolution], np.ndarray, float, int]:
     """Nested grids from n cells per direction, refined until the error estimate meets the accuracy (``control``:
@@ -305,13 +314,16 @@ def _refine(half_w: float, half_h: float, betas: tuple[float, float], n: int, ph
     area, perimeter = width * height, 2.0 * (width + height)
     rough = physics.pairs.rough_corner
     order = ROUGH_CORNER_ORDER if rough else PREDICTED_ORDER
-    divisor = 2.0**order - 1.0 if rough else 8.0  # 8: the 1-D solver's, for orders of 3 and beyond
     levels = _nested(half_w, half_h, betas, n, physics)
     while True:
         values = [s.integrals for s in levels]
         out, lower = np.empty(values[0].size), np.empty(values[0].size)
-        extrapolate(values[3], values[2], values[1], out)
-        extrapolate(values[2], values[1], values[0], lower)
+        if rough:  # the fit's distance from the one without h^4: the lower fit's error, a bound on the finer one's
+            out, lower, divisor = _fit_levels(values, True), _fit_levels(values[1:], False), 1.0
+        else:  # the 1-D solver's: two Richardson extrapolations, at orders of 3 and beyond 8 times the finer's error
+            extrapolate(values[3], values[2], values[1], out)
+            extrapolate(values[2], values[1], values[0], lower)
+            divisor = 8.0
         scale = _error_scale(out, physics.potential, area, kappa, perimeter)
         estimate = float(np.nanmax(np.abs(out - lower) / scale) / divisor)
         if estimate <= accuracy or intervals > 0:
