@@ -3,9 +3,11 @@ iteration, the Stokes solves and the section integrals (nested grids and error c
 
 Dimensionless as the 1-D solver (``kernels.fv1d``): psi = e phi / kT, lengths in h = min(W, H) / 2, charge
 rho_hat(psi) with laplacian(psi) = -kappa2 rho_hat. The quarter [0, W/2h] x [0, H/2h] is solved, with zero normal
-derivative on the two inner edges (the symmetry planes) and on the two outer ones (the walls) either psi = zeta
-or a given outward-normal derivative sigma_hat (charged walls: Gauss, the wall nodes' balances take sigma_hat times
-their wall faces, as ``kernels.fv1d`` does at a charged end).
+derivative on the two inner edges (the symmetry planes) and on each of the two outer ones (the side wall y = W/2
+and the top wall z = H/2, each standing for its pair) either psi = zeta or a given outward-normal derivative
+sigma_hat, fixed or regulated (charged walls: Gauss, the wall nodes' balances take sigma_hat times their wall faces,
+as ``kernels.fv1d`` does at a charged end). The charge is the 1-D solver's: point ions, linearised, or the lattice
+gas of one ion size (``Ions``).
 
 Vertex-centred finite volumes on a tensor-product grid: each direction is the 1-D half-section grid of
 ``kernels.fv1d.finite_volume_metric`` (tanh map clustered at its wall, ``kernels.adaptive.stretching``), the

@@ -91,7 +91,8 @@ def _row(kind: int, value: float) -> np.ndarray:
 
 def _checked_pairs(wall_rows) -> tuple[np.ndarray, np.ndarray]:
     """The (sides, top/bottom) rows of ``wall_rows`` = (top/bottom, sides), checked."""
-    check("wall_rows", type(wall_rows).__name__, "two wall rows (top/bottom, sides)", len(wall_rows) == 2)
+    size = len(wall_rows) if hasattr(wall_rows, "__len__") else 0
+    check("wall_rows", f"({size} rows)", "two wall rows (top/bottom, sides)", size == 2)
     rows = [np.asarray(r, float) for r in wall_rows]
     for name, row in zip(("wall_rows[0] (top/bottom)", "wall_rows[1] (sides)"), rows):
         check(name, "(array)", "a dimensionless wall row (kernels.walls.dimensionless_wall) of type POTENTIAL, FLUX "

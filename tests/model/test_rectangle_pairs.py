@@ -8,7 +8,7 @@ import numpy as np
 import pytest
 
 import edl_solver as edl
-from edl_solver.errors import InputError
+from edl_solver.errors import ConvergenceError, InputError
 from edl_solver.kernels.layout import FLUX, POTENTIAL, REGULATED, W_TYPE, W_VALUE, WALL_SIZE
 from edl_solver.model.rectangle import solve_rectangle_section
 from tests.helpers import SOLVENT, kcl
@@ -173,6 +173,15 @@ def test_wide_regulated_and_uncharged_rectangle_tends_to_the_regulated_slit() ->
     assert sol.pair_charge_densities["tb"] == pytest.approx(sigma_hat, rel=1e-7)
     assert sol.pair_charge_densities["sides"] == 0.0
     assert sol.charge_balance < 1e-10
+
+
+def test_missed_accuracy_names_both_pairs() -> None:
+    """A solve that cannot meet its accuracy within max_intervals raises ConvergenceError saying so, with both pairs'
+    conditions (house rule: never a wrong answer silently)."""
+    with pytest.raises(ConvergenceError, match=r"top/bottom zeta = -2 kT/e, sides sigma_hat = -1: accuracy 1e-10 "
+                                               r"missed \(estimate .*\) with 32 cells per direction"):
+        solve_rectangle_section(6.0, 2.0, 1.0 / 3.0, *SYMMETRIC, wall_rows=(row(POTENTIAL, -2.0), row(FLUX, -1.0)),
+                                accuracy=1e-10, max_intervals=32)
 
 
 def test_two_different_fixed_potentials_are_refused() -> None:
