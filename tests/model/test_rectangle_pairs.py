@@ -63,6 +63,43 @@ def test_debye_hueckel_two_charges_superpose_two_slits(width: float, height: flo
     assert sol.charge_balance < 1e-10 and sol.reciprocity < 1e-10
 
 
+def dh_zeta_and_charge(a: float, b: float, kappa: float, zeta: float, sigma: float,
+                       terms: int = 2_000_000) -> dict[str, float]:
+    """Debye-Hueckel rectangle [0, a] x [0, b], psi = zeta on the walls z = 0, b, outward derivative sigma on y = 0, a.
+
+    Derived here. psi = zeta cosh(kappa z') / cosh(kappa b/2) + u (y', z' from the centre): the first is the zeta
+    slit's profile (no flux through the sides), u vanishes on z' = +-b/2 and has the sides' flux: u = sum_n a_n
+    cos(beta_n z') cosh(k_n y'), beta_n = (2n + 1) pi / b, k_n^2 = kappa^2 + beta_n^2, and the cosine series of the
+    constant sigma on (-b/2, b/2), sum_n 4 sigma (-1)^n / ((2n + 1) pi) cos(beta_n z'), gives a_n k_n sinh(k_n a/2)
+    = 4 sigma (-1)^n / ((2n + 1) pi). With int cos(beta_n z') dz' = 2 (-1)^n / beta_n: int psi dA = 2 a zeta
+    tanh(kappa b/2) / kappa + sum 16 sigma / ((2n + 1) pi k_n^2 beta_n), the sides' mean potential 2 zeta
+    tanh(kappa b/2) / (kappa b) + sum 8 sigma coth(k_n a/2) / ((2n + 1) pi k_n beta_n b) (terms ~ n^-3: 2e6 terms
+    leave ~1e-13), and the top/bottom's flux kappa^2 int psi dA - 2 b sigma (Gauss, DH: rho = -psi).
+    """
+    odd = np.arange(2 * terms, dtype=float)[1::2]  # 2n + 1
+    beta = odd * np.pi / b
+    k2 = kappa**2 + beta**2
+    total = 2 * a * zeta * np.tanh(kappa * b / 2) / kappa + np.sum(16 * sigma / (odd * np.pi * k2 * beta))
+    sides = 2 * zeta * np.tanh(kappa * b / 2) / (kappa * b) + np.sum(
+        8 * sigma / (np.tanh(np.sqrt(k2) * a / 2) * odd * np.pi * np.sqrt(k2) * beta * b))
+    return {"mean_psi": total / (a * b), "sides": sides, "flux_tb": kappa**2 * total - 2 * b * sigma}
+
+
+@pytest.mark.parametrize(("width", "height", "kappa_h"), [(2.0, 2.0, 2.0), (6.0, 2.0, 1.0)])
+def test_debye_hueckel_zeta_and_charge_against_derived_series(width: float, height: float, kappa_h: float) -> None:
+    """Top/bottom at zeta = 1, sides of sigma_hat = -0.5 (a fixed potential meeting a charge, the rough corner):
+    mean potential, the sides' mean wall potential and the top/bottom's flux against ``dh_zeta_and_charge`` (derived
+    here) to 1e-7 at accuracy 1e-8."""
+    sol = solve_rectangle_section(width, height, 1.0 / kappa_h, *SYMMETRIC, model="dh", accuracy=1e-8,
+                                  wall_rows=(row(POTENTIAL, 1.0), row(FLUX, -0.5)))
+    ref = dh_zeta_and_charge(width, height, kappa_h, 1.0, -0.5)
+    assert sol.estimate <= 1e-8
+    assert sol.mean_potential == pytest.approx(ref["mean_psi"], rel=1e-7)
+    assert sol.pair_potentials["sides"] == pytest.approx(ref["sides"], rel=1e-7)
+    assert sol.integrals["flux_tb"] == pytest.approx(ref["flux_tb"], rel=1e-7)
+    assert sol.pair_potentials["tb"] == pytest.approx(1.0, rel=1e-14)
+
+
 @pytest.mark.parametrize("pairs", [(row(FLUX, -3.0), row(FLUX, -1.0)), (row(POTENTIAL, -2.0), row(FLUX, -1.0))])
 def test_swapping_width_and_height_with_the_pairs_gives_the_same_integrals(pairs: tuple) -> None:
     """A W x H rectangle with conditions (top/bottom, sides) is the H x W one with them swapped, turned by a right
