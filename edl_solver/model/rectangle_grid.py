@@ -3,9 +3,11 @@ iteration, the Stokes solves and the section integrals (nested grids and error c
 
 Dimensionless as the 1-D solver (``kernels.fv1d``): psi = e phi / kT, lengths in h = min(W, H) / 2, charge
 rho_hat(psi) with laplacian(psi) = -kappa2 rho_hat. The quarter [0, W/2h] x [0, H/2h] is solved, with zero normal
-derivative on the two inner edges (the symmetry planes) and on the two outer ones (the walls) either psi = zeta
-or a given outward-normal derivative sigma_hat (charged walls: Gauss, the wall nodes' balances take sigma_hat times
-their wall faces, as ``kernels.fv1d`` does at a charged end).
+derivative on the two inner edges (the symmetry planes) and on each of the two outer ones (the side wall y = W/2
+and the top wall z = H/2, each standing for its pair) either psi = zeta or a given outward-normal derivative
+sigma_hat, fixed or regulated (charged walls: Gauss, the wall nodes' balances take sigma_hat times their wall faces,
+as ``kernels.fv1d`` does at a charged end). The charge is the 1-D solver's: point ions, linearised, or the lattice
+gas of one ion size (``Ions``).
 
 Vertex-centred finite volumes on a tensor-product grid: each direction is the 1-D half-section grid of
 ``kernels.fv1d.finite_volume_metric`` (tanh map clustered at its wall, ``kernels.adaptive.stretching``), the
@@ -97,11 +99,12 @@ def _axis_diagonal(ax: Axis, walls: bool) -> np.ndarray:
     return diag
 
 
-def _five_point(y: Axis, z: Axis, walls: bool = False) -> tuple[sp.csc_matrix, np.ndarray]:
+def _five_point(y: Axis, z: Axis, walls: tuple[bool, bool]) -> tuple[sp.csc_matrix, np.ndarray]:
     """K_y x V_z + V_y x K_z (the 1-D balances times the other direction's volumes) assembled straight into CSC
     arrays (symmetric, so column c holds row c: neighbours (i-1, j), (i, j-1), (i, j), (i, j+1), (i+1, j) in row
-    order), and the positions of the diagonal in its data. ``walls``: the wall nodes are unknowns too."""
-    ny, nz = y.link.size + walls, z.link.size + walls
+    order), and the positions of the diagonal in its data. ``walls``: whether the nodes of the side wall (y = W/2)
+    and of the top wall (z = H/2) are unknowns too."""
+    ny, nz = y.link.size + walls[0], z.link.size + walls[1]
     vy, vz = y.volume[:ny], z.volume[:nz]
     i, j = np.divmod(np.arange(ny * nz), nz)
     values = np.zeros((ny * nz, 5))
@@ -109,7 +112,7 @@ def _five_point(y: Axis, z: Axis, walls: bool = False) -> tuple[sp.csc_matrix, n
     present = np.column_stack([i > 0, j > 0, np.ones(i.size, bool), j < nz - 1, i < ny - 1])
     values[:, 0] = y.link[np.maximum(i - 1, 0)] * vz[j]
     values[:, 1] = vy[i] * z.link[np.maximum(j - 1, 0)]
-    values[:, 2] = _axis_diagonal(y, walls)[i] * vz[j] + vy[i] * _axis_diagonal(z, walls)[j]
+    values[:, 2] = _axis_diagonal(y, walls[0])[i] * vz[j] + vy[i] * _axis_diagonal(z, walls[1])[j]
     values[:, 3] = vy[i] * z.link[np.minimum(j, nz - 2)]
     values[:, 4] = y.link[np.minimum(i, ny - 2)] * vz[j]
     indptr = np.concatenate([[0], np.cumsum(present.sum(axis=1))])
@@ -119,23 +122,32 @@ def _five_point(y: Axis, z: Axis, walls: bool = False) -> tuple[sp.csc_matrix, n
 
 @dataclass(frozen=True)
 class Operator:
-    """The 2-D operator on the unknown nodes (all but the walls), in the order index = i * nz + j.
+    """The 2-D operator on the unknown nodes, in the order index = i * nz + j: the nodes before the walls, and the
+    wall nodes of a pair whose flux is given (``walls``: side walls y = W/2, top wall z = H/2; the corner is an
+    unknown only when both are).
 
-    ``matrix`` is L, the flux balance of each cell; ``wall`` the balance's part from the walls at unit value
-    (L psi + value * wall is the whole balance): zeta walls, the wall nodes at unit potential; charged walls
-    (``walls``, the wall nodes unknowns too), a unit outward-normal derivative of psi on each wall node's wall
-    faces (their lengths); ``volume`` the cells' areas; ``diagonal`` |diag L|;
-    ``diagonal_index`` where the diagonal sits in ``matrix.data`` (Jacobians are L with its diagonal shifted).
+    ``matrix`` is L, the flux balance of each cell; ``wall_sides`` and ``wall_tb`` the balance's parts from the side
+    and the top wall at unit value (L psi + value_sides * wall_sides + value_tb * wall_tb is the whole balance): a
+    fixed-potential pair, its wall nodes at unit potential; a charged pair (its wall nodes unknowns), a unit
+    outward-normal derivative of psi on each wall node's faces on that wall (their lengths); ``volume`` the cells'
+    areas; ``diagonal`` |diag L|; ``diagonal_index`` where the diagonal sits in ``matrix.data`` (Jacobians are L
+    with its diagonal shifted).
     """
 
     y: Axis
     z: Axis
     matrix: sp.csc_matrix
-    wall: np.ndarray
+    wall_sides: np.ndarray
+    wall_tb: np.ndarray
     volume: np.ndarray
     diagonal: np.ndarray
     diagonal_index: np.ndarray
-    walls: bool = False
+    walls: tuple[bool, bool] = (False, False)
+
+    @property
+    def shape(self) -> tuple[int, int]:
+        """The unknown nodes' block of the quarter's node array."""
+        return self.y.link.size + self.walls[0], self.z.link.size + self.walls[1]
 
     def shifted(self, shift: np.ndarray) -> sp.csc_matrix:
         """L + diag(shift), on L's own sparsity structure (no sparse addition)."""
@@ -144,24 +156,46 @@ class Operator:
         return sp.csc_matrix((data, self.matrix.indices, self.matrix.indptr), shape=self.matrix.shape)
 
 
-def operator(y: Axis, z: Axis, walls: bool = False) -> Operator:
-    """The 5-point operator of the tensor-product grid ``y`` x ``z`` (``Operator``); ``walls``: with the wall nodes
-    as unknowns (charged walls, their flux given)."""
-    end = None if walls else -1
-    vy, vz = y.volume[:end], z.volume[:end]
+def operator(y: Axis, z: Axis, walls: tuple[bool, bool] = (False, False)) -> Operator:
+    """The 5-point operator of the tensor-product grid ``y`` x ``z`` (``Operator``); ``walls``: whether the side
+    and the top wall nodes are unknowns (their flux given)."""
     matrix, index = _five_point(y, z, walls)
-    wall = np.zeros((vy.size, vz.size))
-    wall[-1, :] += vz if walls else y.link[-1] * vz
-    wall[:, -1] += vy if walls else vy * z.link[-1]
-    return Operator(y, z, matrix, wall.ravel(), np.outer(vy, vz).ravel(), -matrix.data[index], index, walls)
+    ny, nz = y.link.size + walls[0], z.link.size + walls[1]
+    vy, vz = y.volume[:ny], z.volume[:nz]
+    sides, tb = np.zeros((ny, nz)), np.zeros((ny, nz))
+    sides[-1, :] = vz if walls[0] else y.link[-1] * vz
+    tb[:, -1] = vy if walls[1] else vy * z.link[-1]
+    return Operator(y, z, matrix, sides.ravel(), tb.ravel(), np.outer(vy, vz).ravel(), -matrix.data[index], index,
+                    walls)
 
 
-def charge(psi: np.ndarray, valences: np.ndarray, weights: np.ndarray, dh: bool) -> tuple[np.ndarray, np.ndarray]:
-    """rho_hat(psi) and its derivative: sum_k w_k exp(-z_k psi) (PB) or -psi (DH), as ``kernels.fv1d.charge``."""
-    if dh:
+@dataclass(frozen=True)
+class Ions:
+    """The ions as the charge sees them: valences z_k, weights w_k = z_k c_k / sum z^2 c, packings nu_k = c_k N_A d^3
+    (``kernels.layout.SPECIES_PACKING``; zero unless steric) and the model, "pb", "dh" or "steric"."""
+
+    valences: np.ndarray
+    weights: np.ndarray
+    packing: np.ndarray
+    model: str
+
+    @property
+    def dh(self) -> bool:
+        return self.model == "dh"
+
+
+def charge(psi: np.ndarray, ions: Ions) -> tuple[np.ndarray, np.ndarray]:
+    """rho_hat(psi) and its derivative: sum_k w_k exp(-z_k psi) (PB), -psi (DH), or the lattice gas's (Bikerman
+    1942) sum_k w_k exp(-z_k psi) / D, D = 1 + sum_k nu_k (exp(-z_k psi) - 1) (steric), as ``kernels.fv1d.charge``."""
+    if ions.dh:
         return -psi, -np.ones_like(psi)
-    e = np.exp(-np.multiply.outer(psi, valences))
-    return e @ weights, -(e @ (weights * valences))
+    e = np.exp(-np.multiply.outer(psi, ions.valences))
+    rho, drho = e @ ions.weights, -(e @ (ions.weights * ions.valences))
+    if ions.model != "steric":
+        return rho, drho
+    crowd, dcrowd = 1.0 + np.expm1(-np.multiply.outer(psi, ions.valences)) @ ions.packing, \
+        -(e @ (ions.packing * ions.valences))
+    return rho / crowd, (drho * crowd - rho * dcrowd) / crowd**2
 
 
 def regulated_wall(psi: np.ndarray, wall_row: np.ndarray) -> tuple[np.ndarray, np.ndarray]:
@@ -171,15 +205,21 @@ def regulated_wall(psi: np.ndarray, wall_row: np.ndarray) -> tuple[np.ndarray, n
     return out[:, 0], out[:, 1]
 
 
-def newton(op: Operator, psi: np.ndarray, value: float, kappa2: float, valences: np.ndarray, weights: np.ndarray,
-           dh: bool, wall_row: np.ndarray | None = None) -> tuple[int, int]:
-    """Damped Newton iteration for L psi + value wall + kappa2 V rho(psi) = 0, in place on ``psi`` (the unknown
-    nodes; ``value`` zeta or, on charged walls, sigma_hat; on regulated walls, ``wall_row`` given, value is
-    ignored and each wall node's row takes sigma_hat(psi) times its wall faces, its Jacobian diagonal d sigma_hat /
-    d psi times them, as ``kernels.fv1d._regulated_ends``), as ``kernels.fv1d.pb_newton``: the Jacobian
-    L + kappa2 V rho'(psi) (negative definite; the regulated wall's d sigma / d psi <= 0 keeps it so) factored by
-    sparse LU each step (once for DH, where it is constant; kept once the steps are below ``REUSE_STEP``), steps
-    capped at ``MAX_STEP`` and halved until the row-scaled residual decreases.
+#: The condition of one pair of walls in ``newton``: its value (the potential of a fixed-potential pair, kT/e, or the
+#: charge density sigma_hat of a charged one) and, for a regulated pair, its row (``kernels.walls``), else None.
+PairCondition = tuple[float, "np.ndarray | None"]
+
+
+def newton(op: Operator, psi: np.ndarray, pairs: tuple[PairCondition, PairCondition], kappa2: float,
+           ions: Ions) -> tuple[int, int]:
+    """Damped Newton iteration for L psi + value_sides wall_sides + value_tb wall_tb + kappa2 V rho(psi) = 0, in
+    place on ``psi`` (the unknown nodes; ``pairs`` the side and the top pair's conditions). A regulated pair's value
+    is ignored: each of its wall nodes takes sigma_hat(psi) times its faces on that wall, its Jacobian diagonal
+    d sigma_hat / d psi times them, as ``kernels.fv1d._regulated_ends`` (the corner of two charged pairs takes both
+    pairs' charges on their own faces). As ``kernels.fv1d.pb_newton``: the Jacobian L + kappa2 V rho'(psi) (negative
+    definite; the regulated wall's d sigma / d psi <= 0 keeps it so) factored by sparse LU each step (once for DH,
+    where it is constant; kept once the steps are below ``REUSE_STEP``), steps capped at ``MAX_STEP`` and halved
+    until the row-scaled residual decreases.
 
     Returns
     -------
@@ -187,19 +227,23 @@ def newton(op: Operator, psi: np.ndarray, value: float, kappa2: float, valences:
         0 converged (a full step below ``NEWTON_TOLERANCE``), 1 iteration limit, 2 line search failed.
     iterations : int
     """
-    nodes = np.flatnonzero(op.wall)
+    faces = (op.wall_sides, op.wall_tb)
+    nodes = [np.flatnonzero(f) for f in faces]
 
     def residual(p: np.ndarray) -> tuple[np.ndarray, np.ndarray]:
-        rho, drho = charge(p, valences, weights, dh)
+        rho, drho = charge(p, ions)
         res, jac = op.matrix @ p + kappa2 * op.volume * rho, kappa2 * op.volume * drho
-        if wall_row is None:
-            return res + value * op.wall, jac
-        sigma, dsigma = regulated_wall(p[nodes], wall_row)
-        res[nodes] += sigma * op.wall[nodes]
-        jac[nodes] += dsigma * op.wall[nodes]
+        for (value, row), face, at in zip(pairs, faces, nodes):
+            if row is None:
+                res += value * face
+            else:
+                sigma, dsigma = regulated_wall(p[at], row)
+                res[at] += sigma * face[at]
+                jac[at] += dsigma * face[at]
         return res, jac
 
-    linear = dh and wall_row is None  # a regulated wall's law is nonlinear even in a DH layer
+    regulated = any(row is not None for _, row in pairs)
+    linear = ions.dh and not regulated  # a regulated wall's law is nonlinear even in a DH layer
     res, jac = residual(psi)
     scale = op.diagonal + np.abs(jac)
     norm = np.linalg.norm(res / scale)
@@ -250,34 +294,60 @@ class GridSolution:
 
 
 def full_nodes(op: Operator, inner: np.ndarray, wall_value: float) -> np.ndarray:
-    """The unknowns as the quarter's node array, with the wall nodes set to ``wall_value``."""
-    ny, nz = op.y.x.size, op.z.x.size
-    out = np.full((ny, nz), wall_value, dtype=float)
-    out[:-1, :-1] = inner.reshape(ny - 1, nz - 1)
+    """The unknowns as the quarter's node array, with the other (fixed-potential wall) nodes set to ``wall_value``."""
+    out = np.full((op.y.x.size, op.z.x.size), wall_value, dtype=float)
+    ny, nz = op.shape
+    out[:ny, :nz] = inner.reshape(ny, nz)
     return out
 
 
-def concentrations(psi: np.ndarray, valences: np.ndarray, dh: bool) -> np.ndarray:
-    """c_k / c_k,bulk at each potential of ``psi`` (last axis the ion): exp(-z_k psi), linearised 1 - z_k psi for DH
-    (as ``kernels.fv1d._concentrations``)."""
-    product = np.multiply.outer(psi, valences)
-    return 1.0 - product if dh else np.exp(-product)
+def concentrations(psi: np.ndarray, ions: Ions) -> np.ndarray:
+    """c_k / c_k,bulk at each potential of ``psi`` (last axis the ion): exp(-z_k psi), linearised 1 - z_k psi for DH,
+    exp(-z_k psi) / D for the lattice gas (as ``kernels.fv1d._concentrations``)."""
+    product = np.multiply.outer(psi, ions.valences)
+    if ions.dh:
+        return 1.0 - product
+    if ions.model == "steric":
+        return np.exp(-product) / (1.0 + np.expm1(-product) @ ions.packing)[..., None]
+    return np.exp(-product)
 
 
-def flows_and_integrals(op: Operator, grid_psi: np.ndarray, kappa2: float, valences: np.ndarray,
-                        weights: np.ndarray, dh: bool, iterations: int,
-                        wall_charge: tuple[np.ndarray, np.ndarray] | None = None) -> GridSolution:
+def _wall_fluxes(grid_psi: np.ndarray, grid_rho: np.ndarray, y: Axis, z: Axis, kappa2: float,
+                 wall_charge: tuple[np.ndarray | None, np.ndarray | None]) -> tuple[float, float]:
+    """The quarter's wall flux of the side and the top pair. A charged pair's is its charge density at its nodes
+    (``wall_charge``; the corner included) times their faces. A fixed-potential pair's is the rest of the total:
+    the total is the sum of the wall cells' fluxes, a fixed node's from its cell balance (the flux out of its wall
+    faces, -kappa2 V rho - L psi), a charged node's its charge, so that the pairs sum to -kappa2 int rho dA up to
+    Newton's residual; the charged pair's part of the corner's cell is its own charge there."""
+    balance = (_five_point(y, z, (True, True))[0] @ grid_psi.ravel()).reshape(grid_psi.shape)
+    balance += kappa2 * np.outer(y.volume, z.volume) * grid_rho
+    sides, tb = wall_charge
+    given = (sides @ z.volume, 0.0) if sides is not None else (0.0, tb @ y.volume)
+    fixed = np.zeros(grid_psi.shape, bool)  # the fixed pair's nodes, the corner included
+    if sides is not None:
+        fixed[:, -1] = True
+    else:
+        fixed[-1, :] = True
+    charged_faces = (sides[:-1] @ z.volume[:-1]) if sides is not None else (tb[:-1] @ y.volume[:-1])
+    total = -np.sum(balance[fixed]) + charged_faces
+    return (given[0], total - given[0]) if sides is not None else (total - given[1], given[1])
+
+
+def flows_and_integrals(op: Operator, grid_psi: np.ndarray, kappa2: float, ions: Ions, iterations: int,
+                        wall_charge: tuple[np.ndarray | None, np.ndarray | None] = (None, None)) -> GridSolution:
     """The Stokes solves (L of the zeta-wall ``op`` factored once for all right-hand sides; u = 0 on the walls)
     and the integrals of a converged ``grid_psi`` (the quarter's node array, walls included). EO: laplacian u_eo =
     -kappa2 rho (units eps kT E / (e eta)); pressure: laplacian u_p = 1 (units (dp/dx) h^2 / eta); ion k:
     laplacian u_k = -c_k / c_k,bulk (the columns of the linear-response matrix, ``kernels.response``). On zeta walls
-    (``wall_charge`` None) the wall flux is the wall nodes' cell balances, so that it equals -kappa2 int rho dA up
-    to Newton's residual; on charged walls ``wall_charge`` holds sigma_hat at the side wall's nodes (y = W/2) and at
-    the top wall's (z = H/2), times their wall faces, and the balance holds up to Newton's residual likewise (the
-    rows of L sum to zero)."""
+    (``wall_charge`` None for both pairs) the wall flux is the wall nodes' cell balances, so that it equals
+    -kappa2 int rho dA up to Newton's residual; ``wall_charge`` holds a charged pair's sigma_hat at its nodes, the
+    side walls' (y = W/2, first) and the top wall's (z = H/2), times their wall faces, and the balance holds up to
+    Newton's residual likewise (the rows of L sum to zero); a fixed-potential pair with a charged one takes the
+    rest of the total (``_wall_fluxes``)."""
     y, z = op.y, op.z
-    grid_rho = charge(grid_psi.ravel(), valences, weights, dh)[0].reshape(grid_psi.shape)
-    ratios = concentrations(grid_psi, valences, dh)  # (ny, nz, ions)
+    valences = ions.valences
+    grid_rho = charge(grid_psi.ravel(), ions)[0].reshape(grid_psi.shape)
+    ratios = concentrations(grid_psi, ions)  # (ny, nz, ions)
     inner = ratios[:-1, :-1].reshape(-1, valences.size)
     rhs = np.column_stack([kappa2 * op.volume * grid_rho[:-1, :-1].ravel(), -op.volume, op.volume[:, None] * inner])
     flows = factor(-op.matrix).solve(rhs)
@@ -294,7 +364,7 @@ def flows_and_integrals(op: Operator, grid_psi: np.ndarray, kappa2: float, valen
     out[I_RHO] = np.sum(dA * grid_rho)
     out[I_RHO_UP] = np.sum(dA * grid_rho * u_p)
     out[I_RHO_UEO] = np.sum(dA * grid_rho * u_eo)
-    if wall_charge is None:
+    if wall_charge[0] is None and wall_charge[1] is None:
         # wall nodes: sigma = -kappa2 V rho(zeta) - sum over links of a (psi_neighbour - zeta); only the links into
         # the unknown nodes carry a difference (along a wall, psi = zeta throughout). Its split between the walls
         # is left undefined (NaN): near the corner the wall charge density goes as r log r (a right-angle wedge
@@ -306,9 +376,12 @@ def flows_and_integrals(op: Operator, grid_psi: np.ndarray, kappa2: float, valen
                   + z.link[-1] * np.sum(y.volume[:-1] * (grid_psi[:-1, -2] - zeta)))
         out[I_FLUX] = -kappa2 * grid_rho[-1, -1] * wall_area - inward
         out[I_FLUX_TB] = out[I_FLUX_SIDES] = np.nan
-    else:
+    elif wall_charge[0] is not None and wall_charge[1] is not None:
         out[I_FLUX_SIDES] = wall_charge[0] @ z.volume
         out[I_FLUX_TB] = wall_charge[1] @ y.volume
+        out[I_FLUX] = out[I_FLUX_TB] + out[I_FLUX_SIDES]
+    else:
+        out[I_FLUX_SIDES], out[I_FLUX_TB] = _wall_fluxes(grid_psi, grid_rho, y, z, kappa2, wall_charge)
         out[I_FLUX] = out[I_FLUX_TB] + out[I_FLUX_SIDES]
     out[I_PSI_SIDES] = np.sum(z.volume * grid_psi[-1, :])
     out[I_PSI_TB] = np.sum(y.volume * grid_psi[:, -1])
@@ -335,18 +408,22 @@ def prolong(coarse: np.ndarray) -> np.ndarray:
     return along(along(coarse).T).T
 
 
-def gouy_chapman_start(y: Axis, z: Axis, zeta: float, kappa: float, counter: float) -> np.ndarray:
+def gouy_chapman_start(y: Axis, z: Axis, zetas: tuple[float, float], kappa: float,
+                       counters: tuple[float, float]) -> np.ndarray:
     """Start potential on the quarter's nodes: the Gouy-Chapman profile (Gouy 1910; Chapman 1913)
-    g(d) = (4/z) artanh[tanh(z zeta / 4) exp(-kappa d)] of each wall and its mirror, combined as
-    zeta [1 - (1 - g_y / zeta)(1 - g_z / zeta)], which is zeta on every wall."""
-    if zeta == 0.0:
-        return np.zeros((y.x.size, z.x.size))
-    t = np.tanh(counter * zeta / 4.0)
-
-    def fraction(ax: Axis) -> np.ndarray:
-        wall = ax.x[-1]
+    g(d) = (4/z) artanh[tanh(z zeta / 4) exp(-kappa d)] of each wall and its mirror, for the side walls' potential
+    and counter-ion valence (``zetas``, ``counters``: sides, top) along y and the top wall's along z, as fractions
+    f = g / zeta of each, combined as f_y zeta_s + f_z zeta_t - f_y f_z (zeta_s + zeta_t) / 2: zeta [1 - (1 - f_y)
+    (1 - f_z)] for equal walls (zeta on every wall), each pair's potential along its wall away from the corner."""
+    def fraction(ax: Axis, zeta: float, counter: float) -> np.ndarray:
+        if zeta == 0.0:
+            return np.zeros(ax.x.size)
+        t, wall = np.tanh(counter * zeta / 4.0), ax.x[-1]
         g = sum(np.arctanh(np.clip(t * np.exp(-kappa * d), -1 + 1e-16, 1 - 1e-16)) for d in (wall - ax.x, wall + ax.x))
         return np.clip(4.0 / counter * g / zeta, 0.0, 1.0)
 
-    fy, fz = fraction(y), fraction(z)
-    return zeta * (1.0 - np.outer(1.0 - fy, 1.0 - fz))
+    (zs, zt), (cs, ct) = zetas, counters
+    fy, fz = fraction(y, zs, cs), fraction(z, zt, ct)
+    if zs == zt:
+        return zs * (1.0 - np.outer(1.0 - fy, 1.0 - fz))
+    return np.add.outer(zs * fy, zt * fz) - 0.5 * (zs + zt) * np.outer(fy, fz)
