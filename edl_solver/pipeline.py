@@ -85,7 +85,7 @@ def _solve_rectangle(case: Case) -> Result:
         verdict=Deferred(_verdict),
         message=message,
         iterations=section.iterations,
-        residual=float("nan"),
+        residual=section.residual,
         warnings=Deferred(lambda result: validity.notes(case, result.profiles, solved.thermal_voltage,
                                                           result.summary) + validity.coupling_notes(result.summary)),
         response_matrix=solved.matrix,

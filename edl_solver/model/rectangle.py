@@ -13,6 +13,7 @@ refined until the estimate meets the accuracy (to the size the estimate predicts
 
 from __future__ import annotations
 
+import dataclasses
 from dataclasses import dataclass
 
 import numpy as np
@@ -143,6 +144,11 @@ class RectangleSection:
                 "mid_z": v["psi_mid_z"]}
 
     @property
+    def residual(self) -> float:
+        """Newton's largest row-scaled residual on the finest grid, kT/e."""
+        return self.finest.residual
+
+    @property
     def mean_velocity_eo(self) -> float:
         """Mean EO velocity per unit field (units eps kT / (e eta)); 1 - mean psi / zeta times -zeta."""
         return self.integrals["u_eo"] / self.area
@@ -210,13 +216,14 @@ def _solve_grid(half_w: float, half_h: float, betas: tuple[float, float], interv
     poisson = fv.operator(y, z, pairs.unknown_walls) if any(pairs.unknown_walls) else op
     ny, nz = poisson.shape
     psi = start[:ny, :nz].ravel().copy()
-    status, its = fv.newton(poisson, psi, pairs.conditions, kappa**2, ions)
+    status, its, residual = fv.newton(poisson, psi, pairs.conditions, kappa**2, ions)
     if status != 0:
         why = "the iteration limit was reached" if status == 1 else "the line search failed"
         raise ConvergenceError(f"{physics.describe(half_w, half_h)}: Newton failed on the {intervals} x {intervals} "
                                f"grid ({why})")
     grid_psi = fv.full_nodes(poisson, psi, pairs.fixed)
-    return fv.flows_and_integrals(op, grid_psi, kappa**2, ions, its, pairs.charges(grid_psi))
+    solved = fv.flows_and_integrals(op, grid_psi, kappa**2, ions, its, pairs.charges(grid_psi))
+    return dataclasses.replace(solved, residual=residual)
 
 
 #: Order the extrapolated integrals are taken to converge at when the next grid is chosen (between the corners'

@@ -59,21 +59,14 @@ class SolvedRectangle:
         return float(self.scales[layout.S_THERMAL_VOLTAGE])
 
 
-def _wall_conditions(p: np.ndarray, sc: np.ndarray, case: Case) -> dict[str, object]:
-    """The core's keyword for the walls: the dimensionless rows of the (top and bottom, sides) walls."""
+def _wall_conditions(p: np.ndarray, sc: np.ndarray) -> dict[str, object]:
+    """The core's keywords for the walls and the model: the dimensionless rows of the (top and bottom, sides)
+    walls and, for the steric model, each ion's packing nu_k = c_k N_A d^3 (``kernels.prepare.species``)."""
     vt, h = sc[layout.S_THERMAL_VOLTAGE], sc[layout.S_LENGTH]
-    rows = [dimensionless_wall(prepare.wall_si(p, side), vt, p[layout.P_PERMITTIVITY], h, p[layout.P_PROTONS])
-            for side in range(2)]
-    if not case.symmetric:
-        raise InputError("wall: two different conditions on a rectangle's wall pairs are not solved yet, expected "
-                         "one Wall for all four walls")
-    row = rows[0]
-    kind = int(row[layout.W_TYPE])
-    if kind == layout.POTENTIAL:
-        return {"zeta": float(row[layout.W_VALUE])}
-    if kind == layout.FLUX:
-        return {"charge_density": float(row[layout.W_VALUE])}
-    return {"wall_row": row}
+    rows = tuple(dimensionless_wall(prepare.wall_si(p, side), vt, p[layout.P_PERMITTIVITY], h, p[layout.P_PROTONS])
+                 for side in range(2))
+    steric = int(p[layout.P_MODEL]) == layout.STERIC
+    return {"wall_rows": rows, "packing": prepare.species(p)[:, layout.SPECIES_PACKING] if steric else None}
 
 
 def _one_d_integrals(section: RectangleSection, n_ions: int, symmetric: bool) -> np.ndarray:
@@ -159,8 +152,6 @@ def solve_rectangle_case(case: Case, values: np.ndarray) -> SolvedRectangle:
     geometry = case.geometry
     if not isinstance(geometry, Rectangle):
         raise InputError(f"geometry: {geometry!r} is not a Rectangle")
-    if case.model == "steric":
-        raise InputError("model: 'steric' is not solved for a rectangle yet, expected 'pb' or 'dh'")
     p = packing.case_vector(case)
     sc = prepare.scales(p)
     sc[layout.S_AREA] = geometry.half_size**2
@@ -174,7 +165,7 @@ def solve_rectangle_case(case: Case, values: np.ndarray) -> SolvedRectangle:
             geometry.width, geometry.height, case.debye_length, [ion.valence for ion in ions],
             [ion.concentration for ion in ions], model=case.model, accuracy=numerics.accuracy,
             max_intervals=min(numerics.max_intervals, MAX_RECTANGLE_INTERVALS), intervals=numerics.intervals or 0,
-            **_wall_conditions(p, sc, case))
+            **_wall_conditions(p, sc))
     except ConvergenceError as error:
         raise ConvergenceError(f"{case.describe()}: {error}") from None
     share = geometry.top_bottom_share

@@ -211,7 +211,7 @@ PairCondition = tuple[float, "np.ndarray | None"]
 
 
 def newton(op: Operator, psi: np.ndarray, pairs: tuple[PairCondition, PairCondition], kappa2: float,
-           ions: Ions) -> tuple[int, int]:
+           ions: Ions) -> tuple[int, int, float]:
     """Damped Newton iteration for L psi + value_sides wall_sides + value_tb wall_tb + kappa2 V rho(psi) = 0, in
     place on ``psi`` (the unknown nodes; ``pairs`` the side and the top pair's conditions). A regulated pair's value
     is ignored: each of its wall nodes takes sigma_hat(psi) times its faces on that wall, its Jacobian diagonal
@@ -224,8 +224,11 @@ def newton(op: Operator, psi: np.ndarray, pairs: tuple[PairCondition, PairCondit
     Returns
     -------
     status : int
-        0 converged (a full step below ``NEWTON_TOLERANCE``), 1 iteration limit, 2 line search failed.
+        0 converged (a full step below ``NEWTON_TOLERANCE``, or at the round-off floor), 1 iteration limit, 2 line
+        search failed.
     iterations : int
+    residual : float
+        The largest row-scaled residual at the solution (kT/e; NaN unless converged).
     """
     faces = (op.wall_sides, op.wall_tb)
     nodes = [np.flatnonzero(f) for f in faces]
@@ -255,14 +258,15 @@ def newton(op: Operator, psi: np.ndarray, pairs: tuple[PairCondition, PairCondit
         biggest, previous = np.max(np.abs(step)), last
         last = biggest
         if not np.isfinite(biggest):
-            return 2, it
+            return 2, it, np.nan
         size = max(1.0, np.max(np.abs(psi)))
         # converged: a step below the tolerance, or one that no longer shrinks at the round-off floor of the solve
         # (a condition number ~1e8 of the stretched grids puts it near 1e-8 of the potential; large potentials of
         # thin-walled Debye-Hueckel channels, hundreds of kT/e, reach it above NEWTON_TOLERANCE)
         if biggest < NEWTON_TOLERANCE or (biggest < ROUNDOFF_STEP * size and biggest > 0.5 * previous):
             psi += step
-            return 0, it
+            res, jac = residual(psi)
+            return 0, it, float(np.max(np.abs(res) / (op.diagonal + np.abs(jac))))
         lam = 1.0 if (biggest <= MAX_STEP or linear) else MAX_STEP / biggest
         for _ in range(60):
             trial = psi + lam * step
@@ -272,11 +276,11 @@ def newton(op: Operator, psi: np.ndarray, pairs: tuple[PairCondition, PairCondit
                 break
             lam *= 0.5
         else:
-            return 2, it
+            return 2, it, np.nan
         psi[:] = trial
         scale = op.diagonal + np.abs(jac)
         norm = np.linalg.norm(res / scale)
-    return 1, MAX_ITERATIONS
+    return 1, MAX_ITERATIONS, np.nan
 
 
 @dataclass(frozen=True)
@@ -291,6 +295,8 @@ class GridSolution:
     u_p: np.ndarray
     integrals: np.ndarray
     iterations: int
+    #: Newton's largest row-scaled residual at the solution (kT/e), as the 1-D solver reports it.
+    residual: float = float("nan")
 
 
 def full_nodes(op: Operator, inner: np.ndarray, wall_value: float) -> np.ndarray:

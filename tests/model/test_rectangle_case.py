@@ -157,3 +157,30 @@ def test_slit_comparison_goes_to_the_file_and_back(tmp_path) -> None:
     result = edl.solve(_case("120 nm", "40 nm", edl.Wall(zeta="-30 mV")))
     back = edl.load(result.to_hdf5(tmp_path / "rectangle.h5"))
     assert back.slit_comparison == result.slit_comparison
+
+
+def test_two_wall_pairs_through_solve() -> None:
+    """Top and bottom walls of fixed charge beside uncharged (zeta = 0) side walls: the pair values come as
+    (top_bottom, sides); the given charge is returned exactly; the thin-layer mean velocity is the top pair's slip
+    times its share of slip-driven flow (``harmonic_share``, derived by separation of variables); Newton's residual
+    is reported."""
+    case = _case("200 nm", "40 nm", (edl.Wall(charge_density="-20 mC/m^2"), edl.Wall(zeta=0.0)))
+    result = edl.solve(case)
+    s = result.summary
+    assert s["wall_charge_density"][0] == pytest.approx(-0.020, rel=1e-12)
+    assert s["zeta"][1] == 0.0 and s["hs_velocity"][1] == 0.0
+    thin_mean = harmonic_share(200e-9, 40e-9) * s["hs_velocity"][0]
+    assert s["thin_layer_flow_rate_eo"] == pytest.approx(thin_mean * 200e-9 * 40e-9, rel=1e-12)
+    assert s["eo_ratio"] == pytest.approx(s["mean_velocity_eo"] / thin_mean, rel=1e-12)
+    assert s["charge_balance"] < 1e-10 and result.residual < 1e-8
+    assert "Top and bottom walls" in result.report() and "Side walls" in result.report()
+
+
+def test_steric_rectangle_through_solve_tends_to_the_steric_slit() -> None:
+    """The steric (Bikerman) model through edl.solve: a wide rectangle's mean EO velocity approaches the steric
+    slit's (its slit comparison) within a side-wall correction of order H / W (common practice)."""
+    ions = [edl.Ion(name, concentration="100 mM", diameter="0.7 nm") for name in ("K+", "Cl-")]
+    case = edl.Case(edl.Rectangle(width="400 nm", height="20 nm"), edl.Electrolyte(ions), edl.Wall(zeta="-150 mV"),
+                    field=FIELD, model="steric")
+    result = edl.solve(case)
+    assert abs(result.slit_comparison["side_wall_effect_mean_velocity_eo"]) < 2 * 20 / 400
