@@ -64,7 +64,7 @@ from typing import Any
 from edl_solver.errors import InputError
 from edl_solver.inputs.case import Case
 from edl_solver.inputs.paths import check_conflicts
-from edl_solver.sweeping.profiles import check_points
+from edl_solver.sweeping.profiles import check_geometry, check_points
 
 __all__ = ["SWEEP_KEYS", "SweepSpec", "load_sweep", "sweep_from_mapping"]
 
@@ -176,6 +176,7 @@ def _spec(data: Mapping[str, Any]) -> SweepSpec:
     case_data = {key: value for key, value in data.items() if key != "sweep"}
     _fill_from_axes(case_data, axes)
     case = case_from_mapping(case_data)
+    check_geometry(case.geometry, profile_points, "sweep.output_profiles")
     _check_cases(case, axes, raw_axes, zipped)
     return SweepSpec(case, axes, zipped, profile_points)
 

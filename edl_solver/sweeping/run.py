@@ -192,6 +192,7 @@ def sweep(base: Case, axes: Mapping[str, Any], *, zipped: Sequence[Sequence[str]
     base_table = case_to_mapping(base)
     check_axis_values(base_table, sweep_axes)
     profile_points = sweep_profiles.check_points(profiles)
+    sweep_profiles.check_geometry(base.geometry, profile_points)
     target = checked_output_path(path) if path is not None else None
     with output_lock(target) if target is not None else nullcontext():
         if target is not None and target.exists() and not overwrite:
@@ -241,7 +242,7 @@ def _open_store(base: Case, base_table: dict[str, Any], sweep_axes: Sequence[Axi
     The sweep's specification (base case and axes) goes into the file, so that a resume can check that it
     finishes the same sweep; a ``wall`` dimension is made when the walls differ or a swept path names one.
     """
-    pair = isinstance(base.wall, tuple) or any(p.startswith(("wall.bottom", "wall.top"))
+    pair = isinstance(base.wall, tuple) or any(p.startswith("wall.") and p.split(".")[1] in base.geometry.wall_names
                                                for axis in sweep_axes for p in axis.paths)
     spec = {"base": base_table, "axes": [[a.name, list(a.paths), [list(v) for v in a.values]] for a in sweep_axes]}
     if profile_points:
