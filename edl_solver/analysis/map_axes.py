@@ -37,7 +37,7 @@ __all__ = ["PSEUDO_AXES", "SIZE_PATHS", "MapAxis", "axis_units", "check_axes", "
 
 #: Dimensionless axes translated into case inputs against the base case (see the module docstring).
 PSEUDO_AXES: dict[str, str] = {
-    "kappa_h": "half-height (slit) or radius (capillary) over the Debye length of the base electrolyte",
+    "kappa_h": "half-height (slit, rectangle) or radius (capillary) over the Debye length of the base electrolyte",
     "zeta_kT": "wall potential zeta over the thermal voltage kT/e of the base solvent",
     "aspect_ratio": "width over height W/H of a rectangle",
 }

@@ -18,7 +18,8 @@ that any case file becomes a sweep by adding a table) plus a ``[sweep]`` table::
 
     [sweep]
     output_profiles = false           # optional: true (101 positions) or a number of positions across the
-                                      # section also stores every case's profiles (large; slower)
+                                      # section also stores every case's profiles (large; slower;
+                                      # not for a rectangle, whose profiles are 2-D)
 
     [sweep.axes]                      # one dimension per axis, in this order
     "geometry.height" = { log = ["2 nm", "2 um"], points = 50 }       # 50 values, evenly spaced in log

@@ -164,6 +164,7 @@ def sweep(base: Case, axes: Mapping[str, Any], *, zipped: Sequence[Sequence[str]
         Also store every case's profiles across the section, at this many positions evenly spaced in y/H
         (slit) or r/a (capillary), ``True`` for 101 (``sweep_profiles``). They are large, and the cases are
         then solved one by one through ``edl_solver.solve`` (about 3 times slower than the compiled batch).
+        Refused for a rectangle, whose profiles are 2-D (``edl_solver.solve`` gives them, point by point).
     overwrite : bool
         Replace a file that already exists at ``path`` (by default it is kept and the sweep refused).
 
