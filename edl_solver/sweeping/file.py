@@ -173,11 +173,12 @@ def _spec(data: Mapping[str, Any]) -> SweepSpec:
     axes = {path: _axis_values(path, spec) for path, spec in raw_axes.items()}
     check_conflicts(axes, "sweep.axes")
     zipped = _zip_groups(table.get("zip", []), axes)
-    profile_points = check_points(table.get("output_profiles", False), "sweep.output_profiles")
+    where = "sweep.output_profiles"
+    profile_points = check_points(table.get("output_profiles", False), where)
     case_data = {key: value for key, value in data.items() if key != "sweep"}
     _fill_from_axes(case_data, axes)
     case = case_from_mapping(case_data)
-    check_geometry(case.geometry, profile_points, "sweep.output_profiles")
+    check_geometry(case.geometry, profile_points, where)
     _check_cases(case, axes, raw_axes, zipped)
     return SweepSpec(case, axes, zipped, profile_points)
 
