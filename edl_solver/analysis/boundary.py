@@ -44,7 +44,7 @@ _LOG_XTOL = 1e-10
 _ACCURACY_PER_TOLERANCE = 1e-7
 _SMALLEST_ACCURACY = 1e-13
 #: Axes whose values must be positive.
-_POSITIVE_AXES = ("kappa_h", *SIZE_PATHS, "electrolyte.concentration")
+_POSITIVE_AXES = ("kappa_h", "aspect_ratio", *SIZE_PATHS, "geometry.width", "electrolyte.concentration")
 
 
 class _NoBoundaryError(InputError):
@@ -80,7 +80,7 @@ def _default_bracket(base: Case, axis: str) -> tuple[float, float]:
 
 def _probe(base: Case, axis: str) -> float:
     """A valid value of a real axis, to check the path before anything else."""
-    if axis in SIZE_PATHS:
+    if axis in SIZE_PATHS or axis == "geometry.width":
         return base.geometry.half_size
     return 1.0
 

@@ -1,15 +1,21 @@
 """The axes of a validity map: sweepable inputs, and the dimensionless pseudo-axes translated against a base
 case into the inputs they set.
 
-Besides the sweepable inputs (dotted paths such as "geometry.height", "electrolyte.concentration",
-"wall.zeta") two dimensionless pseudo-axes are understood and translated, against the *base* case, into real
-inputs before anything is solved:
+Besides the sweepable inputs (dotted paths such as "geometry.height", "geometry.width",
+"electrolyte.concentration", "wall.zeta") three dimensionless pseudo-axes are understood and translated,
+against the *base* case, into real inputs before anything is solved:
 
-- ``"kappa_h"``: κh, the half-size (half-height of a slit, radius of a capillary) over the Debye length of
-  the base electrolyte: the geometry's size is ``κh λ_D · size / half_size`` (``geometry.height = 2 κh λ_D``
-  or ``geometry.radius = κh λ_D``);
+- ``"kappa_h"``: κh, the half-size (half-height of a slit or a rectangle, radius of a capillary) over the Debye
+  length of the base electrolyte: the geometry's size is ``κh λ_D · size / half_size`` (``geometry.height =
+  2 κh λ_D`` or ``geometry.radius = κh λ_D``). A rectangle keeps its width (unless the other axis is
+  ``aspect_ratio``); its κh, half the smaller side over λ_D, is the axis value where W >= H;
 - ``"zeta_kT"``: ζ in units of the thermal voltage of the base solvent: ``wall.zeta = value · kT/e``
-  (every wall).
+  (every wall);
+- ``"aspect_ratio"``: W/H of a rectangle, its width the value times its height at the point
+  (``geometry.aspect_ratio`` of ``inputs.paths``): at the base height, or at the height that ``kappa_h`` or
+  ``geometry.height`` on the other axis sets.
+
+A rectangle's points are solved one by one through ``edl_solver.solve`` (its sweep has no compiled batch).
 
 Also the checks of the tolerances, which are fractions between 0 and 1.
 """
@@ -31,8 +37,9 @@ __all__ = ["PSEUDO_AXES", "SIZE_PATHS", "MapAxis", "axis_units", "check_axes", "
 
 #: Dimensionless axes translated into case inputs against the base case (see the module docstring).
 PSEUDO_AXES: dict[str, str] = {
-    "kappa_h": "half-height (slit) or radius (capillary) over the Debye length of the base electrolyte",
+    "kappa_h": "half-height (slit, rectangle) or radius (capillary) over the Debye length of the base electrolyte",
     "zeta_kT": "wall potential zeta over the thermal voltage kT/e of the base solvent",
+    "aspect_ratio": "width over height W/H of a rectangle",
 }
 #: The size input of every geometry ("geometry.height", "geometry.radius").
 SIZE_PATHS: tuple[str, ...] = tuple(geometry.size_path for geometry in GEOMETRIES.values())
@@ -78,6 +85,13 @@ def _pseudo_axis(base: Case, name: str, values: Any, field: str) -> MapAxis:
     if isinstance(values, (str, bytes)) or not isinstance(values, (Sequence, np.ndarray)) or len(values) == 0:
         raise InputError(f"{field}.{name}: {values!r} is not a list of values, expected a non-empty sequence")
     numbers = np.array([to_si(v, "dimensionless", f"{field}.{name}") for v in values])
+    if name == "aspect_ratio":
+        if base.geometry.kind != "rectangle":
+            raise InputError(f"{field}.aspect_ratio: the base case is a {base.geometry.kind}, expected a rectangle "
+                             "(edl_solver.Rectangle, or --rectangle W×H)")
+        if not np.all(numbers > 0.0):
+            raise InputError(f"{field}.aspect_ratio: {values!r} has a value <= 0, expected positive ratios W/H")
+        return MapAxis(name, "geometry.aspect_ratio", numbers, numbers)
     if name == "kappa_h":
         if not np.all(numbers > 0.0):
             raise InputError(f"{field}.kappa_h: {values!r} has a value <= 0, expected positive kappa h")
@@ -116,7 +130,8 @@ def check_pair(first: MapAxis, second: MapAxis, fields: tuple[str, str]) -> None
     walls = a.path.startswith("wall.") and b.path.startswith("wall.")
     same_wall = walls and bool({a.path, b.path} & {"wall.zeta", "wall.charge_density"}
                                or a.path.rsplit(".", 1)[0] == b.path.rsplit(".", 1)[0])
-    if a.path == b.path or same_wall:
+    same_width = {a.path, b.path} == {"geometry.width", "geometry.aspect_ratio"}  # both set the width
+    if a.path == b.path or same_wall or same_width:
         raise InputError(f"{fields[1]}: {b.name!r} sets the same input as {fields[0]} {a.name!r} "
                          f"({b.path}), expected two different inputs")
     for one, other, field in ((a, b, fields[1]), (b, a, fields[0])):

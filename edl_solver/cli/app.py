@@ -147,8 +147,9 @@ def _parser() -> _Parser:
 
     parser = _Parser(prog="edl", allow_abbrev=False, formatter_class=argparse.RawDescriptionHelpFormatter,
                      epilog=_MAIN_EPILOG,
-                     description="Electric double layer and electroosmotic flow across a nanochannel (slit or\n"
-                                 "capillary), compared with the thin-layer (Helmholtz-Smoluchowski) slip model.")
+                     description="Electric double layer and electroosmotic flow across a nanochannel (slit,\n"
+                                 "capillary or rectangle), compared with the thin-layer (Helmholtz-Smoluchowski)\n"
+                                 "slip model.")
     parser.add_argument("--version", action="version", version=f"edl {__version__}")
     commands = parser.add_subparsers(dest="command", title="commands", metavar="COMMAND")
     _add_commands(parser, commands)

@@ -1,5 +1,5 @@
-"""The case flags shared by ``edl solve`` and ``edl transport`` (--slit, --ion, --zeta, ...), and the case they
-give with a case file.
+"""The case flags shared by ``edl solve``, ``edl transport``, ``edl map`` and ``edl fit`` (--slit, --rectangle,
+--ion, --zeta, ...), and the case they give with a case file.
 
 One schema: the case file is read as a mapping (``casefile.read_mapping``), the flags are written into it in
 the shape of a case file (a flag that gives a whole section - the geometry, the ions, the wall conditions -
@@ -11,6 +11,7 @@ An error is then blamed on the flag that gave the value, or else on the case fil
 from __future__ import annotations
 
 import argparse
+import re
 from pathlib import Path
 from typing import Any
 
@@ -20,6 +21,8 @@ __all__ = ["CASE_FLAGS", "CASE_VALUE_FLAGS", "add_case_flags", "case_from_args"]
 CASE_FLAGS: tuple[tuple[str, str, str, str], ...] = (
     ("--slit", "HEIGHT", "geometry.height", "a slit of full wall-to-wall height HEIGHT, e.g. 50nm"),
     ("--capillary", "RADIUS", "geometry.radius", "a cylindrical capillary of radius RADIUS, e.g. 20nm"),
+    ("--rectangle", "W×H", "geometry.width, geometry.height",
+     "a rectangular channel of width W and height H, e.g. 200nm×40nm, 200nmx40nm or '1um x 20nm'"),
     ("--ion", "NAME=CONC", "electrolyte.ions",
      "an ion of the built-in table and its bulk concentration, e.g. K+=1mM; repeat for each ion (the "
      "ions given replace the case file's; a file ion given in full keeps its valence and diffusivity)"),
@@ -28,6 +31,11 @@ CASE_FLAGS: tuple[tuple[str, str, str, str], ...] = (
     ("--top-zeta", "ZETA", "wall.top.zeta", "a different potential for the top wall of a slit"),
     ("--top-charge-density", "SIGMA", "wall.top.charge_density",
      "a different charge density for the top wall of a slit"),
+    ("--sides-zeta", "ZETA", "wall.sides.zeta",
+     "a different potential for the side walls of a rectangle (--zeta then gives its top and bottom walls)"),
+    ("--sides-charge-density", "SIGMA", "wall.sides.charge_density",
+     "a different charge density for the side walls of a rectangle (--charge-density then gives its top and "
+     "bottom walls)"),
     ("--temperature", "T", "solvent.temperature", "temperature of the water, e.g. 25degC or 298.15K"),
     ("--field", "E", "field", "axial electric field, e.g. 10kV/m"),
     ("--pressure-gradient", "G", "pressure_gradient",
@@ -52,9 +60,11 @@ def add_case_flags(parser: argparse.ArgumentParser) -> None:
     electrolyte = parser.add_argument_group("electrolyte")
     walls = parser.add_argument_group("walls")
     bottom, top = walls.add_mutually_exclusive_group(), walls.add_mutually_exclusive_group()
+    sides = walls.add_mutually_exclusive_group()
     conditions = parser.add_argument_group("conditions and numerics")
-    group_of = {"--slit": geometry, "--capillary": geometry, "--ion": electrolyte, "--zeta": bottom,
-                "--charge-density": bottom, "--top-zeta": top, "--top-charge-density": top}
+    group_of = {"--slit": geometry, "--capillary": geometry, "--rectangle": geometry, "--ion": electrolyte,
+                "--zeta": bottom, "--charge-density": bottom, "--top-zeta": top, "--top-charge-density": top,
+                "--sides-zeta": sides, "--sides-charge-density": sides}
     for flag, metavar, field, text in CASE_FLAGS:
         group = group_of.get(flag, conditions)
         action = "append" if flag == "--ion" else "store"
@@ -130,11 +140,14 @@ def _apply_flags(data: dict[str, Any], args: argparse.Namespace, ions: list[tupl
     from edl_solver.inputs.paths import set_input
 
     origins: dict[str, str] = {}
-    for kind, shape in GEOMETRIES.items():  # --slit HEIGHT, --capillary RADIUS: one of them
+    for kind, shape in GEOMETRIES.items():  # --slit HEIGHT, --capillary RADIUS, --rectangle W×H: one of them
         size = getattr(args, kind, None)
         if size is not None:
-            data["geometry"] = {"kind": kind, shape.size_name: size}
-            origins[shape.size_path] = f"--{kind}"
+            sizes = _rectangle_sides(size) if len(shape.size_keys) == 2 else (size,)
+            data["geometry"] = {"kind": kind, **dict(zip(shape.size_keys, sizes))}
+            # "--rectangle width: ..." says which side of W×H is wrong
+            origins.update({f"geometry.{key}": f"--{kind} {key}" if len(sizes) == 2 else f"--{kind}"
+                            for key in shape.size_keys})
             break
     if ions is not None:
         data["electrolyte"] = {"ions": _ion_entries(data, ions)}
@@ -154,6 +167,21 @@ def _apply_flags(data: dict[str, Any], args: argparse.Namespace, ions: list[tupl
         set_input(data, "bulk_conductivity", args.bulk_conductivity)
     _apply_model_flags(data, args, origins)
     return origins
+
+
+#: What parts the two sides of --rectangle: ×, x, X or * (a length's units hold none of them).
+_BY = re.compile(r"\s*[×xX*]\s*")
+
+
+def _rectangle_sides(text: str) -> tuple[str, str]:
+    """``W×H`` (or ``WxH``, ``W*H``, spaces allowed) of --rectangle -> (width text, height text)."""
+    from edl_solver.errors import InputError
+
+    sides = _BY.split(text.strip())
+    if len(sides) != 2 or not all(sides):
+        raise InputError(f"--rectangle: {text!r} is not WIDTH×HEIGHT, expected e.g. --rectangle 200nm×40nm, "
+                         "--rectangle 200nmx40nm or --rectangle '1um x 20nm'")
+    return sides[0], sides[1]
 
 
 def _ion_entries(data: dict[str, Any], ions: list[tuple[str, str]]) -> list[dict[str, Any]]:
@@ -184,35 +212,58 @@ def _file_ion(data: dict[str, Any], name: str) -> dict[str, Any]:
 
 def _apply_wall_flags(data: dict[str, Any], args: argparse.Namespace, origins: dict[str, str]) -> None:
     """--zeta/--charge-density replace the wall section (one condition for every wall); --top-* then set a
-    slit's top wall apart."""
+    slit's top wall apart, --sides-* a rectangle's side walls (--zeta/--charge-density giving its top and bottom
+    walls)."""
     from edl_solver.errors import InputError
-    from edl_solver.inputs.casefile_keys import single_wall
 
     def condition(zeta: str | None, sigma: str | None) -> dict[str, str] | None:
         return {"zeta": zeta} if zeta is not None else {"charge_density": sigma} if sigma is not None else None
 
     every = condition(args.zeta, args.charge_density)
-    top = condition(args.top_zeta, args.top_charge_density)
-    if every is None and top is None:
+    apart = [(name, condition(getattr(args, f"{name}_zeta"), getattr(args, f"{name}_charge_density")))
+             for name in ("top", "sides")]
+    apart = [(name, wall) for name, wall in apart if wall is not None]
+    if every is None and not apart:
         return
-    wall = data.get("wall") if isinstance(data.get("wall"), dict) else {}
-    bottom_now = wall.get("bottom") if "bottom" in wall or "top" in wall else wall or None
-    bottom_flag = "--zeta" if args.zeta is not None else "--charge-density"
-    top_flag = "--top-zeta" if args.top_zeta is not None else "--top-charge-density"
-    if top is None:
+    first_flag = "--zeta" if args.zeta is not None else "--charge-density"
+    if not apart:
         data["wall"] = every
-        origins.update({f"wall.{key}": bottom_flag for key in ("zeta", "charge_density")})
+        origins.update({f"wall.{key}": first_flag for key in ("zeta", "charge_density")})
         return
-    if single_wall(data.get("geometry")):
-        raise InputError(f"{top_flag}: a capillary has one wall, expected --zeta or --charge-density alone")
-    bottom = every if every is not None else bottom_now
-    if not isinstance(bottom, dict):
-        raise InputError(f"{top_flag}: the bottom wall has no condition, expected --zeta or --charge-density "
-                         "(or a [wall] section in the case file) as well")
-    data["wall"] = {"bottom": bottom, "top": top}
-    origins.update({f"wall.top.{key}": top_flag for key in ("zeta", "charge_density")})
+    name, second = apart[0]
+    second_flag = f"--{name}-zeta" if getattr(args, f"{name}_zeta") is not None else f"--{name}-charge-density"
+    if len(apart) == 2:
+        raise InputError(f"{second_flag}: given with --sides-*, expected --top-* for a slit's top wall or --sides-* "
+                         "for a rectangle's side walls, not both")
+    names = _wall_names(data.get("geometry"), name, second_flag)
+    wall = data.get("wall") if isinstance(data.get("wall"), dict) else {}
+    first_now = wall.get(names[0]) if any(key in wall for key in names) else wall or None
+    first = every if every is not None else first_now
+    if not isinstance(first, dict):
+        raise InputError(f"{second_flag}: the {names[0]} walls have no condition, expected --zeta or "
+                         "--charge-density (or a [wall] section in the case file) as well")
+    data["wall"] = {names[0]: first, names[1]: second}
+    origins.update({f"wall.{names[1]}.{key}": second_flag for key in ("zeta", "charge_density")})
     if every is not None:
-        origins.update({f"wall.bottom.{key}": bottom_flag for key in ("zeta", "charge_density")})
+        origins.update({f"wall.{names[0]}.{key}": first_flag for key in ("zeta", "charge_density")})
+
+
+def _wall_names(geometry: Any, name: str, flag: str) -> tuple[str, str]:
+    """The case's two wall names, checked against the flag that sets the second apart (``name``: top or sides)."""
+    from edl_solver.errors import InputError
+    from edl_solver.inputs.casefile_keys import geometry_of
+
+    shape = geometry_of(geometry)
+    if shape is not None and shape.wall_count == 1:
+        raise InputError(f"{flag}: a {shape.kind} has one wall, expected --zeta or --charge-density alone")
+    names = shape.wall_names if shape is not None else ("bottom", "top") if name == "top" else ("top_bottom", "sides")
+    if names[1] == name:
+        return names
+    if name == "sides":
+        raise InputError(f"{flag}: a {shape.kind} has no side walls (its walls are {names[0]} and {names[1]}), "
+                         "expected --top-zeta or --top-charge-density for its top wall")
+    raise InputError(f"{flag}: a {shape.kind}'s top wall is one pair with its bottom wall (set by --zeta or "
+                     "--charge-density), expected --sides-zeta or --sides-charge-density for its side walls")
 
 
 def _apply_model_flags(data: dict[str, Any], args: argparse.Namespace, origins: dict[str, str]) -> None:
@@ -239,16 +290,16 @@ def _require_sections(data: dict[str, Any], path: str | None) -> None:
     """A missing part of the case, named with the flags that give it."""
     from edl_solver.errors import InputError
 
-    needs = {"geometry": "--slit HEIGHT or --capillary RADIUS", "electrolyte": "--ion NAME=CONC for each ion",
-             "wall": "--zeta ZETA or --charge-density SIGMA"}
+    needs = {"geometry": "--slit HEIGHT, --capillary RADIUS or --rectangle W×H",
+             "electrolyte": "--ion NAME=CONC for each ion", "wall": "--zeta ZETA or --charge-density SIGMA"}
     missing = [name for name in needs if name not in data]
     if not missing:
         return
     if path is not None:
         raise InputError(f"{path}: missing section [{missing[0]}]; add it or give {needs[missing[0]]}")
     if len(missing) == len(needs):
-        raise InputError("no case given: pass a case file (try 'edl demo --print-case > case.toml') or the "
-                         "flags --slit/--capillary, --ion and --zeta/--charge-density (see 'edl solve --help')")
+        raise InputError("no case given: pass a case file (try 'edl demo --print-case > case.toml') or the flags "
+                         "--slit/--capillary/--rectangle, --ion and --zeta/--charge-density (see 'edl solve --help')")
     raise InputError(f"no {missing[0]} given: add {needs[missing[0]]}")
 
 

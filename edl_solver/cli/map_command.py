@@ -33,9 +33,11 @@ _EPILOG = """\
 axes:
   An axis is PATH:FROM:TO:COUNT[:log|lin], COUNT values from FROM to TO, evenly spaced in log
   (the default; FROM and TO of one sign) or linearly. PATH is an input of the case file
-  (geometry.height, geometry.radius, electrolyte.concentration, wall.zeta, wall.charge_density,
-  solvent.temperature, ...) or a dimensionless axis measured against the case file's electrolyte
-  and solvent: kappa_h (half-height or radius over the Debye length) or zeta_kT (zeta over kT/e).
+  (geometry.height, geometry.radius, geometry.width, electrolyte.concentration, wall.zeta,
+  wall.charge_density, solvent.temperature, ...) or a dimensionless axis measured against the case
+  file's electrolyte and solvent: kappa_h (half-height or radius over the Debye length), zeta_kT
+  (zeta over kT/e) or, for a rectangle, aspect_ratio (W/H: the width follows the height, which
+  kappa_h or geometry.height may set; a rectangle's points are solved one by one).
   electrolyte.concentration scales every ion so that the first ion has the value.
   Values carry their units, without a space: 2nm, 0.1mM (millimolar), -50mV, -2mC/m^2.
 
@@ -52,6 +54,8 @@ examples:
       --x electrolyte.concentration:0.1mM:100mM:20 --y geometry.height:5nm:2um:20 --figure map.png
   edl map case.toml --x kappa_h:0.3:300:50 --y zeta_kT:-8:-0.5:30:lin --figure map.png
   edl map case.toml --x wall.charge_density:-50mC/m^2:-0.5mC/m^2:30 --y geometry.height:5nm:1um:30
+  edl map --rectangle 200nm×40nm --ion K+=1mM --ion Cl-=1mM --zeta -50mV --accuracy 1e-4 \\
+      --x kappa_h:0.5:20:10 --y aspect_ratio:1:20:8 --figure map.png
 
 The map file opens with xarray.open_dataset(path, engine="h5netcdf"): the errors
 thin_layer_flow_rate_error and thin_layer_current_error ((thin - full)/full) on the two axes, every
@@ -236,7 +240,8 @@ def _interrupted_sweep(args: argparse.Namespace, outputs: dict[str, Path]) -> Pa
 
 
 #: Short symbols of the axes for the printed boundary ("{ion}": the first ion of the case).
-_SYMBOLS = {"geometry.height": "H", "geometry.radius": "a", "electrolyte.concentration": "c({ion})",
+_SYMBOLS = {"geometry.height": "H", "geometry.radius": "a", "geometry.width": "W", "aspect_ratio": "W/H",
+            "electrolyte.concentration": "c({ion})",
             "wall.zeta": "zeta", "wall.charge_density": "sigma", "solvent.temperature": "T",
             "zeta_kT": "zeta/(kT/e)"}
 

@@ -19,6 +19,7 @@ VALUE_FLAGS = CASE_VALUE_FLAGS | frozenset(OUTPUT_FLAGS)
 _EPILOG = """\
 examples:
   edl solve --slit 20nm --ion Na+=1mM --ion Cl-=1mM --zeta -40mV --field 1kV/m
+  edl solve --rectangle 200nm×40nm --ion K+=1mM --ion Cl-=1mM --charge-density -1mC/m^2
   edl solve case.toml -o out.h5 --figure out.png
   edl solve case.toml --ion K+=10mM --ion Cl-=10mM    # the file's case at 10 mM
   edl demo --print-case > case.toml                    # a commented starting case file

@@ -34,7 +34,8 @@ to vary, one dimension per axis, in the file's order:
   "electrolyte.concentration" = ["0.1 mM", "1 mM", "10 mM"]
 
 'zip = [["a", "b"]]' in [sweep] varies axes a and b together (see edl_solver.sweeping.file).
-'output_profiles = 101' in [sweep] also stores every case's profiles at 101 positions across the section.
+'output_profiles = 101' in [sweep] also stores every case's profiles at 101 positions across the section
+(not for a rectangle, whose profiles are 2-D: solve its points of interest with 'edl solve').
 Results stream to OUT.h5.partial, renamed OUT.h5 when complete; an interrupted sweep keeps what it
 finished, and --resume finishes it. Cases that fail are kept with status 1 and a message. An existing
 OUT.h5 is kept unless --overwrite is given; a second run on an OUT.h5 being written is refused (the

@@ -11,7 +11,7 @@ overrides and parameter sweeps share::
     tolerance = "5 %"
 
     [geometry]
-    kind = "slit"                     # or "capillary", with radius = "..."
+    kind = "slit"                     # or "capillary", with radius = "..."; or "rectangle", with width = "..."
     height = "50 nm"
 
     [electrolyte]
@@ -26,7 +26,8 @@ overrides and parameter sweeps share::
     # diffusivity = "1e-9 m^2/s"
     # diameter = "0.7 nm"
 
-    [wall]                            # one condition for every wall; or [wall.bottom] and [wall.top]
+    [wall]                            # one condition for every wall; or [wall.bottom] and [wall.top] (a slit),
+                                      # [wall.top_bottom] and [wall.sides] (a rectangle's two pairs of walls)
     zeta = "-50 mV"                   # or charge_density = "-2 mC/m^2"
     # slip_length = "5 nm"            # Navier slip (any wall)
     # A charge-regulating wall instead of zeta: acid-base sites, a Stern layer, a gate.
@@ -166,7 +167,8 @@ def case_from_mapping(data: Mapping[str, Any], source: str = "") -> Case:
     ----------
     data : Mapping
         ``{"geometry": {"kind": "slit", "height": ...}, "electrolyte": {"ions": ..., "pH": ...}, "wall": {...}
-        or {"bottom": {...}, "top": {...}}, "solvent": {...}, "numerics": {...}, "field": ...,
+        or {"bottom": {...}, "top": {...}} (a slit's two walls) or {"top_bottom": {...}, "sides": {...}} (a
+        rectangle's two pairs of walls), "solvent": {...}, "numerics": {...}, "field": ...,
         "pressure_gradient": ..., "model": ..., "tolerance": ...}``. ``electrolyte.ions`` is either a
         table of ion names to concentrations or a list of ion tables (``name``, ``valence``,
         ``concentration``, ``diffusivity``, ``diameter``); ``electrolyte.ion`` (TOML ``[[electrolyte.ion]]``)

@@ -14,7 +14,7 @@ from edl_solver.errors import InputError
 from edl_solver.inputs.geometry import GEOMETRIES
 
 __all__ = ["CASE_KEYS", "ELECTROLYTE_KEYS", "ION_KEYS", "NUMERICS_KEYS", "SCALARS", "SITE_KEYS", "SOLVENT_KEYS",
-           "SOLVENT_PROPERTIES", "WALL_KEYS", "check_keys", "single_wall"]
+           "SOLVENT_PROPERTIES", "WALL_KEYS", "WALL_PAIRS", "check_keys", "geometry_of", "single_wall"]
 
 ION_KEYS = ("name", "valence", "concentration", "diffusivity", "diameter", "temperature_dependence")
 ELECTROLYTE_KEYS = ("ions", "ion", "pH", "water_ions", "diameter")
@@ -29,7 +29,11 @@ NUMERICS_KEYS = ("accuracy", "intervals", "max_iterations", "max_intervals")
 #: Keys of [geometry]: its kind and the size inputs of each geometry ("height", "radius", "width").
 GEOMETRY_KEYS = ("kind", *dict.fromkeys(key for geometry in GEOMETRIES.values() for key in geometry.size_keys))
 SCALARS = ("model", "field", "pressure_gradient", "tolerance", "bulk_conductivity")
-_WALL_TABLES = ("wall", "wall.bottom", "wall.top")
+#: The names of the wall tables of every geometry with two walls (pairs): "bottom", "top" (slit), "top_bottom",
+#: "sides" (rectangle).
+WALL_PAIRS = tuple(dict.fromkeys(name for geometry in GEOMETRIES.values() if geometry.wall_count == 2
+                                 for name in geometry.wall_names))
+_WALL_TABLES = ("wall", *(f"wall.{name}" for name in WALL_PAIRS))
 
 #: Every key a case file may hold, as dotted paths (list entries as "electrolyte.ion[].name" and
 #: "wall.site[].pK"); used for "did you mean" hints and by sweeps that address inputs by path.
@@ -45,13 +49,25 @@ CASE_KEYS: tuple[str, ...] = (
 )
 
 
+def geometry_of(geometry: Any) -> Any:
+    """The geometry class a [geometry] table names, by its kind or, without a kind, by its size keys (a width
+    makes a rectangle, a height a slit, a radius a capillary); None when it names none (its own check says why)."""
+    if not isinstance(geometry, Mapping):
+        return None
+    kind = geometry.get("kind")
+    if kind is not None:
+        return GEOMETRIES.get(kind) if isinstance(kind, str) else None
+    given = [shape for shape in GEOMETRIES.values() if set(shape.size_keys) <= set(geometry)]
+    rectangles = [shape for shape in given if shape.kind == "rectangle"]
+    given = rectangles or given
+    return given[0] if len(given) == 1 else None
+
+
 def single_wall(geometry: Any) -> bool:
     """Whether a [geometry] table names a geometry with one wall (a capillary), by its kind or, without a
-    kind, by its size key; such a geometry takes no [wall.bottom]/[wall.top] pair."""
-    if not isinstance(geometry, Mapping):
-        return False
-    return any(shape.wall_count == 1 and (geometry.get("kind") == shape.kind or shape.size_name in geometry)
-               for shape in GEOMETRIES.values())
+    kind, by its size key; such a geometry takes no pair of wall tables."""
+    shape = geometry_of(geometry)
+    return shape is not None and shape.wall_count == 1
 
 
 def check_keys(data: Mapping[str, Any]) -> None:
@@ -72,9 +88,9 @@ def check_keys(data: Mapping[str, Any]) -> None:
                         _known(entry, ION_KEYS, f"electrolyte.{key}[{i}]")
     wall = data.get("wall")
     if isinstance(wall, Mapping):
-        _known(wall, (*WALL_KEYS, "bottom", "top"), "wall")
+        _known(wall, (*WALL_KEYS, *WALL_PAIRS), "wall")
         _check_site_keys(wall, "wall")
-        for side in ("bottom", "top"):
+        for side in WALL_PAIRS:
             if isinstance(wall.get(side), Mapping):
                 _known(wall[side], WALL_KEYS, f"wall.{side}")
                 _check_site_keys(wall[side], f"wall.{side}")

@@ -12,7 +12,7 @@ from collections.abc import Callable, Mapping
 from typing import Any, TypeVar
 
 from edl_solver.errors import InputError
-from edl_solver.inputs.casefile_keys import SOLVENT_PROPERTIES, WALL_KEYS, single_wall
+from edl_solver.inputs.casefile_keys import SOLVENT_PROPERTIES, WALL_KEYS, WALL_PAIRS, geometry_of
 from edl_solver.inputs.electrolyte import Electrolyte, Ion
 from edl_solver.inputs.geometry import GEOMETRIES, Geometry
 from edl_solver.inputs.solvent import Solvent, Water
@@ -147,21 +147,31 @@ def _ion_list(entries: Any, path: str, shared: Mapping[str, Any]) -> list[Ion]:
 
 
 def build_walls(table: Mapping[str, Any], geometry: Any) -> Wall | tuple[Wall, Wall]:
-    """[wall] (one condition for every wall) or [wall.bottom] and [wall.top] (a slit's two walls)."""
-    sides = [side for side in ("bottom", "top") if side in table]
-    if not sides:
+    """[wall] (one condition for every wall) or a pair of wall tables, named by the geometry's ``wall_names``:
+    [wall.bottom] and [wall.top] of a slit, [wall.top_bottom] and [wall.sides] of a rectangle."""
+    given = [name for name in WALL_PAIRS if name in table]
+    if not given:
         return _one_wall(table, "wall")
+    shape = geometry_of(geometry)
+    if shape is None:  # the geometry's own error is raised before the walls are built
+        raise InputError(f"wall.{given[0]}: the geometry is not known, expected [wall] with {EXAMPLES['wall']}")
     if any(key in table for key in WALL_KEYS):
-        raise InputError("wall: both a condition for every wall and [wall.bottom]/[wall.top] given, "
-                         "expected one of the two")
-    if single_wall(geometry):
-        raise InputError(f"wall.{sides[0]}: a capillary has one wall, expected [wall] with "
+        pair = "/".join(f"[wall.{name}]" for name in (shape.wall_names if shape.wall_count == 2 else given))
+        raise InputError(f"wall: both a condition for every wall and {pair} given, expected one of the two")
+    if shape.wall_count == 1:
+        raise InputError(f"wall.{given[0]}: a {shape.kind} has one wall, expected [wall] with "
                          f"{EXAMPLES['wall']}")
-    for side in ("bottom", "top"):
-        if side not in table:
-            raise InputError(f"wall.{side}: missing, expected [wall.{side}] with {EXAMPLES['wall']} "
-                             f"(a slit with [wall.{sides[0]}] needs both walls)")
-    return tuple(_one_wall(optional_table(table[side], f"wall.{side}"), f"wall.{side}") for side in ("bottom", "top"))
+    names = shape.wall_names
+    tables = " and ".join(f"[wall.{name}]" for name in names)
+    for name in given:
+        if name not in names:
+            raise InputError(f"wall.{name}: a {shape.kind} has no such walls, expected {tables} (or one [wall] "
+                             "for every wall)")
+    for name in names:
+        if name not in table:
+            raise InputError(f"wall.{name}: missing, expected [wall.{name}] with {EXAMPLES['wall']} "
+                             f"(a {shape.kind} with [wall.{given[0]}] needs {tables})")
+    return tuple(_one_wall(optional_table(table[name], f"wall.{name}"), f"wall.{name}") for name in names)
 
 
 def _one_wall(table: Mapping[str, Any], path: str) -> Wall:

@@ -43,9 +43,10 @@ def case_to_mapping(case: Case) -> dict[str, Any]:
     -------
     dict
         The shape :func:`case_from_mapping` reads: ``{"geometry": {"kind": "slit", "height": H} |
-        {"kind": "capillary", "radius": a}, "electrolyte": {"ions": [{"name", "valence", "concentration",
-        "diffusivity"[, "diameter", "temperature_dependence"]}, ...][, "pH"]}, "wall": {...} | {"bottom": {...},
-        "top": {...}},
+        {"kind": "capillary", "radius": a} | {"kind": "rectangle", "width": W, "height": H}, "electrolyte":
+        {"ions": [{"name", "valence", "concentration", "diffusivity"[, "diameter", "temperature_dependence"]}, ...][,
+        "pH"]}, "wall": {...} | {"bottom": {...}, "top": {...}} (a slit) | {"top_bottom": {...}, "sides": {...}}
+        (a rectangle),
         "solvent": {"temperature", "relative_permittivity", "viscosity", "name"[,
         "viscoelectric_coefficient"]}, "field", "pressure_gradient", "model", "tolerance"[,
         "bulk_conductivity"], "numerics":
@@ -64,7 +65,8 @@ def case_to_mapping(case: Case) -> dict[str, Any]:
         raise InputError(f"case: {type(case).__name__} is not a Case, expected edl_solver.Case(...)")
     geometry = case.geometry.to_mapping()
     if isinstance(case.wall, tuple):
-        wall: dict[str, Any] = {"bottom": _wall_to_mapping(case.wall[0]), "top": _wall_to_mapping(case.wall[1])}
+        names = case.geometry.wall_names  # ("bottom", "top") of a slit, ("top_bottom", "sides") of a rectangle
+        wall: dict[str, Any] = {names[0]: _wall_to_mapping(case.wall[0]), names[1]: _wall_to_mapping(case.wall[1])}
     else:
         wall = _wall_to_mapping(case.wall)
     numerics: dict[str, Any] = {

@@ -1,11 +1,14 @@
 """The axes of a sweep: which case inputs can be swept, their units, and the case at a point.
 
 An axis is a dotted path of a case input (the keys of a TOML case file, ``casefile.CASE_KEYS``: e.g.
-"geometry.height", "wall.zeta", "wall.top.charge_density", "solvent.temperature", "field") plus two
+"geometry.height", "wall.zeta", "wall.top.charge_density", "solvent.temperature", "field") plus three
 special paths: "electrolyte.concentration" scales every ion's bulk concentration so that the first ion's
-equals the value (the salt concentration for a single salt listed cation first), and "electrolyte.valence"
+equals the value (the salt concentration for a single salt listed cation first), "electrolyte.valence"
 gives every ion that valence with its own sign (a z:z salt of equal concentrations stays neutral; the
-ions keep their names and diffusivities, as model ions of another valence). The cases are the
+ions keep their names and diffusivities, as model ions of another valence), and "geometry.aspect_ratio"
+sets a rectangle's width to the value times its height at the point (applied after every other axis, so
+that it follows a swept height). A slit's two walls are "wall.bottom" and "wall.top", a rectangle's two
+wall pairs "wall.top_bottom" and "wall.sides" (the geometry's ``wall_names``). The cases are the
 cartesian product of the axes in the given order; axes can also be zipped (varied together along one
 dimension, named after the first of them).
 """
@@ -22,22 +25,28 @@ from edl_solver.errors import InputError
 from edl_solver.inputs.case import Case
 
 #: Paths that are not keys of a case file but are understood by sweeps.
-SPECIAL_PATHS = ("electrolyte.concentration", "electrolyte.valence")
+SPECIAL_PATHS = ("electrolyte.concentration", "electrolyte.valence", "geometry.aspect_ratio")
+#: W/H of a rectangle, set last (see the module docstring).
+ASPECT_RATIO = "geometry.aspect_ratio"
+#: The walls a path can name one of: a slit's, then a rectangle's pair (``Geometry.wall_names``).
+_PAIRS = (("bottom", "top"), ("top_bottom", "sides"))
+_SIDES = tuple(side for pair in _PAIRS for side in pair)
 
 _WALL_UNITS = {"zeta": "V", "charge_density": "C/m^2", "slip_length": "m", "stern_capacitance": "F/m^2",
                "gate_voltage": "V", "gate_capacitance": "F/m^2"}
 _SITE_UNITS = {"pK": "dimensionless", "density": "1/m^2"}
 
 #: SI unit of each sweepable path (for parsing values with units and for the file's attributes). Walls:
-#: "wall.<key>" sets every wall, "wall.bottom.<key>" / "wall.top.<key>" one slit wall; sites as
-#: "wall.site[0].pK" (first kind of site; "wall.top.site[0].density" and so on).
+#: "wall.<key>" sets every wall, "wall.bottom.<key>" / "wall.top.<key>" one slit wall, "wall.top_bottom.<key>" /
+#: "wall.sides.<key>" one wall pair of a rectangle; sites as "wall.site[0].pK" (first kind of site;
+#: "wall.top.site[0].density" and so on).
 PATH_UNITS = {
-    "geometry.height": "m", "geometry.radius": "m",
+    "geometry.height": "m", "geometry.radius": "m", "geometry.width": "m", ASPECT_RATIO: "dimensionless",
     "electrolyte.concentration": "mol/m^3", "electrolyte.pH": "dimensionless", "electrolyte.valence": "dimensionless",
     **{f"wall.{key}": unit for key, unit in _WALL_UNITS.items()},
-    **{f"wall.{side}.{key}": unit for side in ("bottom", "top") for key, unit in _WALL_UNITS.items()},
+    **{f"wall.{side}.{key}": unit for side in _SIDES for key, unit in _WALL_UNITS.items()},
     **{f"wall.site[{j}].{key}": unit for j in range(4) for key, unit in _SITE_UNITS.items()},
-    **{f"wall.{side}.site[{j}].{key}": unit for side in ("bottom", "top") for j in range(4)
+    **{f"wall.{side}.site[{j}].{key}": unit for side in _SIDES for j in range(4)
        for key, unit in _SITE_UNITS.items()},
     "solvent.temperature": "K", "solvent.relative_permittivity": "dimensionless", "solvent.viscosity": "Pa*s",
     "solvent.viscoelectric_coefficient": "m^2/V^2",
@@ -86,32 +95,47 @@ def _axis_values(path: str, values: Any) -> tuple[Any, ...]:
     return tuple(to_si(v, PATH_UNITS[path], f"axes.{path}") for v in items)
 
 
+#: Pairs of geometry inputs that cannot be swept together: two geometries, or two settings of one width.
+_GEOMETRY_CLASHES = ({"geometry.height", "geometry.radius"}, {"geometry.width", "geometry.radius"},
+                     {ASPECT_RATIO, "geometry.radius"})
+
+
 def check_conflicts(axes: Iterable[str], where: str = "axes") -> None:
     """Reject two axes of which the later would overwrite the other's input (the sweep applies the axes
     in order, so one of them would silently have no effect)."""
     paths = list(axes)
     for i, first in enumerate(paths):
         for second in paths[i + 1:]:
-            if {first, second} == {"geometry.height", "geometry.radius"}:
+            if {first, second} in _GEOMETRY_CLASHES:
                 raise InputError(f'{where}: "{first}" and "{second}" are two geometries, expected one of them')
-            if first.startswith("wall.") and second.startswith("wall.") and _walls_clash(first, second):
+            if {first, second} == {"geometry.width", ASPECT_RATIO}:
+                raise InputError(f'{where}: "{first}" and "{second}" both set the width, expected one of them')
+            if first.startswith("wall.") and second.startswith("wall.") and _walls_clash(first, second, where):
                 raise InputError(f'{where}: "{first}" and "{second}" both set the same input, expected one '
                                  f"of them{_other_wall_hint(first, second)}")
 
 
 def _wall_scope(path: str) -> tuple[str, str]:
-    """("bottom" | "top" | "every", the key within the wall) of a "wall..." path."""
+    """(a wall's name ("bottom", "top", "top_bottom", "sides") or "every", the key within it) of a "wall..." path."""
     rest = path[len("wall."):]
     side, _, key = rest.partition(".")
-    return (side, key) if side in ("bottom", "top") else ("every", rest)
+    return (side, key) if side in _SIDES else ("every", rest)
 
 
-def _walls_clash(first: str, second: str) -> bool:
+def _walls_clash(first: str, second: str, where: str) -> bool:
     (scope1, key1), (scope2, key2) = _wall_scope(first), _wall_scope(second)
     if scope1 != scope2 and "every" not in (scope1, scope2):
-        return False  # the two walls of a slit are independent
+        if _pair_of(scope1) != _pair_of(scope2):
+            raise InputError(f'{where}: "{first}" and "{second}" name the walls of two geometries, expected '
+                             "wall.bottom/wall.top (a slit) or wall.top_bottom/wall.sides (a rectangle)")
+        return False  # the two walls of a slit, or the two wall pairs of a rectangle, are independent
     kinds = {key.split("[")[0].split(".")[0] for key in (key1, key2)}
     return key1 == key2 or ("zeta" in kinds and bool(kinds & set(_CHARGE_KEYS)))
+
+
+def _pair_of(side: str) -> tuple[str, str]:
+    """The pair of wall names ``side`` belongs to."""
+    return next(pair for pair in _PAIRS if side in pair)
 
 
 def _other_wall_hint(first: str, second: str) -> str:
@@ -120,8 +144,10 @@ def _other_wall_hint(first: str, second: str) -> str:
     if "every" not in scopes or len(scopes) != 2:
         return ""
     side = next(scope for scope in scopes if scope != "every")
-    other = "bottom" if side == "top" else "top"
-    return f" (vary the {other} wall with 'wall.{other}.{_wall_scope(scopes['every'])[1]}')"
+    pair = _pair_of(side)
+    other = pair[1] if side == pair[0] else pair[0]
+    noun = "wall" if pair == _PAIRS[0] else "wall pair"
+    return f" (vary the {other} {noun} with 'wall.{other}.{_wall_scope(scopes['every'])[1]}')"
 
 
 def make_axes(axes: Mapping[str, Any], zipped: Sequence[Sequence[str]] = ()) -> tuple[Axis, ...]:
@@ -180,11 +206,12 @@ def _set_wall(wall: dict[str, Any], key: str, value: Any) -> None:
 def set_input(table: dict[str, Any], path: str, value: Any) -> None:
     """Set one input of a case mapping (the shape of a case file) at its dotted ``path``, as given.
 
-    "wall.<key>" sets every wall ("wall.bottom.<key>" / "wall.top.<key>" one wall of a slit, splitting one
-    condition for every wall into a pair); a fixed zeta and the charge keys exclude each other. Any other
-    path sets the value at that key, creating the tables on the way (a value that is not a table where a
-    table is needed is replaced). The sweep's own meanings (:func:`case_at`: scaled concentrations,
-    valences, water following its temperature) are not applied here.
+    "wall.<key>" sets every wall ("wall.bottom.<key>" / "wall.top.<key>" one wall of a slit,
+    "wall.top_bottom.<key>" / "wall.sides.<key>" one wall pair of a rectangle, splitting one condition for
+    every wall into a pair); a fixed zeta and the charge keys exclude each other. Any other path sets the value
+    at that key, creating the tables on the way (a value that is not a table where a table is needed is
+    replaced). The sweep's own meanings (:func:`case_at`: scaled concentrations, valences, aspect ratios, water
+    following its temperature) are not applied here.
     """
     if path.startswith("wall."):
         _set_wall_path(table, path[len("wall."):], value)
@@ -200,20 +227,40 @@ def set_input(table: dict[str, Any], path: str, value: Any) -> None:
 
 
 def _set_wall_path(table: dict[str, Any], rest: str, value: Any) -> None:
-    """``rest`` of a "wall..." path: "<key>" on every wall, "bottom.<key>" or "top.<key>" on one."""
+    """``rest`` of a "wall..." path: "<key>" on every wall, "<wall name>.<key>" on one wall (or wall pair)."""
     wall = table.get("wall")
     if not isinstance(wall, dict):
         wall = table["wall"] = {}
-    paired = "bottom" in wall or "top" in wall
+    names = next((pair for pair in _PAIRS if any(side in wall for side in pair)), None)
     side = rest.split(".")[0]
-    if side in ("bottom", "top"):
-        if not paired:  # one condition for both walls becomes a pair
-            table["wall"] = wall = {"bottom": wall, "top": json.loads(json.dumps(wall))}
+    if side in _SIDES:
+        _check_wall_name(table.get("geometry"), side, rest)
+        if names is None:  # one condition for every wall becomes a pair
+            names = _pair_of(side)
+            table["wall"] = wall = {names[0]: wall, names[1]: json.loads(json.dumps(wall))}
+        if side not in names:
+            raise InputError(f"wall.{rest}: the case's walls are [wall.{names[0]}] and [wall.{names[1]}], "
+                             f"expected a path of one of them (wall.{names[0]}.* or wall.{names[1]}.*)")
         _set_wall(wall[side], rest[len(side) + 1:], value)
         return
-    for one in ([wall.get("bottom"), wall.get("top")] if paired else [wall]):
+    for one in ([wall.get(name) for name in names] if names is not None else [wall]):
         if isinstance(one, dict):
             _set_wall(one, rest, value)
+
+
+def _check_wall_name(geometry: Any, side: str, rest: str) -> None:
+    """Refuse a wall name that the case's geometry does not have (a slit's "top" on a rectangle)."""
+    from edl_solver.inputs.casefile_keys import geometry_of
+
+    shape = geometry_of(geometry)
+    if shape is None or (side in shape.wall_names and shape.wall_count == 2):
+        return
+    key = rest[len(side) + 1:]
+    if shape.wall_count == 1:
+        raise InputError(f"wall.{rest}: a {shape.kind} has one wall, expected wall.{key}")
+    first, second = shape.wall_names
+    raise InputError(f"wall.{rest}: a {shape.kind}'s walls are {first} and {second}, expected wall.{first}.{key} "
+                     f"or wall.{second}.{key}")
 
 
 def _set_path(table: dict[str, Any], path: str, value: Any) -> None:
@@ -236,6 +283,9 @@ def _set_path(table: dict[str, Any], path: str, value: Any) -> None:
         for ion in electrolyte["ions"]:
             ion["valence"] = int(value) if ion["valence"] > 0 else -int(value)
         return
+    if path == ASPECT_RATIO:
+        _set_aspect_ratio(table["geometry"], value)
+        return
     if path == "solvent.temperature" and table["solvent"].get("name") == "water":
         # water's permittivity and viscosity follow the temperature (its correlations)
         coefficient = table["solvent"].get("viscoelectric_coefficient")
@@ -246,14 +296,24 @@ def _set_path(table: dict[str, Any], path: str, value: Any) -> None:
     set_input(table, path, value)
 
 
+def _set_aspect_ratio(geometry: dict[str, Any], value: float) -> None:
+    """A rectangle's width as ``value`` times its height (``ASPECT_RATIO``)."""
+    if geometry.get("kind") != "rectangle":
+        raise InputError(f"axes: {ASPECT_RATIO!r} is the width over the height of a rectangle, but the case is a "
+                         f"{geometry.get('kind')}, expected a rectangle")
+    if not value > 0.0:
+        raise InputError(f"axes: {ASPECT_RATIO} {value!r} is not a ratio of two sides, expected a positive number")
+    geometry["width"] = value * geometry["height"]
+
+
 def case_at(base_table: Mapping[str, Any], axes: Sequence[Axis], index: Sequence[int]) -> Case:
-    """The case at one multi-index of the sweep."""
+    """The case at one multi-index of the sweep (an aspect ratio set last, on the point's height)."""
     from edl_solver.inputs.casefile import case_from_mapping
 
     table = json.loads(json.dumps(base_table))  # a deep copy of plain data
-    for axis, i in zip(axes, index):
-        for path, values in zip(axis.paths, axis.values):
-            _set_path(table, path, values[i])
+    settings = [(path, values[i]) for axis, i in zip(axes, index) for path, values in zip(axis.paths, axis.values)]
+    for path, value in sorted(settings, key=lambda setting: setting[0] == ASPECT_RATIO):  # stable
+        _set_path(table, path, value)
     return case_from_mapping(table)
 
 

@@ -30,6 +30,8 @@ __all__ = ["axis_display", "map_figure"]
 _DISPLAY: dict[str, tuple[float, float, str]] = {
     "geometry.height": (1e9, 0.0, "channel height H (nm)"),
     "geometry.radius": (1e9, 0.0, "capillary radius a (nm)"),
+    "geometry.width": (1e9, 0.0, "channel width W (nm)"),
+    "aspect_ratio": (1.0, 0.0, "aspect ratio W/H"),
     "electrolyte.concentration": (1.0, 0.0, "bulk concentration of {ion} (mM)"),
     "wall.zeta": (1e3, 0.0, "wall potential ζ (mV)"),
     "wall.bottom.zeta": (1e3, 0.0, "bottom wall potential ζ (mV)"),

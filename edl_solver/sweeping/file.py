@@ -18,7 +18,8 @@ that any case file becomes a sweep by adding a table) plus a ``[sweep]`` table::
 
     [sweep]
     output_profiles = false           # optional: true (101 positions) or a number of positions across the
-                                      # section also stores every case's profiles (large; slower)
+                                      # section also stores every case's profiles (large; slower;
+                                      # not for a rectangle, whose profiles are 2-D)
 
     [sweep.axes]                      # one dimension per axis, in this order
     "geometry.height" = { log = ["2 nm", "2 um"], points = 50 }       # 50 values, evenly spaced in log
@@ -64,7 +65,7 @@ from typing import Any
 from edl_solver.errors import InputError
 from edl_solver.inputs.case import Case
 from edl_solver.inputs.paths import check_conflicts
-from edl_solver.sweeping.profiles import check_points
+from edl_solver.sweeping.profiles import check_geometry, check_points
 
 __all__ = ["SWEEP_KEYS", "SweepSpec", "load_sweep", "sweep_from_mapping"]
 
@@ -172,10 +173,12 @@ def _spec(data: Mapping[str, Any]) -> SweepSpec:
     axes = {path: _axis_values(path, spec) for path, spec in raw_axes.items()}
     check_conflicts(axes, "sweep.axes")
     zipped = _zip_groups(table.get("zip", []), axes)
-    profile_points = check_points(table.get("output_profiles", False), "sweep.output_profiles")
+    where = "sweep.output_profiles"
+    profile_points = check_points(table.get("output_profiles", False), where)
     case_data = {key: value for key, value in data.items() if key != "sweep"}
     _fill_from_axes(case_data, axes)
     case = case_from_mapping(case_data)
+    check_geometry(case.geometry, profile_points, where)
     _check_cases(case, axes, raw_axes, zipped)
     return SweepSpec(case, axes, zipped, profile_points)
 

@@ -6,7 +6,8 @@ its own. When no two axes change the same column, the vector of any point is the
 columns taken from its value at the point's index. The symmetry flag of a slit depends on both walls, which
 two axes may set: it is recomputed per point from the two walls' columns. The assembly is checked
 against points built in full (the sweep's corners and centre); a sweep it does not hold for, or whose
-axes change the number of ions, gets no plan and is solved case by case.
+axes change the number of ions, gets no plan and is solved case by case; so does every sweep of a rectangle
+(the batch is 1-D).
 """
 
 from __future__ import annotations
@@ -19,6 +20,7 @@ from typing import Any
 import numpy as np
 
 from edl_solver.errors import InputError
+from edl_solver.inputs.geometry import Rectangle
 from edl_solver.kernels.layout import P_METRIC, P_SLIP, P_SYMMETRIC, P_WALLS, PLANAR, WALL_SIZE
 from edl_solver.model import packing
 
@@ -91,6 +93,8 @@ def make_plan(base_table: Mapping[str, Any], axes: Sequence[Any]) -> SweepPlan |
     from edl_solver.inputs.casefile import case_from_mapping
 
     base_case = case_from_mapping(base_table)
+    if isinstance(base_case.geometry, Rectangle):
+        return None  # the compiled batch solves 1-D sections; a rectangle goes through edl_solver.solve
     base = packing.case_vector(base_case)
     columns, values, valid = [], [], []
     owner: dict[int, int] = {}

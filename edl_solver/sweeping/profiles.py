@@ -49,6 +49,16 @@ def check_points(points: Any, where: str = "profiles") -> int:
     return int(points)
 
 
+def check_geometry(geometry: Any, points: int, where: str = "profiles") -> int:
+    """``points``, unless they are profiles of a rectangle: its fields are 2-D (y, z), which the sweep's profile
+    variables (one coordinate across the section) cannot hold; a rectangle's profiles come from
+    ``edl_solver.solve``."""
+    if points and geometry.kind == "rectangle":
+        raise InputError(f"{where}: {points!r} profile positions for a rectangle, whose profiles are 2-D, expected "
+                         "no profiles in a sweep of a rectangle (edl_solver.solve gives its RectangleProfiles)")
+    return points
+
+
 def positions(points: int) -> np.ndarray:
     """The common positions across the section, y/H or r/a."""
     return np.linspace(0.0, 1.0, points)

@@ -161,9 +161,9 @@ def sweep(base: Case, axes: Mapping[str, Any], *, zipped: Sequence[Sequence[str]
     progress : bool, optional
         Show a progress bar (tqdm); by default only when attached to a terminal.
     profiles : bool or int, optional
-        Also store every case's profiles across the section, at this many positions evenly spaced in y/H
-        (slit) or r/a (capillary), ``True`` for 101 (``sweep_profiles``). They are large, and the cases are
-        then solved one by one through ``edl_solver.solve`` (about 3 times slower than the compiled batch).
+        Also store every case's profiles across the section, at this many positions evenly spaced in y/H (slit)
+        or r/a (capillary; refused for a rectangle, whose profiles are 2-D), ``True`` for 101 (``sweep_profiles``).
+        They are large, and the cases are then solved one by one (3 times slower than the compiled batch).
     overwrite : bool
         Replace a file that already exists at ``path`` (by default it is kept and the sweep refused).
 
@@ -191,7 +191,7 @@ def sweep(base: Case, axes: Mapping[str, Any], *, zipped: Sequence[Sequence[str]
     sweep_axes = make_axes(axes, _checked_zipped(zipped))
     base_table = case_to_mapping(base)
     check_axis_values(base_table, sweep_axes)
-    profile_points = sweep_profiles.check_points(profiles)
+    profile_points = sweep_profiles.check_geometry(base.geometry, sweep_profiles.check_points(profiles))
     target = checked_output_path(path) if path is not None else None
     with output_lock(target) if target is not None else nullcontext():
         if target is not None and target.exists() and not overwrite:
@@ -241,7 +241,7 @@ def _open_store(base: Case, base_table: dict[str, Any], sweep_axes: Sequence[Axi
     The sweep's specification (base case and axes) goes into the file, so that a resume can check that it
     finishes the same sweep; a ``wall`` dimension is made when the walls differ or a swept path names one.
     """
-    pair = isinstance(base.wall, tuple) or any(p.startswith(("wall.bottom", "wall.top"))
+    pair = isinstance(base.wall, tuple) or any(p.startswith("wall.") and p.split(".")[1] in base.geometry.wall_names
                                                for axis in sweep_axes for p in axis.paths)
     spec = {"base": base_table, "axes": [[a.name, list(a.paths), [list(v) for v in a.values]] for a in sweep_axes]}
     if profile_points:

@@ -128,7 +128,7 @@ class SweepStore:
                 var.attrs["units"] = PATH_UNITS.get(path, "1")
                 var.attrs["long_name"] = f"swept input {path}"
         if self.pair:
-            f.create_variable("wall", ("wall",), text, data=np.array(["bottom", "top"], dtype=object))
+            f.create_variable("wall", ("wall",), text, data=np.array(self.geometry.wall_names, dtype=object))
         # Zipped paths other than the first are coordinates too (CF "coordinates"), not data variables.
         extra = [path for axis in self.axes for path in axis.paths[1:]]
         if extra:
@@ -256,7 +256,7 @@ class SweepStore:
             "message": (dims, message, {"long_name": "why a case failed (empty when it converged)"}),
         }
         if self.pair:
-            coords["wall"] = (("wall",), np.array(["bottom", "top"]))
+            coords["wall"] = (("wall",), np.array(self.geometry.wall_names))
         for key, (unit, text) in self.layout.items():
             key_dims = (*dims, "wall") if key in PAIR_KEYS and self.pair else dims
             data[key] = (key_dims, values[key], {"units": unit, "long_name": text})
