@@ -241,6 +241,12 @@ ROUGH_CORNER_ORDER = 3.0
 PREDICTION_MARGIN = 1.5
 
 
+def _looser(estimate: float) -> float:
+    """The accuracy, one significant digit rounded up, that an error estimate meets."""
+    exponent = np.floor(np.log10(estimate))
+    return float(np.ceil(estimate / 10**exponent) * 10**exponent)
+
+
 def _next_intervals(n: int, excess: float, max_intervals: int, order: float = PREDICTED_ORDER) -> int:
     """Cells per direction of the next try after an estimate ``excess`` times the accuracy on ``n`` cells: the
     grid the observed error predicts (at ``order``), at least 1.25 n, a multiple of 2^(LEVELS - 1), at most
@@ -338,7 +344,9 @@ def _refine(half_w: float, half_h: float, betas: tuple[float, float], n: int, ph
         wanted = _next_intervals(n, estimate / accuracy, max_intervals, order)
         if wanted <= n:
             raise ConvergenceError(f"{physics.describe(half_w, half_h)}: accuracy {accuracy:g} missed (estimate "
-                                   f"{estimate:.2g}) with {n} cells per direction (max_intervals = {max_intervals})")
+                                   f"{estimate:.2g}) with {n} cells per direction (max_intervals = {max_intervals}); "
+                                   f"a looser accuracy (Numerics(accuracy={_looser(estimate):g}) or more) would "
+                                   "be met on this grid")
         if wanted == 2 * n:  # the three finest grids are the next set's coarser ones
             levels = [*levels[1:], _solve_grid(half_w, half_h, betas, wanted, fv.prolong(levels[-1].psi), physics)]
         else:

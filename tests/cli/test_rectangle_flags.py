@@ -62,10 +62,12 @@ def test_rectangle_and_slit_together_are_refused() -> None:
 
 
 def test_side_walls_apart_reach_the_solver_as_the_rectangles_second_pair() -> None:
-    # The 2-D core does not yet solve two different pairs: the case is built (the pairs from the flags), and
-    # edl.solve refuses it in one line.
-    _one_line_error(["--rectangle", "200nmx40nm", *IONS, "--charge-density", "-1mC/m^2", "--sides-charge-density",
-                     "-2mC/m^2"], "wall: two different conditions on a rectangle's wall pairs are not solved yet")
+    # --charge-density sets the top and bottom walls, --sides-charge-density the side walls: two pairs, solved
+    code, out, err = run(["solve", "--rectangle", "200nmx40nm", *IONS, "--charge-density", "-1mC/m^2",
+                          "--sides-charge-density", "-2mC/m^2", *QUICK])
+    assert code == 0, err
+    assert "Top and bottom walls: charge density = -1 mC/m²" in out and "Side walls: charge density = -2 mC/m²" in out
+    assert "top/bottom -1 mC/m², sides -2 mC/m²" in out
     _one_line_error(["--rectangle", "200nmx40nm", *IONS, "--zeta", "-50mV", "--sides-zeta", "-1mV"],
                     "--sides-zeta: -0.001 V differs from wall.top_bottom.zeta -0.05 V")
 
