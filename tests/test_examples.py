@@ -117,3 +117,12 @@ def test_silica_slit_toml_full_form_in_its_comments_is_the_preset() -> None:
     full = loads_case("\n".join(lines))
     assert full.wall == edl.Wall.silica()
     assert full == load_case(EXAMPLES / "silica_slit.toml")
+
+
+def test_etched_channel_toml_solves_and_sits_beside_its_slit() -> None:
+    """The rectangle example: a 500 x 30 nm silica channel. Its side walls change the mean EO velocity by less than
+    the share of the width their layers take, ~2 H / W (common practice), and the case is the stated one."""
+    result = edl.solve(load_case(EXAMPLES / "etched_channel.toml"))
+    assert result.case.geometry == edl.Rectangle(width=500e-9, height=30e-9)
+    assert result.case.wall == edl.Wall.silica()
+    assert 0.0 < -result.slit_comparison["side_wall_effect_mean_velocity_eo"] < 2 * 30 / 500
