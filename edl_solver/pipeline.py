@@ -97,22 +97,28 @@ def _solve_rectangle(case: Case) -> Result:
 #: The slit values shown beside a rectangle's: intensive ones as they are, extensive ones (per unit width) times W.
 SLIT_INTENSIVE = ("mean_velocity_eo", "eo_ratio", "thin_layer_flow_rate_error", "streaming_potential_coefficient",
                   "selectivity")
-SLIT_EXTENSIVE = ("flow_rate_eo", "current_per_field", "conductance_per_length", "streaming_conductance")
+SLIT_EXTENSIVE = ("flow_rate_eo", "eo_pump_flow_per_field", "current_per_field", "conductance_per_length",
+                  "streaming_conductance")
+#: The side walls' effect on each of these, from values that do not depend on the drives (so that a case without a
+#: field has them too): the mean EO velocity's from the EO flow per unit field.
+SIDE_WALL_EFFECTS = {"mean_velocity_eo": "eo_pump_flow_per_field", "current_per_field": "current_per_field",
+                     "conductance_per_length": "conductance_per_length",
+                     "streaming_conductance": "streaming_conductance"}
 
 
 def slit_beside(case: Case, summary: dict[str, Any]) -> dict[str, float]:
     """The slit of a rectangle's height with its top and bottom walls (the rectangle without side walls): its values
     (``SLIT_INTENSIVE`` as they are, ``SLIT_EXTENSIVE`` times the width W, so that both describe one channel) and
-    ``side_wall_effect_<key>`` (the mean EO velocity and the extensive values but the flow rate, whose effect is the
-    mean velocity's), the rectangle's value over the slit's less 1: what the side walls cost."""
+    ``side_wall_effect_<key>`` (``SIDE_WALL_EFFECTS``), the rectangle's value over the slit's less 1: what the side
+    walls cost."""
     geometry = case.geometry
     wall = case.walls[0] if not case.symmetric else case.wall
     slit = solve(dataclasses.replace(case, geometry=Slit(height=geometry.height), wall=wall)).summary
     out: dict[str, float] = {"height": geometry.height, "width": geometry.width}
     for key in (*SLIT_INTENSIVE, *SLIT_EXTENSIVE):
         out[key] = slit[key] * (geometry.width if key in SLIT_EXTENSIVE else 1.0)
-    for key in ("mean_velocity_eo", *SLIT_EXTENSIVE[1:]):  # the EO flow rate's effect is the mean velocity's
-        out[f"side_wall_effect_{key}"] = summary[key] / out[key] - 1.0 if out[key] else float("nan")
+    for key, source in SIDE_WALL_EFFECTS.items():
+        out[f"side_wall_effect_{key}"] = summary[source] / out[source] - 1.0 if out[source] else float("nan")
     return out
 
 
