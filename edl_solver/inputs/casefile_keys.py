@@ -24,7 +24,7 @@ WALL_VALUE_KEYS = ("zeta", "charge_density", "stern_capacitance", "gate_voltage"
                    "slip_length", "preset")
 WALL_KEYS = (*WALL_VALUE_KEYS, "site")
 SOLVENT_PROPERTIES = ("temperature", "relative_permittivity", "viscosity")
-SOLVENT_KEYS = (*SOLVENT_PROPERTIES, "name", "viscoelectric_coefficient", "viscoelectric")
+SOLVENT_KEYS = (*SOLVENT_PROPERTIES, "name", "viscoelectric_coefficient", "viscoelectric", "density")
 NUMERICS_KEYS = ("accuracy", "intervals", "max_iterations", "max_intervals")
 #: Keys of [geometry]: its kind and the size inputs of each geometry ("height", "radius", "width").
 GEOMETRY_KEYS = ("kind", *dict.fromkeys(key for geometry in GEOMETRIES.values() for key in geometry.size_keys))

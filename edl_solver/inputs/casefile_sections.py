@@ -243,7 +243,7 @@ def _sites(entries: Any, path: str) -> tuple[Site, ...]:
 def build_solvent(table: Mapping[str, Any]) -> Solvent:
     """Water (correlations for what is not given) unless another ``name`` is given with every property."""
     name = table.get("name", "water")
-    properties = {key: table[key] for key in SOLVENT_PROPERTIES if key in table}
+    properties = {key: table[key] for key in (*SOLVENT_PROPERTIES, "density") if key in table}
     coefficient = table.get("viscoelectric_coefficient")
     default = _flag(table, "viscoelectric", "solvent")
     if default is not None and coefficient is not None:

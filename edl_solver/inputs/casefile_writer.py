@@ -13,6 +13,7 @@ from typing import Any
 
 from edl_solver.errors import InputError
 from edl_solver.inputs.case import Case
+from edl_solver.inputs.solvent import default_density
 from edl_solver.inputs.wall import Wall
 
 __all__ = ["case_to_mapping", "dumps_case"]
@@ -47,7 +48,7 @@ def case_to_mapping(case: Case) -> dict[str, Any]:
         {"ions": [{"name", "valence", "concentration", "diffusivity"[, "diameter", "temperature_dependence"]}, ...][,
         "pH"]}, "wall": {...} | {"bottom": {...}, "top": {...}} (a slit) | {"top_bottom": {...}, "sides": {...}}
         (a rectangle),
-        "solvent": {"temperature", "relative_permittivity", "viscosity", "name"[,
+        "solvent": {"temperature", "relative_permittivity", "viscosity", "name"[, "density"][,
         "viscoelectric_coefficient"]}, "field", "pressure_gradient", "model", "tolerance"[,
         "bulk_conductivity"], "numerics":
         {"accuracy", "max_iterations", "max_intervals"[, "intervals"]}}``; a wall holds its non-default
@@ -93,6 +94,8 @@ def case_to_mapping(case: Case) -> dict[str, Any]:
                                "viscosity": s.viscosity, "name": s.name}
     if s.viscoelectric_coefficient:
         solvent["viscoelectric_coefficient"] = s.viscoelectric_coefficient
+    if s.density != default_density(s.temperature):  # a density given: the default is rebuilt on reading
+        solvent["density"] = s.density
     return {
         "geometry": geometry,
         "electrolyte": electrolyte,

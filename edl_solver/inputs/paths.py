@@ -49,7 +49,7 @@ PATH_UNITS = {
     **{f"wall.{side}.site[{j}].{key}": unit for side in _SIDES for j in range(4)
        for key, unit in _SITE_UNITS.items()},
     "solvent.temperature": "K", "solvent.relative_permittivity": "dimensionless", "solvent.viscosity": "Pa*s",
-    "solvent.viscoelectric_coefficient": "m^2/V^2",
+    "solvent.viscoelectric_coefficient": "m^2/V^2", "solvent.density": "kg/m^3",
     "field": "V/m", "pressure_gradient": "Pa/m", "tolerance": "dimensionless",
     "numerics.accuracy": "dimensionless",
 }

@@ -1,4 +1,4 @@
-"""Solvent properties: temperature, dielectric constant and viscosity, with water correlations."""
+"""Solvent properties: temperature, dielectric constant, viscosity and density, with water correlations."""
 
 from __future__ import annotations
 
@@ -9,7 +9,7 @@ from edl_solver.constants import BOLTZMANN, ELEMENTARY_CHARGE, VACUUM_PERMITTIVI
 from edl_solver.errors import InputError
 from edl_solver.inputs.units import to_positive_si, to_si
 
-__all__ = ["Solvent", "Water", "water_relative_permittivity", "water_viscosity"]
+__all__ = ["Solvent", "Water", "default_density", "water_density", "water_relative_permittivity", "water_viscosity"]
 
 _T_MIN = ZERO_CELSIUS  # 0 °C
 _T_MAX = ZERO_CELSIUS + 100.0  # 100 °C
@@ -92,6 +92,44 @@ def water_viscosity(temperature: float | str, *, field: str = "temperature") -> 
     return _ETA_20 * 10.0 ** (d / (116.0 - d) * bracket)  # t + 96 == 116 - d
 
 
+def water_density(temperature: float | str, *, field: str = "temperature") -> float:
+    """Density of liquid water at atmospheric pressure, in kg/m^3.
+
+    rho(t) = (999.83952 + 16.945176 t - 7.9870401e-3 t^2 - 46.170461e-6 t^3 + 105.56302e-9 t^4
+    - 280.54253e-12 t^5) / (1 + 16.879850e-3 t), t in °C.
+
+    Kell (1975), J. Chem. Eng. Data 20, 97 (coefficients from memory), fitted to 0-150 °C; used here for 0-100 °C
+    like the other water correlations.
+
+    Parameters
+    ----------
+    temperature : float or str
+        Temperature in K, or a string with units such as ``"25 degC"``.
+    field : str, optional
+        Name of the input, used in error messages.
+
+    Returns
+    -------
+    float
+        Density in kg/m^3 (997.05 at 25 °C, 999.97 at 4 °C).
+
+    Raises
+    ------
+    InputError
+        If the temperature is outside 273.15–373.15 K.
+    """
+    t = _celsius_in_range(temperature, field, "Kell density")
+    numerator = (999.83952 + 16.945176 * t - 7.9870401e-3 * t**2 - 46.170461e-6 * t**3 + 105.56302e-9 * t**4
+                 - 280.54253e-12 * t**5)
+    return numerator / (1.0 + 16.879850e-3 * t)
+
+
+def default_density(temperature: float) -> float | None:
+    """A solvent's density when none is given: water's at ``temperature`` (K) where its correlation holds
+    (``water_density``, 0-100 °C), else None."""
+    return water_density(temperature) if _T_MIN <= temperature <= _T_MAX else None
+
+
 @dataclass(frozen=True)
 class Solvent:
     """A continuum solvent: temperature, dielectric constant and viscosity.
@@ -109,6 +147,9 @@ class Solvent:
     viscoelectric_coefficient : float or str, optional
         f in eta = eta_0 (1 + f |E|^2), m^2/V^2 (viscoelectric effect, Lyklema & Overbeek 1961); 0 (the
         default) switches it off.
+    density : float or str, optional
+        Mass density in kg/m^3 (or ``"0.997 g/cm^3"``); only unsteady flow needs it. By default that of water at
+        the solvent's temperature (``water_density``), or None outside 0-100 °C, where no correlation is used.
 
     Raises
     ------
@@ -125,6 +166,7 @@ class Solvent:
     viscosity: float
     name: str = "custom"
     viscoelectric_coefficient: float = 0.0
+    density: float | None = None
 
     def __post_init__(self) -> None:
         converted = {
@@ -140,6 +182,10 @@ class Solvent:
         if converted["viscoelectric_coefficient"] < 0.0:
             raise InputError(f"solvent.viscoelectric_coefficient: {self.viscoelectric_coefficient!r} is negative, "
                              "expected f >= 0 m^2/V^2")
+        if self.density is not None:
+            converted["density"] = to_positive_si(self.density, "kg/m^3", "solvent.density", "a density > 0 kg/m^3")
+        else:
+            converted["density"] = default_density(converted["temperature"])
         for key, number in converted.items():
             object.__setattr__(self, key, number)  # frozen dataclass: bypass the read-only guard
         if not isinstance(self.name, str):
@@ -161,6 +207,7 @@ def Water(  # capitalised: reads as a constructor in the public API, edl.Water(t
     relative_permittivity: float | str | None = None,
     viscosity: float | str | None = None,
     viscoelectric: bool | float | str = False,
+    density: float | str | None = None,
 ) -> Solvent:
     """Liquid water at ``temperature`` and atmospheric pressure.
 
@@ -178,6 +225,8 @@ def Water(  # capitalised: reads as a constructor in the public API, edl.Water(t
     viscoelectric : bool, float or str, optional
         The viscoelectric effect: True takes water's coefficient ``WATER_VISCOELECTRIC_COEFFICIENT``, a
         number (m^2/V^2) or string sets it; False (the default) leaves it off.
+    density : float or str, optional
+        Overrides :func:`water_density` (Kell 1975); kg/m^3 or a string with units.
 
     Returns
     -------
@@ -200,7 +249,8 @@ def Water(  # capitalised: reads as a constructor in the public API, edl.Water(t
         coefficient = 0.0
     else:
         coefficient = viscoelectric
-    return Solvent(kelvin, relative_permittivity, viscosity, name="water", viscoelectric_coefficient=coefficient)
+    return Solvent(kelvin, relative_permittivity, viscosity, name="water", viscoelectric_coefficient=coefficient,
+                   density=density)
 
 
 #: Viscoelectric coefficient of water, m^2/V^2: f ~ 1.0e-15 (Lyklema & Overbeek 1961, J. Colloid Sci. 16,

@@ -178,6 +178,7 @@ def _case_attributes(case: Case) -> dict[str, Any]:
         "relative_permittivity": s.relative_permittivity,
         "viscosity_Pa_s": s.viscosity,
         "viscoelectric_coefficient_m2_per_V2": s.viscoelectric_coefficient,
+        **({} if s.density is None else {"density_kg_per_m3": s.density}),
         "field_V_per_m": case.field,
         "pressure_gradient_Pa_per_m": case.pressure_gradient,
         "tolerance": case.tolerance,
