@@ -29,6 +29,7 @@ if _typing.TYPE_CHECKING:
     from edl_solver.channel.model import Channel
     from edl_solver.fitting.result import Fit
     from edl_solver.fitting.run import fit
+    from edl_solver.model.frequency import frequency_response
     from edl_solver.pipeline import solve
     from edl_solver.sweeping.run import sweep
 
@@ -77,6 +78,10 @@ def __getattr__(name: str) -> _typing.Any:
         from edl_solver.fitting.result import Fit
 
         return Fit
+    if name == "frequency_response":
+        from edl_solver.model.frequency import frequency_response
+
+        return frequency_response
     if name == "Channel":
         from edl_solver.channel.model import Channel
 
@@ -105,6 +110,7 @@ __all__ = [
     "Water",
     "__version__",
     "fit",
+    "frequency_response",
     "load",
     "solve",
     "sweep",

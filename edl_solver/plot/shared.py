@@ -66,8 +66,9 @@ def size_text(geometry: Geometry) -> str:
 def section_text(case: Case, concentrations: bool = True) -> str:
     """The section in brief: geometry, walls, electrolyte (with or without its concentrations), temperature."""
     size = size_text(case.geometry)
+    words = case.geometry.wall_words
     walls = f"wall {wall_text(case.walls[0])}" if case.symmetric else \
-        f"walls {wall_text(case.walls[0])} (bottom), {wall_text(case.walls[1])} (top)"
+        f"walls {wall_text(case.walls[0])} ({words[0]}), {wall_text(case.walls[1])} ({words[1]})"
     ions = case.electrolyte.ions
     liquid = ", ".join(f"{ion.name} {ion.concentration:.3g} mM" for ion in ions) if concentrations else \
         "/".join(ion.name for ion in ions)

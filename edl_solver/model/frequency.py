@@ -1,0 +1,208 @@
+"""The EO flow's response to an oscillating field (issue 14, item 3): amplitude and phase against frequency.
+
+For a field E0 cos(2 pi f t) along a long uniform channel the double layer stays at equilibrium to first order
+(the field has no component across the section and no gradient along it), so the flow is the linear problem
+eta lap(u) - rho_m du/dt = -rho_e E with the equilibrium space charge rho_e. With u = Re[u^ exp(i w t)]:
+eta lap(u^) - i w rho_m u^ = -rho_e E0, one complex solve per frequency (unsteady Stokes; the oscillatory
+EO flow of the kind in Soderman & Jonsson 1996, J. Chem. Phys. 105, 10300, from memory). Dimensionless as the
+steady solve (``kernels.fv1d.section_integrals``): lap(v) - i Omega v = -kappa2 rho_hat, Omega = w rho_m L^2 / eta,
+u^ = (eps kT E0 / (e eta)) v, on the same wall-clustered grids and finite volumes.
+
+Accuracy: the equilibrium potential is solved on a fixed grid of N cells and on N/2, N/4 and N/8 (every grid
+shares the finest one's nodes), the complex mean velocity computed on each, extrapolated (Richardson, h^2 and
+h^4, ``kernels.adaptive.extrapolate`` as the steady solve does) from the three finest and from the three coarsest,
+and N doubled until their difference over 8 meets ``Numerics(accuracy=...)`` relative to the response's size.
+"""
+
+from __future__ import annotations
+
+import dataclasses
+import json
+from typing import Any
+
+import numpy as np
+
+from edl_solver.errors import ConvergenceError, InputError
+from edl_solver.inputs.case import Case, Numerics
+from edl_solver.inputs.casefile import case_to_mapping
+from edl_solver.inputs.geometry import Rectangle
+from edl_solver.kernels import layout, prepare
+from edl_solver.kernels.adaptive import LEVELS, extrapolate
+from edl_solver.kernels.fv1d import charge, finite_volume_metric
+from edl_solver.model import packing, section
+
+#: Cells of the finest grid to start from, and the most the refinement takes.
+FIRST_INTERVALS = 64
+#: Values below this fraction of the steady response count as vanishing when errors are measured.
+VANISHING = 1e-9
+
+
+def _frequencies(frequencies: Any) -> np.ndarray:
+    """The frequencies as a 1-D float array of finite values >= 0 (Hz), or an InputError naming the field."""
+    try:
+        values = np.atleast_1d(np.asarray(frequencies, dtype=float))
+    except (TypeError, ValueError):
+        raise InputError(f"frequencies: {frequencies!r} is not a list of numbers, expected frequencies in Hz "
+                         ">= 0") from None
+    if values.ndim != 1 or values.size == 0 or not np.all(np.isfinite(values)) or np.any(values < 0.0):
+        raise InputError(f"frequencies: {frequencies!r} is not allowed, expected a non-empty 1-D list of finite "
+                         "frequencies in Hz >= 0")
+    return values
+
+
+def _check_case(case: Case) -> None:
+    if not isinstance(case, Case):
+        raise InputError(f"case: {type(case).__name__} is not a Case, expected edl_solver.Case(...)")
+    if isinstance(case.geometry, Rectangle):
+        raise InputError("case.geometry: the frequency response of a rectangle is not solved, expected a Slit or "
+                         "a Capillary")
+    if case.solvent.viscoelectric_coefficient:
+        raise InputError(f"solvent.viscoelectric_coefficient: {case.solvent.viscoelectric_coefficient:g} m^2/V^2 "
+                         "makes the flow nonlinear in the field, expected 0 for a frequency response")
+    if case.solvent.density is None:
+        raise InputError(f"solvent.density: none at {case.solvent.temperature:g} K (outside water's correlation), "
+                         "expected Solvent(..., density=...) in kg/m^3")
+
+
+def _grid_response(case: Case, intervals: int, omegas: np.ndarray) -> tuple[np.ndarray, np.ndarray, np.ndarray]:
+    """The complex section integrals (sum V v and sum V rho_hat v per unit field, dimensionless) at every
+    dimensionless frequency ``omegas`` on the equilibrium grid of ``intervals`` cells, and the scales vector."""
+    fixed = dataclasses.replace(case, numerics=dataclasses.replace(case.numerics, intervals=intervals))
+    vector = packing.case_vector(fixed)
+    solved = section.solve_and_summarize(vector, fixed, np.empty(layout.SUMMARY_SIZE))
+    cells = finite_volume_metric(solved.s, solved.beta, int(vector[layout.P_METRIC]))
+    ions, model = prepare.species(vector), int(vector[layout.P_MODEL])
+    rho = np.array([charge(p, ions, model)[0] for p in solved.psi.tolist()])
+    sc = solved.scales
+    kappa2 = (sc[layout.S_LENGTH] / sc[layout.S_DEBYE_LENGTH]) ** 2
+    problem = prepare.section_problem(vector, sc, prepare.isolated_walls(vector, sc))
+    flow_walls = problem.flow_walls
+    n = solved.s.size
+    link, volume = cells.link, cells.volume
+    # tridiagonal rows sum_j a_ij (v_j - v_i) - i Omega V_i v_i = -kappa2 V_i rho_i; ends: no slip (v = 0), Navier
+    # slip (-v / b_hat of shear into the end cell), or a symmetry plane (no flux), as ``fv1d.stokes_operator``
+    lower = np.zeros(n, dtype=complex)
+    upper = np.zeros(n, dtype=complex)
+    lower[1:] = link
+    upper[:-1] = link
+    base = -(np.concatenate(([0.0], link)) + np.concatenate((link, [0.0]))).astype(complex)
+    rhs = (-kappa2 * volume * rho).astype(complex)
+    fixed_rows = []
+    for end, row in ((0, 0), (1, n - 1)):
+        code = int(flow_walls[end, layout.FLOW_CODE])
+        if code == layout.POTENTIAL:
+            fixed_rows.append(row)
+        elif code == layout.ROBIN:
+            base[row] -= flow_walls[end, layout.FLOW_VALUE]
+    out = np.empty((omegas.size, 2), dtype=complex)
+    from scipy.linalg import solve_banded
+
+    for k, omega in enumerate(omegas):
+        bands = np.zeros((3, n), dtype=complex)
+        diag = base - 1j * omega * volume
+        b = rhs.copy()
+        bands[0, 1:] = upper[:-1]
+        bands[1] = diag
+        bands[2, :-1] = lower[1:]
+        for row in fixed_rows:  # v = 0 at a no-slip wall
+            bands[1, row] = 1.0
+            b[row] = 0.0
+            if row + 1 < n:
+                bands[0, row + 1] = 0.0
+            if row > 0:
+                bands[2, row - 1] = 0.0
+        v = solve_banded((1, 1), bands, b)
+        out[k] = volume @ v, volume @ (rho * v)
+    return out, sc, cells
+
+
+def _extrapolated(levels: list[np.ndarray]) -> tuple[np.ndarray, np.ndarray]:
+    """Richardson over the LEVELS grids (finest last), per complex value: the finer and the coarser estimate."""
+    finer, coarser = np.empty(levels[0].size * 2), np.empty(levels[0].size * 2)
+    parts = [np.concatenate((lv.real.ravel(), lv.imag.ravel())) for lv in levels]
+    extrapolate(parts[3], parts[2], parts[1], finer)
+    extrapolate(parts[2], parts[1], parts[0], coarser)
+    half, shape = levels[0].size, levels[0].shape
+    return ((finer[:half] + 1j * finer[half:]).reshape(shape), (coarser[:half] + 1j * coarser[half:]).reshape(shape))
+
+
+def _responses(case: Case, omegas: np.ndarray) -> tuple[np.ndarray, np.ndarray, float, int]:
+    """The extrapolated complex integrals (frequency, 2), the scales, the error estimate and the finest grid."""
+    numerics: Numerics = case.numerics
+    intervals = numerics.intervals or FIRST_INTERVALS
+    while True:
+        levels, sc = [], None
+        for level in range(LEVELS):
+            values, sc, _ = _grid_response(case, intervals // 2 ** (LEVELS - 1 - level), omegas)
+            levels.append(values)
+        finer, coarser = _extrapolated(levels)
+        # each response against its own size, floored at a tiny part of the steady one (a vanishing response at
+        # high frequency is measured against what it falls from)
+        steady = np.max(np.abs(finer), axis=0)
+        scale = np.maximum(np.abs(finer), VANISHING * steady + 1e-300)
+        estimate = float(np.max(np.abs(finer - coarser) / scale) / 8.0)
+        if estimate <= numerics.accuracy or numerics.intervals:
+            return finer, sc, estimate, intervals
+        if 2 * intervals > numerics.max_intervals:
+            raise ConvergenceError(f"{case.describe()}: frequency response: accuracy {numerics.accuracy:g} missed "
+                                   f"(estimate {estimate:.2g}) with {intervals} cells (max_intervals = "
+                                   f"{numerics.max_intervals})")
+        intervals *= 2
+
+
+def frequency_response(case: Case, frequencies: Any) -> Any:
+    """Amplitude and phase of the EO flow driven by the field ``case.field * cos(2 pi f t)``.
+
+    Parameters
+    ----------
+    case : Case
+        A slit or capillary; its field is the amplitude E0 (the pressure gradient is not part of this response).
+    frequencies : sequence of float
+        Frequencies f in Hz, >= 0 (0: the steady EO flow).
+
+    Returns
+    -------
+    xarray.Dataset
+        On the dimension ``frequency`` (Hz): ``eo_velocity_amplitude`` A >= 0 and ``eo_velocity_phase`` in
+        (-pi, pi] with mean EO velocity = A cos(2 pi f t + phase); the same for ``flow_rate`` (per unit width for a
+        slit) and ``convection_current`` (the space charge carried by that flow; the conduction current follows
+        the field in phase). ``error_estimate``: the estimated relative error of each complex response. For E0 = 0
+        the amplitudes are 0 and the phases those of a positive field. Attributes: the case, E0, the viscous
+        frequency nu / (2 pi L^2) (L the half-height or radius) where the Stokes layer reaches the centre.
+
+    Raises
+    ------
+    InputError
+        Frequencies that are not finite and >= 0, a rectangle, a viscoelectric solvent, a solvent without density.
+    ConvergenceError
+        The equilibrium solve or the accuracy of the response failed.
+    """
+    import xarray as xr
+
+    _check_case(case)
+    freqs = _frequencies(frequencies)
+    omega = 2.0 * np.pi * freqs
+    rho_m, eta = case.solvent.density, case.solvent.viscosity
+    length = case.geometry.half_size
+    values, sc, estimate, intervals = _responses(case, omega * rho_m * length**2 / eta)
+    field = case.field
+    per_field_flow = sc[layout.S_EO_VELOCITY] * sc[layout.S_AREA] * values[:, 0]
+    per_field_current = sc[layout.S_VOLUME_CHARGE] * sc[layout.S_AREA] * sc[layout.S_EO_VELOCITY] * values[:, 1]
+    sign = -1.0 if field < 0 else 1.0
+    out = {}
+    for name, response, unit in (
+            ("eo_velocity", per_field_flow / sc[layout.S_SECTION_AREA], "m/s"),
+            ("flow_rate", per_field_flow, "m^2/s" if case.geometry.extent == "per_width" else "m^3/s"),
+            ("convection_current", per_field_current, "A/m" if case.geometry.extent == "per_width" else "A")):
+        complex_value = response * sign
+        phase = np.angle(complex_value)
+        phase = np.where(phase <= -np.pi, np.pi, phase)  # (-pi, pi]
+        out[f"{name}_amplitude"] = ("frequency", np.abs(response) * abs(field), {"units": unit})
+        out[f"{name}_phase"] = ("frequency", phase, {"units": "rad"})
+    nu = eta / rho_m
+    return xr.Dataset(
+        {**out, "error_estimate": ("frequency", np.full(freqs.size, estimate), {"units": "1"})},
+        coords={"frequency": ("frequency", freqs, {"units": "Hz"})},
+        attrs={"case": case.describe(), "case_json": json.dumps(case_to_mapping(case)),
+               "field_amplitude_V_per_m": field,
+               "viscous_frequency_Hz": nu / (2.0 * np.pi * length**2), "intervals": intervals})
