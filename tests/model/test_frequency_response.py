@@ -107,3 +107,22 @@ def test_bode_figure_is_written(tmp_path) -> None:
     case = edl.Case(edl.Slit(height="100 nm"), SALT, edl.Wall(zeta="-50 mV"), field=FIELD)
     path = bode_figure(edl.frequency_response(case, [0.0, 1e6, 1e8, 1e10]), tmp_path / "bode.png")
     assert path.read_bytes()[:8] == b"\x89PNG\r\n\x1a\n"
+
+
+def test_thin_layers_follow_the_slip_driven_womersley_profile() -> None:
+    """kappa h ~ 1000: the response tends to that of a slit driven by the Helmholtz-Smoluchowski slip at its walls,
+    mean u = u_s tanh(k h) / (k h), k^2 = i w / nu (the oscillating Couette-type flow; derived here, of the kind in
+    Womersley 1955, J. Physiol. 127, 553, from memory), within the layer's share lambda_D / h plus lambda_D / delta,
+    delta = sqrt(2 nu / w) the Stokes layer (common practice)."""
+    salt = edl.Electrolyte.from_ions({"K+": "100 mM", "Cl-": "100 mM"})
+    case = edl.Case(edl.Slit(height="2 um"), salt, edl.Wall(zeta="-30 mV"), field=FIELD)
+    frequencies = np.array([0.0, 1e5, 1e6, 1e7, 1e8])
+    fr = edl.frequency_response(case, frequencies)
+    solvent, h, debye = case.solvent, case.geometry.half_size, case.debye_length
+    nu = solvent.viscosity / solvent.density
+    slip = -solvent.permittivity * -0.030 * FIELD / solvent.viscosity
+    k = np.sqrt(1j * 2 * np.pi * frequencies / nu)
+    thin = slip * np.where(frequencies > 0, np.tanh(k * h) / np.where(k == 0, 1, k * h), 1.0)
+    full = fr["eo_velocity_amplitude"].values * np.exp(1j * fr["eo_velocity_phase"].values)
+    delta = np.sqrt(2 * nu / np.maximum(2 * np.pi * frequencies, 1e-300))
+    assert np.all(np.abs(full / thin - 1) < 3 * (debye / h + debye / delta))
