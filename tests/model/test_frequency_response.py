@@ -87,13 +87,15 @@ def test_bad_inputs_name_the_field() -> None:
 @pytest.mark.parametrize("geometry", [edl.Slit(height="60 nm"), edl.Capillary(radius="30 nm")],
                          ids=["slit", "capillary"])
 def test_slip_walls_and_two_different_walls_meet_the_steady_flow(geometry) -> None:
-    """Navier slip (a Robin wall) and a slit's two different walls: at f = 0 the response is the steady solve's
-    mean EO velocity (the same finite volumes, common practice), and it lags at 100 MHz."""
+    """Navier slip (a Robin wall), a slit's two different walls and the steric model: at f = 0 the response is the
+    steady solve's mean EO velocity (the same finite volumes, common practice), and it lags at 100 MHz."""
     walls = [edl.Wall(zeta="-60 mV", slip_length="5 nm")]
     if isinstance(geometry, edl.Slit):
         walls.append((edl.Wall(zeta="-60 mV"), edl.Wall(charge_density="5 mC/m^2")))
-    for wall in walls:
-        case = edl.Case(geometry, SALT, wall, field=1e3)
+    steric = edl.Electrolyte([edl.Ion(name, concentration="100 mM", diameter="0.7 nm") for name in ("K+", "Cl-")])
+    cases = [edl.Case(geometry, SALT, wall, field=1e3) for wall in walls]
+    cases.append(edl.Case(geometry, steric, edl.Wall(zeta="-150 mV"), field=1e3, model="steric"))
+    for case in cases:
         fr = edl.frequency_response(case, [0.0, 1e8])
         assert fr["eo_velocity_amplitude"].values[0] == pytest.approx(abs(edl.solve(case).summary["mean_velocity_eo"]),
                                                                       rel=1e-6)
