@@ -27,6 +27,9 @@ Not a timed test: it prints a table (and with ``--json`` saves the figures). Wha
   /proc/stat minus this process and its child processes, the Dask workers among them): on a shared machine a
   block with other > 0 had fewer cores than it asked for. The machine's cores, the physical cores among them
   (hyper-threads share one) and the load average are printed first.
+* The bound the cases' costs set: each 16-case chunk's CPU time on one thread, and from it the efficiency of
+  contiguous equal blocks per thread (numba's ``prange``) and of chunks taken by the first free thread (the batch,
+  ``kernels.schedule``) at 2, 4, ... threads: what load balance alone allows, whatever else runs on the machine.
 * Checks: the batch's summaries at every thread count equal those at 1 thread bit for bit; every sweep's values
   (threads, file, Dask) equal those of the in-process sweep at 1 thread.
 
@@ -215,6 +218,32 @@ def same_values(a, b) -> bool:
     return True
 
 
+def schedule_bound(sweep: Sweep, counts: list[int], chunk: int = 16) -> dict[int, tuple[float, float]]:
+    """What the spread of the cases' costs alone allows: the CPU time of every ``chunk`` consecutive cases on one
+    thread (``time.process_time``, so little changed by other jobs), then per thread count the efficiency
+    (total / (n x longest thread)) of contiguous equal blocks (what numba's ``prange`` does) and of chunks handed
+    to the first free thread (what ``kernels.schedule`` does)."""
+    before = numba.get_num_threads()
+    numba.set_num_threads(1)
+    cost = np.empty(sweep.size // chunk)
+    try:
+        for c in range(cost.size):
+            rows = slice(c * chunk, (c + 1) * chunk)
+            t0 = time.process_time()
+            _batch.solve_cases(sweep.vectors[rows], sweep.summaries[rows], sweep.status[rows], sweep.iterations[rows])
+            cost[c] = time.process_time() - t0
+    finally:
+        numba.set_num_threads(before)
+    bound = {}
+    for n in counts:
+        blocks = max(part.sum() for part in np.array_split(cost, n))
+        finish = np.zeros(n)
+        for c in cost:
+            finish[np.argmin(finish)] += c
+        bound[n] = (float(cost.sum() / (n * blocks)), float(cost.sum() / (n * finish.max())))
+    return bound
+
+
 # ------------------------------------------------------------------------------------------------
 # Dask
 # ------------------------------------------------------------------------------------------------
@@ -243,7 +272,9 @@ def dask_blocks(sweep: Sweep, counts: list[int], rounds: int, reference) -> dict
         from distributed import Client, LocalCluster
     except ImportError as exc:
         return {"skipped": f"distributed is not importable ({exc})"}
-    os.environ["PYTHONPATH"] = os.pathsep.join(filter(None, (str(ROOT), os.environ.get("PYTHONPATH"))))
+    # the workers import the package (and, when this file is imported as a module, this file) from the checkout
+    os.environ["PYTHONPATH"] = os.pathsep.join(filter(None, (str(ROOT), str(Path(__file__).resolve().parent),
+                                                             os.environ.get("PYTHONPATH"))))
     out: dict = {"workers": {}, "identical": True}
     t0 = time.perf_counter()
     with LocalCluster(n_workers=counts[0], threads_per_worker=1, processes=True, dashboard_address=None,
@@ -384,8 +415,11 @@ def main(argv: list[str] | None = None) -> dict:
         checks["dask_identical"] = dask["identical"]
     rows = table(sweep.size, figures, dask, counts)
     print_table(rows)
+    bound = schedule_bound(sweep, sorted({2, *counts[1:]}) if most > 1 else [2])
+    print("Efficiency the spread of the cases' costs alone allows (CPU time of 16-case chunks on one thread): "
+          + "; ".join(f"{n} threads: blocks {a:.2f}, shared chunks {b:.2f}" for n, (a, b) in bound.items()))
     print("Checks: " + ", ".join(f"{k} {v}" for k, v in checks.items()))
-    out.update(cases=sweep.size, figures=figures, dask=dask, rows=rows, checks=checks,
+    out.update(cases=sweep.size, figures=figures, dask=dask, rows=rows, checks=checks, schedule_bound=bound,
                load_average_end=os.getloadavg(), total_s=time.perf_counter() - started)
     print(f"Total {out['total_s']:.0f} s; 1-min load average now {out['load_average_end'][0]:.2f}")
     if args.json:
