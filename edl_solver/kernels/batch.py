@@ -15,6 +15,7 @@ from numba import njit, prange
 from edl_solver.kernels.adaptive import solve_adaptive
 from edl_solver.kernels.layout import CONVERGED, IDENTITY_FAILED
 from edl_solver.kernels.prepare import controls, section_inputs
+from edl_solver.kernels.schedule import chunk_size, fetch_add
 from edl_solver.kernels.summary import identities_hold, summarize_solution
 
 
@@ -32,8 +33,24 @@ def solve_one(p, out):
 @njit(cache=True, parallel=True)
 def solve_cases(vectors, summaries, status, iterations):
     """Row i of ``vectors`` (packed cases, all with the same number of ions) -> row i of ``summaries``
-    (``layout.SLOTS`` layout), ``status`` and ``iterations``; the rows run in parallel."""
-    for i in prange(vectors.shape[0]):
-        st, its = solve_one(vectors[i], summaries[i])
-        status[i] = st
-        iterations[i] = its
+    (``layout.SLOTS`` layout), ``status`` and ``iterations``; the rows run in parallel.
+
+    Each thread takes chunks of consecutive rows from a shared counter (``schedule``) until none is left, rather
+    than one fixed block of the range each: cases of unequal cost, or a thread that loses its core for a while,
+    then hold the others up by one chunk at most. Every row is solved on its own, so the values do not depend on
+    the number of threads or on which thread solved a row.
+    """
+    n = vectors.shape[0]
+    size = chunk_size(n)
+    chunks = (n + size - 1) // size
+    taken = np.zeros(1, dtype=np.int64)  # chunks handed out so far
+    # numba gives each thread a block of this range: the first index of a thread's block takes chunks until none
+    # is left, so its other indices find none (the thread count is not known here: see schedule.MIN_CHUNKS)
+    for _ in prange(chunks):
+        chunk = fetch_add(taken, 1)
+        while chunk < chunks:
+            for i in range(chunk * size, min(n, (chunk + 1) * size)):
+                st, its = solve_one(vectors[i], summaries[i])
+                status[i] = st
+                iterations[i] = its
+            chunk = fetch_add(taken, 1)
