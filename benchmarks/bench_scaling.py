@@ -244,6 +244,38 @@ def schedule_bound(sweep: Sweep, counts: list[int], chunk: int = 16) -> dict[int
     return bound
 
 
+@numba.njit(parallel=True)
+def _spin(out, work):
+    """Independent arithmetic per item, no memory traffic: what the cores themselves give to threads."""
+    for i in numba.prange(out.size):
+        x = 0.0
+        for k in range(work):
+            x += math.sin(x + k * 1e-3)
+        out[i] = x
+
+
+def machine_ceiling(counts: list[int], rounds: int) -> dict[int, float]:
+    """Efficiency per core of a trivially parallel compute-bound loop at each thread count (best of the rounds):
+    the ceiling the machine sets (clock boost that falls as more cores run, shared or virtual cores), against which
+    the batch's efficiency is measured."""
+    before = numba.get_num_threads()
+    out = np.empty(16 * max(counts))
+    _spin(out[:1], 10)
+    rates = {}
+    try:
+        for n in counts:
+            numba.set_num_threads(n)
+            best = 0.0
+            for _ in range(rounds):
+                t0 = time.perf_counter()
+                _spin(out, 200_000)
+                best = max(best, out.size / (time.perf_counter() - t0))
+            rates[n] = best
+    finally:
+        numba.set_num_threads(before)
+    return {n: rates[n] / (n * rates[1]) for n in counts}
+
+
 # ------------------------------------------------------------------------------------------------
 # Dask
 # ------------------------------------------------------------------------------------------------
@@ -418,9 +450,12 @@ def main(argv: list[str] | None = None) -> dict:
     bound = schedule_bound(sweep, sorted({2, *counts[1:]}) if most > 1 else [2])
     print("Efficiency the spread of the cases' costs alone allows (CPU time of 16-case chunks on one thread): "
           + "; ".join(f"{n} threads: blocks {a:.2f}, shared chunks {b:.2f}" for n, (a, b) in bound.items()))
+    ceiling = machine_ceiling(counts, rounds)
+    print("Machine ceiling (a compute-bound loop, no memory traffic, best round): "
+          + "; ".join(f"{n} threads {e:.2f}" for n, e in ceiling.items()))
     print("Checks: " + ", ".join(f"{k} {v}" for k, v in checks.items()))
-    out.update(cases=sweep.size, figures=figures, dask=dask, rows=rows, checks=checks, schedule_bound=bound,
-               load_average_end=os.getloadavg(), total_s=time.perf_counter() - started)
+    out.update(machine_ceiling=ceiling, cases=sweep.size, figures=figures, dask=dask, rows=rows, checks=checks,
+               schedule_bound=bound, load_average_end=os.getloadavg(), total_s=time.perf_counter() - started)
     print(f"Total {out['total_s']:.0f} s; 1-min load average now {out['load_average_end'][0]:.2f}")
     if args.json:
         args.json.write_text(json.dumps(out, indent=1, default=str))
