@@ -82,6 +82,11 @@ def task_rows(todo: list[int], last: int, seconds_per_case: float, threads: int)
     return tasks
 
 
+def _results(done: Any) -> Iterable[dict[str, Any]]:
+    for _, packed in done:
+        yield unpack(packed)
+
+
 def run_on_dask(todo: list[int], job: tuple[Any, ...], last: int, dask: Any,
                 rows_per_task: int | None) -> Iterable[dict[str, Any]]:
     """Yield the results of every row of ``todo`` as tasks complete on the cluster ``dask`` (an address or
@@ -92,22 +97,28 @@ def run_on_dask(todo: list[int], job: tuple[Any, ...], last: int, dask: Any,
     try:
         [shared] = client.scatter([job], broadcast=True, hash=False)
         threads = max(1, sum(w.get("nthreads", 1) for w in client.scheduler_info()["workers"].values()))
-        if rows_per_task is None and todo:
-            first = todo[:max(1, CALIBRATION_CASES // last)]
-            packed = client.submit(solve_task, shared, first, True, pure=False).result()
-            yield unpack(packed)
-            todo = todo[len(first):]
-            per_case = packed["seconds"] / (len(first) * last)
-            tasks = task_rows(todo, last, per_case, threads)
-        else:
-            size = rows_per_task or 1
-            tasks = [todo[i:i + size] for i in range(0, len(todo), size)]
-        futures = [client.submit(solve_task, shared, rows, pure=False) for rows in tasks]
+        submitted: list[Any] = []
+
+        def submit(rows: list[int], warm_up: bool = False) -> Any:
+            submitted.append(client.submit(solve_task, shared, rows, warm_up, pure=False))
+            return submitted[-1]
+
         try:
-            for _, packed in as_completed(futures, with_results=True):
-                yield unpack(packed)
+            size = rows_per_task or max(1, CALIBRATION_CASES // last)
+            if rows_per_task is not None or not todo:
+                yield from _results(as_completed([submit(todo[i:i + size]) for i in range(0, len(todo), size)],
+                                                 with_results=True))
+                return
+            # one calibration task per worker thread, so that none waits idle; the first to finish sizes the rest
+            first = [todo[i:i + size] for i in range(0, min(len(todo), threads * size), size)]
+            done = as_completed([submit(rows, True) for rows in first], with_results=True)
+            _, packed = next(done)
+            yield unpack(packed)
+            per_case = packed["seconds"] / packed["status"].size
+            done.update(submit(rows) for rows in task_rows(todo[len(first) * size:], last, per_case, threads))
+            yield from _results(done)
         finally:
-            client.cancel(futures)
+            client.cancel(submitted)
     finally:
         if client is not dask:
             client.close()
