@@ -52,7 +52,7 @@ def solve_task(job: tuple[Any, ...], rows: Sequence[int], warm_up: bool = False)
     base_table, axes, plan, profile_points = job
     compiled = plan is not None  # the batch runs on numba threads; single solves on the task's own thread
     with _BATCH if compiled else _NoLock(), numba_threads(_worker_threads()) if compiled else _NoLock():
-        if warm_up:
+        if warm_up and compiled:  # the batch's first call loads its compiled code: not a case's cost
             solve_rows(base_table, axes, rows[:1], plan, profile_points)
         started = time.perf_counter()
         part = solve_rows(base_table, axes, rows, plan, profile_points)

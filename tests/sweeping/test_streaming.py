@@ -30,9 +30,9 @@ def test_the_chunk_cache_of_a_sweep_file_stays_small(tmp_path: Path, monkeypatch
     seen: list[int] = []
     write = sweep_store.SweepStore.write
 
-    def spy(store: Any, part: dict[str, Any], *args: Any) -> None:
+    def spy(store: Any, part: dict[str, Any], *args: Any, **kwargs: Any) -> None:
         seen.extend(store.h5[key].id.get_access_plist().get_chunk_cache()[1] for key in ("status", "debye_length"))
-        write(store, part, *args)
+        write(store, part, *args, **kwargs)
 
     monkeypatch.setattr(sweep_store.SweepStore, "write", spy)
     edl.sweep(FAILING, AXES, path=tmp_path / "s.h5")
