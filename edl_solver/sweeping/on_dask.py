@@ -2,10 +2,11 @@
 
 * Each task runs the compiled batch on as many numba threads as its worker has threads (set in the task:
   a worker process imports the package once and serves tasks of any size), one batch at a time per worker.
-* The task size comes from the measured cost of a case: a first small task (after one warm-up case, so that
-  loading the compiled kernels is not counted) gives the seconds per case on a worker; the rest are cut to
-  about ``TASK_SECONDS`` each, smaller towards the end (guided scheduling: every worker thread gets several,
-  and the workers finish together).
+* The task size comes from the measured cost of a case: small calibration tasks, two per worker thread (a
+  worker's first batch is preceded by a warm-up row, so that loading the compiled kernels is not counted),
+  give the seconds per case on a worker; the first to finish sizes the rest, cut to about ``TASK_SECONDS``
+  each, smaller towards the end (guided scheduling: every worker thread gets several, and the workers
+  finish together).
 * The sweep's description (base case, axes, packed-vector plan) goes to every worker once; a task carries
   its rows alone, and sends back one float array, the statuses and the messages of failed cases
   (``rows.pack``).
@@ -26,11 +27,13 @@ from edl_solver.sweeping.workers import numba_threads
 TASK_SECONDS = 0.5
 #: Tasks per worker thread at least, for a sweep long enough.
 TASKS_PER_THREAD = 4
-#: Cases of the calibration task (about): 5-30 ms of compiled batch.
+#: Cases of a calibration task (about): 5-30 ms of compiled batch.
 CALIBRATION_CASES = 500
 
 #: One compiled batch at a time in a worker process: each uses all of the worker's threads.
 _BATCH = threading.Lock()
+#: Set once this worker process has run a compiled batch (its compiled code is loaded).
+_WARM = threading.Event()
 
 
 def _worker_threads() -> int:
@@ -45,15 +48,16 @@ def _worker_threads() -> int:
 
 def solve_task(job: tuple[Any, ...], rows: Sequence[int], warm_up: bool = False) -> dict[str, Any]:
     """Solve some rows on a Dask worker; returns their compact results (``rows.pack``), ``seconds``, the time
-    the solving took (without the warm-up, which solves the first row once more), and the numba ``threads``
-    the batch ran on."""
+    the solving took (without a warm-up, which solves the first row once more in a worker's first calibration
+    task), and the numba ``threads`` the batch ran on."""
     import numba
 
     base_table, axes, plan, profile_points = job
     compiled = plan is not None  # the batch runs on numba threads; single solves on the task's own thread
     with _BATCH if compiled else _NoLock(), numba_threads(_worker_threads()) if compiled else _NoLock():
-        if warm_up and compiled:  # the batch's first call loads its compiled code: not a case's cost
+        if warm_up and compiled and not _WARM.is_set():  # a first batch loads its compiled code: not a case's cost
             solve_rows(base_table, axes, rows[:1], plan, profile_points)
+            _WARM.set()
         started = time.perf_counter()
         part = solve_rows(base_table, axes, rows, plan, profile_points)
         seconds = time.perf_counter() - started
@@ -109,8 +113,9 @@ def run_on_dask(todo: list[int], job: tuple[Any, ...], last: int, dask: Any,
                 yield from _results(as_completed([submit(todo[i:i + size]) for i in range(0, len(todo), size)],
                                                  with_results=True))
                 return
-            # one calibration task per worker thread, so that none waits idle; the first to finish sizes the rest
-            first = [todo[i:i + size] for i in range(0, min(len(todo), threads * size), size)]
+            # two calibration tasks per worker thread, so that none waits idle while the first result comes back
+            # and sizes the rest
+            first = [todo[i:i + size] for i in range(0, min(len(todo), 2 * threads * size), size)]
             done = as_completed([submit(rows, True) for rows in first], with_results=True)
             _, packed = next(done)
             yield unpack(packed)
