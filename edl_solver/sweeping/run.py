@@ -19,7 +19,7 @@ import os
 import signal
 import threading
 from collections.abc import Iterable, Iterator, Mapping, Sequence
-from contextlib import contextmanager, nullcontext
+from contextlib import closing, contextmanager, nullcontext
 from pathlib import Path
 from typing import Any
 
@@ -182,8 +182,10 @@ def _fill(store: SweepStore, job: tuple[Mapping[str, Any], Sequence[Axis], Sweep
     todo = rows_todo(store.status)
     writer = BackgroundWriter(store) if store.file is not None else None
     try:
-        with _progress_bar(len(todo) * last, progress) as bar, _interruptible():
-            for part in _run(todo, last, job, local, dask, rows_per_task):
+        # closing: the tasks' generator ends at once on Ctrl-C (numba threads restored, Dask tasks cancelled)
+        with _progress_bar(len(todo) * last, progress) as bar, _interruptible(), \
+                closing(_run(todo, last, job, local, dask, rows_per_task)) as parts:
+            for part in parts:
                 writer.put(part) if writer is not None else store.write(part)
                 bar.update(len(part["rows"]) * last)
                 stop_if_asked()
