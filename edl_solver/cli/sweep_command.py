@@ -20,7 +20,7 @@ VALUE_FLAGS = frozenset({"-o", "--output", "--workers", "--dask"})
 _EPILOG = """\
 examples:
   edl sweep design.toml                      # writes design.h5 next to design.toml
-  edl sweep design.toml -o runs/design.h5 --workers 4
+  edl sweep design.toml -o runs/design.h5 --workers 4   # 4 threads (or processes, see --workers)
   edl sweep design.toml --dask tcp://scheduler:8786
   edl sweep design.toml --resume             # finish an interrupted sweep (design.h5.partial)
   edl sweep design.toml --overwrite          # replace a finished design.h5
@@ -56,7 +56,10 @@ def add_sweep_command(commands: Any) -> None:
                        help="the result file (default: the sweep file's name with .h5, next to it)")
     where = sweep.add_mutually_exclusive_group()
     where.add_argument("--workers", metavar="N", type=int, default=1,
-                       help="solve in N local processes (default: 1, in this process)")
+                       help="solve on N cores of this machine (default: 1). A sweep solved in compiled batches "
+                            "(most) runs on N threads of this process: they start at once and share its memory. "
+                            "A sweep solved case by case (stored profiles, rectangles) runs in N worker "
+                            "processes: each takes ~1-2 s to start and ~200 MB of memory")
     where.add_argument("--dask", metavar="ADDRESS",
                        help="solve on a Dask distributed cluster, e.g. tcp://scheduler:8786 (needs the "
                             "'distributed' package); the results are written here")

@@ -19,111 +19,23 @@ import os
 import signal
 import threading
 from collections.abc import Iterable, Iterator, Mapping, Sequence
-from contextlib import contextmanager, nullcontext
+from contextlib import closing, contextmanager, nullcontext
 from pathlib import Path
 from typing import Any
 
-import numpy as np
-
-from edl_solver.errors import ConvergenceError, InputError
+from edl_solver.errors import InputError
 from edl_solver.inputs.case import Case
 from edl_solver.inputs.paths import PATH_UNITS, WORD_PATHS, Axis, case_at, check_axis_values, check_conflicts, make_axes
 from edl_solver.io.files import checked_output_path, output_lock
-from edl_solver.kernels import layout
-from edl_solver.kernels.layout import PAIR_KEYS, SLOTS, SUMMARY_SIZE
-from edl_solver.results.schema import CONVERGED, FAILED, PENDING, SUMMARY_UNITS
+from edl_solver.results.schema import CONVERGED, FAILED, PENDING
 from edl_solver.sweeping import profiles as sweep_profiles
+from edl_solver.sweeping.on_dask import run_on_dask
 from edl_solver.sweeping.plan import SweepPlan, make_plan
+from edl_solver.sweeping.rows import STOP, solve_rows, stop_if_asked
 from edl_solver.sweeping.store import SweepStore, rows_todo
-
-
-def solve_rows(base_table: Mapping[str, Any], axes: Sequence[Axis], rows: Sequence[int],
-               plan: SweepPlan | None = None, profile_points: int = 0) -> dict[str, Any]:
-    """Solve the cases of some rows (lines along the last axis); a module-level function so that worker
-    processes and Dask workers can run it.
-
-    With a ``plan`` the cases are packed from it and solved in one compiled batch (``kernels.batch.solve_cases``,
-    the same compiled steps as ``edl_solver.solve``); cases the batch cannot finish (no convergence from the
-    start guess, an invalid combination of inputs) and every case without a plan go through
-    ``edl_solver.solve`` one by one, which also words the reason of a failure. With ``profile_points``
-    (and no plan: the batch returns no profiles) the profiles of each case are sampled at that many
-    positions (``sweep_profiles``).
-
-    Returns
-    -------
-    dict
-        ``rows`` and, per summary key, an array (rows, last axis[, 2]); ``status`` and ``message``; with
-        profiles, per profile variable an array (rows, last axis[, ion], position).
-    """
-    shape = tuple(axis.size for axis in axes)
-    last = shape[-1]
-    out: dict[str, Any] = {"rows": list(rows), "status": np.full((len(rows), last), FAILED, dtype=np.int8),
-                           "message": [["" for _ in range(last)] for _ in rows]}
-    values = {key: np.full((len(rows), last, 2), np.nan) for key in SUMMARY_UNITS}
-    if profile_points:
-        n_ions = len(base_table["electrolyte"]["ions"])
-        values.update(sweep_profiles.empty((len(rows), last), n_ions, profile_points))
-    points = (np.asarray(rows, dtype=np.int64)[:, None] * last + np.arange(last)).ravel()
-    one_by_one = np.ones(points.size, dtype=bool)
-    if plan is not None:
-        _stop_if_asked()
-        one_by_one = _solve_batch(plan, points, values, out["status"])
-    for flat in np.nonzero(one_by_one)[0].tolist():
-        _stop_if_asked()
-        r, j = divmod(flat, last)
-        _solve_one(base_table, axes, np.unravel_index(int(points[flat]), shape), values, out, r, j, profile_points)
-    out.update(values)
-    return out
-
-
-def _solve_batch(plan: SweepPlan, points: np.ndarray, values: dict[str, np.ndarray], status: np.ndarray
-                 ) -> np.ndarray:
-    """Solve the valid points in one compiled batch, filling ``values`` and ``status`` (rows, last axis);
-    returns which points are left to the case-by-case path."""
-    from edl_solver.kernels import batch as _batch
-
-    vectors, valid = plan.vectors(points)
-    chosen = np.nonzero(valid)[0]
-    summaries = np.full((chosen.size, SUMMARY_SIZE), np.nan)
-    codes = np.empty(chosen.size, dtype=np.int64)
-    iterations = np.empty(chosen.size, dtype=np.int64)
-    _batch.solve_cases(np.ascontiguousarray(vectors[chosen]), summaries, codes, iterations)
-    solved = codes == layout.CONVERGED  # kernel codes; the others are KERNEL_FAILURES, re-solved one by one
-    done = chosen[solved]
-    finished = summaries[solved]
-    last = status.shape[1]
-    r, j = np.divmod(done, last)
-    status[r, j] = CONVERGED
-    for key, at in SLOTS.items():
-        pair = key in PAIR_KEYS
-        values[key][r, j, 0] = finished[:, at]
-        values[key][r, j, 1] = finished[:, at + 1] if pair else finished[:, at]
-    left = np.ones(points.size, dtype=bool)
-    left[done] = False
-    return left
-
-
-def _solve_one(base_table: Mapping[str, Any], axes: Sequence[Axis], index: tuple[int, ...],
-               values: dict[str, np.ndarray], out: dict[str, Any], r: int, j: int, profile_points: int = 0) -> None:
-    """Solve one point with ``edl_solver.solve`` (and sample its profiles); a failure is recorded with its
-    reason."""
-    from edl_solver.pipeline import solve
-
-    try:
-        result = solve(case_at(base_table, axes, index))
-    except (ConvergenceError, InputError) as error:
-        out["message"][r][j] = str(error)
-        return
-    except Exception as error:  # one broken case must not stop a long sweep: record it and go on
-        out["message"][r][j] = f"unexpected {type(error).__name__}: {error}"
-        return
-    out["status"][r, j] = CONVERGED
-    for key, value in result.summary.items():
-        if key in values:  # a key some cases lack (stern_potential without a Stern layer) stays NaN
-            values[key][r, j] = value if isinstance(value, tuple) else (value, value)
-    if profile_points:
-        for name, sampled in sweep_profiles.sample(result.profiles, profile_points).items():
-            values[name][r, j] = sampled
+from edl_solver.sweeping.workers import check_not_starting_a_worker, local_pool, numba_threads
+from edl_solver.sweeping.workers import one_thread as _one_thread  # noqa: F401  (tests set a worker up with it)
+from edl_solver.sweeping.writer import BackgroundWriter
 
 
 def sweep(base: Case, axes: Mapping[str, Any], *, zipped: Sequence[Sequence[str]] | None = (),
@@ -143,21 +55,19 @@ def sweep(base: Case, axes: Mapping[str, Any], *, zipped: Sequence[Sequence[str]
         Groups of axis paths varied together along one dimension (named after the group's first path);
         ``None`` or empty: none.
     path : str or Path, optional
-        HDF5 (netCDF-4) file to stream the results to; opened by ``xarray.open_dataset(path,
-        engine="h5netcdf")``. Built as ``<path>.partial`` and renamed when complete. Checked before any
-        case is solved; ``<path>.lock`` beside it is locked meanwhile, so that another run on the same path
-        is refused.
+        HDF5 (netCDF-4) file to stream the results to (``xarray.open_dataset(path, engine="h5netcdf")``).
+        Built as ``<path>.partial`` and renamed when complete. Checked before any case is solved;
+        ``<path>.lock`` beside it is locked meanwhile, so that another run on the same path is refused.
     resume : bool
         Finish the sweep of an interrupted ``<path>.partial`` instead of starting afresh.
     workers : int
-        Local worker processes (1: in this process).
+        Cores of this machine (1: one thread): threads here for a sweep solved in compiled batches, spawned
+        processes for one solved case by case (profiles, rectangles; costs in ``workers.py``).
     dask : str or distributed.Client, optional
-        A Dask distributed scheduler address or client; rows are sent to it in tasks and the results
-        gathered and written here.
+        A Dask distributed scheduler address or client (``on_dask``); the results are written here.
     rows_per_task : int, optional
-        Rows (lines along the last axis) per task; by default about 4,000 cases per task in this process
-        and 1,000 per task for workers or Dask (so that they share the work), 500 when the cases are
-        solved one by one (no compiled batch).
+        Rows (lines along the last axis) per task; by default ~4,000 cases per thread here, 500 per worker
+        process, ~0.5 s of solving on Dask.
     progress : bool, optional
         Show a progress bar (tqdm); by default only when attached to a terminal.
     profiles : bool or int, optional
@@ -197,21 +107,30 @@ def sweep(base: Case, axes: Mapping[str, Any], *, zipped: Sequence[Sequence[str]
         if target is not None and target.exists() and not overwrite:
             raise InputError(f"path: {str(path)!r} already exists, expected a new file name, or overwrite=True "
                              "to replace it")
+        plan = None if profile_points else make_plan(base_table, sweep_axes)  # profiles come from single solves
+        job = (base_table, sweep_axes, plan, profile_points)
         # the workers start (or fail to) before the store is opened: a sweep that cannot run leaves no file
-        with _local_pool(workers if dask is None else 1) as pool:
+        with local_pool(_processes(workers, plan, dask)) as pool:
             store = _open_store(base, base_table, sweep_axes, profile_points, target, resume)
             try:
-                _fill(store, (base_table, sweep_axes, profile_points), (workers, pool), dask, rows_per_task, progress)
+                _fill(store, job, (workers, pool), dask, rows_per_task, progress)
             except BaseException:
                 store.abandon()
                 raise
             return store.finish()
 
 
+def _processes(workers: int, plan: SweepPlan | None, dask: Any) -> int:
+    """Local worker processes: none beside this one for a compiled batch (it runs on ``workers`` numba threads
+    here, ``workers.numba_threads``) or on Dask; ``workers`` for a sweep solved case by case."""
+    return workers if plan is None and dask is None else 1
+
+
 def _check_options(base: Case, workers: int, overwrite: bool) -> None:
     """One-line InputErrors for a base that is not a Case, a worker count that is not a positive integer and
-    an overwrite that is not a bool; a RuntimeError in a worker being started (``_check_not_starting_a_worker``)."""
-    _check_not_starting_a_worker()
+    an overwrite that is not a bool; a RuntimeError in a worker being started
+    (``workers.check_not_starting_a_worker``)."""
+    check_not_starting_a_worker()
     if not isinstance(base, Case):
         raise InputError(f"base: {type(base).__name__} is not a Case, expected edl_solver.Case(...)")
     if isinstance(workers, bool) or not isinstance(workers, int) or workers < 1:
@@ -250,39 +169,35 @@ def _open_store(base: Case, base_table: dict[str, Any], sweep_axes: Sequence[Axi
                       ions=[ion.name for ion in base.electrolyte.ions], profile_points=profile_points)
 
 
-def _fill(store: SweepStore, job: tuple[Mapping[str, Any], Sequence[Axis], int], local: tuple[int, Any],
-          dask: Any, rows_per_task: int | None, progress: bool | None) -> None:
-    """Solve the rows the store still lacks, task by task, writing each task's results as it completes.
+def _fill(store: SweepStore, job: tuple[Mapping[str, Any], Sequence[Axis], SweepPlan | None, int],
+          local: tuple[int, Any], dask: Any, rows_per_task: int | None, progress: bool | None) -> None:
+    """Solve the rows the store still lacks, task by task, storing each task's results as it completes (to a
+    file in a thread of its own, ``writer.BackgroundWriter``, while the next tasks are solved).
 
-    ``job`` is the base table, the axes and the profile points; ``local`` the worker count and their
-    started pool (None for one); Ctrl-C stops the sweep between cases (``_interruptible``), keeping what
-    was written.
+    ``job`` is the base table, the axes, the plan (None: case by case) and the profile points; ``local`` the
+    worker count and their started pool (None when the sweep runs in this process); Ctrl-C stops the sweep
+    between cases (``_interruptible``), keeping what was solved.
     """
-    base_table, sweep_axes, profile_points = job
-    workers, pool = local
-    # profiles come from single solves, so a sweep that stores them needs no compiled batch
-    plan = None if profile_points else make_plan(base_table, sweep_axes)
+    last = job[1][-1].size
     todo = rows_todo(store.status)
-    last = sweep_axes[-1].size
-    per_task = rows_per_task or max(1, _cases_per_task(plan, workers, dask) // last)
-    tasks = [todo[i:i + per_task] for i in range(0, len(todo), per_task)]
-    with _progress_bar(len(todo) * last, progress) as bar, _interruptible():
-        for part in _run(tasks, (base_table, sweep_axes, plan, profile_points), pool, dask):
-            store.write(part)
-            bar.update(len(part["rows"]) * last)
-            _stop_if_asked()
+    writer = BackgroundWriter(store) if store.file is not None else None
+    try:
+        # closing: the tasks' generator ends at once on Ctrl-C (numba threads restored, Dask tasks cancelled)
+        with _progress_bar(len(todo) * last, progress) as bar, _interruptible(), \
+                closing(_run(todo, last, job, local, dask, rows_per_task)) as parts:
+            for part in parts:
+                writer.put(part) if writer is not None else store.write(part)
+                bar.update(len(part["rows"]) * last)
+                stop_if_asked()
+    finally:
+        if writer is not None:
+            writer.close()  # what was solved is written, even on Ctrl-C
 
 
-def _cases_per_task(plan: SweepPlan | None, workers: int, dask: Any) -> int:
-    """Default task size: each task is committed to the file with two flushes (~6 ms each), so compiled
-    batches go in large tasks; workers and Dask get smaller ones to share them out."""
-    if plan is None:
-        return 500
-    return 4000 if workers == 1 and dask is None else 1000
-
-
-#: Set by Ctrl-C during a sweep; checked between cases (see ``_interruptible``).
-_STOP = threading.Event()
+def _tasks(todo: list[int], last: int, per_task: int | None, cases: int) -> list[list[int]]:
+    """The rows in tasks of ``per_task`` rows, by default about ``cases`` cases."""
+    size = per_task or max(1, cases // last)
+    return [todo[i:i + size] for i in range(0, len(todo), size)]
 
 
 @contextmanager
@@ -299,37 +214,37 @@ def _interruptible() -> Iterator[None]:
         return
 
     def ask_to_stop(signum: int, frame: Any) -> None:
-        _STOP.set()
+        STOP.set()
         signal.signal(signal.SIGINT, signal.default_int_handler)
 
-    _STOP.clear()
+    STOP.clear()
     signal.signal(signal.SIGINT, ask_to_stop)
     try:
         yield
     finally:
         signal.signal(signal.SIGINT, signal.default_int_handler)
-        _STOP.clear()
+        STOP.clear()
 
 
-def _stop_if_asked() -> None:
-    if _STOP.is_set():
-        raise KeyboardInterrupt
-
-
-def _run(tasks: list[list[int]], job: tuple[Any, ...], pool: Any, dask: Any) -> Iterable[dict[str, Any]]:
-    """Yield each task's results as it completes (in this process, a started pool of local processes, or
-    Dask); ``job`` holds the arguments of ``solve_rows`` other than the rows: base table, axes, plan,
-    profile points."""
+def _run(todo: list[int], last: int, job: tuple[Any, ...], local: tuple[int, Any], dask: Any,
+         rows_per_task: int | None) -> Iterable[dict[str, Any]]:
+    """Yield each task's results as it completes: in this process (a compiled batch on ``workers`` numba
+    threads), a started pool of local processes (each task 500 cases solved one by one), or Dask
+    (``on_dask``); ``job`` holds the arguments of ``solve_rows`` other than the rows."""
     base_table, axes, plan, profile_points = job
+    workers, pool = local
     if dask is not None:
-        yield from _run_dask(tasks, job, dask)
+        yield from run_on_dask(todo, job, last, dask, rows_per_task)
     elif pool is None:
-        for rows in tasks:
-            yield solve_rows(base_table, axes, rows, plan, profile_points)
+        # a compiled batch of ~4,000 cases is ~0.1-0.2 s a thread: the commits and task costs stay small
+        with numba_threads(workers) if plan is not None else nullcontext():
+            for rows in _tasks(todo, last, rows_per_task, 4000 * workers if plan is not None else 500):
+                yield solve_rows(base_table, axes, rows, plan, profile_points)
     else:
         import concurrent.futures as cf
 
-        futures = [pool.submit(solve_rows, base_table, axes, rows, plan, profile_points) for rows in tasks]
+        futures = [pool.submit(solve_rows, base_table, axes, rows, plan, profile_points)
+                   for rows in _tasks(todo, last, rows_per_task, 500)]
         try:
             for future in cf.as_completed(futures):
                 yield future.result()
@@ -337,79 +252,6 @@ def _run(tasks: list[list[int]], job: tuple[Any, ...], pool: Any, dask: Any) -> 
             for future in futures:
                 future.cancel()
             raise
-
-
-#: Why local workers fail to start, nearly always: spawned workers import the calling script again.
-_UNGUARDED = ("workers: the worker processes could not start; a script that calls edl.sweep(..., workers=N) "
-              "must make that call under `if __name__ == \"__main__\":` (each worker imports the script again), "
-              "or use workers=1")
-
-
-@contextmanager
-def _local_pool(workers: int) -> Iterator[Any]:
-    """A started pool of ``workers`` spawned processes (None for one worker), shut down on exit.
-
-    Raises
-    ------
-    InputError
-        If the first worker cannot start: nearly always a script without the ``__main__`` guard
-        (``_UNGUARDED``). Checked here, before the output file is opened.
-    """
-    if workers == 1:
-        yield None
-        return
-    import multiprocessing
-    from concurrent.futures import ProcessPoolExecutor
-    from concurrent.futures.process import BrokenProcessPool
-
-    context = multiprocessing.get_context("spawn")
-    with ProcessPoolExecutor(workers, mp_context=context, initializer=_one_thread) as pool:
-        try:
-            pool.submit(_started).result()
-        except BrokenProcessPool:
-            raise InputError(_UNGUARDED) from None
-        yield pool
-
-
-def _started() -> None:
-    """The first task of a pool: returns once a worker is up."""
-
-
-def _check_not_starting_a_worker() -> None:
-    # A worker being spawned imports the main script again; a script without the `__main__` guard would
-    # sweep once more in every worker (and start workers of its own): stop it at once.
-    import multiprocessing
-
-    if getattr(multiprocessing.current_process(), "_inheriting", False):
-        raise RuntimeError(_UNGUARDED)
-
-
-def _one_thread() -> None:
-    # Each worker is one process on one core: keep numba from spawning threads of its own. The variable
-    # only counts before numba starts its threads, so set the live value as well. numba may already be
-    # imported (the kernels' cache locator imports it): reload its configuration before the threads start,
-    # or the first compilation in the worker finds the variable changed under live threads and fails.
-    os.environ["NUMBA_NUM_THREADS"] = "1"
-    import numba
-    from numba.core import config
-
-    config.reload_config()
-    numba.set_num_threads(1)
-
-
-def _run_dask(tasks: list[list[int]], job: tuple[Any, ...], dask: Any) -> Iterable[dict[str, Any]]:
-    from distributed import Client, as_completed
-
-    client = dask if isinstance(dask, Client) else Client(dask)
-    try:
-        base_table, axes, plan, profile_points = job
-        futures = [client.submit(solve_rows, base_table, axes, rows, plan, profile_points, pure=False)
-                   for rows in tasks]
-        for future in as_completed(futures):
-            yield future.result()
-    finally:
-        if client is not dask:
-            client.close()
 
 
 class _NoBar:

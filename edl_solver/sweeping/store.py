@@ -101,9 +101,12 @@ class SweepStore:
 
         # h5netcdf's flush() does not flush the HDF5 file; its h5py handle is kept to flush every row to
         # disk, so that a killed sweep leaves a readable file (track_order as h5netcdf sets it).
-        self.h5 = h5py.File(partial, mode, track_order=True)
+        # A chunk cache of 1 MiB per variable (~128 chunks): HDF5 2.0's default kept every chunk a sweep wrote
+        # in memory (RSS grew by the file's size); a sweep writes each chunk once, in order.
+        self.h5 = h5py.File(partial, mode, track_order=True, rdcc_nbytes=CHUNK_CACHE_BYTES)
         self.file = h5netcdf.File(self.h5, mode)
         self._datasets: dict[str, Any] = {}  # h5py handles by name: looking one up costs ~50 us
+        self._uncommitted: list[tuple[Any, np.ndarray]] = []  # (where, status) of rows written, not yet marked
 
     def _dataset(self, name: str) -> Any:
         if name not in self._datasets:
@@ -179,7 +182,9 @@ class SweepStore:
             var.attrs["units"] = sweep_profiles.unit(field)
             var.attrs["long_name"] = sweep_profiles.long_name(field)
 
-    def write(self, part: dict[str, Any]) -> None:
+    def write(self, part: dict[str, Any], commit: bool = True) -> None:
+        """Store one task's results; to a file, its values are written now and its rows marked done at the
+        next ``commit`` (at once with ``commit=True``)."""
         rows = part["rows"]
         if self.file is None:
             for r, row in enumerate(rows):
@@ -191,24 +196,32 @@ class SweepStore:
             return
         # Rows that follow each other along the last leading axis form one block: one write per variable
         # and block through h5py (row-by-row writes through h5netcdf cost ~25 ms a row).
-        blocks, start = [], 0
+        start = 0
         while start < len(rows):
             stop = start + 1
             while (stop < len(rows) and rows[stop] == rows[stop - 1] + 1
                    and (len(self.shape) < 2 or rows[stop] % self.shape[-2] != 0)):
                 stop += 1
-            blocks.append(self._block(part, start, stop))
-            start = stop
-        # Commit in two steps: the values reach the disk before the status that marks their rows done, since
-        # HDF5 may write its cached chunks in any order and a killed sweep must never keep a row marked done
-        # whose values were lost.
-        for where, pick in blocks:
+            where, pick = self._block(part, start, stop)
             self._write_values(part, where, pick)
+            self._uncommitted.append((where, part["status"][pick]))
+            start = stop
+        if commit:
+            self.commit()
+
+    def commit(self) -> None:
+        """Mark the rows written since the last commit done, in two steps: their values reach the disk before
+        the status that marks them done, since HDF5 may write its cached chunks in any order and a killed
+        sweep must never keep a row marked done whose values were lost. Two flushes (~6 ms each) per commit:
+        a sweep commits about twice a second rather than after every task."""
+        if self.file is None or not self._uncommitted:
+            return
         self.h5.flush()
-        for where, pick in blocks:
-            self._dataset("status")[where] = part["status"][pick]
-            self.status[where] = part["status"][pick]
+        for where, status in self._uncommitted:
+            self._dataset("status")[where] = status
+            self.status[where] = status
         self.h5.flush()
+        self._uncommitted = []
 
     def _lead(self, row: int) -> tuple[int, ...]:
         return tuple(int(i) for i in np.unravel_index(row, self.shape[:-1])) if len(self.shape) > 1 else ()
@@ -227,13 +240,16 @@ class SweepStore:
             dataset[where] = block if dataset.ndim > len(self.shape) else block[..., 0]
         for key in self.profile_names:
             self._dataset(key)[where] = part[key][pick]
-        self._dataset("message")[where] = np.array(part["message"][pick], dtype=object)
+        messages = np.array(part["message"][pick], dtype=object)
+        if any(messages.ravel()):  # an unwritten entry reads as "": only failed cases carry a message
+            self._dataset("message")[where] = messages
 
     def finish(self) -> Any:
         """The sweep as an xarray Dataset; a file is completed (renamed from .partial) and read back."""
         import xarray as xr
 
         if self.file is not None:
+            self.commit()
             lazy = self._value_bytes() > LOAD_LIMIT_BYTES
             if not lazy:
                 status, message, values, attrs = self._read_back()
@@ -300,6 +316,9 @@ class SweepStore:
             self.file.close()
             self.h5.close()
 
+
+#: HDF5 chunk cache of each variable of a sweep file being written.
+CHUNK_CACHE_BYTES = 2**20
 
 #: Cases per chunk of a variable in a sweep file (HDF5 stores variables chunk by chunk: ~8 kB chunks of
 #: floats; common practice is 10 kB-1 MB), in whole rows.

@@ -44,6 +44,14 @@ def test_help_shows_examples() -> None:
     assert code == 0 and "edl sweep" in out
 
 
+def test_help_says_what_workers_cost() -> None:
+    # Before: "solve in N local processes", whatever the sweep, and nothing on what they cost.
+    _, out, _ = run(["sweep", "--help"])
+    text = " ".join(out.split())
+    assert "N threads of this process" in text and "N worker processes" in text
+    assert "1-2 s to start" in text and "MB of memory" in text
+
+
 # -- bad sweep files: exit 2, one line naming the file and the key, nothing written ------------------
 
 AXES = '[sweep.axes]\n"wall.zeta" = ["-20 mV", "-40 mV"]\n'

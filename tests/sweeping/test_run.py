@@ -188,15 +188,23 @@ def test_dask_cluster_equals_the_local_run(slit_sweep: xr.Dataset) -> None:
 
 # -- kill and resume -------------------------------------------------------------------------------------
 
-#: A sweep of 80 rows of 4 cases (~2 s with the file); a subprocess runs it one row per task, so that
-#: every finished row reaches the file.
+#: A sweep of 80 rows of 4 cases (~2.5 s, slowed down); a subprocess runs it one row per task, so that
+#: finished rows reach the file (committed about twice a second).
 KILL_ROWS = 80
 KILL_AXES = {"geometry.height": [f"{h:.4g} nm" for h in np.geomspace(5.0, 500.0, KILL_ROWS)],
              "wall.zeta": ["-15 mV", "-45 mV", "-90 mV", "-140 mV"]}
 
 _KILL_SCRIPT = """
-import sys
+import sys, time
 import edl_solver as edl
+import edl_solver.sweeping.run as sweep_run
+solve_rows = sweep_run.solve_rows
+
+def slowly(*args, **kwargs):  # 30 ms a row: the sweep (~2.5 s) is still running when the test kills it
+    time.sleep(0.03)
+    return solve_rows(*args, **kwargs)
+
+sweep_run.solve_rows = slowly
 electrolyte = edl.Electrolyte.from_ions({"K+": "1 mM", "Cl-": "1 mM"})
 base = edl.Case(geometry=edl.Slit(height="20 nm"), electrolyte=electrolyte, wall=edl.Wall(zeta="-40 mV"),
                 field="1 kV/m", pressure_gradient="-1 bar/mm")

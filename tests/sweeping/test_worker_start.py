@@ -16,7 +16,7 @@ import edl_solver as edl
 
 case = edl.Case(geometry=edl.Slit(height="50 nm"), wall=edl.Wall(zeta="-50 mV"),
                 electrolyte=edl.Electrolyte.from_ions({"K+": "1 mM", "Cl-": "1 mM"}))
-edl.sweep(case, {"wall.zeta": ["-20 mV", "-40 mV"]}, path="out.h5", workers=2)
+edl.sweep(case, {"wall.zeta": ["-20 mV", "-40 mV"]}, path="out.h5", workers=2%s)
 print("swept")
 """
 
@@ -39,12 +39,20 @@ def _run(arguments: list[str], cwd: Path, **env: str) -> subprocess.CompletedPro
 
 
 def test_a_script_without_the_main_guard_is_told_and_leaves_no_file(tmp_path: Path) -> None:
-    (tmp_path / "script.py").write_text(SCRIPT)  # a file: workers import it again (not so with python -c)
+    # profiles are solved case by case, so workers=2 means two processes
+    (tmp_path / "script.py").write_text(SCRIPT % ", profiles=5")  # a file: workers import it again (not so with -c)
     done = _run(["script.py"], tmp_path)
     last = done.stderr.strip().splitlines()[-1]
     assert done.returncode == 1 and "swept" not in done.stdout
     assert last.startswith("edl_solver.errors.InputError: workers: ") and 'if __name__ == "__main__":' in last
     assert sorted(p.name for p in tmp_path.iterdir()) == ["script.py"]  # no out.h5, .partial or lock
+
+
+def test_workers_of_a_compiled_sweep_are_threads_which_need_no_main_guard(tmp_path: Path) -> None:
+    (tmp_path / "script.py").write_text(SCRIPT % "")
+    done = _run(["script.py"], tmp_path)
+    assert done.returncode == 0 and done.stdout.split() == ["swept"], done.stderr
+    assert sorted(p.name for p in tmp_path.iterdir()) == ["out.h5", "script.py"]
 
 
 def test_a_worker_keeps_one_thread_when_numba_was_imported_first(tmp_path: Path) -> None:
