@@ -88,7 +88,8 @@ def add_map_command(subparsers: Any) -> None:
                         help="the vertical axis, PATH:FROM:TO:COUNT[:log|lin]")
     parser.add_argument("-o", "--output", metavar="MAP.h5", help="write the map (HDF5/netCDF, read by xarray)")
     parser.add_argument("--figure", metavar="MAP.png", help="write a figure of the map (PNG)")
-    parser.add_argument("--workers", metavar="N", default="1", help="local worker processes (default: 1)")
+    parser.add_argument("--workers", metavar="N", default=None,
+                        help="solve on N cores, as edl sweep --workers (default: this process, on every core)")
     parser.add_argument("--resume", action="store_true",
                         help="finish a map interrupted by Ctrl-C or a crash (its cases are kept next to -o MAP.h5)")
     parser.add_argument("--overwrite", action="store_true", help="replace MAP.h5 if it exists (by default it is kept)")
@@ -172,18 +173,19 @@ def _run(args: argparse.Namespace) -> int:
     except InputError as exc:  # name the flags rather than the Python arguments
         raise InputError(str(exc).replace("x_axis", "--x").replace("y_axis", "--y")) from None
     tolerance = float(base.tolerance)  # checked by the case: a fraction between 0 and 1
-    workers = args.workers.strip() if isinstance(args.workers, str) else str(args.workers)
-    if not workers.isdigit() or int(workers) < 1:
+    workers = None if args.workers is None else args.workers.strip()
+    if workers is not None and (not workers.isdigit() or int(workers) < 1):
         raise InputError(f"--workers: {args.workers!r} is not allowed, expected a positive whole number")
     outputs = result_and_figure(args, "map")
     # the map file's lock, held to the end (validity_map takes it again), before the look for an interrupted map
     with output_lock(outputs["map"], "-o") if "map" in outputs else nullcontext():
         if "map" in outputs:
             existing_output("-o", outputs["map"], args.overwrite)
-        return _solve_and_write(args, base, (x_axis, y_axis), tolerance, int(workers), outputs)
+        return _solve_and_write(args, base, (x_axis, y_axis), tolerance, None if workers is None else int(workers),
+                                outputs)
 
 
-def _solve_and_write(args: argparse.Namespace, base: Any, axes: tuple[Any, Any], tolerance: float, workers: int,
+def _solve_and_write(args: argparse.Namespace, base: Any, axes: tuple[Any, Any], tolerance: float, workers: int | None,
                      outputs: dict[str, Path]) -> int:
     """The map (from the interrupted sweep with --resume), its files and its summary."""
     from edl_solver.analysis.validity_map import validity_map

@@ -55,11 +55,12 @@ def add_sweep_command(commands: Any) -> None:
     sweep.add_argument("-o", "--output", metavar="OUT.h5",
                        help="the result file (default: the sweep file's name with .h5, next to it)")
     where = sweep.add_mutually_exclusive_group()
-    where.add_argument("--workers", metavar="N", type=int, default=1,
-                       help="solve on N cores of this machine (default: 1). A sweep solved in compiled batches "
-                            "(most) runs on N threads of this process: they start at once and share its memory. "
-                            "A sweep solved case by case (stored profiles, rectangles) runs in N worker "
-                            "processes: each takes ~1-2 s to start and ~200 MB of memory")
+    where.add_argument("--workers", metavar="N", type=int, default=None,
+                       help="solve on N cores of this machine. A sweep solved in compiled batches (most) runs on "
+                            "N threads of this process: they start at once and share its memory. A sweep solved "
+                            "case by case (stored profiles, rectangles) runs in N worker processes: each takes "
+                            "~1-2 s to start and ~200 MB of memory. Default: this process alone, compiled batches "
+                            "on every core (NUMBA_NUM_THREADS sets fewer), a case-by-case sweep on one core")
     where.add_argument("--dask", metavar="ADDRESS",
                        help="solve on a Dask distributed cluster, e.g. tcp://scheduler:8786 (needs the "
                             "'distributed' package); the results are written here")
@@ -119,7 +120,7 @@ def _checked_start(args: argparse.Namespace, output: Path) -> Path:
                          "the file to start afresh)")
     if partial.exists():
         _check_partial(partial)
-    if args.workers < 1:
+    if args.workers is not None and args.workers < 1:
         raise InputError(f"--workers: {args.workers} is not allowed, expected a positive integer")
     if args.resume and not partial.exists() and not args.quiet:
         print(f"note: no {partial.name} to resume, so the sweep starts from the beginning")
@@ -166,7 +167,7 @@ def _resume_command(args: argparse.Namespace) -> str:
     words = ["edl", "sweep", args.sweep_file]
     if args.output is not None:
         words += ["-o", args.output]
-    if args.workers != 1:
+    if args.workers is not None:
         words += ["--workers", str(args.workers)]
     if args.dask is not None:
         words += ["--dask", args.dask]

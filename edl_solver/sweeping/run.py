@@ -39,7 +39,7 @@ from edl_solver.sweeping.writer import BackgroundWriter
 
 
 def sweep(base: Case, axes: Mapping[str, Any], *, zipped: Sequence[Sequence[str]] | None = (),
-          path: str | os.PathLike[str] | None = None, resume: bool = False, workers: int = 1,
+          path: str | os.PathLike[str] | None = None, resume: bool = False, workers: int | None = None,
           dask: Any = None, rows_per_task: int | None = None, progress: bool | None = None,
           profiles: bool | int | None = None, overwrite: bool = False) -> Any:
     """Solve every case of a design space and return the summaries as an ``xarray.Dataset``.
@@ -60,9 +60,11 @@ def sweep(base: Case, axes: Mapping[str, Any], *, zipped: Sequence[Sequence[str]
         ``<path>.lock`` beside it is locked meanwhile, so that another run on the same path is refused.
     resume : bool
         Finish the sweep of an interrupted ``<path>.partial`` instead of starting afresh.
-    workers : int
-        Cores of this machine (1: one thread): threads here for a sweep solved in compiled batches, spawned
-        processes for one solved case by case (profiles, rectangles; costs in ``workers.py``).
+    workers : int, optional
+        Cores of this machine: N threads here for a sweep solved in compiled batches, N spawned processes for one
+        solved case by case (profiles, rectangles; costs in ``workers.py``); 1 is one thread. None (the default):
+        this process alone, the compiled batch on numba's threads (every core unless ``numba.set_num_threads`` or
+        ``NUMBA_NUM_THREADS`` says fewer).
     dask : str or distributed.Client, optional
         A Dask distributed scheduler address or client (``on_dask``); the results are written here.
     rows_per_task : int, optional
@@ -120,21 +122,22 @@ def sweep(base: Case, axes: Mapping[str, Any], *, zipped: Sequence[Sequence[str]
             return store.finish()
 
 
-def _processes(workers: int, plan: SweepPlan | None, dask: Any) -> int:
+def _processes(workers: int | None, plan: SweepPlan | None, dask: Any) -> int:
     """Local worker processes: none beside this one for a compiled batch (it runs on ``workers`` numba threads
-    here, ``workers.numba_threads``) or on Dask; ``workers`` for a sweep solved case by case."""
-    return workers if plan is None and dask is None else 1
+    here, ``workers.numba_threads``), on Dask or by default; ``workers`` for a sweep solved case by case."""
+    return workers if workers is not None and plan is None and dask is None else 1
 
 
-def _check_options(base: Case, workers: int, overwrite: bool) -> None:
+def _check_options(base: Case, workers: int | None, overwrite: bool) -> None:
     """One-line InputErrors for a base that is not a Case, a worker count that is not a positive integer and
     an overwrite that is not a bool; a RuntimeError in a worker being started
     (``workers.check_not_starting_a_worker``)."""
     check_not_starting_a_worker()
     if not isinstance(base, Case):
         raise InputError(f"base: {type(base).__name__} is not a Case, expected edl_solver.Case(...)")
-    if isinstance(workers, bool) or not isinstance(workers, int) or workers < 1:
-        raise InputError(f"workers: {workers!r} is not allowed, expected a positive integer")
+    if workers is not None and (isinstance(workers, bool) or not isinstance(workers, int) or workers < 1):
+        raise InputError(f"workers: {workers!r} is not allowed, expected a positive integer (or None: this "
+                         "process, on numba's threads)")
     if not isinstance(overwrite, bool):
         raise InputError(f"overwrite: {overwrite!r} is not allowed, expected True or False")
 
@@ -237,8 +240,9 @@ def _run(todo: list[int], last: int, job: tuple[Any, ...], local: tuple[int, Any
         yield from run_on_dask(todo, job, last, dask, rows_per_task)
     elif pool is None:
         # a compiled batch of ~4,000 cases is ~0.1-0.2 s a thread: the commits and task costs stay small
-        with numba_threads(workers) if plan is not None else nullcontext():
-            for rows in _tasks(todo, last, rows_per_task, 4000 * workers if plan is not None else 500):
+        with numba_threads(workers) if plan is not None and workers is not None else nullcontext():
+            threads = _numba_thread_count() if plan is not None else 0
+            for rows in _tasks(todo, last, rows_per_task, 4000 * threads if plan is not None else 500):
                 yield solve_rows(base_table, axes, rows, plan, profile_points)
     else:
         import concurrent.futures as cf
@@ -252,6 +256,13 @@ def _run(todo: list[int], last: int, job: tuple[Any, ...], local: tuple[int, Any
             for future in futures:
                 future.cancel()
             raise
+
+
+def _numba_thread_count() -> int:
+    """The numba threads the compiled batch runs on in this thread now."""
+    import numba
+
+    return numba.get_num_threads()
 
 
 class _NoBar:

@@ -1,5 +1,6 @@
 """``sweep(workers=N)``: a sweep solved in compiled batches runs on N numba threads of this process (no worker
-processes), one solved case by case in N worker processes; ``workers=1`` is one thread. Rules of this project's
+processes), one solved case by case in N worker processes; ``workers=1`` is one thread, the default (None) numba's
+threads as set. Rules of this project's
 interface: no physics here."""
 
 from __future__ import annotations
@@ -39,12 +40,15 @@ def seen(monkeypatch: pytest.MonkeyPatch) -> dict[str, list[int]]:
 
 
 def test_workers_of_a_compiled_sweep_are_threads_here(seen: dict[str, list[int]]) -> None:
-    # Before: workers=2 started two processes of one thread each (~1-2 s each) for work the batch does on threads
-    one = edl.sweep(SLIT, AXES)
+    # Before: workers=2 started two processes of one thread each (~1-2 s each) for work the batch does on threads.
+    # By default (workers=None) the batch runs on numba's threads as they are set: every core unless set fewer.
+    default = edl.sweep(SLIT, AXES)
+    one = edl.sweep(SLIT, AXES, workers=1)
     two = edl.sweep(SLIT, AXES, workers=2)
     xr.testing.assert_identical(two, one)
-    assert seen["processes"] == [1, 1]
-    assert seen["threads"] == [1, min(2, numba.config.NUMBA_NUM_THREADS)]
+    xr.testing.assert_identical(default, one)
+    assert seen["processes"] == [1, 1, 1]
+    assert seen["threads"] == [numba.config.NUMBA_NUM_THREADS, 1, min(2, numba.config.NUMBA_NUM_THREADS)]
     assert numba.get_num_threads() == numba.config.NUMBA_NUM_THREADS  # restored after the sweep
 
 
