@@ -61,10 +61,8 @@ def sweep(base: Case, axes: Mapping[str, Any], *, zipped: Sequence[Sequence[str]
     resume : bool
         Finish the sweep of an interrupted ``<path>.partial`` instead of starting afresh.
     workers : int, optional
-        Cores of this machine: N threads here for a sweep solved in compiled batches, N spawned processes for one
-        solved case by case (profiles, rectangles; costs in ``workers.py``); 1 is one thread. None (the default):
-        this process alone, the compiled batch on numba's threads (every core unless ``numba.set_num_threads`` or
-        ``NUMBA_NUM_THREADS`` says fewer).
+        N cores: N threads here for compiled batches, N spawned processes for a sweep solved case by case (costs in
+        ``workers.py``). None (the default): this process, compiled batches on numba's threads (every core).
     dask : str or distributed.Client, optional
         A Dask distributed scheduler address or client (``on_dask``); the results are written here.
     rows_per_task : int, optional
