@@ -21,7 +21,7 @@ from edl_solver.inputs.geometry import Geometry
 from edl_solver.inputs.ion_size import close_packing
 from edl_solver.inputs.wall import Wall
 from edl_solver.plot.rectangle_figure import rectangle_figure
-from edl_solver.plot.shared import new_figure, save_png
+from edl_solver.plot.shared import new_figure, save_png, wall_text
 from edl_solver.report.formatting import MODEL_NAMES, prefixed
 from edl_solver.results.profiles import RectangleProfiles
 from edl_solver.results.result import Result
@@ -34,20 +34,8 @@ _ZOOM_DEBYE_LENGTHS = 8.0
 
 
 def _condition(wall: Wall) -> str:
-    """A wall in brief: ζ, σ, or its regulation (sites, Stern layer, gate); and its slip length."""
-    if wall.kind == "potential":
-        text = f"ζ = {wall.zeta * 1e3:.3g} mV"
-    elif wall.kind == "charge":
-        text = f"σ = {wall.charge_density * 1e3:.3g} mC/m²"
-    else:
-        parts = [f"{site.name} pK {'/'.join(f'{pk:g}' for pk in site.pks)}" for site in wall.sites]
-        if wall.charge_density is not None:
-            parts.append(f"σ_fixed {wall.charge_density * 1e3:.3g} mC/m²")
-        if wall.stern_capacitance is not None:
-            parts.append(f"C_S {wall.stern_capacitance:.3g} F/m²")
-        if wall.gate_voltage is not None:
-            parts.append(f"gate {wall.gate_voltage:.3g} V")
-        text = f"regulated ({', '.join(parts)})"
+    """A wall in brief (``shared.wall_text``: ζ, σ, or its regulation) and its slip length."""
+    text = wall_text(wall)
     return text + (f", slip b = {wall.slip_length * 1e9:.3g} nm" if wall.slip_length > 0.0 else "")
 
 
