@@ -16,7 +16,6 @@ and N doubled until their difference over 8 meets ``Numerics(accuracy=...)`` rel
 
 from __future__ import annotations
 
-import dataclasses
 import json
 from typing import Any
 
@@ -25,11 +24,8 @@ import numpy as np
 from edl_solver.errors import ConvergenceError, InputError
 from edl_solver.inputs.case import Case, Numerics
 from edl_solver.inputs.casefile import case_to_mapping
-from edl_solver.inputs.geometry import Rectangle
-from edl_solver.kernels import layout, prepare
-from edl_solver.kernels.adaptive import LEVELS, extrapolate
-from edl_solver.kernels.fv1d import charge, finite_volume_metric
-from edl_solver.model import packing, section
+from edl_solver.kernels import layout
+from edl_solver.model.flow_operator import check_section, extrapolated, flow_operator, level_intervals
 
 #: Cells of the finest grid to start from, and the most the refinement takes.
 FIRST_INTERVALS = 64
@@ -50,80 +46,28 @@ def _frequencies(frequencies: Any) -> np.ndarray:
     return values
 
 
-def _check_case(case: Case) -> None:
-    if not isinstance(case, Case):
-        raise InputError(f"case: {type(case).__name__} is not a Case, expected edl_solver.Case(...)")
-    if isinstance(case.geometry, Rectangle):
-        raise InputError("case.geometry: the frequency response of a rectangle is not solved, expected a Slit or "
-                         "a Capillary")
-    if case.solvent.viscoelectric_coefficient:
-        raise InputError(f"solvent.viscoelectric_coefficient: {case.solvent.viscoelectric_coefficient:g} m^2/V^2 "
-                         "makes the flow nonlinear in the field, expected 0 for a frequency response")
-    if case.solvent.density is None:
-        raise InputError(f"solvent.density: none at {case.solvent.temperature:g} K (outside water's correlation), "
-                         "expected Solvent(..., density=...) in kg/m^3")
-
-
-def _grid_response(case: Case, intervals: int, omegas: np.ndarray) -> tuple[np.ndarray, np.ndarray, np.ndarray]:
+def _grid_response(case: Case, intervals: int, omegas: np.ndarray) -> tuple[np.ndarray, np.ndarray]:
     """The complex section integrals (sum V v and sum V rho_hat v per unit field, dimensionless) at every
     dimensionless frequency ``omegas`` on the equilibrium grid of ``intervals`` cells, and the scales vector."""
-    fixed = dataclasses.replace(case, numerics=dataclasses.replace(case.numerics, intervals=intervals))
-    vector = packing.case_vector(fixed)
-    solved = section.solve_and_summarize(vector, fixed, np.empty(layout.SUMMARY_SIZE))
-    cells = finite_volume_metric(solved.s, solved.beta, int(vector[layout.P_METRIC]))
-    ions, model = prepare.species(vector), int(vector[layout.P_MODEL])
-    rho = np.array([charge(p, ions, model)[0] for p in solved.psi.tolist()])
-    sc = solved.scales
-    kappa2 = (sc[layout.S_LENGTH] / sc[layout.S_DEBYE_LENGTH]) ** 2
-    problem = prepare.section_problem(vector, sc, prepare.isolated_walls(vector, sc))
-    flow_walls = problem.flow_walls
-    n = solved.s.size
-    link, volume = cells.link, cells.volume
-    # tridiagonal rows sum_j a_ij (v_j - v_i) - i Omega V_i v_i = -kappa2 V_i rho_i; ends: no slip (v = 0), Navier
-    # slip (-v / b_hat of shear into the end cell), or a symmetry plane (no flux), as ``fv1d.stokes_operator``
-    lower = np.zeros(n, dtype=complex)
-    upper = np.zeros(n, dtype=complex)
-    lower[1:] = link
-    upper[:-1] = link
-    base = -(np.concatenate(([0.0], link)) + np.concatenate((link, [0.0]))).astype(complex)
-    rhs = (-kappa2 * volume * rho).astype(complex)
-    fixed_rows = []
-    for end, row in ((0, 0), (1, n - 1)):
-        code = int(flow_walls[end, layout.FLOW_CODE])
-        if code == layout.POTENTIAL:
-            fixed_rows.append(row)
-        elif code == layout.ROBIN:
-            base[row] -= flow_walls[end, layout.FLOW_VALUE]
-    out = np.empty((omegas.size, 2), dtype=complex)
     from scipy.linalg import solve_banded
 
+    op = flow_operator(case, intervals)
+    # rows sum_j a_ij (v_j - v_i) - i Omega V_i v_i = -kappa2 V_i rho_i, v = 0 on a no-slip wall
+    rhs = (-op.kappa2 * op.volume * op.rho).astype(complex)
+    rhs[list(op.fixed)] = 0.0
+    out = np.empty((omegas.size, 2), dtype=complex)
     for k, omega in enumerate(omegas):
-        bands = np.zeros((3, n), dtype=complex)
-        diag = base - 1j * omega * volume
-        b = rhs.copy()
-        bands[0, 1:] = upper[:-1]
-        bands[1] = diag
-        bands[2, :-1] = lower[1:]
-        for row in fixed_rows:  # v = 0 at a no-slip wall
+        bands = np.zeros((3, op.volume.size), dtype=complex)
+        bands[0, 1:], bands[1], bands[2, :-1] = op.upper[:-1], op.diagonal - 1j * omega * op.volume, op.lower[1:]
+        for row in op.fixed:
             bands[1, row] = 1.0
-            b[row] = 0.0
-            if row + 1 < n:
+            if row + 1 < op.volume.size:
                 bands[0, row + 1] = 0.0
             if row > 0:
                 bands[2, row - 1] = 0.0
-        v = solve_banded((1, 1), bands, b)
-        out[k] = volume @ v, volume @ (rho * v)
-    return out, sc, cells
-
-
-def _extrapolated(levels: list[np.ndarray]) -> tuple[np.ndarray, np.ndarray]:
-    """Richardson over the LEVELS grids (finest last), per complex value: the finer and the coarser estimate."""
-    finer, coarser = np.empty(levels[0].size * 2), np.empty(levels[0].size * 2)
-    parts = [np.concatenate((lv.real.ravel(), lv.imag.ravel())) for lv in levels]
-    extrapolate(parts[3], parts[2], parts[1], finer)
-    extrapolate(parts[2], parts[1], parts[0], coarser)
-    half, shape = levels[0].size, levels[0].shape
-    return ((finer[:half] + 1j * finer[half:]).reshape(shape), (coarser[:half] + 1j * coarser[half:]).reshape(shape))
+        v = solve_banded((1, 1), bands, rhs)
+        out[k] = op.volume @ v, op.volume @ (op.rho * v)
+    return out, op.scales
 
 
 def _responses(case: Case, omegas: np.ndarray) -> tuple[np.ndarray, np.ndarray, float, int]:
@@ -132,10 +76,10 @@ def _responses(case: Case, omegas: np.ndarray) -> tuple[np.ndarray, np.ndarray, 
     intervals = numerics.intervals or FIRST_INTERVALS
     while True:
         levels, sc = [], None
-        for level in range(LEVELS):
-            values, sc, _ = _grid_response(case, intervals // 2 ** (LEVELS - 1 - level), omegas)
+        for cells in level_intervals(intervals):
+            values, sc = _grid_response(case, cells, omegas)
             levels.append(values)
-        finer, coarser = _extrapolated(levels)
+        finer, coarser = extrapolated(levels)
         # each response against its own size, floored at a tiny part of the steady one (a vanishing response at
         # high frequency is measured against what it falls from)
         steady = np.max(np.abs(finer), axis=0)
@@ -179,7 +123,7 @@ def frequency_response(case: Case, frequencies: Any) -> Any:
     """
     import xarray as xr
 
-    _check_case(case)
+    check_section(case, "frequency response")
     freqs = _frequencies(frequencies)
     omega = 2.0 * np.pi * freqs
     rho_m, eta = case.solvent.density, case.solvent.viscosity
