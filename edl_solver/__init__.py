@@ -30,6 +30,7 @@ if _typing.TYPE_CHECKING:
     from edl_solver.fitting.result import Fit
     from edl_solver.fitting.run import fit
     from edl_solver.model.frequency import frequency_response
+    from edl_solver.model.startup import transient
     from edl_solver.pipeline import solve
     from edl_solver.sweeping.run import sweep
 
@@ -78,6 +79,10 @@ def __getattr__(name: str) -> _typing.Any:
         from edl_solver.fitting.result import Fit
 
         return Fit
+    if name == "transient":
+        from edl_solver.model.startup import transient
+
+        return transient
     if name == "frequency_response":
         from edl_solver.model.frequency import frequency_response
 
@@ -114,6 +119,7 @@ __all__ = [
     "load",
     "solve",
     "sweep",
+    "transient",
 ]
 
 

@@ -9,7 +9,7 @@ import edl_solver as edl
 PUBLIC = {"Case", "Slit", "Capillary", "Rectangle", "RectangleProfiles", "Electrolyte", "Ion", "Site", "Wall",
           "Solvent", "Water", "Numerics",
           "solve", "sweep", "load", "Channel", "Profiles", "Result", "InputError", "ConvergenceError",
-          "fit", "Fit", "frequency_response", "__version__"}
+          "fit", "Fit", "frequency_response", "transient", "__version__"}
 
 
 def test_dir_shows_the_public_api_and_nothing_else() -> None:
