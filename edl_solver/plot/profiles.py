@@ -20,7 +20,7 @@ from edl_solver.inputs.case import Case
 from edl_solver.inputs.geometry import Geometry
 from edl_solver.inputs.ion_size import close_packing
 from edl_solver.inputs.wall import Wall
-from edl_solver.plot.rectangle_figure import rectangle_figure
+from edl_solver.plot.rectangle_figure import rectangle_figure, thin_layer_per_field
 from edl_solver.plot.shared import new_figure, save_png, wall_text
 from edl_solver.report.formatting import MODEL_NAMES, prefixed
 from edl_solver.results.profiles import RectangleProfiles
@@ -134,11 +134,23 @@ def _draw_concentrations(axes: Any, x: np.ndarray, result: Result) -> tuple[list
     return handles, bool(np.isnan(concentration).any())
 
 
+def _at_rest(case: Case) -> bool:
+    """No field and no pressure gradient: the velocities are zero, so the figure draws the EO velocity per unit
+    field instead (as the rectangle's figure does)."""
+    return case.field == 0.0 and case.pressure_gradient == 0.0
+
+
 def _draw_velocities(axes: Any, x: np.ndarray, result: Result) -> None:
     """The EO velocity, the pressure-driven one and their sum when there is a pressure gradient, and the
-    thin-layer slip profile dashed."""
-    p = result.profiles
+    thin-layer slip profile dashed; per kV/m for a case at rest (``_at_rest``)."""
+    p, case = result.profiles, result.case
     axes.axhline(0.0, color="0.6", lw=0.6)
+    if _at_rest(case):  # µm/s per kV/m; the thin-layer profile is linear between the walls' slip velocities
+        bottom, top = (1e9 * slip for slip in thin_layer_per_field(case))
+        thin = bottom + (top - bottom) * x / x[-1] if case.geometry.wall_count == 2 else np.full(x.shape, top)
+        axes.plot(x, p.eo_per_field * 1e9, color="C0", label="electroosmotic, per kV/m (no field in the case)")
+        axes.plot(x, thin, color="C3", ls="--", label="thin-layer slip model (EO), per kV/m")
+        return
     pressure = bool(np.any(p.velocity_pressure != 0.0))
     if pressure:  # drawn first and broad, so the EO line stays visible where the two coincide
         axes.plot(x, p.velocity * 1e6, color="0.2", lw=3.0, alpha=0.35, label="total")
@@ -227,6 +239,8 @@ def profile_figure(result: Result, path: str | os.PathLike[str]) -> Path:
         for axes in grid[:-1, column]:
             axes.tick_params(labelbottom=False)
     _frame(grid, case.geometry, zooms, low, high, margin)
+    if _at_rest(case):
+        grid[2, 0].set_ylabel("u/E (µm/s per kV/m)\n(> 0 along E)")
     _write_titles(figure, grid[0, 0], result, zoomed=bool(zooms))
 
     return save_png(figure, path)

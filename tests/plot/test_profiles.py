@@ -128,3 +128,30 @@ def test_figure_marks_the_charge_plane_of_a_stern_wall(regulated: edl.Result, tm
     assert list(marks[0].get_ydata()) == [regulated.summary["stern_potential"][0] * 1e3]
     closes = [line for axes in figure.axes for line in axes.get_lines() if "close packing" in str(line.get_label())]
     assert not closes  # point ions: no ceiling
+
+
+def test_a_case_at_rest_draws_the_eo_velocity_per_unit_field(tmp_path, monkeypatch) -> None:
+    """No field and no pressure gradient: the velocity panel shows u/E in µm/s per kV/m (it drew lines at zero),
+    the EO profile per unit field and the thin-layer line from the walls' Helmholtz-Smoluchowski slips, as the
+    summary gives them per unit field once a field is set (common practice)."""
+    import edl_solver as edl
+    from edl_solver.plot import profiles as plot_profiles
+
+    drawn = []
+    save = plot_profiles.save_png
+
+    def keep(figure, target):
+        drawn.append(figure)
+        return save(figure, target)
+
+    monkeypatch.setattr(plot_profiles, "save_png", keep)
+    salt = edl.Electrolyte.from_ions({"K+": "1 mM", "Cl-": "1 mM"})
+    walls = (edl.Wall(zeta="-50 mV"), edl.Wall(charge_density="1 mC/m^2"))
+    rest = edl.solve(edl.Case(edl.Slit(height="40 nm"), salt, walls))
+    plot_profiles.profile_figure(rest, tmp_path / "rest.png")
+    velocity_axes = [axes for axes in drawn[0].axes if axes.get_ylabel().startswith("u/E")]
+    assert len(velocity_axes) == 1
+    eo, thin = (line.get_ydata() for line in velocity_axes[0].get_lines() if "per kV/m" in str(line.get_label()))
+    assert eo == pytest.approx(rest.profiles.eo_per_field * 1e9, rel=1e-12)
+    driven = edl.solve(edl.Case(edl.Slit(height="40 nm"), salt, walls, field=1e3)).summary["hs_velocity"]
+    assert (thin[0], thin[-1]) == pytest.approx((driven[0] * 1e6, driven[1] * 1e6), rel=1e-9)
