@@ -238,7 +238,7 @@ def _apply_wall_flags(data: dict[str, Any], args: argparse.Namespace, origins: d
     names = _wall_names(data.get("geometry"), name, second_flag)
     wall = data.get("wall") if isinstance(data.get("wall"), dict) else {}
     first_now = wall.get(names[0]) if any(key in wall for key in names) else wall or None
-    first = every if every is not None else first_now
+    first = every if every is not None else {"preset": "silica"} if args.silica else first_now
     if not isinstance(first, dict):
         raise InputError(f"{second_flag}: the {names[0]} walls have no condition, expected --zeta or "
                          "--charge-density (or a [wall] section in the case file) as well")
@@ -275,7 +275,9 @@ def _apply_model_flags(data: dict[str, Any], args: argparse.Namespace, origins: 
         if value is not None:
             set_input(data, path, value)
             origins[path] = flag
-    if args.silica:
+    apart = any(getattr(args, f"{name}_{key}") is not None for name in ("top", "sides")
+                for key in ("zeta", "charge_density"))
+    if args.silica and not apart:  # with --top-*/--sides-*, the first wall (pair) is silica (_apply_wall_flags)
         data["wall"] = {"preset": "silica"}  # the whole wall: a preset admits only a slip length beside it
         origins["wall.preset"] = "--silica"
     if args.slip_length is not None:

@@ -88,3 +88,14 @@ def test_wall_flags_of_another_geometry_are_refused_naming_the_right_ones(argv: 
 
 def test_no_geometry_names_the_rectangle_among_the_flags() -> None:
     _one_line_error([*IONS, "--zeta", "-50mV"], "--rectangle W×H")
+
+
+def test_silica_with_a_second_wall_flag_makes_the_first_wall_silica() -> None:
+    # it said "the bottom walls have no condition" although --silica gives every wall one
+    code, out, err = run(["solve", "--slit", "40nm", *IONS, "--pH", "7", "--silica", "--top-zeta", "-20mV", *QUICK])
+    assert code == 0, err
+    assert "Bottom wall: charge-regulated; silanol sites" in out and "Top wall: zeta = -20 mV" in out
+    code, out, err = run(["solve", "--rectangle", "200nmx40nm", *IONS, "--pH", "7", "--silica",
+                          "--sides-charge-density", "1mC/m^2", *QUICK])
+    assert code == 0, err
+    assert "Top and bottom walls: charge-regulated" in out and "Side walls: charge density = 1 mC/m²" in out
