@@ -80,8 +80,8 @@ def add_case_flags(parser: argparse.ArgumentParser) -> None:
     electrolyte.add_argument("--diameter", metavar="D",
                              help="one ion diameter for every ion (steric model), e.g. 0.7nm [electrolyte.diameter]")
     bottom.add_argument("--silica", action="store_true",
-                        help="silica walls: silanol sites (pK 7.5, 8/nm^2) and a 2.9 F/m^2 Stern layer; needs --pH "
-                             "[wall.preset]")
+                        help="silica walls: silanol sites (pK 7.5, 8/nm^2) and a 2.9 F/m^2 Stern layer; needs --pH; "
+                             "with --top-* or --sides-*, the other walls [wall.preset]")
     walls.add_argument("--slip-length", metavar="B", help="Navier slip length of every wall, e.g. 2nm "
                                                           "[wall.slip_length]")
     conditions.add_argument("--viscoelectric", action="store_true",
