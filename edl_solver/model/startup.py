@@ -3,9 +3,9 @@
 When only the field and the pressure gradient change at t = 0 the double layer stays at equilibrium (the field
 is along the channel, and a long uniform channel has no gradient along it), so what evolves is the flow:
 rho_m du/dt = eta lap(u) - dp/dx + rho_e E with the equilibrium space charge, from the steady flow of the drives
-``before`` to that of the drives of ``case`` (EO start-up when ``before`` has none). Steps of the walls, the
-electrolyte or anything else charge the double layer and need the transient Poisson-Nernst-Planck solver, which
-is not built yet: they are refused.
+``before`` to that of the drives of ``case`` (EO start-up when ``before`` has none). That case is solved here.
+Steps of the walls and drives that vary in time charge the double layer: they go to the transient
+Poisson-Nernst-Planck solver (``model.pnp_run``).
 
 The discrete problem M dv/dt = A v + M f (the steady solver's finite volumes, ``model.flow_operator``) is solved
 exactly in time: with S = M^-1/2 A M^-1/2 = -Q diag(lambda) Q^T, a section integral g^T M v(t) of the
@@ -18,6 +18,7 @@ from __future__ import annotations
 
 import dataclasses
 import json
+from collections.abc import Callable
 from typing import Any
 
 import numpy as np
@@ -54,19 +55,31 @@ def _times(times: Any) -> np.ndarray:
     return values
 
 
-def _check_before(case: Case, before: Any) -> Case:
-    """``before`` (default: ``case`` at rest), checked to differ from ``case`` in its drives alone."""
+def _default_before(case: Case, before: Any) -> Case:
+    """``before``, by default ``case`` at rest (field and pressure gradient off)."""
     if before is None:
         return dataclasses.replace(case, field=0.0, pressure_gradient=0.0)
     if not isinstance(before, Case):
         raise InputError(f"before: {type(before).__name__} is not a Case, expected edl_solver.Case(...) or None")
-    other = [f.name for f in dataclasses.fields(Case) if f.name not in (*DRIVES, "numerics", "tolerance")
-             and getattr(before, f.name) != getattr(case, f.name)]
-    if other:
-        raise InputError(f"before: differs from case in {', '.join(other)}, expected a step of the field or the "
-                         "pressure gradient alone: a change of walls, electrolyte, solvent, geometry or model charges "
-                         "the double layer, which needs the transient Poisson-Nernst-Planck solver (not built yet)")
     return before
+
+
+def _drives_only(case: Case, before: Case) -> bool:
+    """Whether ``before`` differs from ``case`` in its drives alone (the double layer does not change)."""
+    return not [f.name for f in dataclasses.fields(Case) if f.name not in (*DRIVES, "numerics", "tolerance")
+                and getattr(before, f.name) != getattr(case, f.name)]
+
+
+def _charging(case: Case, before: Case, drives: Any, t: np.ndarray,
+              progress: Callable[[float], None] | None) -> Any:
+    """The transient Poisson-Nernst-Planck run of a step that charges the layer."""
+    from edl_solver.model import pnp_dataset, pnp_run
+    from edl_solver.model.pnp_drives import drives_json
+    from edl_solver.model.pnp_setup import check_before
+
+    check_before(case, before)
+    result = pnp_run.run(case, before, drives, t, progress)
+    return pnp_dataset.dataset(case, before, drives_json(drives, case), t, result)
 
 
 def _grid_series(case: Case, intervals: int, taus: np.ndarray) -> tuple[np.ndarray, np.ndarray]:
@@ -112,8 +125,14 @@ def _series(case: Case, taus: np.ndarray) -> tuple[np.ndarray, np.ndarray, float
         intervals *= 2
 
 
-def transient(case: Case, times: Any, before: Case | None = None) -> Any:
-    """The flow after the drives step at t = 0 from those of ``before`` to those of ``case``.
+def transient(case: Case, times: Any, before: Case | None = None, drives: Any = None,
+              progress: Callable[[float], None] | None = None) -> Any:
+    """The section after a step at t = 0 from the equilibrium of ``before`` to the conditions of ``case``.
+
+    A step of the field or the pressure gradient alone leaves the double layer at equilibrium: the flow's
+    start-up is solved exactly (this module). Anything else - a step of the walls (electrode or gate switching,
+    a change of wall charge), drives that vary in time - charges the layer and is solved by the transient
+    Poisson-Nernst-Planck solver (``model.pnp_run``), in a closed section.
 
     Parameters
     ----------
@@ -122,32 +141,45 @@ def transient(case: Case, times: Any, before: Case | None = None) -> Any:
     times : sequence of float
         Output times after the step, s, > 0 and increasing.
     before : Case, optional
-        The conditions before (their steady flow is the start); by default ``case`` with the field and the
-        pressure gradient off (an EO and pressure start-up from rest). It may differ from ``case`` in
-        ``field`` and ``pressure_gradient`` only (see the module docstring).
+        The conditions before (their reservoir equilibrium and steady flow are the start); by default ``case``
+        with the field and the pressure gradient off (an EO and pressure start-up from rest). It may differ
+        from ``case`` in its walls, field and pressure gradient (the same geometry, electrolyte, solvent and
+        model: the section is closed).
+    drives : mapping of str to Drive, optional
+        Values that vary in time after the step, by target ("field", "pressure_gradient", "wall.zeta",
+        "wall.top.charge_density", "wall.gate_voltage", ...; ``inputs.drives``); they replace those of ``case``.
+    progress : callable, optional
+        Called with the fraction done (0 to 1) during a Poisson-Nernst-Planck run.
 
     Returns
     -------
     xarray.Dataset
         On the dimension ``time`` (s): ``mean_velocity_eo`` (the field-driven part), ``mean_velocity_pressure``,
         ``mean_velocity``, ``flow_rate`` (per unit width for a slit), ``convection_current`` (the space charge
-        carried by the flow), ``conduction_current`` and ``wall_charge_density`` (constant: the double layer does
-        not change; on (time, wall) when the walls differ), ``error_estimate``. Attributes: both cases
-        (``case_json``, ``before_json``) and the viscous time rho_m L^2 / eta.
+        carried by the flow), ``conduction_current``, ``wall_charge_density`` and ``wall_potential`` (on (time,
+        wall) when the walls differ), ``error_estimate``; for a Poisson-Nernst-Planck run also ``space_charge``,
+        ``salt_stored`` (ions in excess of the centre's concentration), ``inventory`` (time, ion), the drives'
+        ``field`` and ``pressure_gradient``, the profiles ``potential``, ``velocity_eo``, ``velocity`` (time, x)
+        and ``concentration`` (time, ion, x), and the closed-section and reservoir equilibria of the walls after
+        the step (``closed_*``, ``reservoir_*``). Attributes: both cases (``case_json``, ``before_json``), the
+        drives (``drives_json``), ``kind`` and the time scales.
 
     Raises
     ------
     InputError
-        Times not > 0 and increasing, a ``before`` that differs in more than the drives, a rectangle, a
-        viscoelectric solvent or a solvent without density.
+        Times not > 0 and increasing, a ``before`` with another geometry, electrolyte, solvent or model, a
+        rectangle, a viscoelectric solvent, a solvent without density, a steric model for a charging step, a
+        bad drive.
     ConvergenceError
-        The equilibrium solve or the accuracy of the series failed.
+        The equilibrium solve, the time stepping or the accuracy failed.
     """
     import xarray as xr
 
     check_section(case, "transient flow")
-    before = _check_before(case, before)
+    before = _default_before(case, before)
     t = _times(times)
+    if drives or not _drives_only(case, before):
+        return _charging(case, before, drives, t, progress)
     length = case.geometry.half_size
     viscous_time = case.solvent.density * length**2 / case.solvent.viscosity
     series, sc, estimate = _series(case, t / viscous_time)

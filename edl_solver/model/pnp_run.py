@@ -1,0 +1,116 @@
+"""A transient Poisson-Nernst-Planck run: the compiled stepper on nested grids, extrapolated to the accuracy.
+
+Each grid is stepped from t = 0 to the last output time with TR-BDF2 (``kernels.pnp_stepper``), stopping exactly
+at every output time and at every jump or kink of a drive (where the potential is made consistent with the new
+wall values before stepping on). The time error is held to a share of ``Numerics(accuracy)`` by the stepper's
+control; the grid error is removed by Richardson extrapolation over four nested grids of the reported series
+(as the steady solver does), and the grids are refined until the estimate meets the accuracy, each series
+measured against its largest magnitude in the run.
+"""
+
+from __future__ import annotations
+
+from collections.abc import Callable
+from typing import Any, NamedTuple
+
+import numpy as np
+
+from edl_solver.errors import ConvergenceError
+from edl_solver.inputs.case import Case
+from edl_solver.kernels import pnp_stepper
+from edl_solver.model import pnp_quantities
+from edl_solver.model.flow_operator import extrapolated, level_intervals
+from edl_solver.model.pnp_setup import Setup, build
+
+#: Cells per half section of the finest of the four grids to start from.
+FIRST_INTERVALS = 64
+#: Share of the accuracy left to the time stepping (the rest is the grids').
+TIME_SHARE = 0.05
+#: Steps allowed between two stops.
+MAX_STEPS = 2_000_000
+
+
+class GridRun(NamedTuple):
+    """One grid's run: its setup, the states at the output times and the stepper's counters."""
+
+    setup: Setup
+    states: np.ndarray
+    stats: np.ndarray
+
+
+def run_grid(case: Case, before: Case, drives: Any, intervals: int, times: np.ndarray, accuracy: float,
+             progress: Callable[[float], None] | None = None) -> GridRun:
+    """Step one grid through the output ``times`` (s)."""
+    setup = build(case, before, drives, intervals, float(times[-1]))
+    pr = setup.problem
+    y = setup.start.copy()
+    slopes = np.empty_like(y)
+    if not pnp_stepper.consistent(y, 0.0, pr, slopes):
+        raise ConvergenceError(f"{case.describe()}: the potential right after the step did not converge")
+    t_out = times / setup.time_unit
+    jumps = setup.breakpoints
+    stops = np.unique(np.concatenate((t_out, jumps)))
+    debye = 1.0 / pr.kappa2
+    h = 1e-3 * min(t_out[0], debye, pr.ratio if pr.ratio > 0 else debye)
+    stats = np.zeros(4, dtype=np.int64)
+    states = np.empty((times.size, *y.shape))
+    t, k = 0.0, 0
+    tol = accuracy * TIME_SHARE
+    for stop in stops:
+        status, h = pnp_stepper.advance(y, slopes, t, stop, h, pr, setup.error_scales, tol, MAX_STEPS, stats)
+        if status != pnp_stepper.OK:
+            reason = {pnp_stepper.STEP_TOO_SMALL: "the time step fell below round-off",
+                      pnp_stepper.TOO_MANY_STEPS: f"more than {MAX_STEPS} steps"}.get(status, "Newton failed")
+            raise ConvergenceError(f"{case.describe()}: transient Poisson-Nernst-Planck: {reason} at "
+                                   f"t = {t * setup.time_unit:.3g} s")
+        t = stop
+        if np.any(jumps == stop) and not pnp_stepper.consistent(y, stop, pr, slopes):
+            raise ConvergenceError(f"{case.describe()}: the potential after the drive's jump at "
+                                   f"t = {stop * setup.time_unit:.3g} s did not converge")
+        while k < t_out.size and t_out[k] == stop:
+            states[k] = y
+            k += 1
+        if progress is not None:
+            progress(stop / stops[-1])
+    return GridRun(setup, states, stats)
+
+
+def _share(progress: Callable[[float], None], width: float, offset: float) -> Callable[[float], None]:
+    """``progress`` for one grid's part [offset, offset + width] of the run."""
+    return lambda fraction: progress(offset + width * fraction)
+
+
+class Extrapolated(NamedTuple):
+    """The reported series extrapolated over the grids, its error estimate, and the finest grid's run."""
+
+    values: np.ndarray
+    estimate: float
+    finest: GridRun
+    intervals: int
+    steps: int
+
+
+def run(case: Case, before: Case, drives: Any, times: np.ndarray,
+        progress: Callable[[float], None] | None = None) -> Extrapolated:
+    """The series on nested grids, refined until the extrapolation's estimate meets the accuracy."""
+    numerics = case.numerics
+    intervals = numerics.intervals or FIRST_INTERVALS
+    while True:
+        cells = level_intervals(intervals)
+        levels, finest, steps = [], None, 0
+        for number, level in enumerate(cells):
+            # the work per grid roughly doubles with its cells: the finest is about half of the whole
+            report = None if progress is None else _share(progress, 2.0**number / 15.0, (2.0**number - 1) / 15.0)
+            finest = run_grid(case, before, drives, level, times, numerics.accuracy, report)
+            steps += int(finest.stats[pnp_stepper.STAT_STEPS])
+            levels.append(pnp_quantities.series(finest.setup, finest.states, times))
+        finer, coarser = (part.real for part in extrapolated(levels))
+        scale = np.maximum(np.maximum(np.max(np.abs(finer), axis=0), pnp_quantities.floors(finest.setup, finer)),
+                           1e-300)
+        estimate = float(np.max(np.abs(finer - coarser) / scale))
+        if estimate <= numerics.accuracy or numerics.intervals:
+            return Extrapolated(finer, estimate, finest, intervals, steps)
+        if 2 * intervals > numerics.max_intervals:
+            raise ConvergenceError(f"{case.describe()}: transient Poisson-Nernst-Planck: accuracy "
+                                   f"{numerics.accuracy:g} missed (estimate {estimate:.2g}) with {intervals} cells")
+        intervals *= 2
