@@ -65,7 +65,8 @@ def _newton(y, b, c, t, pr, scales, tol, res, delta, lower, diag, upper, pivots,
             for q in range(m):
                 step = shrink * delta[j, q]
                 y[j, q] -= step
-                limit = ION_TOLERANCE if q < nion else 1e-3 * tol * scales[q]
+                # the potential and velocities to a thousandth of the tolerance, not below round-off
+                limit = ION_TOLERANCE if q < nion else max(1e-3 * tol * scales[q], 1e-12 * (1.0 + abs(y[j, q])))
                 if abs(step) > limit:
                     done = False
         if done:
