@@ -173,6 +173,10 @@ class Drive:
         times, values, unit = read_table(path)
         return cls.table(times, values, unit=unit)
 
+    def __repr__(self) -> str:
+        arguments = ", ".join(f"{key}={value!r}" for key, value in self.to_mapping().items() if key != "kind")
+        return f"Drive.{self.kind}({arguments})"
+
     def to_mapping(self) -> dict[str, Any]:
         """A plain dict (JSON and TOML): ``kind``, the drive's keys, ``unit`` when given; ``from_mapping`` of it
         is this drive."""
@@ -274,7 +278,7 @@ class BoundDrive:
             n = len(p) // 2
             return np.array(p[:n]), np.array(p[n:])
         if kind == "square":
-            return signals.square_points(*p, t_end, self.target)
+            return signals.square_points(*p, t_end, f"drives[{self.target!r}]")
         raise ValueError(f"{self.target}: a sine drive has no points, expected its .sine")
 
     def value(self, t: Any) -> Any:
