@@ -99,7 +99,7 @@ class Drive:
     unit: str | None = None
 
     def __post_init__(self) -> None:
-        if self.kind not in _KEYS:
+        if not isinstance(self.kind, str) or self.kind not in _KEYS:
             raise InputError(f"drive.kind: {self.kind!r} is not a kind of drive, expected one of "
                              f"{', '.join(DRIVE_KINDS)}")
         keys = _KEYS[self.kind]
@@ -194,7 +194,7 @@ class Drive:
             raise InputError(f"{where}: {table!r} is not a table, expected kind = one of {', '.join(DRIVE_KINDS)} "
                              "and its keys")
         kind = table.get("kind")
-        if kind not in _KEYS:
+        if not isinstance(kind, str) or kind not in _KEYS:
             raise InputError(f"{where}.kind: {kind!r} is not a kind of drive, expected one of "
                              f"{', '.join(DRIVE_KINDS)}")
         known = (*_KEYS[kind], "kind", "unit")
@@ -210,8 +210,8 @@ class Drive:
             raise InputError(f"{where}{text[len('drive'):]}" if text.startswith("drive.") else text) from None
 
     def describe(self) -> str:
-        """One line, e.g. "sine of amplitude '10 kV/m' at 1e+06 Hz, offset 0, phase 0 rad"."""
-        unit = f" {self.unit}" if self.unit else ""
+        """One line, e.g. "sine of amplitude '10 kV/m' at 1e+06 Hz, offset 0 (SI), phase 0 rad"."""
+        unit = f" {self.unit}" if self.unit else " (SI)"
 
         def shown(value: Any) -> str:
             return repr(value) if isinstance(value, str) else f"{value:g}{unit}"

@@ -296,3 +296,25 @@ def test_drives_json_round_trip() -> None:
 def test_from_mapping_refuses_naming_where(table, message) -> None:
     with pytest.raises(InputError, match=message):
         Drive.from_mapping(table, "here")
+
+
+def test_a_kind_that_is_not_a_word_is_refused() -> None:
+    with pytest.raises(InputError, match=r"drive.kind: \['sine'\] is not a kind of drive"):
+        Drive(["sine"], amplitude=1, frequency=1)
+    with pytest.raises(InputError, match=r"here.kind: \['sine'\] is not a kind of drive"):
+        Drive.from_mapping({"kind": ["sine"]}, "here")
+
+
+@pytest.mark.parametrize("target", ["pressure_gradient", "wall.top.zeta", "wall.bottom.zeta"])
+def test_piecewise_points_and_breakpoints_agree_with_the_values(target) -> None:
+    # The solver steps between breakpoints on the points: they must be the signal itself (common practice).
+    bound = bind(DRIVES, SLIT)[list(DRIVES).index(target)]
+    t_end = 3.3e-6
+    times, values = bound.piecewise(t_end)
+    breaks = bound.breakpoints(t_end)
+    assert times[0] == 0.0 and times[-1] == t_end and np.all(np.diff(times) >= 0)
+    assert set(breaks) <= set(times[1:])
+    inside = np.linspace(0.0, t_end, 997)[1:]
+    inside = inside[np.min(np.abs(inside[:, None] - breaks[None, :]), axis=1) > 1e-12]  # off the jumps
+    assert np.interp(inside, times, values) == pytest.approx(bound.value(inside), abs=1e-12 * np.max(np.abs(values)))
+    assert bound.value(breaks) == pytest.approx([values[np.flatnonzero(times == b)[-1]] for b in breaks])
