@@ -72,7 +72,8 @@ def single_wall(geometry: Any) -> bool:
 
 def check_keys(data: Mapping[str, Any]) -> None:
     """Reject any key the case does not use, wherever it is, naming it by its dotted path."""
-    _known(data, (*SCALARS, "geometry", "electrolyte", "wall", "solvent", "numerics"), "")
+    # [transient] holds the settings of a transient run, read by inputs.transient_spec, not part of the case.
+    _known(data, (*SCALARS, "geometry", "electrolyte", "wall", "solvent", "numerics", "transient"), "")
     for name, keys in (("geometry", GEOMETRY_KEYS), ("solvent", SOLVENT_KEYS),
                        ("numerics", NUMERICS_KEYS)):
         if isinstance(data.get(name), Mapping):
