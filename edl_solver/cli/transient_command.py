@@ -164,8 +164,16 @@ def _before(case: Any, settings: _Settings) -> Any:
     """The case before the step (``inputs.transient_spec.before_case``), None for the default (the case at rest)."""
     if not settings.before_overrides:
         return None
-    from edl_solver.inputs.transient_spec import TransientSpec, before_case
+    try:
+        from edl_solver.inputs.transient_spec import TransientSpec, before_case
+    except ImportError:  # the [transient] reader is not in this checkout: the same overrides by sweep path
+        from edl_solver.inputs.casefile import case_from_mapping, case_to_mapping
+        from edl_solver.inputs.paths import set_input
 
+        table = case_to_mapping(case)
+        for path, value in settings.before_overrides.items():
+            set_input(table, path, value)
+        return case_from_mapping(table)
     fields = {"times": settings.times, "profile_times": settings.profile_times,
               "before_overrides": settings.before_overrides, "drives": settings.drives}
     spec = dataclasses.replace(settings.file_spec, **fields) if settings.file_spec is not None else \

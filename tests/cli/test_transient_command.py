@@ -236,3 +236,9 @@ def test_a_progress_bar_on_a_terminal_and_none_when_quiet(stand_in_transient: di
         with contextlib.redirect_stdout(io.StringIO()), contextlib.redirect_stderr(err):
             code = main(["transient", *FLAGS, "--times", "1ps:1ns:3", *(["-q"] if quiet else [])])
         assert code == 0 and ("transient: 100%" in err.getvalue()) is shown, err.getvalue()
+
+
+def test_before_flags_without_the_transient_reader_set_the_same_paths(monkeypatch: pytest.MonkeyPatch) -> None:
+    monkeypatch.setitem(sys.modules, "edl_solver.inputs.transient_spec", None)  # the import fails
+    code, out, err = run_transient([*FLAGS, "--times", "1ps:1ns:3", "--before", "field=2kV/m"])
+    assert (code, err) == (0, "") and "  field: 2 kV/m → 10 kV/m" in out.splitlines()

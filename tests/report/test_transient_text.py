@@ -72,3 +72,17 @@ def test_pick_times_spreads_in_log_time_with_both_ends() -> None:
 def test_not_a_run_is_refused_in_one_line() -> None:
     with pytest.raises(InputError, match=r"^run: dict is not a transient run"):
         transient_report({})
+
+
+def test_a_step_of_one_wall_from_a_common_wall_names_that_wall_alone() -> None:
+    import dataclasses
+    import json
+
+    from edl_solver.inputs.casefile import case_to_mapping
+    from tests.io.transient_runs import CASE
+
+    run = full_run()
+    run.attrs["before_json"] = json.dumps(case_to_mapping(dataclasses.replace(CASE, wall=CASE.walls[0])))
+    lines = transient_report(run).splitlines()
+    start = lines.index("Step at t = 0 (before → after):")
+    assert lines[start + 1:start + 3] == ["  wall.top.zeta: -25 mV → -50 mV", "Time-dependent drives:"]
