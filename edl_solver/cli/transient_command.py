@@ -246,12 +246,11 @@ def run_transient_command(args: argparse.Namespace) -> int:
     """The case, the settings and the outputs, checked; then the run (the -o lock held); the files last."""
     from edl_solver.cli.case_flags import case_from_args
     from edl_solver.io.files import output_lock
+    from edl_solver.plot.transient_figure import profile_indices
 
     case = case_from_args(args)
     spec = _settings(args)
     before = _before(case, spec)
-    from edl_solver.plot.transient_figure import profile_indices
-
     profile_indices(spec.times, spec.profile_times)  # within the run's times: checked before the run
     outputs = _outputs(args)
     with output_lock(outputs["run"], "-o") if "run" in outputs else nullcontext():
