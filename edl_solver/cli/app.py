@@ -36,6 +36,7 @@ _COMMANDS: tuple[tuple[str, str], ...] = (
     ("sweep", "edl_solver.cli.sweep_command"),
     ("map", "edl_solver.cli.map_command"),
     ("fit", "edl_solver.cli.fit_command"),
+    ("transient", "edl_solver.cli.transient_command"),
 )
 #: Flags that take no value (a value that is one of them is not attached to the flag before it).
 _SWITCHES = frozenset({"-h", "--help", "--version", "-q", "--quiet", "--print-case", "--resume", "--profile"})
@@ -49,6 +50,7 @@ examples:
   edl sweep design.toml -o design.h5 --workers 4
   edl transport case.toml --length 10um --left 1mM --right 10mM --iv -0.2V:0.2V:41 --iv-figure iv.png
   edl fit data.csv --case case.toml --fit wall.charge_density --length 20um --width 10um -o fit.h5
+  edl transient gate.toml -o gate.h5 --figure gate.png     # after a step at t = 0 ([transient] section)
 
 'edl COMMAND --help' describes each command.
 exit codes: 0 done, 1 output not written, 2 bad input, 3 no convergence, 130 interrupted.

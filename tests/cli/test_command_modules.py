@@ -40,7 +40,7 @@ def subparsers(parser: argparse.ArgumentParser) -> dict[str, argparse.ArgumentPa
 
 def test_the_commands_come_in_the_order_of_the_help() -> None:
     assert list(subparsers(app._parser())) == [name for name, _ in app._COMMANDS] == [
-        "solve", "transport", "demo", "sweep", "map", "fit"]
+        "solve", "transport", "demo", "sweep", "map", "fit", "transient"]
 
 
 def test_every_flag_that_takes_a_value_is_declared() -> None:
