@@ -19,6 +19,7 @@ import typing as _typing
 from edl_solver.errors import ConvergenceError, InputError
 from edl_solver.inputs.case import Case, Numerics
 from edl_solver.inputs.electrolyte import Electrolyte, Ion
+from edl_solver.inputs.drives import Drive
 from edl_solver.inputs.geometry import Capillary, Rectangle, Slit
 from edl_solver.inputs.solvent import Solvent, Water
 from edl_solver.inputs.wall import Site, Wall
@@ -99,6 +100,7 @@ __all__ = [
     "Case",
     "Channel",
     "ConvergenceError",
+    "Drive",
     "Electrolyte",
     "Fit",
     "InputError",

@@ -7,7 +7,7 @@ from __future__ import annotations
 import edl_solver as edl
 
 PUBLIC = {"Case", "Slit", "Capillary", "Rectangle", "RectangleProfiles", "Electrolyte", "Ion", "Site", "Wall",
-          "Solvent", "Water", "Numerics",
+          "Solvent", "Water", "Numerics", "Drive",
           "solve", "sweep", "load", "Channel", "Profiles", "Result", "InputError", "ConvergenceError",
           "fit", "Fit", "frequency_response", "transient", "__version__"}
 

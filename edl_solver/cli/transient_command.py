@@ -164,16 +164,8 @@ def _before(case: Any, settings: _Settings) -> Any:
     """The case before the step (``inputs.transient_spec.before_case``), None for the default (the case at rest)."""
     if not settings.before_overrides:
         return None
-    try:
-        from edl_solver.inputs.transient_spec import TransientSpec, before_case
-    except ImportError:  # the [transient] reader is not in this checkout: the same overrides by sweep path
-        from edl_solver.inputs.casefile import case_from_mapping, case_to_mapping
-        from edl_solver.inputs.paths import set_input
+    from edl_solver.inputs.transient_spec import TransientSpec, before_case
 
-        table = case_to_mapping(case)
-        for path, value in settings.before_overrides.items():
-            set_input(table, path, value)
-        return case_from_mapping(table)
     fields = {"times": settings.times, "profile_times": settings.profile_times,
               "before_overrides": settings.before_overrides, "drives": settings.drives}
     spec = dataclasses.replace(settings.file_spec, **fields) if settings.file_spec is not None else \
@@ -220,26 +212,10 @@ def _progress(quiet: bool) -> Iterator[Callable[[float], None]]:
 
 
 def _run(case: Any, spec: _Settings, before: Any, progress: Callable[[float], None]) -> Any:
-    """``model.startup.transient`` with the keywords it takes (``drives`` and ``progress`` where it has them)."""
-    import inspect
-    import json
-
-    from edl_solver.errors import InputError
+    """``model.startup.transient`` with the drives and the progress bar."""
     from edl_solver.model.startup import transient
 
-    accepted = inspect.signature(transient).parameters
-    keywords: dict[str, Any] = {"before": before}
-    if spec.drives:
-        if "drives" not in accepted:
-            raise InputError(f"drives: {', '.join(spec.drives)} given, expected no time-dependent drives (this "
-                             "version runs steps only)")
-        keywords["drives"] = spec.drives
-    if "progress" in accepted:
-        keywords["progress"] = progress
-    run = transient(case, spec.times, **keywords)
-    if "drives_json" not in run.attrs:  # the drives travel with the run in its file
-        run.attrs["drives_json"] = json.dumps({target: drive.to_mapping() for target, drive in spec.drives.items()})
-    return run
+    return transient(case, spec.times, before=before, drives=spec.drives or None, progress=progress)
 
 
 def run_transient_command(args: argparse.Namespace) -> int:

@@ -109,18 +109,27 @@ def profiles(setup: Setup, states: np.ndarray) -> dict[str, np.ndarray]:
 
 def floors(setup: Setup, values: np.ndarray) -> np.ndarray:
     """Magnitudes below which a series counts as zero for the error estimate: a total that cancels (the space
-    charge between two opposite walls) or a small second-order effect (the salt a weak layer stores) is
-    measured against the size of the quantities it is made of, not against itself."""
-    sc = setup.sc
+    charge between two opposite walls), a small second-order effect (the salt a weak layer stores) or a value
+    that stays zero (the charge of a wall in a closed section) is measured against the size of the quantities it
+    is made of (the changes the time stepping measures its errors against, ``Setup.error_scales``), not against
+    itself."""
+    sc, pr = setup.sc, setup.problem
     nion = setup.bulk.size
-    out = np.zeros(values.shape[1])
     index = {name: i for i, name in enumerate(SERIES)}
+    out = np.zeros(values.shape[1])
+    psi = float(setup.error_scales[nion])
     sigma = max(float(np.max(np.abs(values[:, index[f"wall_charge_density_{end}"]]))) for end in ("left", "right"))
+    sigma = max(sigma, sc[layout.S_CHARGE_DENSITY] * np.sqrt(pr.kappa2) * psi)
     perimeter = sc[layout.S_SECTION_AREA] / sc[layout.S_LENGTH]
+    speeds = (float(setup.error_scales[nion + 1]) * sc[layout.S_EO_VELOCITY] * setup.field_scale,
+              float(setup.error_scales[nion + 2]) * sc[layout.S_PRESSURE_VELOCITY] * setup.pressure_scale)
+    for end in ("left", "right"):
+        out[index[f"wall_charge_density_{end}"]] = sigma
+        out[index[f"wall_potential_{end}"]] = psi * sc[layout.S_THERMAL_VOLTAGE]
+    out[index["mean_velocity_eo"]], out[index["mean_velocity_pressure"]] = speeds
+    out[index["flow_rate"]] = sum(speeds) * sc[layout.S_SECTION_AREA]
     out[index["space_charge"]] = sigma * perimeter
     out[index["salt_stored"]] = float(np.max(setup.error_scales[:nion])) * float(setup.bulk.sum()) * \
         sc[layout.S_SECTION_AREA]
-    speed = max(float(np.max(np.abs(values[:, index[name]]))) for name in ("mean_velocity_eo",
-                                                                          "mean_velocity_pressure"))
-    out[index["convection_current"]] = sigma * perimeter * speed
+    out[index["convection_current"]] = sigma * perimeter * sum(speeds)
     return out

@@ -26,6 +26,8 @@ from edl_solver.model.pnp_setup import Setup, build
 FIRST_INTERVALS = 64
 #: Share of the accuracy left to the time stepping (the rest is the grids').
 TIME_SHARE = 0.05
+#: Smallest share of the accuracy the time stepping's tolerance may be cut to.
+SMALLEST_SHARE = 1e-3 * TIME_SHARE
 #: Steps allowed between two stops.
 MAX_STEPS = 2_000_000
 
@@ -119,6 +121,10 @@ def run(case: Case, before: Case, drives: Any, times: np.ndarray,
         timing /= 3.0
         if timing > 0.5 * numerics.accuracy:
             share *= max(min((0.4 * numerics.accuracy / timing) ** 1.5, 0.5), 1e-3)
+            if share < SMALLEST_SHARE:
+                raise ConvergenceError(f"{case.describe()}: transient Poisson-Nernst-Planck: the time stepping "
+                                       f"misses accuracy {numerics.accuracy:g} (estimate {timing:.2g}) even at a "
+                                       "tolerance a thousandth of the first")
             continue
         estimate = float(np.max(np.abs(finer - coarser) / scale)) + timing
         if estimate <= numerics.accuracy or numerics.intervals:
