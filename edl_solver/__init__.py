@@ -18,8 +18,8 @@ import typing as _typing
 
 from edl_solver.errors import ConvergenceError, InputError
 from edl_solver.inputs.case import Case, Numerics
-from edl_solver.inputs.electrolyte import Electrolyte, Ion
 from edl_solver.inputs.drives import Drive
+from edl_solver.inputs.electrolyte import Electrolyte, Ion
 from edl_solver.inputs.geometry import Capillary, Rectangle, Slit
 from edl_solver.inputs.solvent import Solvent, Water
 from edl_solver.inputs.wall import Site, Wall

@@ -11,8 +11,8 @@ SALT = edl.Electrolyte.from_ions({"K+": "1 mM", "Cl-": "1 mM"})
 
 
 def test_a_sine_field_settles_to_the_frequency_response() -> None:
-    """E(t) = E0 sin(2 pi f t) from rest, f = 2 GHz (5 viscous rates): after six periods (14 decay times of the slowest viscous mode) the mean EO velocity is
-    A sin(2 pi f t + phase) with A and phase of ``frequency_response`` (its cos convention shifted by a quarter
+    """E(t) = E0 sin(2 pi f t) from rest, f = 2 GHz (5 viscous rates): after six periods (14 decay times of the
+    slowest viscous mode) the mean EO velocity is A sin(2 pi f t + phase) with A and phase of ``frequency_response`` (its cos convention shifted by a quarter
     period; the response is checked against the closed form of the Debye-Hueckel slit in
     test_frequency_response), within 2e-6 of A (both held to 1e-6)."""
     case = edl.Case(edl.Slit(height="40 nm"), SALT, edl.Wall(zeta=-0.025), field=2e3, model="dh")
@@ -54,7 +54,8 @@ def test_a_square_gate_charges_its_wall_against_an_electrode() -> None:
     square = edl.Drive.square(amplitude="0.2 V", frequency="100 kHz")
     times = np.array([4.0, 9.0, 14.0, 19.0]) * 1e-6  # near the ends of high and low half periods
     run = edl.transient(case, times, drives={"wall.top.gate_voltage": square})
-    top, bottom = run["wall_charge_density"].sel(wall="top").values, run["wall_charge_density"].sel(wall="bottom").values
+    sigma = run["wall_charge_density"]
+    top, bottom = sigma.sel(wall="top").values, sigma.sel(wall="bottom").values
     assert top[0] > 0 > top[1] and bottom[0] < 0 < bottom[1]
     assert top[2:] == pytest.approx(top[:2], rel=1e-6)
     assert np.max(np.abs(run["space_charge"].values + top + bottom)) < 1e-9 * np.max(np.abs(top))
