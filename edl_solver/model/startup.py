@@ -205,16 +205,19 @@ def transient(case: Case, times: Any, before: Case | None = None, drives: Any = 
         "conduction_current": ("time", np.full(t.size, values[layout.Z_CONDUCTION_CURRENT]), {"units": current_unit}),
         "error_estimate": ("time", np.full(t.size, estimate), {"units": "1"}),
     }
-    pair = values[layout.Z_SIGMA:layout.Z_SIGMA + 2]  # (bottom, top); both the top's for equal walls
-    sigma = float(pair[1]) if case.symmetric else (float(pair[0]), float(pair[1]))
-    if isinstance(sigma, tuple):
-        variables["wall_charge_density"] = (("time", "wall"), np.tile(sigma, (t.size, 1)), {"units": "C/m^2"})
-    else:
-        variables["wall_charge_density"] = ("time", np.full(t.size, sigma), {"units": "C/m^2"})
+    for name, slot, unit in (("wall_charge_density", layout.Z_SIGMA, "C/m^2"), ("wall_potential", layout.Z_ZETA, "V")):
+        pair = values[slot:slot + 2]  # (bottom, top); both the top's for equal walls
+        if case.symmetric:
+            variables[name] = ("time", np.full(t.size, float(pair[1])), {"units": unit})
+        else:
+            variables[name] = (("time", "wall"), np.tile(pair, (t.size, 1)), {"units": unit})
+    variables["field"] = ("time", np.full(t.size, case.field), {"units": "V/m"})
+    variables["pressure_gradient"] = ("time", np.full(t.size, case.pressure_gradient), {"units": "Pa/m"})
     coords: dict[str, Any] = {"time": ("time", t, {"units": "s"})}
-    if isinstance(sigma, tuple):
+    if not case.symmetric:
         coords["wall"] = ("wall", list(case.geometry.wall_names))
     return xr.Dataset(variables, coords=coords,
                       attrs={"case": case.describe(), "case_json": json.dumps(case_to_mapping(case)),
-                             "before_json": json.dumps(case_to_mapping(before)), "viscous_time_s": viscous_time,
+                             "before_json": json.dumps(case_to_mapping(before)), "drives_json": "{}",
+                             "kind": "flow start-up", "viscous_time_s": viscous_time,
                              "note": "steps of the drives only: the double layer stays at equilibrium"})

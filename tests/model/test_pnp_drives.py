@@ -12,9 +12,9 @@ SALT = edl.Electrolyte.from_ions({"K+": "1 mM", "Cl-": "1 mM"})
 
 def test_a_sine_field_settles_to_the_frequency_response() -> None:
     """E(t) = E0 sin(2 pi f t) from rest, f = 2 GHz (5 viscous rates): after six periods (14 decay times of the
-    slowest viscous mode) the mean EO velocity is A sin(2 pi f t + phase) with A and phase of ``frequency_response`` (its cos convention shifted by a quarter
-    period; the response is checked against the closed form of the Debye-Hueckel slit in
-    test_frequency_response), within 2e-6 of A (both held to 1e-6)."""
+    slowest viscous mode) the mean EO velocity is A sin(2 pi f t + phase) with A and phase of
+    ``frequency_response`` (its cos convention shifted by a quarter period; the response is checked against the
+    closed form of the Debye-Hueckel slit in test_frequency_response), within 2e-6 of A (both held to 1e-6)."""
     case = edl.Case(edl.Slit(height="40 nm"), SALT, edl.Wall(zeta=-0.025), field=2e3, model="dh")
     f = 2e9
     times = np.linspace(6.0, 7.0, 7)[1:] / f
