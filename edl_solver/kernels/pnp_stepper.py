@@ -145,6 +145,43 @@ def consistent(y, t, pr, fy):
 
 
 @njit(cache=True)
+def _error(fy, f_g, f_new, step, lower, diag, pivots, coupling, est, y_new, pr, scales, tol):
+    """The step's error estimate (module docstring) against ``tol``: 1 is the limit; 0 without control."""
+    if tol <= 0.0:
+        return 0.0
+    k = 2.0 * ERROR_CONSTANT * step
+    for j in range(est.shape[0]):
+        for q in range(est.shape[1]):
+            est[j, q] = k * (fy[j, q] / GAMMA - f_g[j, q] / (GAMMA * (1.0 - GAMMA)) + f_new[j, q] / (1.0 - GAMMA))
+    blocks.solve(lower, diag, pivots, coupling, est)
+    return error_norm(est, y_new, pr, scales) / tol
+
+
+@njit(cache=True)
+def _stages(y, fy, t, step, pr, scales, tol, m_n, b1, b2, y_g, y_new, f_g, res, delta, lower, diag, upper, pivots,
+            coupling, stats):
+    """The two stages of one step from (t, y) into ``y_new`` (and ``f_g``); False if a Newton iteration failed."""
+    conserved(y, pr, m_n)
+    c = D_STAGE * step
+    b1[:] = m_n + c * fy
+    y_g[:] = y
+    it1 = _newton(y_g, b1, c, t + GAMMA * step, pr, scales, tol, res, delta, lower, diag, upper, pivots, coupling)
+    it2 = -1
+    if it1 > 0:
+        slopes(y_g, b1, c, pr, f_g)
+        conserved(y_g, pr, b2)
+        b2[:] = b2 / (GAMMA * (2.0 - GAMMA)) - m_n * ((1.0 - GAMMA) ** 2 / (GAMMA * (2.0 - GAMMA)))
+        y_new[:] = y + (y_g - y) / GAMMA  # start from the extrapolation through y_n and y_gamma
+        it2 = _newton(y_new, b2, c, t + step, pr, scales, tol, res, delta, lower, diag, upper, pivots, coupling)
+        if it2 < 0:  # the extrapolated start can overshoot a steep front: retry from the stage value
+            y_new[:] = y_g
+            it2 = _newton(y_new, b2, c, t + step, pr, scales, tol, res, delta, lower, diag, upper, pivots,
+                          coupling)
+    stats[STAT_NEWTON] += max(it1, 0) + max(it2, 0)
+    return it1 > 0 and it2 > 0
+
+
+@njit(cache=True)
 def advance(y, fy, t, t_stop, h, pr, scales, tol, max_steps, stats):
     """Step ``y`` (consistent at t, with slopes ``fy``) to exactly ``t_stop``, in place.
 
@@ -152,12 +189,11 @@ def advance(y, fy, t, t_stop, h, pr, scales, tol, max_steps, stats):
     ``tol`` <= 0 the steps are h without error control (to measure the order of the method).
     """
     n, m = y.shape[0], y.shape[1]
-    res, delta = np.empty((n, m)), np.empty((n, m))
+    res, delta, est = np.empty((n, m)), np.empty((n, m)), np.empty((n, m))
     lower, diag, upper, coupling = (np.empty((n, m, m)), np.empty((n, m, m)), np.empty((n, m, m)),
                                     np.empty((n, m, m)))
     pivots = np.empty((n, m), dtype=np.int64)
-    m_n, b1, b2, f_g, f_new, est = (np.empty((n, m)), np.empty((n, m)), np.empty((n, m)), np.empty((n, m)),
-                                    np.empty((n, m)), np.empty((n, m)))
+    m_n, b1, b2, f_g, f_new = np.empty((n, m)), np.empty((n, m)), np.empty((n, m)), np.empty((n, m)), np.empty((n, m))
     y_g, y_new = np.empty((n, m)), np.empty((n, m))
     steps = 0
     while t < t_stop:
@@ -173,47 +209,14 @@ def advance(y, fy, t, t_stop, h, pr, scales, tol, max_steps, stats):
             step = 0.5 * remaining  # two even steps rather than a long one and a sliver
         if step < 1e-14 * max(t_stop, 1e-300):
             return STEP_TOO_SMALL, h
-        conserved(y, pr, m_n)
-        c = D_STAGE * step
-        for j in range(n):
-            for q in range(m):
-                b1[j, q] = m_n[j, q] + c * fy[j, q]
-        y_g[:] = y
-        it1 = _newton(y_g, b1, c, t + GAMMA * step, pr, scales, tol, res, delta, lower, diag, upper, pivots,
-                      coupling)
-        it2 = -1
-        if it1 > 0:
-            slopes(y_g, b1, c, pr, f_g)
-            conserved(y_g, pr, b2)
-            a1 = 1.0 / (GAMMA * (2.0 - GAMMA))
-            a0 = (1.0 - GAMMA) ** 2 / (GAMMA * (2.0 - GAMMA))
-            for j in range(n):
-                for q in range(m):
-                    b2[j, q] = a1 * b2[j, q] - a0 * m_n[j, q]
-            for j in range(n):  # start from the extrapolation through y_n and y_gamma
-                for q in range(m):
-                    y_new[j, q] = y[j, q] + (y_g[j, q] - y[j, q]) / GAMMA
-            it2 = _newton(y_new, b2, c, t + step, pr, scales, tol, res, delta, lower, diag, upper, pivots,
-                          coupling)
-            if it2 < 0:  # the extrapolated start can overshoot a steep front: retry from the stage value
-                y_new[:] = y_g
-                it2 = _newton(y_new, b2, c, t + step, pr, scales, tol, res, delta, lower, diag, upper, pivots,
-                              coupling)
-        stats[STAT_NEWTON] += max(it1, 0) + max(it2, 0)
-        if it1 < 0 or it2 < 0:
+        if not _stages(y, fy, t, step, pr, scales, tol, m_n, b1, b2, y_g, y_new, f_g, res, delta, lower, diag,
+                       upper, pivots, coupling, stats):
             stats[STAT_FAILED_NEWTON] += 1
             h = 0.25 * step
             continue
-        slopes(y_new, b2, c, pr, f_new)
-        k = 2.0 * ERROR_CONSTANT * step
-        for j in range(n):
-            for q in range(m):
-                est[j, q] = k * (fy[j, q] / GAMMA - f_g[j, q] / (GAMMA * (1.0 - GAMMA))
-                                 + f_new[j, q] / (1.0 - GAMMA))
-        blocks.solve(lower, diag, pivots, coupling, est)
-        err = error_norm(est, y_new, pr, scales) / tol if tol > 0.0 else 0.0  # tol <= 0: fixed steps h
-        factor = 0.9 * err ** (-1.0 / 3.0) if err > 0.0 else 4.0
-        factor = min(4.0, max(0.2, factor))
+        slopes(y_new, b2, D_STAGE * step, pr, f_new)
+        err = _error(fy, f_g, f_new, step, lower, diag, pivots, coupling, est, y_new, pr, scales, tol)
+        factor = min(4.0, max(0.2, 0.9 * err ** (-1.0 / 3.0))) if err > 0.0 else 4.0
         if err > 1.0:
             stats[STAT_REJECTED] += 1
             h = step * factor

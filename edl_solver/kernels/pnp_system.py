@@ -126,24 +126,11 @@ def wall_row(walls, end, field, value):
 
 
 @njit(cache=True, error_model="numpy")
-def assemble(y, b, c, t, link, volume, kappa2, ions, diff, model, walls, wall_field, flow_walls, ratio,
-             gauge, gauge_value, dcode, dbase, dsine, dstart, dtimes, dvalues, res, lower, diag, upper):
-    """Residual M(y) - b - c F(y, t) (differential rows) / the constraint (algebraic rows) into ``res`` and its
-    Jacobian into the (n, m, m) blocks ``lower``, ``diag``, ``upper`` (see the module docstring).
-
-    With c = -1 and b = M(y) the differential rows of ``res`` are F(y, t) itself. ``gauge`` >= 0 replaces that
-    node's Poisson row by psi = ``gauge_value`` (walls of fixed charge only: the potential has no reference).
-    """
-    n, m = y.shape[0], y.shape[1]
+def _node_terms(y, b, c, volume, kappa2, ions, linear, ratio, e_t, g_t, res, diag):
+    """The conserved quantities, the space charge in Poisson and the drives of the flow, node by node."""
     nion = ions.shape[0]
     ip, iv, iw = nion, nion + 1, nion + 2
-    linear = model == DH
-    e_t = drive_value(SLOT_FIELD, t, dcode, dbase, dsine, dstart, dtimes, dvalues)
-    g_t = drive_value(SLOT_PRESSURE, t, dcode, dbase, dsine, dstart, dtimes, dvalues)
-    lower[:] = 0.0
-    diag[:] = 0.0
-    upper[:] = 0.0
-    for j in range(n):  # node terms: the conserved quantities, the charge, the drives
+    for j in range(y.shape[0]):
         rho = 0.0
         for k in range(nion):
             w = ions[k, SPECIES_WEIGHT]
@@ -162,7 +149,14 @@ def assemble(y, b, c, t, link, volume, kappa2, ions, diff, model, walls, wall_fi
         diag[j, iv, iv] = ratio * volume[j]
         res[j, iw] = ratio * volume[j] * y[j, iw] - b[j, iw] + c * volume[j] * g_t
         diag[j, iw, iw] = ratio * volume[j]
-    for j in range(n - 1):  # link terms: ion fluxes, the Laplacians of psi, v and w
+
+
+@njit(cache=True, error_model="numpy")
+def _link_terms(y, c, link, ions, diff, linear, res, lower, diag, upper):
+    """The ion fluxes and the Laplacians of psi, v and w, link by link."""
+    nion = ions.shape[0]
+    ip, iv, iw = nion, nion + 1, nion + 2
+    for j in range(y.shape[0] - 1):
         a = link[j]
         dpsi = y[j + 1, ip] - y[j, ip]
         for k in range(nion):
@@ -197,46 +191,69 @@ def assemble(y, b, c, t, link, volume, kappa2, ions, diff, model, walls, wall_fi
             upper[j, col, col] += coef * a
             diag[j + 1, col, col] -= coef * a
             lower[j + 1, col, col] += coef * a
-    for end in range(2):  # the walls: potential conditions, charges, flow conditions
-        j = 0 if end == 0 else n - 1
-        slot = SLOT_LEFT + end
-        row = wall_row(walls, end, wall_field[end],
-                       drive_value(slot, t, dcode, dbase, dsine, dstart, dtimes, dvalues))
-        kind = int(row[W_TYPE])
-        if kind == POTENTIAL:
-            res[j, ip] = y[j, ip] - row[W_VALUE]
-            diag[j, ip, :] = 0.0
-            diag[j, ip, ip] = 1.0
-            if end == 0:
-                upper[j, ip, :] = 0.0
-            else:
-                lower[j, ip, :] = 0.0
-        elif kind == FLUX:
-            res[j, ip] += row[W_VALUE]
-        elif kind == REGULATED:
-            sigma, dsigma, _ = regulated_charge(y[j, ip], row)
-            res[j, ip] += sigma
-            diag[j, ip, ip] += dsigma
-        code = int(flow_walls[end, FLOW_CODE])
-        for col in (iv, iw):
-            if code == POTENTIAL:  # no slip: an algebraic row v = 0
-                res[j, col] = y[j, col]
-                diag[j, col, :] = 0.0
-                diag[j, col, col] = 1.0
-                if end == 0:
-                    upper[j, col, :] = 0.0
-                else:
-                    lower[j, col, :] = 0.0
-            elif code == ROBIN:  # Navier slip: the wall shear -v / b_hat into the end cell, -c times in F
-                res[j, col] += c * flow_walls[end, FLOW_VALUE] * y[j, col]
-                diag[j, col, col] += c * flow_walls[end, FLOW_VALUE]
+
+
+@njit(cache=True)
+def _hold(j, col, value, end, res, lower, diag, upper):
+    """Make row (j, col) the algebraic condition y[j, col] = value (its residual ``value`` given)."""
+    res[j, col] = value
+    diag[j, col, :] = 0.0
+    diag[j, col, col] = 1.0
+    if end == 0:
+        upper[j, col, :] = 0.0
+    else:
+        lower[j, col, :] = 0.0
+
+
+@njit(cache=True, error_model="numpy")
+def _wall_terms(y, c, row, end, flow_walls, nion, res, lower, diag, upper):
+    """One wall end: its potential condition or charge, and its flow condition."""
+    j = 0 if end == 0 else y.shape[0] - 1
+    ip = nion
+    kind = int(row[W_TYPE])
+    if kind == POTENTIAL:
+        _hold(j, ip, y[j, ip] - row[W_VALUE], end, res, lower, diag, upper)
+    elif kind == FLUX:
+        res[j, ip] += row[W_VALUE]
+    elif kind == REGULATED:
+        sigma, dsigma, _ = regulated_charge(y[j, ip], row)
+        res[j, ip] += sigma
+        diag[j, ip, ip] += dsigma
+    code = int(flow_walls[end, FLOW_CODE])
+    for col in (nion + 1, nion + 2):
+        if code == POTENTIAL:  # no slip: an algebraic row v = 0
+            _hold(j, col, y[j, col], end, res, lower, diag, upper)
+        elif code == ROBIN:  # Navier slip: the wall shear -v / b_hat into the end cell, -c times in F
+            res[j, col] += c * flow_walls[end, FLOW_VALUE] * y[j, col]
+            diag[j, col, col] += c * flow_walls[end, FLOW_VALUE]
+
+
+@njit(cache=True, error_model="numpy")
+def assemble(y, b, c, t, link, volume, kappa2, ions, diff, model, walls, wall_field, flow_walls, ratio,
+             gauge, gauge_value, dcode, dbase, dsine, dstart, dtimes, dvalues, res, lower, diag, upper):
+    """Residual M(y) - b - c F(y, t) (differential rows) / the constraint (algebraic rows) into ``res`` and its
+    Jacobian into the (n, m, m) blocks ``lower``, ``diag``, ``upper`` (see the module docstring).
+
+    With c = -1 and b = M(y) the differential rows of ``res`` are F(y, t) itself. ``gauge`` >= 0 replaces that
+    node's Poisson row by psi = ``gauge_value`` (walls of fixed charge only: the potential has no reference).
+    """
+    nion = ions.shape[0]
+    linear = model == DH
+    e_t = drive_value(SLOT_FIELD, t, dcode, dbase, dsine, dstart, dtimes, dvalues)
+    g_t = drive_value(SLOT_PRESSURE, t, dcode, dbase, dsine, dstart, dtimes, dvalues)
+    lower[:] = 0.0
+    diag[:] = 0.0
+    upper[:] = 0.0
+    _node_terms(y, b, c, volume, kappa2, ions, linear, ratio, e_t, g_t, res, diag)
+    _link_terms(y, c, link, ions, diff, linear, res, lower, diag, upper)
+    for end in range(2):
+        value = drive_value(SLOT_LEFT + end, t, dcode, dbase, dsine, dstart, dtimes, dvalues)
+        _wall_terms(y, c, wall_row(walls, end, wall_field[end], value), end, flow_walls, nion, res, lower, diag,
+                    upper)
     if gauge >= 0:
-        res[gauge, ip] = y[gauge, ip] - gauge_value
-        diag[gauge, ip, :] = 0.0
-        diag[gauge, ip, ip] = 1.0
-        lower[gauge, ip, :] = 0.0
-        upper[gauge, ip, :] = 0.0
-    return m
+        _hold(gauge, nion, y[gauge, nion] - gauge_value, 0, res, lower, diag, upper)
+        lower[gauge, nion, :] = 0.0
+    return y.shape[1]
 
 
 @njit(cache=True)

@@ -173,13 +173,18 @@ def transient(case: Case, times: Any, before: Case | None = None, drives: Any = 
     ConvergenceError
         The equilibrium solve, the time stepping or the accuracy failed.
     """
-    import xarray as xr
-
     check_section(case, "transient flow")
     before = _default_before(case, before)
     t = _times(times)
     if drives or not _drives_only(case, before):
         return _charging(case, before, drives, t, progress)
+    return _flow_start_up(case, before, t)
+
+
+def _flow_start_up(case: Case, before: Case, t: np.ndarray) -> Any:
+    """The Dataset of a step of the field and pressure gradient alone (the module docstring)."""
+    import xarray as xr
+
     length = case.geometry.half_size
     viscous_time = case.solvent.density * length**2 / case.solvent.viscosity
     series, sc, estimate = _series(case, t / viscous_time)

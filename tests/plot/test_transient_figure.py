@@ -41,7 +41,7 @@ def test_full_run_draws_walls_flow_potential_and_concentrations(tmp_path: Path) 
 def test_flow_rate_axis_reads_the_mean_velocity_line() -> None:
     run = startup_run()
     figure = transient_figure(run)
-    assert len(_visible(figure)) == 3  # (a), (b) and the flow rate's axis: no profiles in a flow start-up
+    assert len(_visible(figure)) == 4  # (a), (b), the wall potential's and the flow rate's axes: no profiles
     left = figure.axes[1]
     right = next(axes for axes in figure.axes if "flow rate" in axes.get_ylabel())
     assert right.get_ylabel() == "flow rate Q (µm²/s)"  # a slit: per unit width
