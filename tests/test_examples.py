@@ -13,6 +13,7 @@ import subprocess
 import sys
 from pathlib import Path
 
+import numpy as np
 import pytest
 
 import edl_solver as edl
@@ -126,3 +127,21 @@ def test_etched_channel_toml_solves_and_sits_beside_its_slit() -> None:
     assert result.case.geometry == edl.Rectangle(width=500e-9, height=30e-9)
     assert result.case.wall == edl.Wall.silica()
     assert 0.0 < -result.slit_comparison["side_wall_effect_mean_velocity_eo"] < 2 * 30 / 500
+
+
+def test_electrode_gap_toml_charges_both_electrodes_equally(tmp_path: Path) -> None:
+    """The transient example through the command line: the file's [transient] section (only two of its times, to
+    stay fast). A closed section stays neutral, so the two electrodes take opposite charges (Gauss's law,
+    common practice); at the end it rests at its closed-section equilibrium and kept its ions."""
+    from edl_solver.cli.app import main
+    from edl_solver.io.transient_file import read_transient
+
+    run_file = tmp_path / "gap.h5"
+    assert main(["transient", str(EXAMPLES / "electrode_gap.toml"), "--times", "30ns,10us",
+                 "--profile-times", "30ns", "-o", str(run_file), "-q"]) == 0
+    run = read_transient(run_file)
+    sigma = run["wall_charge_density"].values
+    assert sigma[:, 0] == pytest.approx(-sigma[:, 1], rel=1e-9)
+    assert run.attrs["closed_equilibrium_difference"] < 1e-8
+    assert np.max(np.abs(run["inventory"].values / run["inventory"].values[0] - 1)) < 1e-10
+    assert run["wall_potential"].sel(wall="top").values == pytest.approx(0.15, rel=1e-12)

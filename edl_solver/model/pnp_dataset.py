@@ -40,7 +40,11 @@ def dataset(case: Case, before: Case, drives_json: str, times: np.ndarray, resul
     variables["flow_rate"] = ("time", values["flow_rate"], {"units": flow_unit})
     for name in ("convection_current", "conduction_current"):
         variables[name] = ("time", values[name], {"units": current_unit})
-    variables["space_charge"] = ("time", values["space_charge"], {"units": charge_unit})
+    # the space charge of a neutral section (two opposite layers) is zero up to round-off: shown as 0
+    space = values["space_charge"].copy()
+    sigma = max(float(np.max(np.abs(values[f"wall_charge_density_{end}"]))) for end in ("left", "right"))
+    space[np.abs(space) < 1e-12 * sigma * sc[layout.S_SECTION_AREA] / sc[layout.S_LENGTH]] = 0.0
+    variables["space_charge"] = ("time", space, {"units": charge_unit})
     variables["salt_stored"] = ("time", values["salt_stored"], {"units": amount_unit})
     for name, unit in (("wall_charge_density", "C/m^2"), ("wall_potential", "V")):
         left, right = values[f"{name}_left"], values[f"{name}_right"]
@@ -79,14 +83,15 @@ def dataset(case: Case, before: Case, drives_json: str, times: np.ndarray, resul
         "kind": "poisson-nernst-planck",
         "debye_time_s": debye**2 / d_ref, "rc_time_s": debye * length / d_ref, "diffusion_time_s": length**2 / d_ref,
         "viscous_time_s": case.solvent.density * length**2 / case.solvent.viscosity,
-        "closed_equilibrium_difference": float(np.max(np.abs(last[:, nion] - setup.closed.psi))) * vt,
+        "closed_equilibrium_difference": float(np.max(np.abs(last[:, nion] - setup.closed.psi))
+                                               / max(float(np.max(np.abs(setup.closed.psi))), 1.0)),
         "reservoir_potential_difference": float(np.max(np.abs(setup.closed.psi - setup.reservoir.psi))) * vt,
         "reservoir_inventory_difference": float(np.max(np.abs(closed_inv / reservoir_inv - 1.0))),
         "intervals": result.intervals, "time_steps": result.steps,
         "note": ("closed section: no ion enters or leaves, so the inventory is that of the start; the long-time "
                  "state is the closed-section equilibrium (closed_*), which differs from the reservoir "
                  "equilibrium of the same walls (reservoir_*) by reservoir_potential_difference (V) and "
-                 "reservoir_inventory_difference; closed_equilibrium_difference (V) is the last profile's distance "
-                 "from it"),
+                 "reservoir_inventory_difference; closed_equilibrium_difference is the last potential profile's "
+                 "distance from it, relative to the larger of its largest value and kT/e"),
     }
     return xr.Dataset(variables, coords=coords, attrs=attrs)

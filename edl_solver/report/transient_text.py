@@ -227,6 +227,11 @@ def _accuracy_lines(run: Any) -> list[str]:
     if isinstance(difference, (int, float, np.floating)):
         lines.append("Final state against the equilibrium of the closed section: " + (
             f"relative difference {number(float(difference), 2)}" if math.isfinite(difference) else "not compared"))
+    potential, inventory = (run.attrs.get(f"reservoir_{what}_difference") for what in ("potential", "inventory"))
+    if isinstance(potential, (int, float, np.floating)) and isinstance(inventory, (int, float, np.floating)):
+        lines.append("The closed section's equilibrium against the reservoir's (same walls, ions free to come and "
+                     f"go): potential {number(1e3 * float(potential), 3)} mV apart at most, inventory "
+                     f"{number(float(inventory), 2)} relative")
     if "error_estimate" in run.data_vars:
         estimate = np.asarray(run["error_estimate"].values, dtype=float)
         lines.append(f"Error estimate: {number(float(np.nanmax(estimate)), 2)} (relative, largest over the run)"
