@@ -42,17 +42,27 @@ STAT_STEPS, STAT_REJECTED, STAT_NEWTON, STAT_FAILED_NEWTON = 0, 1, 2, 3
 
 
 @njit(cache=True)
-def _newton(y, b, c, t, pr, scales, tol, res, delta, lower, diag, upper, pivots, coupling):
+def _newton(y, b, c, t, pr, scales, tol, work, fresh):
     """Solve M(y) - b - c F(y, t) = 0 in place from the start in ``y``; the iteration count or -1 on failure.
-    On success the factors of the last iteration matrix stay in ``diag``/``coupling`` (for the error filter)."""
+
+    A chord (simplified Newton) iteration: the iteration matrix is factored when ``fresh[0]`` is set (once per
+    step: both stages have the same matrix) and again whenever an iteration shrinks the change by less than
+    half. The factors stay in ``work`` for the error filter.
+    """
+    res, delta, lower, diag, upper, f_lower, f_diag, pivots, coupling = work
     nion = pr.ions.shape[0]
     n, m = y.shape[0], y.shape[1]
+    previous = np.inf
     for it in range(MAX_NEWTON):
         assemble_problem(y, b, c, t, pr, res, lower, diag, upper)
-        if not blocks.factor(lower, diag, upper, pivots, coupling):
-            return -1
+        if fresh[0]:
+            f_lower[:] = lower
+            f_diag[:] = diag
+            if not blocks.factor(f_lower, f_diag, upper, pivots, coupling):
+                return -1
+            fresh[0] = False
         delta[:] = res
-        blocks.solve(lower, diag, pivots, coupling, delta)
+        blocks.solve(f_lower, f_diag, pivots, coupling, delta)
         biggest = 0.0
         for j in range(n):
             for q in range(nion + 1):
@@ -71,6 +81,9 @@ def _newton(y, b, c, t, pr, scales, tol, res, delta, lower, diag, upper, pivots,
                     done = False
         if done:
             return it + 1
+        if biggest > 0.5 * previous:  # slow: a fresh Jacobian at this iterate
+            fresh[0] = True
+        previous = biggest
     return -1
 
 
@@ -145,7 +158,7 @@ def consistent(y, t, pr, fy):
 
 
 @njit(cache=True)
-def _error(fy, f_g, f_new, step, lower, diag, pivots, coupling, est, y_new, pr, scales, tol):
+def _error(fy, f_g, f_new, step, work, est, y_new, pr, scales, tol):
     """The step's error estimate (module docstring) against ``tol``: 1 is the limit; 0 without control."""
     if tol <= 0.0:
         return 0.0
@@ -153,30 +166,30 @@ def _error(fy, f_g, f_new, step, lower, diag, pivots, coupling, est, y_new, pr, 
     for j in range(est.shape[0]):
         for q in range(est.shape[1]):
             est[j, q] = k * (fy[j, q] / GAMMA - f_g[j, q] / (GAMMA * (1.0 - GAMMA)) + f_new[j, q] / (1.0 - GAMMA))
-    blocks.solve(lower, diag, pivots, coupling, est)
+    blocks.solve(work[5], work[6], work[7], work[8], est)
     return error_norm(est, y_new, pr, scales) / tol
 
 
 @njit(cache=True)
-def _stages(y, fy, t, step, pr, scales, tol, m_n, b1, b2, y_g, y_new, f_g, res, delta, lower, diag, upper, pivots,
-            coupling, stats):
+def _stages(y, fy, t, step, pr, scales, tol, m_n, b1, b2, y_g, y_new, f_g, work, stats):
     """The two stages of one step from (t, y) into ``y_new`` (and ``f_g``); False if a Newton iteration failed."""
     conserved(y, pr, m_n)
     c = D_STAGE * step
+    fresh = np.ones(1, dtype=np.bool_)
     b1[:] = m_n + c * fy
     y_g[:] = y
-    it1 = _newton(y_g, b1, c, t + GAMMA * step, pr, scales, tol, res, delta, lower, diag, upper, pivots, coupling)
+    it1 = _newton(y_g, b1, c, t + GAMMA * step, pr, scales, tol, work, fresh)
     it2 = -1
     if it1 > 0:
         slopes(y_g, b1, c, pr, f_g)
         conserved(y_g, pr, b2)
         b2[:] = b2 / (GAMMA * (2.0 - GAMMA)) - m_n * ((1.0 - GAMMA) ** 2 / (GAMMA * (2.0 - GAMMA)))
         y_new[:] = y + (y_g - y) / GAMMA  # start from the extrapolation through y_n and y_gamma
-        it2 = _newton(y_new, b2, c, t + step, pr, scales, tol, res, delta, lower, diag, upper, pivots, coupling)
+        it2 = _newton(y_new, b2, c, t + step, pr, scales, tol, work, fresh)
         if it2 < 0:  # the extrapolated start can overshoot a steep front: retry from the stage value
             y_new[:] = y_g
-            it2 = _newton(y_new, b2, c, t + step, pr, scales, tol, res, delta, lower, diag, upper, pivots,
-                          coupling)
+            fresh[0] = True
+            it2 = _newton(y_new, b2, c, t + step, pr, scales, tol, work, fresh)
     stats[STAT_NEWTON] += max(it1, 0) + max(it2, 0)
     return it1 > 0 and it2 > 0
 
@@ -189,10 +202,9 @@ def advance(y, fy, t, t_stop, h, pr, scales, tol, max_steps, stats):
     ``tol`` <= 0 the steps are h without error control (to measure the order of the method).
     """
     n, m = y.shape[0], y.shape[1]
-    res, delta, est = np.empty((n, m)), np.empty((n, m)), np.empty((n, m))
-    lower, diag, upper, coupling = (np.empty((n, m, m)), np.empty((n, m, m)), np.empty((n, m, m)),
-                                    np.empty((n, m, m)))
-    pivots = np.empty((n, m), dtype=np.int64)
+    est = np.empty((n, m))
+    work = (np.empty((n, m)), np.empty((n, m)), np.empty((n, m, m)), np.empty((n, m, m)), np.empty((n, m, m)),
+            np.empty((n, m, m)), np.empty((n, m, m)), np.empty((n, m), dtype=np.int64), np.empty((n, m, m)))
     m_n, b1, b2, f_g, f_new = np.empty((n, m)), np.empty((n, m)), np.empty((n, m)), np.empty((n, m)), np.empty((n, m))
     y_g, y_new = np.empty((n, m)), np.empty((n, m))
     steps = 0
@@ -209,13 +221,12 @@ def advance(y, fy, t, t_stop, h, pr, scales, tol, max_steps, stats):
             step = 0.5 * remaining  # two even steps rather than a long one and a sliver
         if step < 1e-14 * max(t_stop, 1e-300):
             return STEP_TOO_SMALL, h
-        if not _stages(y, fy, t, step, pr, scales, tol, m_n, b1, b2, y_g, y_new, f_g, res, delta, lower, diag,
-                       upper, pivots, coupling, stats):
+        if not _stages(y, fy, t, step, pr, scales, tol, m_n, b1, b2, y_g, y_new, f_g, work, stats):
             stats[STAT_FAILED_NEWTON] += 1
             h = 0.25 * step
             continue
         slopes(y_new, b2, D_STAGE * step, pr, f_new)
-        err = _error(fy, f_g, f_new, step, lower, diag, pivots, coupling, est, y_new, pr, scales, tol)
+        err = _error(fy, f_g, f_new, step, work, est, y_new, pr, scales, tol)
         factor = min(4.0, max(0.2, 0.9 * err ** (-1.0 / 3.0))) if err > 0.0 else 4.0
         if err > 1.0:
             stats[STAT_REJECTED] += 1
