@@ -33,7 +33,7 @@ MAX_NEWTON = 25
 MAX_UPDATE = 2.0
 #: Newton stops when the log-concentrations (and perturbations) change by less than this, so that the
 #: residual left, and the inventory error it makes, is of the order of its square.
-ION_TOLERANCE = 1e-9
+ION_TOLERANCE = 1e-12
 
 #: Status codes of ``advance``.
 OK, NEWTON_FAILED, STEP_TOO_SMALL, TOO_MANY_STEPS = 0, 1, 2, 3
@@ -171,13 +171,15 @@ def _error(fy, f_g, f_new, step, work, est, y_new, pr, scales, tol):
 
 
 @njit(cache=True)
-def _stages(y, fy, t, step, pr, scales, tol, m_n, b1, b2, y_g, y_new, f_g, work, stats):
-    """The two stages of one step from (t, y) into ``y_new`` (and ``f_g``); False if a Newton iteration failed."""
+def _stages(y, fy, t, step, pr, scales, tol, m_n, b1, b2, y_g, y_new, f_g, work, stats, trend):
+    """The two stages of one step from (t, y) into ``y_new`` (and ``f_g``); False if a Newton iteration failed.
+    ``trend`` is the change of y per unit time over the last step (zero without one): the first stage starts from
+    its extrapolation."""
     conserved(y, pr, m_n)
     c = D_STAGE * step
     fresh = np.ones(1, dtype=np.bool_)
     b1[:] = m_n + c * fy
-    y_g[:] = y
+    y_g[:] = y + (GAMMA * step) * trend
     it1 = _newton(y_g, b1, c, t + GAMMA * step, pr, scales, tol, work, fresh)
     it2 = -1
     if it1 > 0:
@@ -207,6 +209,7 @@ def advance(y, fy, t, t_stop, h, pr, scales, tol, max_steps, stats):
             np.empty((n, m, m)), np.empty((n, m, m)), np.empty((n, m), dtype=np.int64), np.empty((n, m, m)))
     m_n, b1, b2, f_g, f_new = np.empty((n, m)), np.empty((n, m)), np.empty((n, m)), np.empty((n, m)), np.empty((n, m))
     y_g, y_new = np.empty((n, m)), np.empty((n, m))
+    trend = np.zeros((n, m))  # no history at the start of a stretch (the last stop may have been a jump)
     steps = 0
     while t < t_stop:
         if steps >= max_steps:
@@ -221,7 +224,7 @@ def advance(y, fy, t, t_stop, h, pr, scales, tol, max_steps, stats):
             step = 0.5 * remaining  # two even steps rather than a long one and a sliver
         if step < 1e-14 * max(t_stop, 1e-300):
             return STEP_TOO_SMALL, h
-        if not _stages(y, fy, t, step, pr, scales, tol, m_n, b1, b2, y_g, y_new, f_g, work, stats):
+        if not _stages(y, fy, t, step, pr, scales, tol, m_n, b1, b2, y_g, y_new, f_g, work, stats, trend):
             stats[STAT_FAILED_NEWTON] += 1
             h = 0.25 * step
             continue
@@ -234,6 +237,7 @@ def advance(y, fy, t, t_stop, h, pr, scales, tol, max_steps, stats):
             continue
         steps += 1
         stats[STAT_STEPS] += 1
+        trend[:] = (y_new - y) / step
         y[:] = y_new
         fy[:] = f_new
         t = t_stop if step == remaining else t + step
