@@ -3,16 +3,18 @@
 TR-BDF2 (Bank et al. 1985, IEEE Trans. Electron Devices 32, 1992; error estimate of Hosea & Shampine 1996,
 Appl. Numer. Math. 20, 21): a trapezoidal stage to t + gamma h, then a BDF2 stage to t + h, gamma = 2 - sqrt(2)
 so that both stages have the same iteration matrix M' - d h J, d = gamma / 2. It is L-stable and stiffly
-accurate, so the algebraic rows (Poisson, no-slip walls) are simply enforced at each stage. Both stages are
-written in conservation form, M(y_new) - b = c F(y_new), so the ion inventory changes only by the Newton
-residual, which the Newton iteration drives to round-off.
+accurate, so Poisson is simply enforced at each stage. Both stages are written in conservation form,
+M(y_new) - b = c F(y_new), so the ion inventory changes only by the Newton residual, which the iteration drives
+to round-off. Each stage solves the ions and the potential, then the flow (``kernels.pnp_flow``), which does not
+act back on them.
 
 Local error: est = 2 C h (F_n / gamma - F_gamma / (gamma (1 - gamma)) + F_n+1 / (1 - gamma)), C =
 (-3 gamma^2 + 4 gamma - 2) / (12 (2 - gamma)), the leading term C h^3 y''' with y''' from the divided difference
 of the three slopes; filtered through the iteration matrix, (M' - d h J)^-1 est, as is usual for stiff problems
-(Hosea & Shampine 1996), which also gives the error of the potential. Its size is measured as the volume-mean of
-each ion's concentration error and velocity error and the largest potential error, each over the scale of its
-change in the run (``scales``), against ``tol``; the step follows h (0.9 / err)^(1/3).
+(Hosea & Shampine 1996), which also gives the error of the potential; the velocities' through their own stage
+matrix. Its size is measured as the volume-mean of each ion's concentration error and of the velocity errors and
+the largest potential error, each over the scale of its change in the run (``scales``: the ion columns, psi, v,
+w), against ``tol``; the step follows h (0.9 / err)^(1/3).
 """
 
 from __future__ import annotations
@@ -23,6 +25,15 @@ from numba import njit
 from edl_solver.kernels import block_tridiagonal as blocks
 from edl_solver.kernels.fv1d import tridiagonal_solve
 from edl_solver.kernels.layout import DH
+from edl_solver.kernels.pnp_flow import (
+    charge_density,
+    flow_conserved,
+    flow_error,
+    flow_slopes,
+    flow_solve,
+    flow_stage,
+    stage_slopes,
+)
 from edl_solver.kernels.pnp_system import assemble_problem, conserved
 
 GAMMA = 2.0 - np.sqrt(2.0)
@@ -49,7 +60,8 @@ def _newton(y, b, c, t, pr, scales, tol, work, fresh):
     step: both stages have the same matrix) and again whenever an iteration shrinks the change by less than
     half. The factors stay in ``work`` for the error filter.
     """
-    res, delta, lower, diag, upper, f_lower, f_diag, pivots, coupling = work
+    res, delta, lower, diag, upper = work[0], work[1], work[2], work[3], work[4]
+    f_lower, f_diag, pivots, coupling = work[5], work[6], work[7], work[8]
     nion = pr.ions.shape[0]
     n, m = y.shape[0], y.shape[1]
     previous = np.inf
@@ -89,22 +101,19 @@ def _newton(y, b, c, t, pr, scales, tol, work, fresh):
 
 @njit(cache=True)
 def error_norm(e, y, pr, scales):
-    """Size of the error ``e`` against the scales: volume means for ions and velocities, max for psi."""
+    """Size of the error ``e`` of the ions and the potential: volume means for ions, the largest for psi."""
     nion = pr.ions.shape[0]
-    n, m = y.shape[0], y.shape[1]
+    n = y.shape[0]
     total = pr.volume.sum()
     worst = 0.0
-    for q in range(m):
+    for q in range(nion + 1):
         acc = 0.0
         for j in range(n):
             if q < nion:
-                size = abs(e[j, q]) * (1.0 if pr.model == DH else np.exp(y[j, q]))
-                acc += pr.volume[j] * size
-            elif q == nion:
-                acc = max(acc, abs(e[j, q]))
+                acc += pr.volume[j] * abs(e[j, q]) * (1.0 if pr.model == DH else np.exp(y[j, q]))
             else:
-                acc += pr.volume[j] * abs(e[j, q])
-        if q != nion:
+                acc = max(acc, abs(e[j, q]))
+        if q < nion:
             acc /= total
         worst = max(worst, acc / scales[q])
     return worst
@@ -112,24 +121,24 @@ def error_norm(e, y, pr, scales):
 
 @njit(cache=True)
 def slopes(y, b, c, pr, out):
-    """F from a converged stage, (M(y) - b) / c, zero on the algebraic rows."""
+    """F from a converged stage, (M(y) - b) / c, zero on the potential rows."""
+    nion = pr.ions.shape[0]
     conserved(y, pr, out)
     for j in range(y.shape[0]):
-        for q in range(y.shape[1]):
-            out[j, q] = 0.0 if pr.algebraic[j, q] else (out[j, q] - b[j, q]) / c
+        for q in range(nion):
+            out[j, q] = (out[j, q] - b[j, q]) / c
+        out[j, nion] = 0.0
 
 
 @njit(cache=True)
-def consistent(y, t, pr, fy):
-    """Solve the algebraic rows at time t with the ions and velocities held (after a jump of a wall value or at
-    the start), then F(y, t) into ``fy``; False if the potential does not converge."""
+def consistent(y, v, t, pr, fy, fv):
+    """Solve Poisson at time t with the ions and velocities held (after a jump of a wall value or at the start),
+    then the slopes F(y, t) and F_v(v, t) into ``fy`` and ``fv``; False if the potential does not converge."""
     n, m = y.shape[0], y.shape[1]
     nion = pr.ions.shape[0]
-    res = np.empty((n, m))
-    b = np.empty((n, m))
+    res, b = np.empty((n, m)), np.empty((n, m))
     lower, diag, upper = np.empty((n, m, m)), np.empty((n, m, m)), np.empty((n, m, m))
-    lo, di, up, rhs, work, out = (np.empty(n), np.empty(n), np.empty(n), np.empty(n), np.empty(n),
-                                  np.empty(n))
+    lo, di, up, rhs, work, out = np.empty(n), np.empty(n), np.empty(n), np.empty(n), np.empty(n), np.empty(n)
     ok = False
     for _ in range(60):
         conserved(y, pr, b)
@@ -145,70 +154,95 @@ def consistent(y, t, pr, fy):
         if biggest < 1e-14:
             ok = True
             break
-    for j in range(n):  # the no-slip rows are v = 0 already; F from one more evaluation
-        for q in range(nion + 1, m):
-            if pr.algebraic[j, q]:
-                y[j, q] = 0.0
     conserved(y, pr, b)
     assemble_problem(y, b, -1.0, t, pr, res, lower, diag, upper)
     for j in range(n):
-        for q in range(m):
-            fy[j, q] = 0.0 if pr.algebraic[j, q] else res[j, q]
+        for q in range(nion):
+            fy[j, q] = res[j, q]
+        fy[j, nion] = 0.0
+    charge_density(y, pr, out)
+    flow_slopes(v, out, t, pr, fv)
     return ok
 
 
 @njit(cache=True)
-def _error(fy, f_g, f_new, step, work, est, y_new, pr, scales, tol):
-    """The step's error estimate (module docstring) against ``tol``: 1 is the limit; 0 without control."""
-    if tol <= 0.0:
-        return 0.0
+def _estimate(f_n, f_g, f_new, step, out):
+    """The local error before filtering: 2 C h (F_n / gamma - F_gamma / (gamma (1 - gamma)) + F_new / (1 - gamma))."""
     k = 2.0 * ERROR_CONSTANT * step
-    for j in range(est.shape[0]):
-        for q in range(est.shape[1]):
-            est[j, q] = k * (fy[j, q] / GAMMA - f_g[j, q] / (GAMMA * (1.0 - GAMMA)) + f_new[j, q] / (1.0 - GAMMA))
-    blocks.solve(work[5], work[6], work[7], work[8], est)
-    return error_norm(est, y_new, pr, scales) / tol
+    for j in range(out.shape[0]):
+        for q in range(out.shape[1]):
+            out[j, q] = k * (f_n[j, q] / GAMMA - f_g[j, q] / (GAMMA * (1.0 - GAMMA)) + f_new[j, q] / (1.0 - GAMMA))
 
 
 @njit(cache=True)
-def _stages(y, fy, t, step, pr, scales, tol, m_n, b1, b2, y_g, y_new, f_g, work, stats, trend):
-    """The two stages of one step from (t, y) into ``y_new`` (and ``f_g``); False if a Newton iteration failed.
-    ``trend`` is the change of y per unit time over the last step (zero without one): the first stage starts from
-    its extrapolation."""
-    conserved(y, pr, m_n)
+def _stages(y, fy, v, fv, t, step, pr, scales, tol, ys, vs, work, stats, trend):
+    """The two stages of one step from (t, y, v) into ys[3] (y_new) and vs[3] (v_new), with their slopes in
+    ys[4], vs[4] and the first stage's in ys[2], vs[2]; False if a Newton iteration failed. ``trend`` is the change
+    of y per unit time over the last step (zero without one): the first stage starts from its extrapolation.
+    ys/vs rows: 0 M(y_n), 1 b, 2 F_gamma, 3 the new value, 4 F_new, 5 the first stage's value, 6 scratch."""
+    m_n, b, f_g, y_new, f_new, y_g = ys[0], ys[1], ys[2], ys[3], ys[4], ys[5]
+    rho = work[9]
     c = D_STAGE * step
     fresh = np.ones(1, dtype=np.bool_)
-    b1[:] = m_n + c * fy
+    conserved(y, pr, m_n)
+    b[:] = m_n + c * fy
     y_g[:] = y + (GAMMA * step) * trend
-    it1 = _newton(y_g, b1, c, t + GAMMA * step, pr, scales, tol, work, fresh)
+    it1 = _newton(y_g, b, c, t + GAMMA * step, pr, scales, tol, work, fresh)
     it2 = -1
     if it1 > 0:
-        slopes(y_g, b1, c, pr, f_g)
-        conserved(y_g, pr, b2)
-        b2[:] = b2 / (GAMMA * (2.0 - GAMMA)) - m_n * ((1.0 - GAMMA) ** 2 / (GAMMA * (2.0 - GAMMA)))
+        slopes(y_g, b, c, pr, f_g)
+        flow_conserved(v, pr, vs[0])
+        vs[1][:] = vs[0] + c * fv
+        charge_density(y_g, pr, rho)
+        flow_stage(vs[1], c, t + GAMMA * step, rho, pr, vs[5])
+        stage_slopes(vs[5], vs[1], c, pr, vs[2])
+        a1, a0 = 1.0 / (GAMMA * (2.0 - GAMMA)), (1.0 - GAMMA) ** 2 / (GAMMA * (2.0 - GAMMA))
+        conserved(y_g, pr, b)
+        b[:] = a1 * b - a0 * m_n
         y_new[:] = y + (y_g - y) / GAMMA  # start from the extrapolation through y_n and y_gamma
-        it2 = _newton(y_new, b2, c, t + step, pr, scales, tol, work, fresh)
+        it2 = _newton(y_new, b, c, t + step, pr, scales, tol, work, fresh)
         if it2 < 0:  # the extrapolated start can overshoot a steep front: retry from the stage value
             y_new[:] = y_g
             fresh[0] = True
-            it2 = _newton(y_new, b2, c, t + step, pr, scales, tol, work, fresh)
+            it2 = _newton(y_new, b, c, t + step, pr, scales, tol, work, fresh)
+        if it2 > 0:
+            slopes(y_new, b, c, pr, f_new)
+            flow_conserved(vs[5], pr, vs[1])
+            vs[1][:] = a1 * vs[1] - a0 * vs[0]
+            charge_density(y_new, pr, rho)
+            flow_stage(vs[1], c, t + step, rho, pr, vs[3])
+            stage_slopes(vs[3], vs[1], c, pr, vs[4])
     stats[STAT_NEWTON] += max(it1, 0) + max(it2, 0)
     return it1 > 0 and it2 > 0
 
 
 @njit(cache=True)
-def advance(y, fy, t, t_stop, h, pr, scales, tol, max_steps, stats):
-    """Step ``y`` (consistent at t, with slopes ``fy``) to exactly ``t_stop``, in place.
+def _error(fy, fv, step, ys, vs, work, pr, scales, tol):
+    """The step's error estimate (module docstring) against ``tol``: 1 is the limit; 0 without control."""
+    if tol <= 0.0:
+        return 0.0
+    est, flow_est = ys[6], vs[6]
+    _estimate(fy, ys[2], ys[4], step, est)
+    blocks.solve(work[5], work[6], work[7], work[8], est)
+    _estimate(fv, vs[2], vs[4], step, flow_est)
+    flow_solve(flow_est.copy(), D_STAGE * step, pr, flow_est)
+    nion = pr.ions.shape[0]
+    return max(error_norm(est, ys[3], pr, scales), flow_error(flow_est, pr, scales[nion + 1:])) / tol
+
+
+@njit(cache=True)
+def advance(y, fy, v, fv, t, t_stop, h, pr, scales, tol, max_steps, stats):
+    """Step the ions and potential ``y`` (n, m) and the velocities ``v`` (n, 2), consistent at t with slopes
+    ``fy``, ``fv``, to exactly ``t_stop``, in place.
 
     Returns (status, h): the step size to try next. ``stats`` accumulates the ``STAT_*`` counters. With
     ``tol`` <= 0 the steps are h without error control (to measure the order of the method).
     """
     n, m = y.shape[0], y.shape[1]
-    est = np.empty((n, m))
     work = (np.empty((n, m)), np.empty((n, m)), np.empty((n, m, m)), np.empty((n, m, m)), np.empty((n, m, m)),
-            np.empty((n, m, m)), np.empty((n, m, m)), np.empty((n, m), dtype=np.int64), np.empty((n, m, m)))
-    m_n, b1, b2, f_g, f_new = np.empty((n, m)), np.empty((n, m)), np.empty((n, m)), np.empty((n, m)), np.empty((n, m))
-    y_g, y_new = np.empty((n, m)), np.empty((n, m))
+            np.empty((n, m, m)), np.empty((n, m, m)), np.empty((n, m), dtype=np.int64), np.empty((n, m, m)),
+            np.empty(n))
+    ys, vs = np.empty((7, n, m)), np.empty((7, n, 2))
     trend = np.zeros((n, m))  # no history at the start of a stretch (the last stop may have been a jump)
     steps = 0
     while t < t_stop:
@@ -224,12 +258,11 @@ def advance(y, fy, t, t_stop, h, pr, scales, tol, max_steps, stats):
             step = 0.5 * remaining  # two even steps rather than a long one and a sliver
         if step < 1e-14 * max(t_stop, 1e-300):
             return STEP_TOO_SMALL, h
-        if not _stages(y, fy, t, step, pr, scales, tol, m_n, b1, b2, y_g, y_new, f_g, work, stats, trend):
+        if not _stages(y, fy, v, fv, t, step, pr, scales, tol, ys, vs, work, stats, trend):
             stats[STAT_FAILED_NEWTON] += 1
             h = 0.25 * step
             continue
-        slopes(y_new, b2, D_STAGE * step, pr, f_new)
-        err = _error(fy, f_g, f_new, step, work, est, y_new, pr, scales, tol)
+        err = _error(fy, fv, step, ys, vs, work, pr, scales, tol)
         factor = min(4.0, max(0.2, 0.9 * err ** (-1.0 / 3.0))) if err > 0.0 else 4.0
         if err > 1.0:
             stats[STAT_REJECTED] += 1
@@ -237,9 +270,11 @@ def advance(y, fy, t, t_stop, h, pr, scales, tol, max_steps, stats):
             continue
         steps += 1
         stats[STAT_STEPS] += 1
-        trend[:] = (y_new - y) / step
-        y[:] = y_new
-        fy[:] = f_new
+        trend[:] = (ys[3] - y) / step
+        y[:] = ys[3]
+        fy[:] = ys[4]
+        v[:] = vs[3]
+        fv[:] = vs[4]
         t = t_stop if step == remaining else t + step
         if tol > 0.0:
             h = step * factor if step == h else max(h, step * factor)

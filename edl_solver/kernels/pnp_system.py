@@ -3,9 +3,8 @@
 Dimensionless as the steady kernels (``kernels.fv1d``): psi = e phi / kT, lengths in L, concentrations over
 their bulk values, rho_hat = sum_k w_k c_k (w_k = z_k c_k,bulk / sum_j z_j^2 c_j,bulk), Poisson
 lap(psi) = -kappa2 rho_hat; time in L^2 / D_ref, d_k = D_k / D_ref. Unknowns per node (the columns of ``y``):
-the ions (u_k = ln c_k for the full problem, the perturbation c_k - 1 for the linearised one), psi, the
-field-driven velocity v (in eps kT E_s / (e eta), E_s the field scale) and the pressure-driven one w (in
-G_s L^2 / eta).
+the ions (u_k = ln c_k for the full problem, the perturbation c_k - 1 for the linearised one) and psi; the flow
+along the channel, which does not act back on them, is ``kernels.pnp_flow``'s.
 
 Equations on the finite volumes of ``kernels.fv1d.finite_volume_metric`` (node volumes V_j, links a_j):
 
@@ -19,14 +18,9 @@ No ion crosses a wall or the symmetry plane, and the fluxes are antisymmetric be
 sum_j V_j c_kj changes only by the Newton residual: the inventory is conserved to round-off.
 
     0 = a_j (psi_j+1 - psi_j) - a_j-1 (psi_j - psi_j-1) + kappa2 V_j rho_j  (+ the wall terms of fv1d)
-    r V_j dv_j/dt = [A v]_j + kappa2 V_j rho_j e(t),     r V_j dw_j/dt = [A w]_j - V_j g(t)
 
-with A the Stokes operator of ``model.flow_operator`` (no slip, Navier slip, symmetry) and r = rho_m D_ref /
-eta the ratio of the viscous to the diffusion time unit. e(t), g(t) and the wall values come from the drives
-(``drive_value``).
-
-Each implicit stage of the stepper solves  M(y) - b - c F(y, t) = 0  on the differential rows (M the conserved
-quantity: V_j c_kj, r V_j v_j) and the algebraic rows (Poisson, no-slip walls) as they are; ``assemble``
+with the wall values from the drives (``drive_value``). Each implicit stage of the stepper solves
+M(y) - b - c F(y, t) = 0 on the ion rows (M the conserved quantity V_j c_kj) and Poisson as it is; ``assemble``
 returns that residual and its block-tridiagonal Jacobian (``kernels.block_tridiagonal``).
 """
 
@@ -39,12 +33,9 @@ from numba import njit
 
 from edl_solver.kernels.layout import (
     DH,
-    FLOW_CODE,
-    FLOW_VALUE,
     FLUX,
     POTENTIAL,
     REGULATED,
-    ROBIN,
     SPECIES_VALENCE,
     SPECIES_WEIGHT,
     W_TYPE,
@@ -64,7 +55,7 @@ class PnpProblem(NamedTuple):
     model: int  # PB or DH
     walls: np.ndarray  # (2, WALL_SIZE) wall rows of the left and right ends after the step
     wall_field: np.ndarray  # (2,) int: the entry of each wall row its drive sets (-1: none)
-    flow_walls: np.ndarray  # (2, FLOW_SIZE)
+    flow_walls: np.ndarray  # (2, FLOW_SIZE) the flow conditions (``kernels.pnp_flow``)
     ratio: float  # rho_m D_ref / eta
     gauge: int  # node whose potential is held (walls of fixed charge only), else -1
     gauge_value: float
@@ -74,7 +65,6 @@ class PnpProblem(NamedTuple):
     dstart: np.ndarray  # (DRIVE_SLOTS + 1,) int offsets of each slot's points in dtimes / dvalues
     dtimes: np.ndarray
     dvalues: np.ndarray
-    algebraic: np.ndarray  # (n, m) bool: the rows without a time derivative
 
 
 #: Drive slots: the field and pressure-gradient multipliers and the values of the left and right wall ends.
@@ -126,10 +116,9 @@ def wall_row(walls, end, field, value):
 
 
 @njit(cache=True, error_model="numpy")
-def _node_terms(y, b, c, volume, kappa2, ions, linear, ratio, e_t, g_t, res, diag):
-    """The conserved quantities, the space charge in Poisson and the drives of the flow, node by node."""
+def _node_terms(y, b, volume, kappa2, ions, linear, res, diag):
+    """The conserved quantities and the space charge in Poisson, node by node."""
     nion = ions.shape[0]
-    ip, iv, iw = nion, nion + 1, nion + 2
     for j in range(y.shape[0]):
         rho = 0.0
         for k in range(nion):
@@ -142,20 +131,15 @@ def _node_terms(y, b, c, volume, kappa2, ions, linear, ratio, e_t, g_t, res, dia
             res[j, k] = volume[j] * conc - b[j, k]
             diag[j, k, k] = volume[j] * dconc
             rho += w * conc
-            diag[j, ip, k] = kappa2 * volume[j] * w * dconc
-            diag[j, iv, k] = -c * kappa2 * volume[j] * w * dconc * e_t
-        res[j, ip] = kappa2 * volume[j] * rho
-        res[j, iv] = ratio * volume[j] * y[j, iv] - b[j, iv] - c * kappa2 * volume[j] * rho * e_t
-        diag[j, iv, iv] = ratio * volume[j]
-        res[j, iw] = ratio * volume[j] * y[j, iw] - b[j, iw] + c * volume[j] * g_t
-        diag[j, iw, iw] = ratio * volume[j]
+            diag[j, nion, k] = kappa2 * volume[j] * w * dconc
+        res[j, nion] = kappa2 * volume[j] * rho
 
 
 @njit(cache=True, error_model="numpy")
 def _link_terms(y, c, link, ions, diff, linear, res, lower, diag, upper):
-    """The ion fluxes and the Laplacians of psi, v and w, link by link."""
+    """The ion fluxes and the Laplacian of psi, link by link."""
     nion = ions.shape[0]
-    ip, iv, iw = nion, nion + 1, nion + 2
+    ip = nion
     for j in range(y.shape[0] - 1):
         a = link[j]
         dpsi = y[j + 1, ip] - y[j, ip]
@@ -183,76 +167,60 @@ def _link_terms(y, c, link, ions, diff, linear, res, lower, diag, upper):
             diag[j + 1, k, k] -= ck * d_right
             diag[j + 1, k, ip] -= ck * d_psi
             lower[j + 1, k, ip] += ck * d_psi
-        for col, coef in ((ip, 1.0), (iv, -c), (iw, -c)):
-            flow = a * (y[j + 1, col] - y[j, col])
-            res[j, col] += coef * flow
-            res[j + 1, col] -= coef * flow
-            diag[j, col, col] -= coef * a
-            upper[j, col, col] += coef * a
-            diag[j + 1, col, col] -= coef * a
-            lower[j + 1, col, col] += coef * a
+        res[j, ip] += a * dpsi
+        res[j + 1, ip] -= a * dpsi
+        diag[j, ip, ip] -= a
+        upper[j, ip, ip] += a
+        diag[j + 1, ip, ip] -= a
+        lower[j + 1, ip, ip] += a
 
 
 @njit(cache=True)
-def _hold(j, col, value, end, res, lower, diag, upper):
+def _hold(j, col, value, res, lower, diag, upper):
     """Make row (j, col) the algebraic condition y[j, col] = value (its residual ``value`` given)."""
     res[j, col] = value
     diag[j, col, :] = 0.0
     diag[j, col, col] = 1.0
-    if end == 0:
-        upper[j, col, :] = 0.0
-    else:
-        lower[j, col, :] = 0.0
+    upper[j, col, :] = 0.0
+    lower[j, col, :] = 0.0
 
 
 @njit(cache=True, error_model="numpy")
-def _wall_terms(y, c, row, end, flow_walls, nion, res, lower, diag, upper):
-    """One wall end: its potential condition or charge, and its flow condition."""
+def _wall_terms(y, row, end, nion, res, lower, diag, upper):
+    """One wall end's potential condition or charge."""
     j = 0 if end == 0 else y.shape[0] - 1
-    ip = nion
     kind = int(row[W_TYPE])
     if kind == POTENTIAL:
-        _hold(j, ip, y[j, ip] - row[W_VALUE], end, res, lower, diag, upper)
+        _hold(j, nion, y[j, nion] - row[W_VALUE], res, lower, diag, upper)
     elif kind == FLUX:
-        res[j, ip] += row[W_VALUE]
+        res[j, nion] += row[W_VALUE]
     elif kind == REGULATED:
-        sigma, dsigma, _ = regulated_charge(y[j, ip], row)
-        res[j, ip] += sigma
-        diag[j, ip, ip] += dsigma
-    code = int(flow_walls[end, FLOW_CODE])
-    for col in (nion + 1, nion + 2):
-        if code == POTENTIAL:  # no slip: an algebraic row v = 0
-            _hold(j, col, y[j, col], end, res, lower, diag, upper)
-        elif code == ROBIN:  # Navier slip: the wall shear -v / b_hat into the end cell, -c times in F
-            res[j, col] += c * flow_walls[end, FLOW_VALUE] * y[j, col]
-            diag[j, col, col] += c * flow_walls[end, FLOW_VALUE]
+        sigma, dsigma, _ = regulated_charge(y[j, nion], row)
+        res[j, nion] += sigma
+        diag[j, nion, nion] += dsigma
 
 
 @njit(cache=True, error_model="numpy")
-def assemble(y, b, c, t, link, volume, kappa2, ions, diff, model, walls, wall_field, flow_walls, ratio,
-             gauge, gauge_value, dcode, dbase, dsine, dstart, dtimes, dvalues, res, lower, diag, upper):
-    """Residual M(y) - b - c F(y, t) (differential rows) / the constraint (algebraic rows) into ``res`` and its
-    Jacobian into the (n, m, m) blocks ``lower``, ``diag``, ``upper`` (see the module docstring).
+def assemble(y, b, c, t, link, volume, kappa2, ions, diff, model, walls, wall_field, gauge, gauge_value, dcode,
+             dbase, dsine, dstart, dtimes, dvalues, res, lower, diag, upper):
+    """Residual M(y) - b - c F(y, t) (ion rows) / Poisson (potential rows) into ``res`` and its Jacobian into the
+    (n, m, m) blocks ``lower``, ``diag``, ``upper`` (see the module docstring).
 
-    With c = -1 and b = M(y) the differential rows of ``res`` are F(y, t) itself. ``gauge`` >= 0 replaces that
-    node's Poisson row by psi = ``gauge_value`` (walls of fixed charge only: the potential has no reference).
+    With c = -1 and b = M(y) the ion rows of ``res`` are F(y, t) itself. ``gauge`` >= 0 replaces that node's
+    Poisson row by psi = ``gauge_value`` (walls of fixed charge only: the potential has no reference).
     """
     nion = ions.shape[0]
     linear = model == DH
-    e_t = drive_value(SLOT_FIELD, t, dcode, dbase, dsine, dstart, dtimes, dvalues)
-    g_t = drive_value(SLOT_PRESSURE, t, dcode, dbase, dsine, dstart, dtimes, dvalues)
     lower[:] = 0.0
     diag[:] = 0.0
     upper[:] = 0.0
-    _node_terms(y, b, c, volume, kappa2, ions, linear, ratio, e_t, g_t, res, diag)
+    _node_terms(y, b, volume, kappa2, ions, linear, res, diag)
     _link_terms(y, c, link, ions, diff, linear, res, lower, diag, upper)
     for end in range(2):
         value = drive_value(SLOT_LEFT + end, t, dcode, dbase, dsine, dstart, dtimes, dvalues)
-        _wall_terms(y, c, wall_row(walls, end, wall_field[end], value), end, flow_walls, nion, res, lower, diag,
-                    upper)
+        _wall_terms(y, wall_row(walls, end, wall_field[end], value), end, nion, res, lower, diag, upper)
     if gauge >= 0:
-        _hold(gauge, nion, y[gauge, nion] - gauge_value, 0, res, lower, diag, upper)
-        lower[gauge, nion, :] = 0.0
+        _hold(gauge, nion, y[gauge, nion] - gauge_value, res, lower, diag, upper)
     return y.shape[1]
 
 
@@ -260,17 +228,15 @@ def assemble(y, b, c, t, link, volume, kappa2, ions, diff, model, walls, wall_fi
 def assemble_problem(y, b, c, t, pr, res, lower, diag, upper):
     """``assemble`` with the arrays of a ``PnpProblem``."""
     return assemble(y, b, c, t, pr.link, pr.volume, pr.kappa2, pr.ions, pr.diff, pr.model, pr.walls,
-                    pr.wall_field, pr.flow_walls, pr.ratio, pr.gauge, pr.gauge_value, pr.dcode, pr.dbase,
-                    pr.dsine, pr.dstart, pr.dtimes, pr.dvalues, res, lower, diag, upper)
+                    pr.wall_field, pr.gauge, pr.gauge_value, pr.dcode, pr.dbase, pr.dsine, pr.dstart, pr.dtimes,
+                    pr.dvalues, res, lower, diag, upper)
 
 
 @njit(cache=True)
 def conserved(y, pr, out):
-    """M(y): V_j c_kj (or V_j times the perturbation), r V_j v_j, r V_j w_j; 0 on the potential rows."""
+    """M(y): V_j c_kj (or V_j times the perturbation); 0 on the potential rows."""
     nion = pr.ions.shape[0]
     for j in range(y.shape[0]):
         for k in range(nion):
             out[j, k] = pr.volume[j] * (y[j, k] if pr.model == DH else np.exp(y[j, k]))
         out[j, nion] = 0.0
-        out[j, nion + 1] = pr.ratio * pr.volume[j] * y[j, nion + 1]
-        out[j, nion + 2] = pr.ratio * pr.volume[j] * y[j, nion + 2]

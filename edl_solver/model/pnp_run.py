@@ -45,9 +45,10 @@ def run_grid(case: Case, before: Case, drives: Any, intervals: int, times: np.nd
     """Step one grid through the output ``times`` (s), the stepper's local error held to ``tolerance``."""
     setup = build(case, before, drives, intervals, float(times[-1]))
     pr = setup.problem
-    y = setup.start.copy()
-    slopes = np.empty_like(y)
-    if not pnp_stepper.consistent(y, 0.0, pr, slopes):
+    nion = setup.bulk.size
+    y, v = setup.start[:, :nion + 1].copy(), setup.start[:, nion + 1:].copy()
+    slopes, flow_slopes = np.empty_like(y), np.empty_like(v)
+    if not pnp_stepper.consistent(y, v, 0.0, pr, slopes, flow_slopes):
         raise ConvergenceError(f"{case.describe()}: the potential right after the step did not converge")
     t_out = times / setup.time_unit
     jumps = setup.breakpoints
@@ -55,22 +56,23 @@ def run_grid(case: Case, before: Case, drives: Any, intervals: int, times: np.nd
     debye = 1.0 / pr.kappa2
     h = 1e-3 * min(t_out[0], debye, pr.ratio if pr.ratio > 0 else debye)
     stats = np.zeros(4, dtype=np.int64)
-    states = np.empty((times.size, *y.shape))
+    states = np.empty((times.size, *setup.start.shape))
     t, k = 0.0, 0
     for stop in stops:
-        status, h = pnp_stepper.advance(y, slopes, t, stop, h, pr, setup.error_scales, tolerance, MAX_STEPS,
-                                               stats)
+        status, h = pnp_stepper.advance(y, slopes, v, flow_slopes, t, stop, h, pr, setup.error_scales, tolerance,
+                                        MAX_STEPS, stats)
         if status != pnp_stepper.OK:
             reason = {pnp_stepper.STEP_TOO_SMALL: "the time step fell below round-off",
                       pnp_stepper.TOO_MANY_STEPS: f"more than {MAX_STEPS} steps"}.get(status, "Newton failed")
             raise ConvergenceError(f"{case.describe()}: transient Poisson-Nernst-Planck: {reason} at "
                                    f"t = {t * setup.time_unit:.3g} s")
         t = stop
-        if np.any(jumps == stop) and not pnp_stepper.consistent(y, stop, pr, slopes):
+        if np.any(jumps == stop) and not pnp_stepper.consistent(y, v, stop, pr, slopes, flow_slopes):
             raise ConvergenceError(f"{case.describe()}: the potential after the drive's jump at "
                                    f"t = {stop * setup.time_unit:.3g} s did not converge")
         while k < t_out.size and t_out[k] == stop:
-            states[k] = y
+            states[k, :, :nion + 1] = y
+            states[k, :, nion + 1:] = v
             k += 1
         if progress is not None:
             progress(stop / stops[-1])

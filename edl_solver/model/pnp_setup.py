@@ -33,7 +33,7 @@ class Setup(NamedTuple):
     """Everything a run needs on one grid (dimensionless unless named)."""
 
     problem: PnpProblem
-    start: np.ndarray  # (n, m) the state before the step
+    start: np.ndarray  # (n, n_ions + 3) the state before the step: ions, psi, v, w
     x: np.ndarray  # node positions from the centre, units of L
     sc: np.ndarray  # the case's scales vector (layout.S_*)
     half: bool
@@ -148,15 +148,9 @@ def build(case: Case, before: Case, drives: Any, intervals: int, t_end: float) -
     walls, wall_field, code, base, sine, starts, times, values = slots.kernel_arrays(after.walls, sc, half,
                                                                                       t_end / time_unit, time_unit)
     gauge = -1 if _pinned(walls) else centre
-    m = nion + 3
-    algebraic = np.zeros((n, m), dtype=bool)
-    algebraic[:, nion] = True
-    for end, j in ((0, 0), (1, n - 1)):
-        if int(after.flow_walls[end, layout.FLOW_CODE]) == layout.POTENTIAL:
-            algebraic[j, nion + 1:] = True
     problem = PnpProblem(link, volume, kappa2, species, diffusivity / d_ref, model, walls, wall_field,
                          after.flow_walls, ratio, gauge, float(start[centre, nion]), code, base, sine, starts,
-                         times, values, algebraic)
+                         times, values)
     inventory = volume @ (start[:, :nion] if model == layout.DH else np.exp(start[:, :nion]))
     if gauge >= 0:
         _check_neutral(case, kappa2, volume, start, weight, model, walls, slots)

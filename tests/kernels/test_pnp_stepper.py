@@ -13,16 +13,23 @@ SALT = edl.Electrolyte([edl.Ion("A+", valence=1, concentration="10 mM", diffusiv
                         edl.Ion("B-", valence=-1, concentration="10 mM", diffusivity=1.5 * D)])
 
 
+def _start(setup: pnp_setup.Setup) -> tuple[np.ndarray, ...]:
+    """The ions and potential, the velocities and their slopes right after the step."""
+    nion = setup.bulk.size
+    y, v = setup.start[:, :nion + 1].copy(), setup.start[:, nion + 1:].copy()
+    slopes, flow_slopes = np.empty_like(y), np.empty_like(v)
+    assert pnp_stepper.consistent(y, v, 0.0, setup.problem, slopes, flow_slopes)
+    return y, v, slopes, flow_slopes
+
+
 def _charge_after(setup: pnp_setup.Setup, t_end: float, steps: int) -> tuple[float, np.ndarray]:
     """Fixed steps from the step to t_end (dimensionless): the top wall's charge and the inventories."""
-    y = setup.start.copy()
-    slopes = np.empty_like(y)
-    assert pnp_stepper.consistent(y, 0.0, setup.problem, slopes)
+    y, v, slopes, flow_slopes = _start(setup)
     stats = np.zeros(4, dtype=np.int64)
-    status, _ = pnp_stepper.advance(y, slopes, 0.0, t_end, t_end / steps, setup.problem, setup.error_scales, 0.0,
-                                    10 * steps, stats)
+    status, _ = pnp_stepper.advance(y, slopes, v, flow_slopes, 0.0, t_end, t_end / steps, setup.problem,
+                                    setup.error_scales, 0.0, 10 * steps, stats)
     assert status == pnp_stepper.OK and stats[pnp_stepper.STAT_STEPS] == steps
-    values = pnp_quantities.series(setup, y[None], np.array([t_end * setup.time_unit]))
+    values = pnp_quantities.series(setup, np.hstack((y, v))[None], np.array([t_end * setup.time_unit]))
     return values[0, pnp_quantities.SERIES.index("wall_charge_density_right")], values[0, len(pnp_quantities.SERIES):]
 
 
@@ -45,12 +52,10 @@ def test_long_steps_keep_the_inventory_and_positivity() -> None:
     rest = edl.Case(edl.Slit(height="10 nm"), SALT, edl.Wall(zeta=0.0))
     case = edl.Case(rest.geometry, SALT, (edl.Wall(zeta=-0.15), edl.Wall(zeta=0.15)))
     setup = pnp_setup.build(case, rest, None, 32, 1e-6)
-    y = setup.start.copy()
-    slopes = np.empty_like(y)
-    assert pnp_stepper.consistent(y, 0.0, setup.problem, slopes)
+    y, v, slopes, flow_slopes = _start(setup)
     stats = np.zeros(4, dtype=np.int64)
-    status, h = pnp_stepper.advance(y, slopes, 0.0, 10.0, 1e-6, setup.problem, setup.error_scales, 1e-3, 10_000,
-                                    stats)
+    status, h = pnp_stepper.advance(y, slopes, v, flow_slopes, 0.0, 10.0, 1e-6, setup.problem, setup.error_scales,
+                                    1e-3, 10_000, stats)
     assert status == pnp_stepper.OK
     assert stats[pnp_stepper.STAT_STEPS] < 200 and h > 0.5  # the last steps span several diffusion times
     start = setup.problem.volume @ np.exp(setup.start[:, :2])
