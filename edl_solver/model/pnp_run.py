@@ -101,33 +101,24 @@ def run(case: Case, before: Case, drives: Any, times: np.ndarray,
     The estimate adds the grids' (the extrapolation's change over one more grid) and the time stepping's: the
     coarsest grid is stepped once more at 8 times the tolerance, and with a global error that grows as the
     tolerance to the 2/3 (a local error of order h^3 held per step) the difference is 3 times the error at the
-    tolerance. Where the time error takes more than half the accuracy the tolerance shrinks and the run repeats.
+    tolerance. Where the time error takes more than half the accuracy the tolerance shrinks before the finer
+    grids run.
     """
     numerics = case.numerics
     intervals = numerics.intervals or FIRST_INTERVALS
     share = TIME_SHARE
     while True:
         cells = level_intervals(intervals)
-        levels, finest, steps = [], None, 0
-        for number, level in enumerate(cells):
+        coarsest, share, timing = _time_share(case, before, drives, cells[0], times, share)
+        levels, finest, steps = [pnp_quantities.series(coarsest.setup, coarsest.states, times)], coarsest, 0
+        for number, level in enumerate(cells[1:], start=1):
             # the work per grid roughly doubles with its cells: the finest is about half of the whole
             report = None if progress is None else _share(progress, 2.0**number / 15.0, (2.0**number - 1) / 15.0)
             finest = run_grid(case, before, drives, level, times, numerics.accuracy * share, report)
             steps += int(finest.stats[pnp_stepper.STAT_STEPS])
             levels.append(pnp_quantities.series(finest.setup, finest.states, times))
         finer, coarser = (part.real for part in extrapolated(levels))
-        scale = np.maximum(np.maximum(np.max(np.abs(finer), axis=0), pnp_quantities.floors(finest.setup, finer)),
-                           1e-300)
-        loose = run_grid(case, before, drives, cells[0], times, 8.0 * numerics.accuracy * share)
-        timing = float(np.max(np.abs(pnp_quantities.series(loose.setup, loose.states, times) - levels[0]) / scale))
-        timing /= 3.0
-        if timing > 0.5 * numerics.accuracy:
-            share *= max(min((0.4 * numerics.accuracy / timing) ** 1.5, 0.5), 1e-3)
-            if share < SMALLEST_SHARE:
-                raise ConvergenceError(f"{case.describe()}: transient Poisson-Nernst-Planck: the time stepping "
-                                       f"misses accuracy {numerics.accuracy:g} (estimate {timing:.2g}) even at a "
-                                       "tolerance a thousandth of the first")
-            continue
+        scale = _scale(finest.setup, finer)
         estimate = float(np.max(np.abs(finer - coarser) / scale)) + timing
         if estimate <= numerics.accuracy or numerics.intervals:
             return Extrapolated(finer, estimate, finest, intervals, steps)
@@ -135,3 +126,29 @@ def run(case: Case, before: Case, drives: Any, times: np.ndarray,
             raise ConvergenceError(f"{case.describe()}: transient Poisson-Nernst-Planck: accuracy "
                                    f"{numerics.accuracy:g} missed (estimate {estimate:.2g}) with {intervals} cells")
         intervals *= 2
+
+
+def _scale(setup: Setup, values: np.ndarray) -> np.ndarray:
+    """What each series' error is measured against: its largest magnitude, or its floor
+    (``pnp_quantities.floors``)."""
+    return np.maximum(np.maximum(np.max(np.abs(values), axis=0), pnp_quantities.floors(setup, values)), 1e-300)
+
+
+def _time_share(case: Case, before: Case, drives: Any, cells: int, times: np.ndarray,
+                share: float) -> tuple[GridRun, float, float]:
+    """The coarsest grid's run at a share of the accuracy whose time error (estimated against a run at 8 times
+    the tolerance) is at most half the accuracy; the run, the share and that error."""
+    accuracy = case.numerics.accuracy
+    while True:
+        run = run_grid(case, before, drives, cells, times, accuracy * share)
+        loose = run_grid(case, before, drives, cells, times, 8.0 * accuracy * share)
+        tight = pnp_quantities.series(run.setup, run.states, times)
+        difference = np.abs(pnp_quantities.series(loose.setup, loose.states, times) - tight)
+        timing = float(np.max(difference / _scale(run.setup, tight))) / 3.0
+        if timing <= 0.5 * accuracy:
+            return run, share, timing
+        share *= max(min((0.4 * accuracy / timing) ** 1.5, 0.5), 1e-3)
+        if share < SMALLEST_SHARE:
+            raise ConvergenceError(f"{case.describe()}: transient Poisson-Nernst-Planck: the time stepping misses "
+                                   f"accuracy {accuracy:g} (estimate {timing:.2g}) even at a tolerance a thousandth "
+                                   "of the first")
