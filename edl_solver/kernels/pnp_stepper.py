@@ -1,20 +1,21 @@
-"""Compiled adaptive TR-BDF2 time stepping of the transient Poisson-Nernst-Planck system (``kernels.pnp_system``).
+"""Compiled adaptive SDIRK time stepping of the transient Poisson-Nernst-Planck system (``kernels.pnp_system``).
 
-TR-BDF2 (Bank et al. 1985, IEEE Trans. Electron Devices 32, 1992; error estimate of Hosea & Shampine 1996,
-Appl. Numer. Math. 20, 21): a trapezoidal stage to t + gamma h, then a BDF2 stage to t + h, gamma = 2 - sqrt(2)
-so that both stages have the same iteration matrix M' - d h J, d = gamma / 2. It is L-stable and stiffly
-accurate, so Poisson is simply enforced at each stage. Both stages are written in conservation form,
-M(y_new) - b = c F(y_new), so the ion inventory changes only by the Newton residual, which the iteration drives
-to round-off. Each stage solves the ions and the potential, then the flow (``kernels.pnp_flow``), which does not
-act back on them.
+Alexander's three-stage singly diagonally implicit Runge-Kutta method (Alexander 1977, SIAM J. Numer. Anal. 14,
+1006; Hairer & Wanner, Solving Ordinary Differential Equations II, sec. IV.6): order 3, L-stable and stiffly
+accurate (the last stage is the new value), so Poisson is simply enforced at each stage and a step needs no
+slope from before it. All stages share the diagonal gamma, hence one iteration matrix M' - gamma h J per step
+(a chord iteration reuses its factors). Every stage is written in conservation form,
+M(Y_i) - gamma h F(Y_i) = M(y_n) + h sum_j<i a_ij F(Y_j), so the ion inventory changes only by the Newton
+residual, which the iteration drives to round-off. Each stage solves the ions and the potential, then the flow
+(``kernels.pnp_flow``), which does not act back on them.
 
-Local error: est = 2 C h (F_n / gamma - F_gamma / (gamma (1 - gamma)) + F_n+1 / (1 - gamma)), C =
-(-3 gamma^2 + 4 gamma - 2) / (12 (2 - gamma)), the leading term C h^3 y''' with y''' from the divided difference
-of the three slopes; filtered through the iteration matrix, (M' - d h J)^-1 est, as is usual for stiff problems
-(Hosea & Shampine 1996), which also gives the error of the potential; the velocities' through their own stage
-matrix. Its size is measured as the volume-mean of each ion's concentration error and of the velocity errors and
-the largest potential error, each over the scale of its change in the run (``scales``: the ion columns, psi, v,
-w), against ``tol``; the step follows h (0.9 / err)^(1/3).
+Local error: h sum_i (b_i - b^_i) F(Y_i) with the embedded second-order weights b^ (b^_3 = 0, derived here: sum
+b^ = 1, sum b^ c = 1/2), filtered through the iteration matrix, (M' - gamma h J)^-1, as is usual for stiff
+problems (Hairer & Wanner, sec. IV.8), which also gives the error of the potential; the velocities' through
+their own stage matrix. Its size is measured as the volume-mean of each ion's concentration error and of the
+velocity errors and the largest potential error, each over the scale of its change in the run (``scales``: the
+ion columns, psi, v, w), against ``tol``; the step follows h (0.9 / err)^(1/3), and the solution carried is the
+third-order one.
 """
 
 from __future__ import annotations
@@ -36,9 +37,15 @@ from edl_solver.kernels.pnp_flow import (
 )
 from edl_solver.kernels.pnp_system import assemble_problem, conserved
 
-GAMMA = 2.0 - np.sqrt(2.0)
-D_STAGE = GAMMA / 2.0
-ERROR_CONSTANT = (-3.0 * GAMMA**2 + 4.0 * GAMMA - 2.0) / (12.0 * (2.0 - GAMMA))
+#: Alexander's three-stage SDIRK: the diagonal gamma, the root of x^3 - 3 x^2 + 3 x / 2 - 1/6 in (1/6, 1/2).
+GAMMA = 0.43586652150845899941601945
+C2 = (1.0 + GAMMA) / 2.0
+A21 = (1.0 - GAMMA) / 2.0
+B1 = (-6.0 * GAMMA**2 + 16.0 * GAMMA - 1.0) / 4.0
+B2 = (6.0 * GAMMA**2 - 20.0 * GAMMA + 5.0) / 4.0
+#: The embedded second-order weights (third weight 0): sum = 1, sum b c = 1/2 (derived here).
+BH2 = (1.0 - 2.0 * GAMMA) / (1.0 - GAMMA)
+BH1 = 1.0 - BH2
 MAX_NEWTON = 25
 #: Largest Newton change of a log-concentration or of the potential (kT/e) in one iteration.
 MAX_UPDATE = 2.0
@@ -166,68 +173,69 @@ def consistent(y, v, t, pr, fy, fv):
 
 
 @njit(cache=True)
-def _estimate(f_n, f_g, f_new, step, out):
-    """The local error before filtering: 2 C h (F_n / gamma - F_gamma / (gamma (1 - gamma)) + F_new / (1 - gamma))."""
-    k = 2.0 * ERROR_CONSTANT * step
-    for j in range(out.shape[0]):
-        for q in range(out.shape[1]):
-            out[j, q] = k * (f_n[j, q] / GAMMA - f_g[j, q] / (GAMMA * (1.0 - GAMMA)) + f_new[j, q] / (1.0 - GAMMA))
+def _stage_start(i, y, ys, step, trend, out):
+    """The first guess of stage i: the last step's trend, then the line through y_n and the previous stage."""
+    if i == 0:
+        out[:] = y + (GAMMA * step) * trend
+    elif i == 1:
+        out[:] = y + (C2 / GAMMA) * (ys[7] - y)
+    else:
+        out[:] = y + (ys[8] - y) / C2
 
 
 @njit(cache=True)
-def _stages(y, fy, v, fv, t, step, pr, scales, tol, ys, vs, work, stats, trend):
-    """The two stages of one step from (t, y, v) into ys[3] (y_new) and vs[3] (v_new), with their slopes in
-    ys[4], vs[4] and the first stage's in ys[2], vs[2]; False if a Newton iteration failed. ``trend`` is the change
-    of y per unit time over the last step (zero without one): the first stage starts from its extrapolation.
-    ys/vs rows: 0 M(y_n), 1 b, 2 F_gamma, 3 the new value, 4 F_new, 5 the first stage's value, 6 scratch."""
-    m_n, b, f_g, y_new, f_new, y_g = ys[0], ys[1], ys[2], ys[3], ys[4], ys[5]
-    rho = work[9]
-    c = D_STAGE * step
+def _stages(y, v, t, step, pr, scales, tol, ys, vs, work, stats, trend):
+    """The three stages of one step from (t, y, v); the new values in ys[5], vs[5], the stage slopes in ys[2:5],
+    vs[2:5]; False if a Newton iteration failed. Stage i solves M(Y) - gamma h F(Y) = M(y_n) + h sum_j a_ij F_j
+    (conservation form) at t + c_i h. ``trend`` is the change of y per unit time over the last step (zero
+    without one). ys/vs rows: 0 M(y_n), 1 b, 2-4 the stage slopes, 5 the last stage, 6 scratch, 7-8 the first two
+    stages."""
+    m_n, b, rho = ys[0], ys[1], work[9]
+    c = GAMMA * step
     fresh = np.ones(1, dtype=np.bool_)
     conserved(y, pr, m_n)
-    b[:] = m_n + c * fy
-    y_g[:] = y + (GAMMA * step) * trend
-    it1 = _newton(y_g, b, c, t + GAMMA * step, pr, scales, tol, work, fresh)
-    it2 = -1
-    if it1 > 0:
-        slopes(y_g, b, c, pr, f_g)
-        flow_conserved(v, pr, vs[0])
-        vs[1][:] = vs[0] + c * fv
-        charge_density(y_g, pr, rho)
-        flow_stage(vs[1], c, t + GAMMA * step, rho, pr, vs[5])
-        stage_slopes(vs[5], vs[1], c, pr, vs[2])
-        a1, a0 = 1.0 / (GAMMA * (2.0 - GAMMA)), (1.0 - GAMMA) ** 2 / (GAMMA * (2.0 - GAMMA))
-        conserved(y_g, pr, b)
-        b[:] = a1 * b - a0 * m_n
-        y_new[:] = y + (y_g - y) / GAMMA  # start from the extrapolation through y_n and y_gamma
-        it2 = _newton(y_new, b, c, t + step, pr, scales, tol, work, fresh)
-        if it2 < 0:  # the extrapolated start can overshoot a steep front: retry from the stage value
-            y_new[:] = y_g
+    flow_conserved(v, pr, vs[0])
+    weights = ((0.0, 0.0), (A21, 0.0), (B1, B2))
+    times = (GAMMA, C2, 1.0)
+    iterations = 0
+    for i in range(3):
+        b[:] = m_n
+        vs[1][:] = vs[0]
+        for j in range(i):
+            b += (step * weights[i][j]) * ys[2 + j]
+            vs[1] += (step * weights[i][j]) * vs[2 + j]
+        stage, flow = (ys[7 + i], vs[7 + i]) if i < 2 else (ys[5], vs[5])
+        _stage_start(i, y, ys, step, trend, stage)
+        it = _newton(stage, b, c, t + times[i] * step, pr, scales, tol, work, fresh)
+        if it < 0 and i > 0:  # the extrapolated start can overshoot a steep front: retry from the last stage
+            stage[:] = ys[6 + i]
             fresh[0] = True
-            it2 = _newton(y_new, b, c, t + step, pr, scales, tol, work, fresh)
-        if it2 > 0:
-            slopes(y_new, b, c, pr, f_new)
-            flow_conserved(vs[5], pr, vs[1])
-            vs[1][:] = a1 * vs[1] - a0 * vs[0]
-            charge_density(y_new, pr, rho)
-            flow_stage(vs[1], c, t + step, rho, pr, vs[3])
-            stage_slopes(vs[3], vs[1], c, pr, vs[4])
-    stats[STAT_NEWTON] += max(it1, 0) + max(it2, 0)
-    return it1 > 0 and it2 > 0
+            it = _newton(stage, b, c, t + times[i] * step, pr, scales, tol, work, fresh)
+        if it < 0:
+            stats[STAT_NEWTON] += iterations
+            return False
+        iterations += it
+        slopes(stage, b, c, pr, ys[2 + i])
+        charge_density(stage, pr, rho)
+        flow_stage(vs[1], c, t + times[i] * step, rho, pr, flow)
+        stage_slopes(flow, vs[1], c, pr, vs[2 + i])
+    stats[STAT_NEWTON] += iterations
+    return True
 
 
 @njit(cache=True)
-def _error(fy, fv, step, ys, vs, work, pr, scales, tol):
-    """The step's error estimate (module docstring) against ``tol``: 1 is the limit; 0 without control."""
+def _error(step, ys, vs, work, pr, scales, tol):
+    """The step's error estimate, h sum_i (b_i - b^_i) F_i filtered through the iteration matrix, against
+    ``tol``: 1 is the limit; 0 without control."""
     if tol <= 0.0:
         return 0.0
     est, flow_est = ys[6], vs[6]
-    _estimate(fy, ys[2], ys[4], step, est)
+    est[:] = step * ((B1 - BH1) * ys[2] + (B2 - BH2) * ys[3] + GAMMA * ys[4])
     blocks.solve(work[5], work[6], work[7], work[8], est)
-    _estimate(fv, vs[2], vs[4], step, flow_est)
-    flow_solve(flow_est.copy(), D_STAGE * step, pr, flow_est)
+    flow_est[:] = step * ((B1 - BH1) * vs[2] + (B2 - BH2) * vs[3] + GAMMA * vs[4])
+    flow_solve(flow_est.copy(), GAMMA * step, pr, flow_est)
     nion = pr.ions.shape[0]
-    return max(error_norm(est, ys[3], pr, scales), flow_error(flow_est, pr, scales[nion + 1:])) / tol
+    return max(error_norm(est, ys[5], pr, scales), flow_error(flow_est, pr, scales[nion + 1:])) / tol
 
 
 @njit(cache=True)
@@ -242,7 +250,7 @@ def advance(y, fy, v, fv, t, t_stop, h, pr, scales, tol, max_steps, stats):
     work = (np.empty((n, m)), np.empty((n, m)), np.empty((n, m, m)), np.empty((n, m, m)), np.empty((n, m, m)),
             np.empty((n, m, m)), np.empty((n, m, m)), np.empty((n, m), dtype=np.int64), np.empty((n, m, m)),
             np.empty(n))
-    ys, vs = np.empty((7, n, m)), np.empty((7, n, 2))
+    ys, vs = np.empty((9, n, m)), np.empty((9, n, 2))
     trend = np.zeros((n, m))  # no history at the start of a stretch (the last stop may have been a jump)
     steps = 0
     while t < t_stop:
@@ -258,11 +266,11 @@ def advance(y, fy, v, fv, t, t_stop, h, pr, scales, tol, max_steps, stats):
             step = 0.5 * remaining  # two even steps rather than a long one and a sliver
         if step < 1e-14 * max(t_stop, 1e-300):
             return STEP_TOO_SMALL, h
-        if not _stages(y, fy, v, fv, t, step, pr, scales, tol, ys, vs, work, stats, trend):
+        if not _stages(y, v, t, step, pr, scales, tol, ys, vs, work, stats, trend):
             stats[STAT_FAILED_NEWTON] += 1
             h = 0.25 * step
             continue
-        err = _error(fy, fv, step, ys, vs, work, pr, scales, tol)
+        err = _error(step, ys, vs, work, pr, scales, tol)
         factor = min(4.0, max(0.2, 0.9 * err ** (-1.0 / 3.0))) if err > 0.0 else 4.0
         if err > 1.0:
             stats[STAT_REJECTED] += 1
@@ -270,10 +278,10 @@ def advance(y, fy, v, fv, t, t_stop, h, pr, scales, tol, max_steps, stats):
             continue
         steps += 1
         stats[STAT_STEPS] += 1
-        trend[:] = (ys[3] - y) / step
-        y[:] = ys[3]
-        fy[:] = ys[4]
-        v[:] = vs[3]
+        trend[:] = (ys[5] - y) / step
+        y[:] = ys[5]
+        fy[:] = ys[4]  # stiffly accurate: the last stage's slope is F(y_n+1)
+        v[:] = vs[5]
         fv[:] = vs[4]
         t = t_stop if step == remaining else t + step
         if tol > 0.0:
