@@ -106,6 +106,17 @@ def bernoulli(x):
     return x / m, (m - x * np.exp(x)) / (m * m)
 
 
+@njit(cache=True, error_model="numpy")
+def bernoulli_pair(x):
+    """B(x), B'(x), B(-x), B'(-x) from one evaluation: B(-a) = a + B(a) and B'(-a) = -1 - B'(a), taken with
+    a = |x| >= 0 so that no difference cancels."""
+    a = abs(x)
+    b, db = bernoulli(a)
+    if x >= 0.0:
+        return b, db, a + b, -1.0 - db
+    return a + b, -1.0 - db, b, db
+
+
 @njit(cache=True)
 def wall_row(walls, end, field, value):
     """Copy of the wall row of ``end`` with its driven entry ``field`` (W_VALUE or W_GATE_V) set to ``value``."""
@@ -150,8 +161,7 @@ def _link_terms(y, c, link, ions, diff, linear, res, lower, diag, upper):
                 flux = a * ((y[j, k] - y[j + 1, k]) - z * dpsi)
                 d_left, d_right, d_psi = a, -a, -a * z  # d flux / d (c_j, c_j+1, psi_j+1); d/d psi_j = -d_psi
             else:
-                bp, dbp = bernoulli(z * dpsi)
-                bm, dbm = bernoulli(-z * dpsi)
+                bp, dbp, bm, dbm = bernoulli_pair(z * dpsi)
                 cl, cr = np.exp(y[j, k]), np.exp(y[j + 1, k])
                 flux = a * (bp * cl - bm * cr)
                 d_left, d_right = a * bp * cl, -a * bm * cr
