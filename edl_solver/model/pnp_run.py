@@ -102,24 +102,28 @@ def run(case: Case, before: Case, drives: Any, times: np.ndarray,
     coarsest grid is stepped once more at 8 times the tolerance, and with a global error that grows in proportion
     to the tolerance (a third-order method whose steps hold a local error estimate of order h^3) the difference is
     7 times the error at the tolerance. Where the time error takes more than half the accuracy the tolerance
-    shrinks before the finer grids run.
+    shrinks before the finer grids run. A refinement adds one finer grid and drops the coarsest.
     """
     numerics = case.numerics
     intervals = numerics.intervals or FIRST_INTERVALS
-    share = TIME_SHARE
+    cells = level_intervals(intervals)
+    coarsest, share, timing = _time_share(case, before, drives, cells[0], times, TIME_SHARE)
+    runs = {cells[0]: coarsest}  # a refinement reuses the grids it shares with the last round
+    series = {cells[0]: pnp_quantities.series(coarsest.setup, coarsest.states, times)}
+    steps = int(coarsest.stats[pnp_stepper.STAT_STEPS])
     while True:
         cells = level_intervals(intervals)
-        coarsest, share, timing = _time_share(case, before, drives, cells[0], times, share)
-        levels, finest, steps = [pnp_quantities.series(coarsest.setup, coarsest.states, times)], coarsest, 0
-        for number, level in enumerate(cells[1:], start=1):
+        for number, level in enumerate(cells):
+            if level in runs:
+                continue
             # the work per grid roughly doubles with its cells: the finest is about half of the whole
             report = None if progress is None else _share(progress, 2.0**number / 15.0, (2.0**number - 1) / 15.0)
-            finest = run_grid(case, before, drives, level, times, numerics.accuracy * share, report)
-            steps += int(finest.stats[pnp_stepper.STAT_STEPS])
-            levels.append(pnp_quantities.series(finest.setup, finest.states, times))
-        finer, coarser = (part.real for part in extrapolated(levels))
-        scale = _scale(finest.setup, finer)
-        estimate = float(np.max(np.abs(finer - coarser) / scale)) + timing
+            runs[level] = run_grid(case, before, drives, level, times, numerics.accuracy * share, report)
+            steps += int(runs[level].stats[pnp_stepper.STAT_STEPS])
+            series[level] = pnp_quantities.series(runs[level].setup, runs[level].states, times)
+        finest = runs[cells[-1]]
+        finer, coarser = (part.real for part in extrapolated([series[level] for level in cells]))
+        estimate = float(np.max(np.abs(finer - coarser) / _scale(finest.setup, finer))) + timing
         if estimate <= numerics.accuracy or numerics.intervals:
             return Extrapolated(finer, estimate, finest, intervals, steps)
         if 2 * intervals > numerics.max_intervals:
