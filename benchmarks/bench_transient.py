@@ -121,23 +121,40 @@ def fipy_ladder(problem: tp.Problem, ref: np.ndarray, budget: float) -> dict:
     return out
 
 
+#: edl.transient: the accuracies tried; 1e-6 is the setting the issue asks for, the looser ones find the cheapest
+#: setting that still meets 1e-6 against the reference (as the peers' ladders do).
+EDL_ACCURACIES = (1e-6, 3e-6, 1e-5, 3e-5)
+
+
 def edl_side(problem: tp.Problem, ref: np.ndarray, repeats: int) -> dict:
-    """edl.transient's top-wall charge in units of eps kT/(e L), its error and median warm time, or why not."""
+    """edl.transient's top-wall charge in units of eps kT/(e L): error and median warm time at each accuracy, the
+    one asked for (1e-6) and the cheapest meeting 1e-6; or why not."""
     try:
+        import dataclasses
+
         import edl_solver as edl
 
         si = tp.si_cases(problem)
 
-        def call() -> np.ndarray:
-            charge = edl.transient(si.case, si.times, before=si.rest)["wall_charge_density"]
+        def call(accuracy: float) -> np.ndarray:
+            case = dataclasses.replace(si.case, numerics=edl.Numerics(accuracy=accuracy))
+            charge = edl.transient(case, si.times, before=si.rest)["wall_charge_density"]
             if "wall" in charge.dims:
                 charge = charge.sel(wall="top")
             return np.asarray(charge.values, dtype=float) / si.sigma_unit
 
-        series = call()  # warm-up (compilation, caches)
-    except Exception as exc:  # the solver is being written: any failure is reported, not raised
+        series = call(TARGET)  # warm-up (compilation, caches)
+    except Exception as exc:  # any failure is reported, not raised
         return {"available": False, "reason": f"{type(exc).__name__}: {str(exc).splitlines()[0][:160]}"}
-    return {"available": True, "error": relative_error(series, ref), "seconds": median_time(call, repeats),
+    tries = []
+    for accuracy in EDL_ACCURACIES:
+        series = call(accuracy)
+        tries.append({"accuracy": accuracy, "error": relative_error(series, ref),
+                      "seconds": median_time(lambda a=accuracy: call(a), repeats)})
+    asked = tries[0]
+    meeting = [t for t in tries if t["error"] <= TARGET]
+    best = min(meeting, key=lambda t: t["seconds"]) if meeting else None
+    return {"available": True, "error": asked["error"], "seconds": asked["seconds"], "tries": tries, "best": best,
             "sign_flipped": bool(relative_error(-series, ref) < relative_error(series, ref))}
 
 
@@ -200,9 +217,16 @@ def print_row(row: dict) -> None:
                   f"{fipy['extrapolated_seconds']:.3g} s")
     if edl["available"]:
         flip = " (sign flipped against sigma = dpsi/dx(top))" if edl["sign_flipped"] else ""
-        print(f"   edl.transient: error {edl['error']:.2e}, {edl['seconds']:.4f} s (median){flip}; "
+        for t in edl["tries"]:
+            print(f"   edl.transient accuracy {t['accuracy']:.0e}: error {t['error']:.2e}, {t['seconds']:.4f} s")
+        print(f"   edl.transient at accuracy 1e-6: error {edl['error']:.2e}, {edl['seconds']:.4f} s (median){flip}; "
               f"ratio solve_ivp/edl {ratio_text(best and best['seconds'], edl)}, fipy/edl "
               f"{ratio_text(row.get('fipy', {}).get('extrapolated_seconds'), edl)} (extrapolated)")
+        cheapest = edl["best"]
+        if cheapest is not None:
+            print(f"   edl.transient cheapest meeting 1e-6: accuracy {cheapest['accuracy']:.0e}, error "
+                  f"{cheapest['error']:.2e}, {cheapest['seconds']:.4f} s; ratio solve_ivp/edl "
+                  f"{ratio_text(best and best['seconds'], cheapest | {'available': True})}")
     else:
         print(f"   edl.transient: not available ({edl['reason']})")
 
