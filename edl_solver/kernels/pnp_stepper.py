@@ -25,7 +25,7 @@ from numba import njit
 
 from edl_solver.kernels import block_tridiagonal as blocks
 from edl_solver.kernels.fv1d import tridiagonal_solve
-from edl_solver.kernels.layout import DH
+from edl_solver.kernels.layout import DH, W_SITES
 from edl_solver.kernels.pnp_flow import (
     charge_density,
     flow_conserved,
@@ -147,20 +147,26 @@ def consistent(y, v, t, pr, fy, fv):
     lower, diag, upper = np.empty((n, m, m)), np.empty((n, m, m)), np.empty((n, m, m))
     lo, di, up, rhs, work, out = np.empty(n), np.empty(n), np.empty(n), np.empty(n), np.empty(n), np.empty(n)
     ok = False
+    previous = np.inf
+    sites = pr.model != DH and (pr.walls[0, W_SITES] > 0 or pr.walls[1, W_SITES] > 0)
     for _ in range(60):
         conserved(y, pr, b)
         assemble_problem(y, b, -1.0, t, pr, res, lower, diag, upper)
         for j in range(n):
             lo[j], di[j], up[j], rhs[j] = lower[j, nion, nion], diag[j, nion, nion], upper[j, nion, nion], res[j, nion]
         tridiagonal_solve(lo, di, up, rhs, out, work)
+        largest = np.max(np.abs(out))
+        # linear but for charge-regulating sites: damped only with sites, by one scale for every node
+        shrink = min(1.0, MAX_UPDATE / largest) if sites and largest > 0.0 else 1.0
         biggest = 0.0
         for j in range(n):
-            step = min(max(out[j], -MAX_UPDATE), MAX_UPDATE) if pr.model != DH else out[j]
-            y[j, nion] -= step
+            y[j, nion] -= shrink * out[j]
             biggest = max(biggest, abs(out[j]) / (1.0 + abs(y[j, nion])))
-        if biggest < 1e-14:
+        # converged, or at the round-off floor of the solve (no longer shrinking, far below any tolerance)
+        if biggest < 1e-13 or (biggest < 1e-9 and biggest > 0.5 * previous):
             ok = True
             break
+        previous = biggest
     conserved(y, pr, b)
     assemble_problem(y, b, -1.0, t, pr, res, lower, diag, upper)
     for j in range(n):
