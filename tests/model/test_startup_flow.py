@@ -89,3 +89,24 @@ def test_what_a_closed_section_cannot_follow_is_refused() -> None:
     for bad in ([0.0], [2e-9, 1e-9], [], "soon"):
         with pytest.raises(edl.InputError, match="times"):
             edl.transient(case, bad)
+
+
+def test_thin_layers_start_up_as_the_slip_driven_series() -> None:
+    """kappa h = 200: the full start-up follows the slit whose walls slip at the Helmholtz-Smoluchowski velocity
+    u_s from t = 0, mean u(t) = u_s [1 - sum_n 8 / ((2n+1)^2 pi^2) exp(-alpha_n^2 nu t)], alpha_n = (2n+1) pi / (2h)
+    (the classical Fourier series of a suddenly moved wall pair, e.g. Carslaw & Jaeger, from memory), within the
+    layer's share lambda_D / h plus lambda_D / sqrt(nu t), the layer against the momentum's diffusion length."""
+    salt = edl.Electrolyte.from_ions({"K+": "100 mM", "Cl-": "100 mM"})
+    case = edl.Case(edl.Slit(height="200 nm"), salt, edl.Wall(zeta=-0.02), field=FIELD, model="dh")
+    h, debye = case.geometry.half_size, case.debye_length
+    nu = case.solvent.viscosity / case.solvent.density
+    viscous = h**2 / nu
+    times = viscous * np.array([0.03, 0.1, 0.3, 1.0, 3.0])
+    slip = -case.solvent.permittivity * (-0.02) * FIELD / case.solvent.viscosity  # u_s = -eps zeta E / eta
+    n = np.arange(200_000)
+    alpha = (2 * n + 1) * np.pi / (2 * h)
+    thin = np.array([slip * (1 - np.sum(8 / ((2 * n + 1) ** 2 * np.pi**2) * np.exp(-alpha**2 * nu * t)))
+                     for t in times])
+    full = edl.transient(case, times)["mean_velocity_eo"].values
+    assert np.all(np.abs(full / thin - 1) < 3 * (debye / h + debye / np.sqrt(nu * times)))
+    assert np.all(np.abs(full / thin - 1) > 0.1 * debye / h)  # the layer's share is there: a check that can fail
