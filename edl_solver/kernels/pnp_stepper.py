@@ -5,9 +5,10 @@ Alexander's three-stage singly diagonally implicit Runge-Kutta method (Alexander
 accurate (the last stage is the new value), so Poisson is simply enforced at each stage and a step needs no
 slope from before it. All stages share the diagonal gamma, hence one iteration matrix M' - gamma h J per step
 (a chord iteration reuses its factors). Every stage is written in conservation form,
-M(Y_i) - gamma h F(Y_i) = M(y_n) + h sum_j<i a_ij F(Y_j), so the ion inventory changes only by the Newton
-residual, which the iteration drives to round-off. Each stage solves the ions and the potential, then the flow
-(``kernels.pnp_flow``), which does not act back on them.
+M(Y_i) - gamma h F(Y_i) = M(y_n) + h sum_j<i a_ij F(Y_j): the fluxes cancel in the sum over the nodes, so each
+stage's inventory is that of the right-hand side, which a uniform shift of each ion's log-concentration (far
+below the iteration's tolerance) restores exactly once the iteration has converged. Each stage solves the ions
+and the potential, then the flow (``kernels.pnp_flow``), which does not act back on them.
 
 Local error: h sum_i (b_i - b^_i) F(Y_i) with the embedded second-order weights b^ (b^_3 = 0, derived here: sum
 b^ = 1, sum b^ c = 1/2), filtered through the iteration matrix, (M' - gamma h J)^-1, as is usual for stiff
@@ -49,14 +50,28 @@ BH1 = 1.0 - BH2
 MAX_NEWTON = 25
 #: Largest Newton change of a log-concentration or of the potential (kT/e) in one iteration.
 MAX_UPDATE = 2.0
-#: Newton stops when the log-concentrations (and perturbations) change by less than this, so that the
-#: residual left, and the inventory error it makes, is of the order of its square.
-ION_TOLERANCE = 1e-12
 
 #: Status codes of ``advance``.
 OK, NEWTON_FAILED, STEP_TOO_SMALL, TOO_MANY_STEPS = 0, 1, 2, 3
 #: Entries of the ``stats`` counters.
 STAT_STEPS, STAT_REJECTED, STAT_NEWTON, STAT_FAILED_NEWTON = 0, 1, 2, 3
+
+
+@njit(cache=True)
+def _restore_inventory(y, b, pr):
+    """Make each ion's inventory exactly that the stage conserves, sum_j b_jk (the fluxes cancel in the sum), by
+    one uniform shift of its log-concentration (a scaling of c_k), far below the iteration's tolerance."""
+    if pr.model == DH:
+        return
+    nion = pr.ions.shape[0]
+    for k in range(nion):
+        target, current = 0.0, 0.0
+        for j in range(y.shape[0]):
+            target += b[j, k]
+            current += pr.volume[j] * np.exp(y[j, k])
+        shift = np.log(target / current)
+        for j in range(y.shape[0]):
+            y[j, k] += shift
 
 
 @njit(cache=True)
@@ -95,10 +110,11 @@ def _newton(y, b, c, t, pr, scales, tol, work, fresh):
                 step = shrink * delta[j, q]
                 y[j, q] -= step
                 # the potential and velocities to a thousandth of the tolerance, not below round-off
-                limit = ION_TOLERANCE if q < nion else max(1e-3 * tol * scales[q], 1e-12 * (1.0 + abs(y[j, q])))
+                limit = max(1e-3 * tol * scales[q], 1e-12 * (1.0 + abs(y[j, q])))
                 if abs(step) > limit:
                     done = False
         if done:
+            _restore_inventory(y, b, pr)
             return it + 1
         if biggest > 0.5 * previous:  # slow: a fresh Jacobian at this iterate
             fresh[0] = True
