@@ -1,0 +1,78 @@
+"""Channels whose section varies along x (``channel.taper_table``, ``channel.taper_path``) against the uniform
+channel and closed forms.
+
+Conventions of ``edl_solver.channel.model``: x from the left reservoir (0) to the right one (L); Delta V =
+V(L) - V(0); I positive along +x; slit values per unit width.
+"""
+
+from __future__ import annotations
+
+import math
+
+import numpy as np
+import pytest
+
+import edl_solver as edl
+from edl_solver import channel as ch
+from edl_solver.model.bulk import bulk_conductivity
+from tests.helpers import KCL, SOLVENT
+
+CHARGED = edl.Case(geometry=edl.Capillary(radius="10 nm"), electrolyte=KCL,
+                   wall=edl.Wall(charge_density="-20 mC/m^2"), solvent=SOLVENT)
+
+
+def test_a_uniform_size_through_the_tapered_path_is_the_uniform_channel() -> None:
+    """size=(a, a) between equal reservoirs: c stays the reservoirs' and F = M X exactly (model.py), so the
+    collocation along x must give the uniform Channel's fluxes to round-off (the table holds c_L and a as nodes)."""
+    uniform = ch.Channel(CHARGED, "1 um", "1 mM", "1 mM")
+    tapered = ch.tabulate(ch.Channel(CHARGED, "1 um", "1 mM", "1 mM", size=("10 nm", "10 nm"), points=8))
+    assert tapered.sizes is not None and tapered.sizes.size == 1
+    for voltage, dp in ((0.1, 0.0), (-0.3, 0.0), (0.05, 2e4)):
+        want = ch.operating_point(uniform, voltage=voltage, pressure_difference=dp)
+        got = ch.operating_point(tapered, voltage=voltage, pressure_difference=dp)
+        assert got.status == "converged", got.message
+        for name in ("current", "volume_flow", "salt_flux"):
+            assert getattr(got, name) == pytest.approx(getattr(want, name), rel=1e-10, abs=0.0), name
+        np.testing.assert_allclose(got.concentration, 1.0, rtol=1e-10)
+
+
+def test_a_uniform_size_between_different_reservoirs_agrees_with_the_ln_c_quadrature() -> None:
+    """The same uniform channel by two discretisations (collocation in x here, the ln c quadrature of
+    ``quadrature.py`` there) and two tables: they agree to the tables' interpolation error."""
+    uniform = ch.tabulate(ch.Channel(CHARGED, "1 um", "0.5 mM", "2 mM"))
+    tapered = ch.tabulate(ch.Channel(CHARGED, "1 um", "0.5 mM", "2 mM", size=("10 nm", "10 nm")))
+    bound = 10.0 * max(uniform.interpolation_error, tapered.interpolation_error)
+    for voltage in (0.0, 0.1, -0.1):
+        want = ch.operating_point(uniform, voltage=voltage)
+        got = ch.operating_point(tapered, voltage=voltage)
+        assert got.current == pytest.approx(want.current, rel=bound)
+    want = ch.membrane_potential(uniform)
+    assert ch.membrane_potential(tapered) == pytest.approx(want, rel=10.0 * tapered.potential_interpolation_error)
+
+
+def _uncharged(geometry: edl.Slit | edl.Capillary) -> edl.Case:
+    return edl.Case(geometry=geometry, electrolyte=KCL, wall=edl.Wall(zeta=0.0), solvent=SOLVENT)
+
+
+def test_an_uncharged_cone_has_the_ohmic_resistance_of_its_shape() -> None:
+    """R = int_0^L dx / (K pi r(x)^2) with r linear from a to b: dr = (b - a) dx / L gives
+    L/(K pi (b - a)) (1/a - 1/b) = L/(K pi a b) (derived here; Ohm's law in a slowly varying section, common
+    practice). Access resistance off; the I-V curve is odd (no rectification)."""
+    case = _uncharged(edl.Capillary(radius="20 nm"))
+    table = ch.tabulate(ch.Channel(case, "1 um", "1 mM", "1 mM", size=("20 nm", "80 nm")))
+    closed = 1e-6 / (bulk_conductivity(case) * math.pi * 20e-9 * 80e-9)
+    voltages = np.array([-0.4, -0.1, 0.1, 0.4])
+    current = ch.current_voltage(table, voltages)["current"].values
+    assert table.interpolation_error < 1e-3
+    np.testing.assert_allclose(-voltages / current, closed, rtol=max(table.interpolation_error, 1e-6))
+    np.testing.assert_allclose(current[::-1], -current, rtol=1e-6)
+
+
+def test_an_uncharged_tapered_slit_has_the_ohmic_resistance_of_its_shape() -> None:
+    """Per unit width, R = int_0^L dx / (K h(x)) = L ln(h2/h1) / (K (h2 - h1)) for h linear (derived here)."""
+    case = _uncharged(edl.Slit(height="20 nm"))
+    table = ch.tabulate(ch.Channel(case, "2 um", "1 mM", "1 mM", size=("20 nm", "60 nm")))
+    closed = 2e-6 * math.log(3.0) / (bulk_conductivity(case) * 40e-9)
+    voltages = np.array([-0.2, 0.2])
+    current = ch.current_voltage(table, voltages)["current"].values
+    np.testing.assert_allclose(-voltages / current, closed, rtol=max(table.interpolation_error, 1e-6))
