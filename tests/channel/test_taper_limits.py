@@ -90,3 +90,19 @@ def test_a_charged_cone_between_two_reservoirs_reaches_the_nernst_potential() ->
     for size in (("2 nm", "4 nm"), ("4 nm", "2 nm")):
         table = ch.tabulate(ch.Channel(case, "1 um", "0.1 mM", "1 mM", size=size, points=16, size_points=6))
         assert ch.membrane_potential(table) == pytest.approx(nernst, rel=1e-3)
+
+
+def test_a_tapered_channel_gives_lab_landmarks_without_the_uniform_closed_forms() -> None:
+    """``channel_characteristics`` of a cone between different reservoirs: its landmarks, and no Planck
+    ``bulk_current`` (that closed form, Planck 1890, is for a uniform section). A Device of cones finds its
+    stall pressure where its flow vanishes (the secant, since a charged cone is not linear)."""
+    from edl_solver.channel.characteristics import channel_characteristics
+
+    data = channel_characteristics(ch.Channel(CHARGED, "1 um", "0.5 mM", "2 mM", size=("5 nm", "20 nm"), points=16,
+                                              size_points=6), [-0.1, 0.0, 0.1])
+    assert "bulk_current" not in data and np.all(data["status"].values == 0)
+    assert float(data["conductance"]) > 0.0 and float(data["membrane_potential"]) < 0.0  # cation selective
+    device = ch.Device(ch.Channel(CHARGED, "1 um", "1 mM", "1 mM", size=("5 nm", "20 nm"), points=16,
+                                  size_points=6), 10)
+    curve = device.pump_curve(0.1)
+    assert abs(device.state(0.1, curve.stall_pressure).flow_rate) <= 1e-8 * abs(curve.free_flow)
