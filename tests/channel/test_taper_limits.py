@@ -106,3 +106,15 @@ def test_a_tapered_channel_gives_lab_landmarks_without_the_uniform_closed_forms(
                                   size_points=6), 10)
     curve = device.pump_curve(0.1)
     assert abs(device.state(0.1, curve.stall_pressure).flow_rate) <= 1e-8 * abs(curve.free_flow)
+
+
+def test_pressure_driven_flow_through_an_uncharged_cone_follows_lubrication() -> None:
+    """Q = -Delta p / int_0^L 8 eta dx / (pi r^4) with r linear: int = 8 eta L (1/a^3 - 1/b^3) / (3 pi (b - a))
+    (Poiseuille in a slowly varying section, common practice; derived here). No charge, so no current."""
+    case = _uncharged(edl.Capillary(radius="20 nm"))
+    table = ch.tabulate(ch.Channel(case, "1 um", "1 mM", "1 mM", size=("20 nm", "80 nm"), points=8))
+    a, b = 20e-9, 80e-9
+    resistance = 8.0 * SOLVENT.viscosity * 1e-6 * (1.0 / a**3 - 1.0 / b**3) / (3.0 * math.pi * (b - a))
+    point = ch.operating_point(table, voltage=0.0, pressure_difference=1e5)
+    assert point.volume_flow == pytest.approx(-1e5 / resistance, rel=max(table.interpolation_error, 1e-6))
+    assert point.pressure[-1] == pytest.approx(1e5, rel=1e-9)
