@@ -46,6 +46,11 @@ def _solve_grid(case: Case, concentrations: np.ndarray, sizes: np.ndarray
         for i, c in enumerate(concentrations):
             try:
                 result = solve(sweep_axes.case_at(base, axes, (i, j)))
+            except InputError as error:
+                raise InputError(f"channel.size: the table's point c = {c:.6g} mol/m^3, {case.geometry.size_name} "
+                                 f"{size:.6g} m is refused ({error}), expected sizes and concentrations (the "
+                                 f"reservoirs' widened {CONCENTRATION_SPAN:g} times each way) inside the solver's "
+                                 "domain") from None
             except ConvergenceError as error:
                 raise ConvergenceError(f"channel: the cross-section solve at c = {c:.6g} mol/m^3 and "
                                        f"{case.geometry.size_name} {size:.6g} m failed ({error})") from error

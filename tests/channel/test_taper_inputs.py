@@ -62,3 +62,10 @@ def test_a_slit_width_must_exceed_ten_times_the_largest_height() -> None:
     slit = edl.Case(geometry=edl.Slit(height="10 nm"), electrolyte=KCL, wall=edl.Wall(zeta=0.0), solvent=SOLVENT)
     with pytest.raises(InputError, match=r"channel\.width"):
         ch.Channel(slit, "4 um", "1 mM", "1 mM", size=("10 nm", "100 nm"), width="500 nm")
+
+
+def test_a_table_outside_the_solvers_domain_is_refused_naming_the_size() -> None:
+    """The table spans the reservoirs' concentrations widened 50 times: at 1 M a 2 um radius gives kappa a
+    above the solver's domain (``inputs.domain``), refused before anything is along-channel solved."""
+    with pytest.raises(InputError, match=r"^channel\.size: the table's point .* radius .* domain$"):
+        ch.tabulate(ch.Channel(CAPILLARY, "4 um", "1 M", "1 M", size=("300 nm", "2 um"), size_points=4, points=8))
