@@ -9,7 +9,9 @@ OperatingPoint), ``quadrature`` (the along-channel conditions in ln c), ``path``
 ``model`` (Channel, the table of cross-section solves), ``operating`` (the operating functions),
 ``access`` (access resistances), ``device`` and ``device_text`` (N channels in parallel, their report lines),
 ``plateau`` (closed forms of the counter-ion limit), ``characteristics`` (a channel's lab landmarks) and
-``conductance`` (conductance against concentration).
+``conductance`` (conductance against concentration); for a section that varies along x, ``shape`` (the
+size along x), ``taper_table`` (the relations over concentration and size), ``taper_path`` (the problem along
+x) and ``rectification`` (``rectification_ratio``).
 """
 
 from edl_solver.channel.device import Device

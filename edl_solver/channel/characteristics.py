@@ -125,7 +125,7 @@ def _curve(table: ChannelTable, voltages: Any, dp: float) -> Any:
                                  "interpolation_error": table.interpolation_error, "conventions": CONVENTIONS,
                                  "case": case.describe()})
     data = current_voltage(table, voltages, dp)
-    if _binary_valence(case) is not None:
+    if _binary_valence(case) is not None and spec.size is None:  # Planck's closed form is for a uniform section
         data["bulk_current"] = (("voltage",), planck_current(case, left, right, spec.length, data["voltage"].values),
                                 {"units": extent_unit(("A/m", "A"), case.geometry), "long_name": "current of an "
                                  "uncharged channel (free-solution electrodiffusion, Planck), no access resistance"})

@@ -9,9 +9,10 @@ channel's. The channels' openings are taken as far apart compared with their siz
 do not interact.
 
 The pump curve at a voltage is the volume flow against Delta p: from the free flow Q0 at Delta p = 0 to the
-stall pressure Delta p_stall at Q = 0. For equal reservoirs the channel is linear (the line is exact; Q0 =
--(dQ/dDelta p) Delta p_stall); between different reservoirs the stall pressure is found by the secant method
-and the curve drawn as the straight line between the two points.
+stall pressure Delta p_stall at Q = 0. For equal reservoirs a uniform channel is linear (the line is exact;
+Q0 = -(dQ/dDelta p) Delta p_stall); between different reservoirs, or along a section that varies
+(``Channel.size``), the stall pressure is found by the secant method and the curve drawn as the straight line
+between the two points.
 """
 
 from __future__ import annotations
@@ -151,7 +152,7 @@ class Device:
             raise ConvergenceError(f"device: the flow does not fall with the back pressure (dQ/dDelta p = {slope:.3g} "
                                    "m^3/(s Pa))")
         stall = -free / slope
-        if not self.channel.equal_reservoirs:
+        if not self.channel.equal_reservoirs or self.channel.size is not None:  # a varying section is not linear
             stall = self._secant_stall(voltage, free, stall, slope)
         conductance = free / stall if stall != 0.0 else -slope
         return PumpCurve(voltage, free, stall, conductance)

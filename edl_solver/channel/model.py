@@ -52,16 +52,20 @@ import functools
 import math
 from collections.abc import Sequence
 from dataclasses import dataclass, field
+from typing import Any
 
 import numpy as np
 
 from edl_solver.channel.path import Path, Uniform
 from edl_solver.channel.relations import SaltRatios, reduce_matrices
-from edl_solver.constants import FARADAY, GAS_CONSTANT
+from edl_solver.channel.relations import basis_of as _basis
+from edl_solver.channel.relations import zero_current_gradient as _zero_current_gradient
+from edl_solver.channel.shape import make_shape
+from edl_solver.constants import GAS_CONSTANT
 from edl_solver.errors import ConvergenceError, InputError
 from edl_solver.inputs.case import Case
 from edl_solver.inputs.units import to_positive_si
-from edl_solver.model.bulk import bulk_conductivity, salt_stoichiometry
+from edl_solver.model.bulk import bulk_conductivity
 
 __all__ = ["Channel", "ChannelTable", "cases_at", "table_of", "tabulate"]
 
@@ -100,6 +104,15 @@ class Channel:
     width : float or str, optional
         Width W of a slit, m (or "1 um"), at least ten times its height; used for its access resistance (and
         by ``Device`` to turn per-width values into a channel's). None for a capillary.
+    size : pair, callable or table, optional
+        The radius (capillary) or height (slit) along x, replacing the case's (``edl_solver.channel.shape``):
+        ``(a, b)`` at x = 0 and x = L, linear between them (a cone, a tapered slit); a callable size(x), both
+        in m; or a table ``{"position": [...], "size": [...]}``. Stored as a ``shape.Shape``. None (default):
+        the case's own geometry, a uniform channel. A channel with a size is tabulated over (concentration,
+        size) and solved along x (``taper_table``, ``taper_path``).
+    size_points : int
+        Sizes of that table, log-spaced between the smallest and largest, from 4 to 100 (one for a uniform
+        size).
     """
 
     case: Case
@@ -109,6 +122,8 @@ class Channel:
     access_resistance: bool = False
     points: int = 32
     width: float | str | None = None
+    size: Any = None
+    size_points: int = 12
 
     def __post_init__(self) -> None:
         if not isinstance(self.case, Case):
@@ -122,7 +137,13 @@ class Channel:
         if not isinstance(self.access_resistance, bool):
             raise InputError(f"channel.access_resistance: {self.access_resistance!r} is not a bool, "
                              "expected True or False")
+        if self.size is not None:
+            object.__setattr__(self, "size", make_shape(self.size, length, self.case.geometry.kind))
         self._check_width()
+        if isinstance(self.size_points, bool) or not isinstance(self.size_points, int) or \
+                not 4 <= self.size_points <= 100:
+            raise InputError(f"channel.size_points: {self.size_points!r} is not allowed, expected an integer from 4 "
+                             "to 100")
         if isinstance(self.points, bool) or not isinstance(self.points, int) or not 8 <= self.points <= 400:
             raise InputError(f"channel.points: {self.points!r} is not allowed, expected an integer from 8 to 400")
 
@@ -140,7 +161,8 @@ class Channel:
                              "to a slit)")
         width = to_positive_si(self.width, "m", "channel.width", "a slit width in m (or '1 um')")
         object.__setattr__(self, "width", width)
-        slit_access_resistance(1.0, geometry.height, width)  # refuses a width under ten heights
+        highest = geometry.height if self.size is None else max(self.size.sizes)
+        slit_access_resistance(1.0, highest, width)  # refuses a width under ten heights
 
     @property
     def equal_reservoirs(self) -> bool:
@@ -211,13 +233,6 @@ class IonMatrixSpline:
         return out
 
 
-def _zero_current_gradient(matrices: np.ndarray, rt: float, total_nu: float, total_c: np.ndarray) -> np.ndarray:
-    """dV/d ln c at zero current and no hydrostatic gradient: X_P = RT sum c_i, X_s = -RT sum nu per unit
-    d ln c/dx, E = -(M_IP X_P + M_Is X_s) / M_II (as ``kernels.lab.lab_quantities``)."""
-    x_p, x_s = rt * total_c, -rt * total_nu
-    return (matrices[:, 1, 0] * x_p + matrices[:, 1, 2] * x_s) / matrices[:, 1, 1]
-
-
 @dataclass(frozen=True, eq=False)
 class ChannelTable:
     """The precomputed cross-section relations of a channel (``tabulate``): what every I-V point uses.
@@ -239,6 +254,11 @@ class ChannelTable:
         Both ends' access resistance in series, ohm (0 without it).
     solves : int
         Cross-section solves made.
+    sizes : ndarray or None
+        The sizes of the table of a channel with a ``size`` (``taper_table``), m; ``matrices`` then has shape
+        (sizes, concentrations, 3, 3). None for a uniform channel.
+    seconds : float
+        Wall time of the tabulation, s (measured for a channel with a ``size``, else 0).
     warnings : tuple of str
         The solves' notes on the model's physical validity.
     """
@@ -251,7 +271,9 @@ class ChannelTable:
     access_resistance: float
     solves: int
     warnings: tuple[str, ...]
-    _path: Path | Uniform = field(repr=False)
+    _path: Path | Uniform | Any = field(repr=False)
+    sizes: np.ndarray | None = None
+    seconds: float = 0.0
 
 
 def _access_resistance(channel: Channel) -> float:
@@ -285,6 +307,10 @@ def tabulate(channel: Channel) -> ChannelTable:
     """
     if not isinstance(channel, Channel):
         raise InputError(f"channel: {type(channel).__name__} is not a Channel, expected edl_solver.channel.Channel")
+    if channel.size is not None:
+        from edl_solver.channel.taper_table import tabulate_taper
+
+        return ChannelTable(channel, **tabulate_taper(channel))
     case = channel.case
     rt = GAS_CONSTANT * case.solvent.temperature
     access = _access_resistance(channel)
@@ -316,17 +342,6 @@ def tabulate(channel: Channel) -> ChannelTable:
     path = Path(channel, spline, basis, rt, access)
     return ChannelTable(channel, np.exp(u), reduced, matrix_error, potential_error, access, len(ion_all), notes,
                         path)
-
-
-def _basis(case: Case) -> np.ndarray:
-    """The (1 + n) x 3 matrix B of ``kernels.response.reduced_matrix``: M = B^T L B."""
-    valence = np.array([ion.valence for ion in case.electrolyte.ions], dtype=float)
-    total = float(np.sum(salt_stoichiometry(case)))
-    basis = np.zeros((valence.size + 1, 3))
-    basis[0, 0] = 1.0
-    basis[1:, 1] = valence * FARADAY
-    basis[1:, 2] = 1.0 / total
-    return basis
 
 
 @functools.lru_cache(maxsize=16)
