@@ -60,7 +60,8 @@ def shown_number(value: float) -> str:
 def flags_line() -> str:
     """What ``edl transport`` adds to ``edl solve``'s report, for a run without its flags."""
     return ("edl transport adds, with its flags: --length L (a finite channel's conductance; with --left and "
-            "--right its membrane potential and osmotic power; --iv its I-V curve), --conductance C1:C2:N (the "
+            "--right its membrane potential and osmotic power; --iv its I-V curve; --size A:B a tapered channel, "
+            "--rectification its |I(+V)/I(-V)|), --conductance C1:C2:N (the "
             "conductance against concentration), --pump-figure (the EO pump curve), --channels/--width/--voltage/"
             "--pressure-difference with --length (a device's flow in uL/min, pump curve and streaming potential); "
             "see edl transport --help\n")
