@@ -5,6 +5,7 @@ and the laboratory caution of the README wherever a voltage is applied."""
 from __future__ import annotations
 
 from edl_solver.channel.device import Device, flow_in_lab_units, pressure_in_lab_units
+from edl_solver.channel.model import Channel
 
 __all__ = ["HIGH_VOLTAGE_CAUTION", "device_lines"]
 
@@ -21,12 +22,27 @@ def _row(label: str, text: str) -> str:
     return f"  {label:<48} {text}"
 
 
+def _tapered(channel: Channel) -> str:
+    """The shape of tapered channels: their sizes at x = 0 and x = L (and the range, for a table)."""
+    from edl_solver.report.formatting import prefixed
+
+    sizes = channel.size.sizes
+    ends = f"{prefixed(sizes[0], 'm')} at x = 0 to {prefixed(sizes[-1], 'm')} at x = L"
+    if len(sizes) > 2:
+        ends += f" (a table, from {prefixed(min(sizes), 'm')} to {prefixed(max(sizes), 'm')})"
+    if channel.case.geometry.kind == "slit":
+        return f"tapered slits {prefixed(channel.width, 'm')} wide, of height {ends}"
+    return f"tapered capillaries of radius {ends}"
+
+
 def _describe(device: Device) -> str:
     from edl_solver.report.formatting import prefixed
 
     channel = device.channel
     geometry = channel.case.geometry
-    if geometry.kind == "slit":
+    if channel.size is not None:  # the case's own size is not the channel's
+        shape = _tapered(channel)
+    elif geometry.kind == "slit":
         shape = f"slits {prefixed(geometry.height, 'm')} high and {prefixed(channel.width, 'm')} wide"
     else:
         shape = f"capillaries of radius {prefixed(geometry.radius, 'm')}"

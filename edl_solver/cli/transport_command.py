@@ -22,7 +22,7 @@ __all__ = ["VALUE_FLAGS", "add_transport_command", "run_transport_command"]
 #: Flags of ``edl transport`` that take a value.
 VALUE_FLAGS = CASE_VALUE_FLAGS | frozenset(OUTPUT_FLAGS) | frozenset(
     {"--length", "--pump-figure", "--conductance", "--conductance-figure", "--iv", "--left", "--right",
-     "--iv-figure", "--width", "--channels", "--voltage", "--pressure-difference", "--access-resistance"})
+     "--iv-figure", "--size", "--width", "--channels", "--voltage", "--pressure-difference", "--access-resistance"})
 
 _EPILOG = """\
 examples:
@@ -46,6 +46,10 @@ reservoirs' concentrations of the first ion; both or neither, default the case's
 potential, short-circuit current, maximum osmotic power and efficiency. --iv V1:V2:N adds its I-V
 curve at N voltages V(right) - V(left), evenly spaced. --conductance C1:C2:N solves the section at
 N concentrations, evenly spaced in log (per unit length, or of the channel with --length).
+--size A:B makes the channel tapered: radius (capillary) or height (slit) A at x = 0 and B at x = L,
+linear between (a cone); --rectification prints |I(+V)/I(-V)| at the positive voltages of --iv:
+  edl transport --capillary 5nm --ion K+=10mM --ion Cl-=10mM --charge-density -20mC/m^2 --length 1um \\
+      --size 5nm:40nm --iv -500mV:500mV:11 --rectification --iv-figure cone.png
 A device: --width W (of each slit), --channels N (in parallel), --voltage V and --pressure-difference
 DP (e.g. 10V, 100mbar, -1bar; both as V(right) - V(left), p(right) - p(left)) print its flow rate in
 uL/min or nL/min, current and conductance, its pump curve and stall pressure at V and the streaming
@@ -76,6 +80,11 @@ def add_transport_command(commands: Any) -> None:
     channel.add_argument("--iv", metavar="V1:V2:N", help="I-V curve at N voltages V(right) - V(left) from V1 to V2, "
                                                          "e.g. -150mV:150mV:31 (needs --length)")
     channel.add_argument("--iv-figure", metavar="PNG", help="write a figure of the I-V curve (needs --iv)")
+    channel.add_argument("--size", metavar="A:B", help="a tapered channel: its radius (capillary) or height (slit) "
+                                                       "A at x = 0 and B at x = L, linear between, e.g. 5nm:40nm "
+                                                       "(needs --length)")
+    channel.add_argument("--rectification", action="store_true",
+                         help="print |I(+V)/I(-V)| at the positive voltages of --iv (needs --iv)")
     _add_device_flags(transport)
     curves = transport.add_argument_group("pump curve and conductance curve")
     curves.add_argument("--pump-figure", metavar="PNG",
@@ -197,7 +206,7 @@ def _transport_plan(args: argparse.Namespace, case: Any) -> dict[str, Any]:
         raise InputError(f"{given}: given without {missing}, expected both reservoir concentrations (or neither, "
                          "for reservoirs at the case's concentration)")
     if args.length is None:
-        for flag, value in (("--left", args.left), ("--iv", args.iv)):
+        for flag, value in (("--left", args.left), ("--iv", args.iv), ("--size", args.size)):
             if value is not None:
                 raise InputError(f"{flag}: needs --length, the length of the channel, expected e.g. --length 10um")
     else:
@@ -207,8 +216,10 @@ def _transport_plan(args: argparse.Namespace, case: Any) -> dict[str, Any]:
             _positive(args.left, "--left", "mol/m^3", "a concentration, e.g. 1mM"),
             _positive(args.right, "--right", "mol/m^3", "a concentration, e.g. 10mM"))
         cases_at(case, list(plan["reservoirs"]))  # an electrolyte that cannot be scaled fails here, not later
+    plan["size"] = _size_pair(args.size, case) if args.size is not None else None
     if args.iv is not None:
         plan["voltages"] = _parse_range(args.iv, "--iv", "V", log=False)
+    plan["rectification"] = _rectification_voltages(args.rectification, plan["voltages"])
     if args.conductance is not None:
         plan["concentrations"] = _parse_range(args.conductance, "--conductance", "mol/m^3", log=True)
         cases_at(case, plan["concentrations"][:1])
@@ -217,6 +228,34 @@ def _transport_plan(args: argparse.Namespace, case: Any) -> dict[str, Any]:
         raise InputError("--pump-figure: the case has no field, expected --field E (e.g. --field 10kV/m) or a "
                          "field in the case file")
     return plan
+
+
+def _size_pair(text: str, case: Any) -> tuple[float, float]:
+    """``A:B`` -> the sizes (m) at x = 0 and x = L, checked as ``Channel(size=...)`` checks them."""
+    from edl_solver.channel.shape import make_shape
+    from edl_solver.errors import InputError
+
+    parts = text.split(":")
+    if len(parts) != 2 or not all(part.strip() for part in parts):
+        raise InputError(f"--size: {text!r} is not A:B, expected the size at x = 0 and at x = L, e.g. --size 5nm:40nm")
+    try:
+        shape = make_shape(tuple(part.strip() for part in parts), 1.0, case.geometry.kind)
+    except InputError as error:
+        raise InputError(f"--size: {text!r} is not allowed ({error}), expected two positive sizes, e.g. "
+                         "--size 5nm:40nm") from None
+    return shape.ends
+
+
+def _rectification_voltages(asked: bool, voltages: list[float] | None) -> list[float] | None:
+    """The positive voltages of --iv at which --rectification is asked; None when it is not."""
+    from edl_solver.errors import InputError
+
+    if not asked:
+        return None
+    positive = [v for v in voltages or [] if v > 0.0]
+    if not positive:
+        raise InputError("--rectification: needs --iv with positive voltages, expected e.g. --iv -150mV:150mV:31")
+    return positive
 
 
 def _transport_outputs(args: argparse.Namespace) -> dict[str, Path]:
@@ -263,8 +302,9 @@ def run_transport_command(args: argparse.Namespace) -> int:
         from edl_solver.channel.model import Channel
 
         spec = Channel(case, plan["length"], *plan["reservoirs"], access_resistance=args.access_resistance == "on",
-                       width=plan["width"])
+                       width=plan["width"], size=plan["size"])
         channel = channel_characteristics(spec, plan["voltages"])
+        _add_taper(channel, spec, plan["rectification"])
         if plan["device"] is not None:
             from edl_solver.channel.device import Device
             from edl_solver.channel.device_text import device_lines
@@ -292,6 +332,20 @@ def run_transport_command(args: argparse.Namespace) -> int:
         for what, path in written:
             print(f"wrote the {what} to {Path(path).resolve()}")
     return fail(failure, EXIT_WRITE_FAILED) if failure else EXIT_OK
+
+
+def _add_taper(data: Any, spec: Any, voltages: list[float] | None) -> None:
+    """The shape of a tapered channel into ``data``'s attributes and, with --rectification, the variable
+    ``rectification`` |I(+V)/I(-V)| over ``voltage_magnitude`` (solved at +V and -V)."""
+    from edl_solver.channel.model import table_of
+    from edl_solver.channel.rectification import rectification_ratio
+    from edl_solver.channel.taper_outputs import shape_attrs
+
+    data.attrs.update(shape_attrs(spec))
+    if voltages is not None:
+        data["rectification"] = (("voltage_magnitude",), rectification_ratio(table_of(spec), voltages),
+                                 {"units": "1", "long_name": "rectification |I(+V)/I(-V)|"})
+        data["voltage_magnitude"] = (("voltage_magnitude",), voltages, {"units": "V", "long_name": "|V(L) - V(0)|"})
 
 
 def _write_transport_file(path: Path, result: Any, curve: Any, channel: Any) -> Path:

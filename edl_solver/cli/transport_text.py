@@ -60,7 +60,8 @@ def shown_number(value: float) -> str:
 def flags_line() -> str:
     """What ``edl transport`` adds to ``edl solve``'s report, for a run without its flags."""
     return ("edl transport adds, with its flags: --length L (a finite channel's conductance; with --left and "
-            "--right its membrane potential and osmotic power; --iv its I-V curve), --conductance C1:C2:N (the "
+            "--right its membrane potential and osmotic power; --iv its I-V curve; --size A:B a tapered channel, "
+            "--rectification its |I(+V)/I(-V)|), --conductance C1:C2:N (the "
             "conductance against concentration), --pump-figure (the EO pump curve), --channels/--width/--voltage/"
             "--pressure-difference with --length (a device's flow in uL/min, pump curve and streaming potential); "
             "see edl transport --help\n")
@@ -77,6 +78,7 @@ def channel_lines(data: Any, result: Any) -> str:
     siemens = show("conductance", geometry, _value(data, "conductance"))
     lines = [f"Finite channel: length {show('length', None, length)(length)} between reservoirs of "
              f"{shown_number(left)} mM (left, x = 0) and {shown_number(right)} mM (right, x = L){per}",
+             *_taper_lines(data),
              _row("conductance -dI/dΔV at zero current", siemens(_value(data, "conductance")))]
     if data.attrs["equal_reservoirs"]:
         lines.append("  equal reservoirs: no membrane potential and no osmotic power (give --left and --right)")
@@ -89,9 +91,37 @@ def channel_lines(data: Any, result: Any) -> str:
         mv = show("potential", geometry)
         span = f"{volts.size} voltages from {mv(volts.min(), signed=True)} to {mv(volts.max(), signed=True)}"
         lines.append(_row("I-V curve", f"{span}, {'all converged' if not failed else f'{failed} did not converge'}"))
+        lines += _rectification_lines(data, mv)
     if data.attrs.get("osmotic_power_status", "converged") != "converged":
         lines.append("  note: the maximum-power search did not converge; its values are undefined")
     return "\n".join(lines) + "\n"
+
+
+def _taper_lines(data: Any) -> list[str]:
+    """A tapered channel's shape and the interpolation error of its table over (concentration, size); none for a
+    uniform channel."""
+    from edl_solver.channel.taper_outputs import shape_words
+
+    words = shape_words(data.attrs)
+    if words is None:
+        return []
+    error = float(data.attrs.get("interpolation_error", float("nan")))
+    return [_row("tapered channel", words),
+            _row("table over (c, size): interpolation error", f"{error:.2g} (largest, relative to sqrt(L_ii L_jj), "
+                                                                 "at the cells' centres)")]
+
+
+def _rectification_lines(data: Any, mv: Any) -> list[str]:
+    """|I(+V)/I(-V)| at up to five voltage magnitudes, when the curve (or --rectification) has both signs."""
+    from edl_solver.channel.taper_outputs import curve_rectification
+
+    found = curve_rectification(data)
+    if found is None:
+        return []
+    magnitudes, ratios = found
+    picks = sorted({round(i * (magnitudes.size - 1) / 4) for i in range(5)})
+    shown = ", ".join(f"{shown_number(ratios[i])} at {mv(magnitudes[i])}" for i in picks)
+    return [_row("rectification |I(+V)/I(-V)|", shown)]
 
 
 def _reservoir_lines(data: Any, result: Any) -> list[str]:

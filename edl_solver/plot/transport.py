@@ -18,9 +18,11 @@ from typing import Any
 import numpy as np
 
 from edl_solver.channel.conductance import checked_length, crossover_concentration
+from edl_solver.channel.taper_outputs import shape_words
 from edl_solver.errors import InputError
 from edl_solver.inputs.geometry import GEOMETRIES
 from edl_solver.plot.shared import case_of, new_figure, number, prefix, require_dataset, save_png, section_text
+from edl_solver.plot.taper import draw_taper_panels, is_tapered, taper_axes
 from edl_solver.report.units import REFERENCE_LENGTH, show, unit_of
 from edl_solver.results.result import Result
 
@@ -427,8 +429,9 @@ def iv_figure(dataset: Any, path: str | os.PathLike[str]) -> Path:
     iv = _read_iv(dataset)
     data, v = iv.data, iv.v
 
-    figure = new_figure(7.6, 5.6)
-    axes = figure.subplots()
+    tapered = is_tapered(dataset)
+    figure = new_figure(11.4 if tapered else 7.6, 5.6)
+    axes, panels = taper_axes(figure) if tapered else (figure.subplots(), [])
     axes.axhline(0.0, color="0.6", lw=0.8)
     axes.axvline(0.0, color="0.6", lw=0.8)
     if "bulk_current" in data.variables:
@@ -454,5 +457,8 @@ def iv_figure(dataset: Any, path: str | os.PathLike[str]) -> Path:
     case = case_of(dataset)
     if case is not None:
         title += f"\n{section_text(case, concentrations=False)}"
+    if tapered:
+        draw_taper_panels(panels, dataset)
+        title += f"\ntapered: {shape_words(dataset.attrs)}"
     figure.suptitle(title, fontsize="medium")
     return save_png(figure, path)

@@ -1,0 +1,65 @@
+"""What the outputs of ``edl transport`` show of a tapered channel: its shape, kept in the channel dataset's
+attributes (the dataset alone then draws and describes it), and the rectification |I(+V)/I(-V)| read from an
+I-V curve that has both signs of a voltage (``rectification.rectification_ratio`` solves such pairs anew)."""
+
+from __future__ import annotations
+
+from typing import Any
+
+import numpy as np
+
+__all__ = ["curve_rectification", "shape_attrs", "shape_words"]
+
+
+def shape_attrs(channel: Any) -> dict[str, Any]:
+    """The attributes of a channel dataset that describe the ``Channel``'s ``size``: {} for a uniform channel.
+
+    ``size_positions`` and ``size_sizes`` (m, the ``shape.Shape`` rows), ``size_name`` ("radius" or
+    "height") and ``size_kind`` ("linear" for a pair, "table" for a table or a sampled callable).
+    """
+    shape = channel.size
+    if shape is None:
+        return {}
+    return {"size_positions": np.asarray(shape.positions, dtype=float), "size_sizes": np.asarray(shape.sizes,
+                                                                                                  dtype=float),
+            "size_name": channel.case.geometry.size_name, "size_kind": "linear" if len(shape.sizes) == 2 else "table"}
+
+
+def shape_words(attrs: Any) -> str | None:
+    """The shape in words from ``shape_attrs`` attributes ("radius 5 nm at x = 0 to 40 nm at x = L, linear"),
+    or None for a uniform channel."""
+    from edl_solver.report.formatting import prefixed
+
+    if "size_sizes" not in attrs:
+        return None
+    sizes = np.atleast_1d(np.asarray(attrs["size_sizes"], dtype=float))
+    name = str(attrs.get("size_name", "size"))
+    if str(attrs.get("size_kind")) == "linear":
+        return f"{name} {prefixed(sizes[0], 'm')} at x = 0 to {prefixed(sizes[-1], 'm')} at x = L, linear (a taper)"
+    return (f"{name} from a table of {sizes.size} rows (a table or a sampled callable): {prefixed(sizes[0], 'm')} "
+            f"at x = 0, {prefixed(sizes[-1], 'm')} at x = L, from {prefixed(sizes.min(), 'm')} to "
+            f"{prefixed(sizes.max(), 'm')}")
+
+
+def curve_rectification(data: Any) -> tuple[np.ndarray, np.ndarray] | None:
+    """(|V|, |I(+V)/I(-V)|) of a channel dataset: its ``rectification`` variable when it has one, else the pairs
+    +V, -V of its I-V curve (both converged, matched to 1e-9 of the largest |V|); None when there is none."""
+    if "rectification" in data.variables:
+        return (np.asarray(data["voltage_magnitude"].values, dtype=float),
+                np.asarray(data["rectification"].values, dtype=float))
+    if "voltage" not in data.dims or "current" not in data.variables:
+        return None
+    v = np.asarray(data["voltage"].values, dtype=float)
+    current = np.asarray(data["current"].values, dtype=float)
+    ok = np.asarray(data["status"].values) == 0 if "status" in data.variables else np.isfinite(current)
+    tolerance = 1e-9 * float(np.max(np.abs(v))) if v.size else 0.0
+    magnitudes, ratios = [], []
+    for k in np.flatnonzero((v > 0.0) & ok):
+        match = np.flatnonzero(ok & (np.abs(v + v[k]) <= tolerance))
+        if match.size and current[match[0]] != 0.0:
+            magnitudes.append(v[k])
+            ratios.append(abs(current[k] / current[match[0]]))
+    if not magnitudes:
+        return None
+    order = np.argsort(magnitudes)
+    return np.asarray(magnitudes)[order], np.asarray(ratios)[order]
