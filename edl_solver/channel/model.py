@@ -61,6 +61,7 @@ from edl_solver.channel.relations import SaltRatios, reduce_matrices
 from edl_solver.channel.relations import basis_of as _basis
 from edl_solver.channel.relations import zero_current_gradient as _zero_current_gradient
 from edl_solver.channel.shape import make_shape
+from edl_solver.channel.wall_segments import make_wall_segments
 from edl_solver.constants import GAS_CONSTANT
 from edl_solver.errors import ConvergenceError, InputError
 from edl_solver.inputs.case import Case
@@ -113,6 +114,11 @@ class Channel:
     size_points : int
         Sizes of that table, log-spaced between the smallest and largest, from 4 to 100 (one for a uniform
         size).
+    wall_segments : list of (x_end, Wall), optional
+        The wall along x, replacing the case's (``edl_solver.channel.wall_segments``): each wall holds up to its
+        x_end (m or "500 nm"), the ends rising to L; walls of the case's kind (e.g. a bipolar channel: -20 and
+        +20 mC/m^2). Stored as a ``WallSegments``; the channel is then tabulated once per distinct wall and solved
+        along x as a channel with a ``size`` is (a uniform ``size`` of the case's is set when none is given).
     """
 
     case: Case
@@ -124,6 +130,7 @@ class Channel:
     width: float | str | None = None
     size: Any = None
     size_points: int = 12
+    wall_segments: Any = None
 
     def __post_init__(self) -> None:
         if not isinstance(self.case, Case):
@@ -139,6 +146,11 @@ class Channel:
                              "expected True or False")
         if self.size is not None:
             object.__setattr__(self, "size", make_shape(self.size, length, self.case.geometry.kind))
+        if self.wall_segments is not None:
+            object.__setattr__(self, "wall_segments", make_wall_segments(self.wall_segments, length, self.case))
+            if self.size is None:
+                size = self.case.geometry.size
+                object.__setattr__(self, "size", make_shape((size, size), length, self.case.geometry.kind))
         self._check_width()
         if isinstance(self.size_points, bool) or not isinstance(self.size_points, int) or \
                 not 4 <= self.size_points <= 100:

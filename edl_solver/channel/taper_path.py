@@ -68,9 +68,15 @@ class TaperPath:
     """The steady state of a channel of varying section (see the module docstring); the interface of
     ``path.Path`` (``solve``, ``unknowns``, ``continue_to``) that ``operating`` uses."""
 
-    def __init__(self, channel: Channel, spline: SectionSpline, basis: np.ndarray, ends: tuple[float, float]):
+    def __init__(self, channel: Channel, splines: list[SectionSpline], basis: np.ndarray,
+                 ends: tuple[float, float]):
         case = channel.case
-        self.channel, self.spline, self.basis = channel, spline, basis
+        self.channel, self.splines, self.spline, self.basis = channel, splines, splines[0], basis
+        segments = channel.wall_segments
+        # the segments of the wall along x (xi from bounds[k] to bounds[k + 1]) and the table of each
+        self.bounds = np.array([0.0, 1.0]) if segments is None else np.array([0.0, *segments.ends]) / channel.length
+        self.bounds[-1] = 1.0
+        self.tables = (0,) if segments is None else segments.table_index
         self.rt = GAS_CONSTANT * case.solvent.temperature
         salt = SaltRatios(case)
         self.rt_nu, self.total_concentration = self.rt * salt.total_nu, salt.total_concentration
@@ -86,31 +92,43 @@ class TaperPath:
         middle = self._matrices(np.array([0.5 * sum(self.u_ends)]), np.array([0.5]))[0]
         forces = np.array([self.p_scale, self.v_scale, self.rt_nu]) / self.length
         self.f_scale = np.abs(middle) @ forces
-        self._last: list[tuple[np.ndarray, np.ndarray, tuple[np.ndarray, np.ndarray, np.ndarray]]] = []
+        self._last: list[tuple[np.ndarray, np.ndarray, tuple[np.ndarray, np.ndarray, np.ndarray], int | None]] = []
         self.mesh = np.union1d(np.linspace(0.0, 1.0, 33), self.xi_rows if len(self.xi_rows) <= 65 else [])
 
-    def _matrices(self, u: np.ndarray, xi: np.ndarray) -> np.ndarray:
-        """Reduced M at (u, xi), u clipped to the table (a solution that leaves it is refused afterwards)."""
+    def _matrices(self, u: np.ndarray, xi: np.ndarray, segment: int | None = None) -> np.ndarray:
+        """Reduced M at (u, xi) with the table of the wall ``segment`` (by default that of the segment containing
+        each xi), u clipped to the table (a solution that leaves it is refused afterwards)."""
         low, high = self.spline.u_range
         s = np.log(np.interp(xi, self.xi_rows, self.sizes))  # the size linear in x between the rows
-        return reduce_matrices(self.spline(np.clip(u, low, high), s), self.basis)
+        u = np.clip(u, low, high)
+        if len(self.splines) == 1:
+            return reduce_matrices(self.splines[0](u, s), self.basis)
+        if segment is not None:
+            return reduce_matrices(self.splines[self.tables[segment]](u, s), self.basis)
+        tables = np.array(self.tables)[np.searchsorted(self.bounds[1:-1], xi, side="left")]
+        out = np.empty((len(u), 3, 3))
+        for k in np.unique(tables):
+            out[tables == k] = reduce_matrices(self.splines[k](u[tables == k], s[tables == k]), self.basis)
+        return out
 
-    def _blocks(self, u: np.ndarray, xi: np.ndarray) -> tuple[np.ndarray, np.ndarray, np.ndarray]:
+    def _blocks(self, u: np.ndarray, xi: np.ndarray, segment: int | None = None
+                ) -> tuple[np.ndarray, np.ndarray, np.ndarray]:
         """A^-1 (2, 2, k), A^-1 m (2, k) and the salt Schur complement S (k) at (u, xi). The last two calls' are
         kept: solve_bvp's finite-difference Jacobian moves u once, then w, q and the fluxes, which leave them."""
         for last in self._last:
-            if np.array_equal(last[0], u) and np.array_equal(last[1], xi):
+            if last[3] == segment and np.array_equal(last[0], u) and np.array_equal(last[1], xi):
                 return last[2]
-        m = self._matrices(u, xi)
+        m = self._matrices(u, xi, segment)
         a, b, c, d = m[:, 0, 0], m[:, 0, 1], m[:, 1, 0], m[:, 1, 1]
         inverse = np.array([[d, -b], [-c, a]]) / (a * d - b * c)
         carried = np.einsum("ijk,kj->ik", inverse, m[:, :2, 2])
         permeance = m[:, 2, 2] - m[:, 0, 2] * carried[0] - m[:, 1, 2] * carried[1]
-        self._last = [(u.copy(), xi.copy(), (inverse, carried, permeance)), *self._last[:1]]
+        self._last = [(u.copy(), xi.copy(), (inverse, carried, permeance), segment), *self._last[:1]]
         return inverse, carried, permeance
 
-    def _rates(self, xi: np.ndarray, y: np.ndarray, flow: float, current: float, salt: float) -> np.ndarray:
-        inverse, carried, permeance = self._blocks(y[0], xi)
+    def _rates(self, xi: np.ndarray, y: np.ndarray, flow: float, current: float, salt: float,
+               segment: int | None = None) -> np.ndarray:
+        inverse, carried, permeance = self._blocks(y[0], xi, segment)
         x_s = (salt - (carried[0] * flow + carried[1] * current)) / permeance
         x_p = inverse[0, 0] * flow + inverse[0, 1] * current - carried[0] * x_s
         e = inverse[1, 0] * flow + inverse[1, 1] * current - carried[1] * x_s
@@ -126,6 +144,10 @@ class TaperPath:
         return flow, given, salt, p[1] * self.v_scale
 
     def _bvp(self, mode: str, given: float, dp: float, start: Profile) -> Any:
+        if len(self.bounds) > 2:
+            from edl_solver.channel.wall_path import segmented_bvp
+
+            return segmented_bvp(self, mode, given, dp, start, BVP_TOLERANCE, BVP_NODES)
         from scipy.integrate import solve_bvp
 
         def rates(xi: np.ndarray, y: np.ndarray, p: np.ndarray) -> np.ndarray:

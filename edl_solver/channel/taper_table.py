@@ -14,6 +14,7 @@ error stored, as ``model.tabulate`` does at the midpoints in ln c.
 
 from __future__ import annotations
 
+import dataclasses
 import math
 import time
 from typing import Any
@@ -129,7 +130,8 @@ def _errors(case: Case, spline: SectionSpline, basis: np.ndarray, u: np.ndarray,
 def tabulate_taper(channel: Any) -> dict[str, Any]:
     """The fields of the ``ChannelTable`` of a channel with a ``size`` (``model.tabulate`` builds it): the
     cross-section solved over (ln c, ln size) once, its interpolation checked at the cell centres; its path is
-    ``taper_path.TaperPath``.
+    ``taper_path.TaperPath``. A channel with ``wall_segments`` gets one such table per distinct wall (``matrices``
+    then has shape (walls, sizes, concentrations, 3, 3); the errors are the largest over the tables).
 
     Raises
     ------
@@ -147,23 +149,28 @@ def tabulate_taper(channel: Any) -> dict[str, Any]:
         s = np.array([math.log(shape.sizes[0])])
     else:
         s = np.linspace(math.log(min(shape.sizes)), math.log(max(shape.sizes)), channel.size_points)
-    ion, reduced, notes = _solve_grid(case, np.exp(u), np.exp(s))
-    spline = SectionSpline(u, s, ion)
-    basis = basis_of(case)
-    matrix_error, potential_error, checks = _errors(case, spline, basis, u, s)
+    walls = (case.wall,) if channel.wall_segments is None else channel.wall_segments.distinct
+    splines, reduced, notes, solves, matrix_error, potential_error = [], [], [], 0, 0.0, 0.0
+    for wall in walls:  # one table per distinct wall (``wall_segments``)
+        sub = case if wall == case.wall else dataclasses.replace(case, wall=wall)
+        ion, matrices, found = _solve_grid(sub, np.exp(u), np.exp(s))
+        splines.append(SectionSpline(u, s, ion))
+        errors = _errors(sub, splines[-1], basis_of(sub), u, s)
+        matrix_error, potential_error = max(matrix_error, errors[0]), max(potential_error, errors[1])
+        reduced.append(matrices)
+        notes.extend(note for note in found if note not in notes)
+        solves += ion.shape[0] * ion.shape[1] + errors[2]
     ends = _end_access(channel)
-    path = TaperPath(channel, spline, basis, ends)
-    return {"concentrations": np.exp(u), "matrices": reduced, "interpolation_error": matrix_error,
-            "potential_interpolation_error": potential_error, "access_resistance": sum(ends),
-            "solves": ion.shape[0] * ion.shape[1] + checks, "warnings": notes, "_path": path, "sizes": np.exp(s),
-            "seconds": time.perf_counter() - started}
+    path = TaperPath(channel, splines, basis_of(case), ends)
+    return {"concentrations": np.exp(u), "matrices": reduced[0] if len(reduced) == 1 else np.array(reduced),
+            "interpolation_error": matrix_error, "potential_interpolation_error": potential_error,
+            "access_resistance": sum(ends), "solves": solves, "warnings": tuple(notes), "_path": path,
+            "sizes": np.exp(s), "seconds": time.perf_counter() - started}
 
 
 def _end_access(channel: Any) -> tuple[float, float]:
     """Each end's access resistance (``model._access_resistance``'s, at that end's size), ohm (ohm m per unit
     width of a slit)."""
-    import dataclasses
-
     from edl_solver.channel.access import end_access_resistance
     from edl_solver.model.bulk import bulk_conductivity
 
