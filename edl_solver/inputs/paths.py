@@ -17,7 +17,7 @@ from __future__ import annotations
 
 import difflib
 import json
-from collections.abc import Iterable, Mapping, Sequence
+from collections.abc import Callable, Collection, Iterable, Mapping, Sequence
 from dataclasses import dataclass
 from typing import Any
 
@@ -339,3 +339,25 @@ def check_axis_values(base_table: Mapping[str, Any], axes: Sequence[Axis]) -> No
             except InputError as exc:
                 key = " and ".join(f"axes[{path!r}]" for path in axis.paths)
                 raise InputError(f"{key}: at {axis.values[0][i]!r} the case is not valid: {exc}") from None
+
+
+def flatten_dotted(table: Mapping[str, Any], known: Collection[str],
+                   unknown: Callable[[str], Exception]) -> dict[str, Any]:
+    """{path: value} of a table keyed by dotted input paths, quoted or not: TOML turns an unquoted dotted key into
+    nested tables, which are joined back. No known path starts another, so the value at a known path is never
+    walked into. A key that is no known path (nor the start of one) raises ``unknown(path)``.
+    """
+    flat: dict[str, Any] = {}
+
+    def walk(node: Mapping[str, Any], prefix: str) -> None:
+        for name, value in node.items():
+            path = f"{prefix}{name}"
+            if path in known:
+                flat[path] = value
+            elif isinstance(value, Mapping) and any(k.startswith(f"{path}.") for k in known):
+                walk(value, f"{path}.")
+            else:
+                raise unknown(path)
+
+    walk(table, "")
+    return flat

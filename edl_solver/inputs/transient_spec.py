@@ -186,26 +186,18 @@ def _time_list(value: Any, key: str) -> np.ndarray:
 
 
 def _flatten(table: Any, key: str, known: tuple[str, ...]) -> dict[str, Any]:
-    """{path: value} of a table whose keys are dotted paths, quoted or not (unquoted ones arrive nested; no known
-    path is the start of another, so the value at a known path is never walked into)."""
+    """{path: value} of a table whose keys are dotted paths, quoted or not (``inputs.paths.flatten_dotted``)."""
+    from edl_solver.inputs.paths import flatten_dotted
+
     if not isinstance(table, Mapping):
         raise InputError(f"{key}: {table!r} is not a table, expected [{key}] with one key per input path")
-    flat: dict[str, Any] = {}
 
-    def walk(node: Mapping[str, Any], prefix: str) -> None:
-        for name, value in node.items():
-            path = f"{prefix}{name}"
-            if path in known:
-                flat[path] = value
-            elif isinstance(value, Mapping) and any(k.startswith(f"{path}.") for k in known):
-                walk(value, f"{path}.")
-            else:
-                close = difflib.get_close_matches(path, known, n=1, cutoff=0.6)
-                hint = f"did you mean {close[0]!r}?" if close else f"known here: {', '.join(known)}"
-                raise InputError(f'{key}: "{path}" is not a path known here ({hint})')
+    def unknown(path: str) -> InputError:
+        close = difflib.get_close_matches(path, known, n=1, cutoff=0.6)
+        hint = f"did you mean {close[0]!r}?" if close else f"known here: {', '.join(known)}"
+        return InputError(f'{key}: "{path}" is not a path known here ({hint})')
 
-    walk(table, "")
-    return flat
+    return flatten_dotted(table, known, unknown)
 
 
 def _before(table: Any) -> dict[str, Any]:

@@ -235,21 +235,11 @@ def _flatten_axes(axes: Any) -> dict[str, Any]:
     if not isinstance(axes, Mapping) or not axes:
         raise InputError(f"sweep.axes: {axes!r} has no axes, expected at least one, e.g. "
                          '"wall.zeta" = ["-20 mV", "-40 mV"]')
+    from edl_solver.inputs.paths import flatten_dotted
+
     known, _ = _sweepable()
-    flat: dict[str, Any] = {}
-
-    def walk(table: Mapping[str, Any], prefix: str) -> None:
-        for key, value in table.items():
-            path = f"{prefix}{key}"
-            if path in known:
-                flat[path] = value
-            elif isinstance(value, Mapping) and any(k.startswith(f"{path}.") for k in known):
-                walk(value, f"{path}.")
-            else:
-                raise InputError(f"sweep.axes: {path!r} is not an input a sweep can vary{_axis_hint(path)}")
-
-    walk(axes, "")
-    return flat
+    return flatten_dotted(axes, known, lambda path: InputError(
+        f"sweep.axes: {path!r} is not an input a sweep can vary{_axis_hint(path)}"))
 
 
 def _axis_hint(path: str) -> str:
