@@ -15,6 +15,7 @@ import pytest
 
 import edl_solver as edl
 from edl_solver.constants import BOLTZMANN, ELEMENTARY_CHARGE, FARADAY, GAS_CONSTANT, VACUUM_PERMITTIVITY
+from edl_solver.model.frequency import frequency_response
 from tests.helpers import SOLVENT
 
 #: The requested relative accuracy (the default ``Numerics``).
@@ -101,3 +102,30 @@ def test_walls_of_opposite_potential_drive_no_net_eo_flow(walls: tuple[edl.Wall,
     assert abs(matrix[0, 1]) <= ACCURACY * _eo_scale(area)
     assert abs(matrix[1, 0]) <= ACCURACY * _eo_scale(area)
     assert abs(result.summary["centre_potential"]) <= ACCURACY * THERMAL
+
+
+def test_the_frequency_response_of_walls_of_opposite_potential_has_no_net_flow() -> None:
+    """The oscillating EO flow (``model.frequency``) of the antisymmetric slit: no net flow at any frequency
+    (odd about the mid-plane, symmetry), while the space charge it carries (even) is not zero and meets the steady
+    solve's convection current at f = 0 (the same equations; common practice)."""
+    case = edl.Case(geometry=edl.Slit(height="61 nm"), electrolyte=_salt(10.0),
+                    wall=(edl.Wall(zeta="-1.3 mV"), edl.Wall(zeta="1.3 mV")), solvent=SOLVENT, field="1 kV/m")
+    response = frequency_response(case, [0.0, 1e6, 1e9])
+    one_wall = _eo_scale(case.geometry.height) * 1.3e-3 / THERMAL * case.field  # Helmholtz-Smoluchowski, one wall
+    assert np.all(response["flow_rate_amplitude"].values <= ACCURACY * one_wall)
+    steady = edl.solve(case).summary["eo_convection_current"]
+    assert response["convection_current_amplitude"].values[0] == pytest.approx(abs(steady), rel=ACCURACY)
+    assert np.all(response["error_estimate"].values <= ACCURACY)
+
+
+def test_a_rectangle_without_charge_has_the_bulk_conductance_and_no_eo_coupling() -> None:
+    """The rectangle's own estimate (``model.rectangle``) already floors vanishing integrals: an uncharged
+    rectangle conducts as the bulk over its area (Nernst-Einstein, from memory) with no EO flow (no charge)."""
+    electrolyte = _salt(1.0)
+    geometry = edl.Rectangle(height="20 nm", width="40 nm")
+    case = edl.Case(geometry=geometry, electrolyte=electrolyte, wall=edl.Wall(charge_density=0.0), solvent=SOLVENT,
+                    field="1 kV/m")
+    summary = edl.solve(case).summary
+    area = 20e-9 * 40e-9
+    assert summary["conductance_per_length"] == pytest.approx(_bulk_conductivity(electrolyte) * area, rel=ACCURACY)
+    assert abs(summary["flow_rate_eo"]) <= ACCURACY * _eo_scale(area) * case.field
