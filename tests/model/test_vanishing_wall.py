@@ -129,3 +129,17 @@ def test_a_rectangle_without_charge_has_the_bulk_conductance_and_no_eo_coupling(
     area = 20e-9 * 40e-9
     assert summary["conductance_per_length"] == pytest.approx(_bulk_conductivity(electrolyte) * area, rel=ACCURACY)
     assert abs(summary["flow_rate_eo"]) <= ACCURACY * _eo_scale(area) * case.field
+
+
+def test_a_sweep_of_the_wall_charge_through_zero_solves_every_point() -> None:
+    """The batch path (``edl.sweep``) runs the same compiled estimate: the point of zero charge is solved, at the
+    bulk conductance (Nernst-Einstein, from memory), and the curve is even in the charge (a 1:1 salt of equal
+    diffusivities: flipping the charge swaps the ions' roles, symmetry)."""
+    geometry, electrolyte, wall = UNCHARGED["capillary, zero charge"]
+    base = edl.Case(geometry=geometry, electrolyte=electrolyte, wall=wall, solvent=SOLVENT)
+    swept = edl.sweep(base, {"wall.charge_density": [-1e-3, 0.0, 1e-3]}, workers=1, progress=False)
+    assert list(swept["message"].values) == ["", "", ""]
+    conductance = swept["conductance_per_length"].values
+    area, _ = _area_and_permeability(geometry)
+    assert conductance[1] == pytest.approx(_bulk_conductivity(electrolyte) * area, rel=ACCURACY)
+    assert conductance[0] == pytest.approx(conductance[2], rel=ACCURACY)
