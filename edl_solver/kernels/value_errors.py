@@ -7,6 +7,16 @@ ion diffusivities (the zero-current field from the salt and pressure couplings, 
 chemiosmotic flow), which may nearly cancel, so an integral accurate to 1e-6 can leave them at 1e-4 of their own
 size. They are estimated here the way the integrals are: from the two Richardson extrapolations of the same
 nested grids, each against its own size, or against the size of its terms where it vanishes.
+
+What "relative accuracy" means for a value that vanishes by symmetry (the diffusion potential of a salt with equal
+diffusivities in an uncharged section, or between walls of exactly opposite potential, where the streaming and the
+salt-current couplings it is made of vanish too): it cannot be relative to the value itself, nor to the couplings,
+whose two estimates are round-off of round-off; it is relative to the size the value would have without the
+cancellation, the couplings' terms taken ion by ion, each by its magnitude (``_term_sizes``). That size does not
+vanish with the wall charge: for the diffusion potential of an uncharged section it is the thermal voltage RT/F
+(that of a salt whose anion alone moved), so a wall of exactly zero charge is held to 1e-6 (``VANISHING``) x the
+accuracy x RT/F, as a slightly charged one. Values that do not cancel below that size keep their own scale, bit for
+bit.
 """
 
 from __future__ import annotations
@@ -14,9 +24,9 @@ from __future__ import annotations
 import numpy as np
 from numba import njit
 
-from edl_solver.constants import GAS_CONSTANT
+from edl_solver.constants import FARADAY, GAS_CONSTANT
 from edl_solver.kernels.lab import cation_transference
-from edl_solver.kernels.layout import P_TEMPERATURE
+from edl_solver.kernels.layout import ION_VALENCE, P_TEMPERATURE
 from edl_solver.kernels.prepare import ion_block
 from edl_solver.kernels.response import ion_response_matrix, reduced_matrix, salt_totals
 
@@ -31,6 +41,7 @@ def _differences(p, sc, integrals, values, natural):
     terms each is a difference of into ``natural`` (1 for the transference, a fraction)."""
     ion_matrix = ion_response_matrix(p, sc, integrals)
     m = reduced_matrix(p, ion_matrix)
+    terms = _term_sizes(p, ion_matrix)
     rt = GAS_CONSTANT * p[P_TEMPERATURE]
     total_c, total_nu = salt_totals(ion_block(p))
     x_p, x_s = rt * total_c, -rt * total_nu
@@ -38,9 +49,27 @@ def _differences(p, sc, integrals, values, natural):
     values[0] = m[0, 0] * x_p + m[0, 1] * field + m[0, 2] * x_s
     natural[0] = abs(m[0, 0] * x_p) + abs(m[0, 1] * field) + abs(m[0, 2] * x_s)
     values[1] = -field
-    natural[1] = (abs(m[1, 0] * x_p) + abs(m[1, 2] * x_s)) / abs(m[1, 1])
+    # the reduced couplings m[1, 0] and m[1, 2] are themselves sums over the ions that cancel (to round-off at zero
+    # charge with equal diffusivities): the ions' terms one by one give a size that does not
+    natural[1] = (terms[1, 0] * abs(x_p) + terms[1, 2] * abs(x_s)) / abs(m[1, 1])
     values[2] = cation_transference(p, ion_matrix)
     natural[2] = 1.0
+
+
+@njit(cache=True, error_model="numpy")
+def _term_sizes(p, ion_matrix):
+    """|B|^T |L| |B|: the reduced matrix (``response.reduced_matrix``, M = B^T L B) with every ion's term counted
+    by its magnitude, so that an entry that cancels between the ions keeps the size of its terms. At least |M|
+    entry by entry."""
+    ions = ion_block(p)
+    n = ions.shape[0]
+    _, total_nu = salt_totals(ions)
+    basis = np.zeros((n + 1, 3))
+    basis[0, 0] = 1.0
+    for i in range(n):
+        basis[1 + i, 1] = abs(ions[i, ION_VALENCE]) * FARADAY
+        basis[1 + i, 2] = 1.0 / total_nu
+    return basis.T @ np.abs(ion_matrix) @ basis
 
 
 @njit(cache=True, error_model="numpy")

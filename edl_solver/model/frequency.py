@@ -25,12 +25,16 @@ from edl_solver.errors import ConvergenceError, InputError
 from edl_solver.inputs.case import Case, Numerics
 from edl_solver.inputs.casefile import case_to_mapping
 from edl_solver.kernels import layout
-from edl_solver.model.flow_operator import check_section, extrapolated, flow_operator, level_intervals
+from edl_solver.kernels.adaptive import ROUNDOFF
+from edl_solver.model.flow_operator import FlowOperator, check_section, extrapolated, flow_operator, level_intervals
 
 #: Cells of the finest grid to start from, and the most the refinement takes.
 FIRST_INTERVALS = 64
 #: Values below this fraction of the steady response count as vanishing when errors are measured.
 VANISHING = 1e-9
+#: A response below this fraction of its natural size at every frequency has cancelled (by symmetry) and is measured
+#: against that fraction of it, raised with ``ROUNDOFF`` / accuracy (as ``kernels.adaptive.VANISHING``).
+CANCELLED = 1e-6
 
 
 def _frequencies(frequencies: Any) -> np.ndarray:
@@ -46,44 +50,60 @@ def _frequencies(frequencies: Any) -> np.ndarray:
     return values
 
 
-def _grid_response(case: Case, intervals: int, omegas: np.ndarray) -> tuple[np.ndarray, np.ndarray]:
+def _grid_response(case: Case, intervals: int, omegas: np.ndarray) -> tuple[np.ndarray, np.ndarray, np.ndarray]:
     """The complex section integrals (sum V v and sum V rho_hat v per unit field, dimensionless) at every
-    dimensionless frequency ``omegas`` on the equilibrium grid of ``intervals`` cells, and the scales vector."""
-    from scipy.linalg import solve_banded
-
+    dimensionless frequency ``omegas`` on the equilibrium grid of ``intervals`` cells, the scales vector, and the
+    natural sizes of the two integrals (``_banded_flow``'s steady flow of the space charge's magnitude |rho_hat|)."""
     op = flow_operator(case, intervals)
-    # rows sum_j a_ij (v_j - v_i) - i Omega V_i v_i = -kappa2 V_i rho_i, v = 0 on a no-slip wall
-    rhs = (-op.kappa2 * op.volume * op.rho).astype(complex)
-    rhs[list(op.fixed)] = 0.0
     out = np.empty((omegas.size, 2), dtype=complex)
     for k, omega in enumerate(omegas):
-        bands = np.zeros((3, op.volume.size), dtype=complex)
-        bands[0, 1:], bands[1], bands[2, :-1] = op.upper[:-1], op.diagonal - 1j * omega * op.volume, op.lower[1:]
-        for row in op.fixed:
-            bands[1, row] = 1.0
-            if row + 1 < op.volume.size:
-                bands[0, row + 1] = 0.0
-            if row > 0:
-                bands[2, row - 1] = 0.0
-        v = solve_banded((1, 1), bands, rhs)
+        v = _banded_flow(op, omega, op.rho)
         out[k] = op.volume @ v, op.volume @ (op.rho * v)
-    return out, op.scales
+    v = _banded_flow(op, 0.0, np.abs(op.rho)).real
+    return out, op.scales, np.array([op.volume @ v, op.volume @ (np.abs(op.rho) * v)])
+
+
+def _banded_flow(op: FlowOperator, omega: float, rho: np.ndarray) -> np.ndarray:
+    """The complex flow per unit field of the space charge ``rho`` (rho_hat at the nodes) at the dimensionless
+    frequency ``omega``: rows sum_j a_ij (v_j - v_i) - i Omega V_i v_i = -kappa2 V_i rho_i, v = 0 on a no-slip
+    wall."""
+    from scipy.linalg import solve_banded
+
+    rhs = (-op.kappa2 * op.volume * rho).astype(complex)
+    rhs[list(op.fixed)] = 0.0
+    bands = np.zeros((3, op.volume.size), dtype=complex)
+    bands[0, 1:], bands[1], bands[2, :-1] = op.upper[:-1], op.diagonal - 1j * omega * op.volume, op.lower[1:]
+    for row in op.fixed:
+        bands[1, row] = 1.0
+        if row + 1 < op.volume.size:
+            bands[0, row + 1] = 0.0
+        if row > 0:
+            bands[2, row - 1] = 0.0
+    return solve_banded((1, 1), bands, rhs)
 
 
 def _responses(case: Case, omegas: np.ndarray) -> tuple[np.ndarray, np.ndarray, float, int]:
-    """The extrapolated complex integrals (frequency, 2), the scales, the error estimate and the finest grid."""
+    """The extrapolated complex integrals (frequency, 2), the scales, the error estimate and the finest grid.
+
+    Each response is measured against its own size, floored at ``VANISHING`` x its largest over the frequencies (a
+    response vanishing at high frequency is measured against what it falls from). A response below ``CANCELLED`` x
+    the natural size of its integral at every frequency (the steady response of the space charge's magnitude)
+    vanishes by symmetry (walls of exactly opposite potential, whose EO flows cancel): it is measured against that
+    fraction of its natural size, as the steady solve does (``kernels.adaptive.error_scale``), never as round-off
+    over round-off.
+    """
     numerics: Numerics = case.numerics
     intervals = numerics.intervals or FIRST_INTERVALS
     while True:
-        levels, sc = [], None
+        levels, sc, natural = [], None, None
         for cells in level_intervals(intervals):
-            values, sc = _grid_response(case, cells, omegas)
+            values, sc, natural = _grid_response(case, cells, omegas)
             levels.append(values)
         finer, coarser = extrapolated(levels)
-        # each response against its own size, floored at a tiny part of the steady one (a vanishing response at
-        # high frequency is measured against what it falls from)
         steady = np.max(np.abs(finer), axis=0)
-        scale = np.maximum(np.abs(finer), VANISHING * steady + 1e-300)
+        cancelled = steady < CANCELLED * np.abs(natural)
+        floor = np.where(cancelled, max(CANCELLED, ROUNDOFF / numerics.accuracy) * np.abs(natural), VANISHING * steady)
+        scale = np.maximum(np.abs(finer), floor + 1e-300)
         estimate = float(np.max(np.abs(finer - coarser) / scale) / 8.0)
         if estimate <= numerics.accuracy or numerics.intervals:
             return finer, sc, estimate, intervals
