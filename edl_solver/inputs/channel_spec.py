@@ -232,7 +232,8 @@ def _size(value: Any, length: float, case: Case, folder: Path) -> Any:
             raise InputError(f"channel.size.csv: {name!r} is not a file name, expected the path of a CSV file "
                              "such as \"shape.csv\"")
         positions, sizes = _csv_columns(folder / name, (case.geometry.size_name, "size"), "channel.size.csv")
-        return _table(positions, sizes, length, f"channel.size.csv: {folder / name}: ")
+        return _table(positions, sizes, length, (f"channel.size.csv: {folder / name}: positions",
+                                                 f"channel.size.csv: {folder / name}: sizes"))
     if isinstance(value, Mapping):
         for key in value:
             if key not in ("position", "size"):
@@ -246,7 +247,7 @@ def _size(value: Any, length: float, case: Case, folder: Path) -> Any:
                              "expected one size at each position")
         positions = [to_si(p, "m", f"channel.size.position[{k}]") for k, p in enumerate(value["position"])]
         sizes = [_positive_size(s, f"channel.size.size[{k}]") for k, s in enumerate(value["size"])]
-        return _table(positions, sizes, length, "")
+        return _table(positions, sizes, length, ("channel.size.position", "channel.size.size"))
     if not isinstance(value, list) or len(value) != 2:
         raise InputError(f"channel.size: {value!r} is not allowed, expected a pair [\"10 nm\", \"200 nm\"], a table "
                          "{ position = [...], size = [...] } or { csv = \"shape.csv\" }")
@@ -260,16 +261,18 @@ def _positive_size(value: Any, key: str) -> float:
     return size
 
 
-def _table(positions: list[float], sizes: list[float], length: float, where: str) -> dict[str, list[float]]:
-    """The table, its positions checked to rise strictly from 0 to the length (the last set to it exactly)."""
+def _table(positions: list[float], sizes: list[float], length: float, where: tuple[str, str]
+           ) -> dict[str, list[float]]:
+    """The table, its positions checked to rise strictly from 0 to the length (the last set to it exactly);
+    ``where`` names the positions and the sizes in the errors."""
     if positions[0] != 0.0 or not math.isclose(positions[-1], length, rel_tol=1e-9) or \
             any(b <= a for a, b in itertools.pairwise(positions)):
         shown = [float(f"{p:.6g}") for p in positions]
-        raise InputError(f"{where}channel.size.position: {shown!r} m is not allowed, "
+        raise InputError(f"{where[0]}: {shown!r} m is not allowed, "
                          f"expected positions rising strictly from 0 to the length {length:.6g} m")
     for k, size in enumerate(sizes):
         if not (math.isfinite(size) and size > 0.0):
-            raise InputError(f"{where}channel.size.size[{k}]: {size!r} m is not allowed, expected a positive size")
+            raise InputError(f"{where[1]}[{k}]: {size!r} m is not allowed, expected a positive size")
     return {"position": [*positions[:-1], length], "size": list(sizes)}
 
 
@@ -395,5 +398,5 @@ def _wall_profile(value: Any, folder: Path) -> dict[str, Any]:
         return {"position": positions, "value": values}
     if not isinstance(value, Mapping) or set(value) != {"position", "value"}:
         raise InputError(f"channel.wall_profile: {value!r} is not allowed, expected {{ position = [...], value = "
-                         "[...] }} or { csv = \"FILE\" }")
+                         "[...] } or { csv = \"FILE\" }")
     return {"position": value["position"], "value": value["value"]}
