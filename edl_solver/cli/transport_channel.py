@@ -6,6 +6,8 @@ The rule: each flag replaces its key of [channel], one key at a time - ``--lengt
 ``--rectification`` rectification (a flag that can only turn it on). A key without a flag (``points``,
 ``size_points``, ``wall_segments``, ``wall_profile``) comes from the file alone. A file value is checked as its
 flag's value is, and everything before the first solve; an error in the channel the file makes names the file.
+The file's ``width`` and ``access_resistance`` belong to the channel: unlike their flags, they do not ask for the
+device block (``--channels``, ``--voltage``, ``--pressure-difference`` do).
 """
 
 from __future__ import annotations
@@ -40,27 +42,31 @@ def channel_section(args: argparse.Namespace, case: Any) -> Any:
     return spec
 
 
-def apply_channel_section(args: argparse.Namespace, spec: Any) -> dict[str, Any]:
-    """Set each flag not given from the file's key (as text its flag reads) and return the ``Channel`` keywords
-    without a flag: {} without a section.
+def apply_channel_section(args: argparse.Namespace, spec: Any) -> tuple[dict[str, Any], frozenset[str]]:
+    """Set each flag not given from the file's key (as text its flag reads); the ``Channel`` keywords without a
+    flag and the flags so set.
 
     Returns
     -------
-    dict
+    extra : dict
         ``points``, ``size_points``, ``wall_segments``, ``wall_profile`` where the file gives them, and ``size``
-        where the file gives it and ``--size`` does not.
+        where the file gives it and ``--size`` does not; {} without a section.
+    file_keys : frozenset of str
+        The destinations in ``args`` set from the file ("width", "access_resistance", ...).
     """
     if spec is None:
-        return {}
+        return {}, frozenset()
     texts = {"length": _text(spec.length, "m"), "left": _text(spec.left, "mol/m^3"),
              "right": _text(spec.right, "mol/m^3"), "width": _text(spec.width, "m"),
              "iv": None if spec.voltages is None else
              f"{spec.voltages[0]!r} V:{spec.voltages[-1]!r} V:{len(spec.voltages)}",
              "access_resistance": None if spec.access_resistance is None else
              ("on" if spec.access_resistance else "off")}
+    file_keys = set()
     for name, text in texts.items():
         if getattr(args, name) is None and text is not None:
             setattr(args, name, text)
+            file_keys.add(name)
     if spec.rectification and not args.rectification:
         if args.iv is None:
             from edl_solver.errors import InputError
@@ -69,11 +75,12 @@ def apply_channel_section(args: argparse.Namespace, spec: Any) -> dict[str, Any]
                              "(or --iv) with positive voltages, e.g. iv = { start = \"-1 V\", stop = \"1 V\", "
                              "count = 41 }")
         args.rectification = True
+        file_keys.add("rectification")
     extra = {key: getattr(spec, key) for key in ("points", "size_points", "wall_segments", "wall_profile")
              if getattr(spec, key) is not None}
     if args.size is None and spec.size is not None:
         extra["size"] = spec.size
-    return extra
+    return extra, frozenset(file_keys)
 
 
 def _text(value: float | None, unit: str) -> str | None:

@@ -123,18 +123,22 @@ def _add_device_flags(transport: Any) -> None:
                              "--width); default off")
 
 
-def _device_plan(args: argparse.Namespace, case: Any, plan: dict[str, Any]) -> None:
-    """The device flags, checked: plan["device"] = (channels, voltage, dp) when any is given; plan["width"]."""
+def _device_plan(args: argparse.Namespace, case: Any, plan: dict[str, Any], file_keys: frozenset[str]) -> None:
+    """The device flags, checked: plan["device"] = (channels, voltage, dp) when any is given; plan["width"]. A
+    width or access resistance from the case file's [channel] (``file_keys``) is the channel's, not a device's."""
     from edl_solver.errors import InputError
     from edl_solver.inputs.units import to_si
 
     given = {flag: value for flag, value in (("--width", args.width), ("--channels", args.channels),
                                              ("--voltage", args.voltage),
-                                             ("--pressure-difference", args.pressure_difference)) if value is not None}
-    if args.access_resistance == "on":
+                                             ("--pressure-difference", args.pressure_difference))
+             if value is not None and flag.strip("-") not in file_keys}
+    if args.access_resistance == "on" and "access_resistance" not in file_keys:
         given.setdefault("--access-resistance", "on")
     plan["device"], plan["width"] = None, None
     if not given:
+        if args.width is not None:  # the file's, checked there (Channel checks it against the heights)
+            plan["width"] = _positive(args.width, "--width", "m", "a slit width, e.g. 100um")
         return
     first = next(iter(given))
     if plan["length"] is None:
@@ -198,8 +202,9 @@ def _positive(value: str, flag: str, unit: str, what: str) -> float:
     return to_positive_si(value, unit, flag, what)
 
 
-def _transport_plan(args: argparse.Namespace, case: Any) -> dict[str, Any]:
-    """Check the transport flags against each other and the case; nothing is solved or written yet."""
+def _transport_plan(args: argparse.Namespace, case: Any, file_keys: frozenset[str] = frozenset()) -> dict[str, Any]:
+    """Check the transport flags against each other and the case; nothing is solved or written yet. ``file_keys``:
+    the flags set from the case file's [channel] (``transport_channel.apply_channel_section``)."""
     from edl_solver.channel.conductance import cases_at
     from edl_solver.errors import InputError
 
@@ -231,7 +236,7 @@ def _transport_plan(args: argparse.Namespace, case: Any) -> dict[str, Any]:
     if args.conductance is not None:
         plan["concentrations"] = _parse_range(args.conductance, "--conductance", "mol/m^3", log=True)
         cases_at(case, plan["concentrations"][:1])
-    _device_plan(args, case, plan)
+    _device_plan(args, case, plan, file_keys)
     if args.pump_figure is not None and case.field == 0.0:
         raise InputError("--pump-figure: the case has no field, expected --field E (e.g. --field 10kV/m) or a "
                          "field in the case file")
@@ -294,8 +299,8 @@ def run_transport_command(args: argparse.Namespace) -> int:
 
     case = case_from_args(args)
     section = channel_section(args, case)  # the case file's [channel]: each flag given replaces its key
-    extra = apply_channel_section(args, section)
-    plan = _transport_plan(args, case)
+    extra, file_keys = apply_channel_section(args, section)
+    plan = _transport_plan(args, case, file_keys)
     spec = make_channel(args, case, plan, extra, section is not None)
     outputs = _transport_outputs(args)
     result = solver.solve(case)

@@ -120,8 +120,9 @@ def _segment_lines(data: Any) -> list[str]:
         return []
     starts, ends = data["wall_segment_start"].values, data["wall_segment_end"].values
     words = data["wall_segment_wall"].values
-    return [_row("wall along x" if k == 0 else "", f"from {prefixed(float(a), 'm')} to {prefixed(float(b), 'm')}: "
-                                                   f"{w}") for k, (a, b, w) in enumerate(zip(starts, ends, words))]
+    return [_row("wall along x" if k == 0 else "", f"from {'x = 0' if a == 0.0 else prefixed(float(a), 'm')} to "
+                                                   f"{prefixed(float(b), 'm')}: {w}")
+            for k, (a, b, w) in enumerate(zip(starts, ends, words))]
 
 
 def _access_lines(data: Any, geometry: Any) -> list[str]:

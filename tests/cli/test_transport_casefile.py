@@ -107,6 +107,7 @@ def test_each_end_access_resistance_is_halls_at_that_end(cone_run: tuple[Path, i
     assert data["end_access_resistance"].values.sum() == pytest.approx(data.attrs["access_resistance"], rel=1e-12)
     assert "access resistance of the left (x = 0) end" in out and "access resistance of the right (x = L) end" in out
     assert "(radius 5 nm, reservoir 10 mM)" in out and "(radius 20 nm, reservoir 10 mM)" in out
+    assert "Device:" not in out  # the file's access resistance is the channel's; the device block needs its flags
 
 
 def test_the_wall_segments_are_in_the_group_and_the_report(cone_run: tuple[Path, int, str, str]) -> None:
@@ -118,7 +119,7 @@ def test_the_wall_segments_are_in_the_group_and_the_report(cone_run: tuple[Path,
     assert data["wall_segment_charge_density"].values == pytest.approx([-0.02, -0.005])
     assert data["wall_segment_charge_density"].attrs["units"] == "C/m^2"
     assert list(data["wall_segment_wall"].values) == ["charge density -20 mC/m^2", "charge density -5 mC/m^2"]
-    assert "wall along x" in out and "from 0 m to 400 nm: charge density -20 mC/m^2" in out
+    assert "wall along x" in out and "from x = 0 to 400 nm: charge density -20 mC/m^2" in out
     assert "from 400 nm to 1 µm: charge density -5 mC/m^2" in out
 
 
@@ -213,6 +214,17 @@ def test_bad_input_exits_2_with_one_line_and_no_file(tmp_path: Path, monkeypatch
     for part in parts:
         assert part in err, f"{part!r} not in {err!r}"
     assert out == "" and sorted(tmp_path.iterdir()) == before
+
+
+def test_a_slit_with_access_resistance_and_no_width_names_the_file(tmp_path: Path,
+                                                                   monkeypatch: pytest.MonkeyPatch) -> None:
+    monkeypatch.chdir(tmp_path)
+    write(tmp_path, CAPILLARY.replace('kind = "capillary"\nradius = "5 nm"', 'kind = "slit"\nheight = "20 nm"')
+          + '\n[channel]\nlength = "1 um"\naccess_resistance = true\n')
+    code, out, err = run(["transport", "case.toml", "-o", "result.h5"])
+    assert code == 2 and err.count("\n") == 1, err
+    assert "case.toml: channel.access_resistance: True for a slit without a width" in err, err
+    assert out == "" and not (tmp_path / "result.h5").exists()
 
 
 def test_a_wall_profile_goes_to_the_channel_only_where_it_has_that_field(tmp_path: Path,

@@ -239,3 +239,12 @@ def test_the_demo_case_file_still_round_trips() -> None:
 def test_a_misspelt_section_name_is_refused_with_a_hint() -> None:
     with pytest.raises(InputError, match=re.escape("unknown key 'chanel' (did you mean 'channel'?)")):
         loads_case(CAPILLARY + '\n[chanel]\nlength = "1 um"\n')
+
+
+def test_a_wall_profile_is_read_as_given_inline_or_from_csv(tmp_path) -> None:
+    inline = {"position": ["0 um", "1 um"], "value": ["-20 mC/m^2", "-5 mC/m^2"]}
+    assert spec_of({"length": "1 um", "wall_profile": inline}).wall_profile == inline
+    write(tmp_path, name="charge.csv", text="position [um], charge_density [mC/m^2]\n0, -20\n1, -5\n")
+    spec = spec_of({"length": "1 um", "wall_profile": {"csv": "charge.csv"}}, folder=tmp_path)
+    assert spec.wall_profile["position"] == pytest.approx([0.0, 1e-6])
+    assert spec.wall_profile["value"] == ["-20.0 mC/m^2", "-5.0 mC/m^2"]  # the header's unit, for Channel to check
