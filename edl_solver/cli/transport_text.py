@@ -81,7 +81,8 @@ def channel_lines(data: Any, result: Any) -> str:
              *_taper_lines(data), *_segment_lines(data),
              _row("conductance -dI/dΔV at zero current", siemens(_value(data, "conductance")))]
     if data.attrs["equal_reservoirs"]:
-        lines.append("  equal reservoirs: no membrane potential and no osmotic power (give --left and --right)")
+        lines.append("  equal reservoirs: no membrane potential and no osmotic power (give --left and --right, or left "
+                     "and right in [channel])")
     else:
         lines += _reservoir_lines(data, result)
     if "voltage" in data.dims:
