@@ -15,6 +15,8 @@ from typing import Any
 from edl_solver.cli.case_flags import CASE_VALUE_FLAGS, add_case_flags, case_from_args
 from edl_solver.cli.exit_codes import EXIT_OK, EXIT_WRITE_FAILED, fail
 from edl_solver.cli.output_files import OUTPUT_FLAGS, add_output_flags, writable
+from edl_solver.cli.transport_channel import apply_channel_section, channel_section, make_channel
+from edl_solver.cli.transport_outputs import add_channel_outputs
 from edl_solver.cli.transport_text import channel_lines, conductance_lines, flags_line
 
 __all__ = ["VALUE_FLAGS", "add_transport_command", "run_transport_command"]
@@ -50,6 +52,12 @@ N concentrations, evenly spaced in log (per unit length, or of the channel with 
 linear between (a cone); --rectification prints |I(+V)/I(-V)| at the positive voltages of --iv:
   edl transport --capillary 5nm --ion K+=10mM --ion Cl-=10mM --charge-density -20mC/m^2 --length 1um \\
       --size 5nm:40nm --iv -500mV:500mV:11 --rectification --iv-figure cone.png
+A case file's [channel] section gives the same channel (its keys: length, left, right, size as a pair,
+a table or a CSV file, iv = { start, stop, count }, rectification, access_resistance, width, points,
+size_points, [[channel.wall_segments]]; see examples/conical_pore.toml); each flag given replaces its
+key (--length length, --left left, --right right, --size size, --iv iv, --width width,
+--access-resistance access_resistance, --rectification turns rectification on):
+  edl transport examples/conical_pore.toml -o pore.h5 --iv-figure pore.png
 A device: --width W (of each slit), --channels N (in parallel), --voltage V and --pressure-difference
 DP (e.g. 10V, 100mbar, -1bar; both as V(right) - V(left), p(right) - p(left)) print its flow rate in
 uL/min or nL/min, current and conductance, its pump curve and stall pressure at V and the streaming
@@ -110,23 +118,27 @@ def _add_device_flags(transport: Any) -> None:
     device.add_argument("--pressure-difference", metavar="DP",
                         help="pressure difference p(right) - p(left), e.g. 100mbar or -1bar: the flow it drives and "
                              "the streaming potential")
-    device.add_argument("--access-resistance", choices=("on", "off"), default="off",
+    device.add_argument("--access-resistance", choices=("on", "off"), default=None,
                         help="add each end's access resistance in series (capillary: Hall 1975; slit: needs "
                              "--width); default off")
 
 
-def _device_plan(args: argparse.Namespace, case: Any, plan: dict[str, Any]) -> None:
-    """The device flags, checked: plan["device"] = (channels, voltage, dp) when any is given; plan["width"]."""
+def _device_plan(args: argparse.Namespace, case: Any, plan: dict[str, Any], file_keys: frozenset[str]) -> None:
+    """The device flags, checked: plan["device"] = (channels, voltage, dp) when any is given; plan["width"]. A
+    width or access resistance from the case file's [channel] (``file_keys``) is the channel's, not a device's."""
     from edl_solver.errors import InputError
     from edl_solver.inputs.units import to_si
 
     given = {flag: value for flag, value in (("--width", args.width), ("--channels", args.channels),
                                              ("--voltage", args.voltage),
-                                             ("--pressure-difference", args.pressure_difference)) if value is not None}
-    if args.access_resistance == "on":
+                                             ("--pressure-difference", args.pressure_difference))
+             if value is not None and flag.strip("-") not in file_keys}
+    if args.access_resistance == "on" and "access_resistance" not in file_keys:
         given.setdefault("--access-resistance", "on")
     plan["device"], plan["width"] = None, None
     if not given:
+        if args.width is not None:  # the file's, checked there (Channel checks it against the heights)
+            plan["width"] = _positive(args.width, "--width", "m", "a slit width, e.g. 100um")
         return
     first = next(iter(given))
     if plan["length"] is None:
@@ -190,8 +202,9 @@ def _positive(value: str, flag: str, unit: str, what: str) -> float:
     return to_positive_si(value, unit, flag, what)
 
 
-def _transport_plan(args: argparse.Namespace, case: Any) -> dict[str, Any]:
-    """Check the transport flags against each other and the case; nothing is solved or written yet."""
+def _transport_plan(args: argparse.Namespace, case: Any, file_keys: frozenset[str] = frozenset()) -> dict[str, Any]:
+    """Check the transport flags against each other and the case; nothing is solved or written yet. ``file_keys``:
+    the flags set from the case file's [channel] (``transport_channel.apply_channel_section``)."""
     from edl_solver.channel.conductance import cases_at
     from edl_solver.errors import InputError
 
@@ -223,7 +236,7 @@ def _transport_plan(args: argparse.Namespace, case: Any) -> dict[str, Any]:
     if args.conductance is not None:
         plan["concentrations"] = _parse_range(args.conductance, "--conductance", "mol/m^3", log=True)
         cases_at(case, plan["concentrations"][:1])
-    _device_plan(args, case, plan)
+    _device_plan(args, case, plan, file_keys)
     if args.pump_figure is not None and case.field == 0.0:
         raise InputError("--pump-figure: the case has no field, expected --field E (e.g. --field 10kV/m) or a "
                          "field in the case file")
@@ -285,7 +298,10 @@ def run_transport_command(args: argparse.Namespace) -> int:
     from edl_solver.errors import ConvergenceError
 
     case = case_from_args(args)
-    plan = _transport_plan(args, case)
+    section = channel_section(args, case)  # the case file's [channel]: each flag given replaces its key
+    extra, file_keys = apply_channel_section(args, section)
+    plan = _transport_plan(args, case, file_keys)
+    spec = make_channel(args, case, plan, extra, section is not None)
     outputs = _transport_outputs(args)
     result = solver.solve(case)
     curve = channel = device_text = None
@@ -297,14 +313,12 @@ def run_transport_command(args: argparse.Namespace) -> int:
         if not (curve["status"].values == 0).any():
             raise ConvergenceError(f"--conductance: none of the {curve['status'].size} solves converged (the "
                                    f"first: {curve['message'].values[0]})")
-    if plan["length"] is not None:
+    if spec is not None:
         from edl_solver.channel.conductance import channel_characteristics
-        from edl_solver.channel.model import Channel
 
-        spec = Channel(case, plan["length"], *plan["reservoirs"], access_resistance=args.access_resistance == "on",
-                       width=plan["width"], size=plan["size"])
         channel = channel_characteristics(spec, plan["voltages"])
         _add_taper(channel, spec, plan["rectification"])
+        add_channel_outputs(channel, spec)
         if plan["device"] is not None:
             from edl_solver.channel.device import Device
             from edl_solver.channel.device_text import device_lines

@@ -78,10 +78,11 @@ def channel_lines(data: Any, result: Any) -> str:
     siemens = show("conductance", geometry, _value(data, "conductance"))
     lines = [f"Finite channel: length {show('length', None, length)(length)} between reservoirs of "
              f"{shown_number(left)} mM (left, x = 0) and {shown_number(right)} mM (right, x = L){per}",
-             *_taper_lines(data),
+             *_taper_lines(data), *_segment_lines(data),
              _row("conductance -dI/dΔV at zero current", siemens(_value(data, "conductance")))]
     if data.attrs["equal_reservoirs"]:
-        lines.append("  equal reservoirs: no membrane potential and no osmotic power (give --left and --right)")
+        lines.append("  equal reservoirs: no membrane potential and no osmotic power (give --left and --right, or left "
+                     "and right in [channel])")
     else:
         lines += _reservoir_lines(data, result)
     if "voltage" in data.dims:
@@ -92,6 +93,7 @@ def channel_lines(data: Any, result: Any) -> str:
         span = f"{volts.size} voltages from {mv(volts.min(), signed=True)} to {mv(volts.max(), signed=True)}"
         lines.append(_row("I-V curve", f"{span}, {'all converged' if not failed else f'{failed} did not converge'}"))
         lines += _rectification_lines(data, mv)
+    lines += _access_lines(data, geometry)
     if data.attrs.get("osmotic_power_status", "converged") != "converged":
         lines.append("  note: the maximum-power search did not converge; its values are undefined")
     return "\n".join(lines) + "\n"
@@ -109,6 +111,37 @@ def _taper_lines(data: Any) -> list[str]:
     return [_row("tapered channel", words),
             _row("table over (c, size): interpolation error", f"{error:.2g} (largest, relative to sqrt(L_ii L_jj), "
                                                                  "at the cells' centres)")]
+
+
+def _segment_lines(data: Any) -> list[str]:
+    """The wall segments along x (``transport_outputs``), one line each; none for a wall that does not vary."""
+    from edl_solver.report.formatting import prefixed
+
+    if "wall_segment_end" not in data.variables:
+        return []
+    starts, ends = data["wall_segment_start"].values, data["wall_segment_end"].values
+    words = data["wall_segment_wall"].values
+    return [_row("wall along x" if k == 0 else "", f"from {'x = 0' if a == 0.0 else prefixed(float(a), 'm')} to "
+                                                   f"{prefixed(float(b), 'm')}: {w}")
+            for k, (a, b, w) in enumerate(zip(starts, ends, words))]
+
+
+def _access_lines(data: Any, geometry: Any) -> list[str]:
+    """Each end's access resistance, with its size and reservoir, and their sum (in series with the channel)."""
+    from edl_solver.report.formatting import prefixed
+
+    if "end_access_resistance" not in data.variables:
+        return []
+    unit = "Ω·m" if geometry.extent == "per_width" else "Ω"
+    values, sizes = data["end_access_resistance"].values, data["end_size"].values
+    name = geometry.size_name
+    lines = [_row(f"access resistance of the {end} end",
+                  f"{prefixed(float(values[k]), unit)} ({name} {prefixed(float(sizes[k]), 'm')}, reservoir "
+                  f"{shown_number(float(data['end_concentration'].values[k]))} mM)")
+             for k, end in enumerate(("left (x = 0)", "right (x = L)"))]
+    total = prefixed(float(values.sum()), unit)
+    lines.append(_row("", f"both {total} in series with the channel, included in every current above"))
+    return lines
 
 
 def _rectification_lines(data: Any, mv: Any) -> list[str]:

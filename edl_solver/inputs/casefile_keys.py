@@ -72,8 +72,9 @@ def single_wall(geometry: Any) -> bool:
 
 def check_keys(data: Mapping[str, Any]) -> None:
     """Reject any key the case does not use, wherever it is, naming it by its dotted path."""
-    # [transient] holds the settings of a transient run, read by inputs.transient_spec, not part of the case.
-    _known(data, (*SCALARS, "geometry", "electrolyte", "wall", "solvent", "numerics", "transient"), "")
+    # [transient] holds the settings of a transient run (inputs.transient_spec), [channel] the finite channel of
+    # edl transport (inputs.channel_spec): read by their own modules, not part of the case.
+    _known(data, (*SCALARS, "geometry", "electrolyte", "wall", "solvent", "numerics", "transient", "channel"), "")
     for name, keys in (("geometry", GEOMETRY_KEYS), ("solvent", SOLVENT_KEYS),
                        ("numerics", NUMERICS_KEYS)):
         if isinstance(data.get(name), Mapping):
