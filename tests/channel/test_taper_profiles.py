@@ -1,0 +1,57 @@
+"""The profiles along x that the I-V curve of a channel varying along x carries (``operating.current_voltage``).
+
+Conventions of ``edl_solver.channel.model``: x from the left reservoir (0) to the right one (L); Delta V =
+V(L) - V(0); the potential profile is against the left reservoir.
+"""
+
+from __future__ import annotations
+
+import numpy as np
+
+import edl_solver as edl
+from edl_solver import channel as ch
+from tests.helpers import KCL, SOLVENT
+
+
+def _case(charge: str) -> edl.Case:
+    return edl.Case(geometry=edl.Capillary(radius="10 nm"), electrolyte=KCL, wall=edl.Wall(charge_density=charge),
+                    solvent=SOLVENT)
+
+
+def test_an_uncharged_cone_divides_the_voltage_as_its_resistance_does() -> None:
+    """Ohm's law in a slowly varying uncharged section: V(x)/Delta V = int_0^x dx'/r^2 / int_0^L dx'/r^2, and with
+    r linear from a to b, int_0^x dx'/r^2 = x/(a r(x)), so V(x)/Delta V = x b/(L r(x)) (derived here; common
+    practice); the salt stays at the reservoirs' concentration. The profiles are good to the collocation's tolerance
+    (``taper_path.BVP_TOLERANCE``, 1e-4; the fluxes converge faster)."""
+    length, a, b = 2e-6, 10e-9, 100e-9
+    curve = ch.current_voltage(ch.Channel(_case("0 C/m^2"), length, "1 mM", "1 mM", size=(a, b), points=8,
+                                          size_points=6), [-0.2, 0.2])
+    x = curve["position"].values
+    expected = x * b / (length * (a + (b - a) * x / length))
+    for voltage in (-0.2, 0.2):
+        np.testing.assert_allclose(curve["potential_profile"].sel(voltage=voltage).values, voltage * expected,
+                                   atol=3e-4 * abs(voltage))
+        np.testing.assert_allclose(curve["concentration_profile"].sel(voltage=voltage).values, 1.0, rtol=3e-4)
+    assert curve["potential_profile"].attrs["units"] == "V"
+    assert curve["position"].attrs["units"] == "m"
+
+
+def test_a_charged_cone_polarises_its_salt_oppositely_at_opposite_voltages() -> None:
+    """A negative cone, tip at x = 0: the counter-ion-selective tip makes salt pile up inside at one polarity and
+    drain at the other (concentration polarisation, the mechanism of rectification: Woermann 2003, Phys. Chem.
+    Chem. Phys. 5, 1853; Vlassiouk, Smirnov & Siwy 2008, Nano Lett. 8, 1978, from memory). The ends hold the
+    reservoirs' concentration; the low-current polarity (+V here) is the depleted one."""
+    curve = ch.current_voltage(ch.Channel(_case("-10 mC/m^2"), "5 um", "1 mM", "1 mM", size=("10 nm", "200 nm"),
+                                          points=16, size_points=8), [-0.5, 0.5])
+    forward, reverse = (curve["concentration_profile"].sel(voltage=v).values for v in (0.5, -0.5))
+    for profile in (forward, reverse):
+        np.testing.assert_allclose(profile[[0, -1]], 1.0, rtol=1e-9)
+    assert forward.min() < 0.5 and reverse.max() > 2.0
+    currents = curve["current"].values
+    assert abs(currents[1]) < abs(currents[0])
+
+
+def test_a_uniform_channel_has_no_profile_variables() -> None:
+    """The uniform channel's curve keeps its layout (no position dimension)."""
+    curve = ch.current_voltage(ch.Channel(_case("-10 mC/m^2"), "1 um", "1 mM", "1 mM"), [0.1])
+    assert "position" not in curve.dims and "concentration_profile" not in curve
