@@ -15,14 +15,22 @@ def shape_attrs(channel: Any) -> dict[str, Any]:
     """The attributes of a channel dataset that describe the ``Channel``'s ``size``: {} for a uniform channel.
 
     ``size_positions`` and ``size_sizes`` (m, the ``shape.Shape`` rows), ``size_name`` ("radius" or
-    "height") and ``size_kind`` ("linear" for a pair, "table" for a table or a sampled callable).
+    "height") and ``size_kind`` ("linear" for a pair, "table" for a table or a sampled callable); for a channel with
+    a ``wall_profile``, also ``wall_profile_position`` (m) and ``wall_profile_value`` (the ``WallProfile`` rows),
+    ``wall_profile_quantity`` ("zeta", "charge_density" or "site_density") and ``wall_profile_unit`` (SI).
     """
     shape = channel.size
     if shape is None:
         return {}
-    return {"size_positions": np.asarray(shape.positions, dtype=float), "size_sizes": np.asarray(shape.sizes,
-                                                                                                  dtype=float),
-            "size_name": channel.case.geometry.size_name, "size_kind": "linear" if len(shape.sizes) == 2 else "table"}
+    attrs = {"size_positions": np.asarray(shape.positions, dtype=float), "size_sizes": np.asarray(shape.sizes,
+                                                                                                   dtype=float),
+             "size_name": channel.case.geometry.size_name, "size_kind": "linear" if len(shape.sizes) == 2 else "table"}
+    profile = channel.wall_profile
+    if profile is not None:
+        attrs.update({"wall_profile_position": np.asarray(profile.positions, dtype=float),
+                      "wall_profile_value": np.asarray(profile.values, dtype=float),
+                      "wall_profile_quantity": profile.quantity, "wall_profile_unit": profile.unit})
+    return attrs
 
 
 def shape_words(attrs: Any) -> str | None:
