@@ -78,6 +78,7 @@ class SectionSpline:
         scale = np.sqrt(diagonal[..., :, None] * diagonal[..., None, :])
         correlation = (matrices / scale)[..., self._upper[0], self._upper[1]]
         features = np.concatenate((np.log(diagonal), correlation), axis=-1)  # (sizes, concentrations, features)
+        self.feature_count = features.shape[-1]
         self.u_range = (float(u[0]), float(u[-1]))
         if len(s) == 1:
             spline = CubicSpline(u, features[0], axis=0)

@@ -148,7 +148,13 @@ class ProfileSpline:
         """Ion matrices at the points (u_k, s_k, v_k), shape (k, n, n)."""
         u, s = np.asarray(u, dtype=float), np.asarray(s, dtype=float)
         weights = self.weights(u, s, v)
-        features = sum(weights[:, k, None] * spline.features(u, s) for k, spline in enumerate(self.splines))
+        features = 0.0
+        for k, spline in enumerate(self.splines):  # each table where its weight is not zero (at most 4 per point)
+            used = weights[:, k] != 0.0
+            if np.any(used):
+                part = np.zeros((len(u), spline.feature_count))
+                part[used] = weights[used, k, None] * spline.features(u[used], s[used])
+                features = features + part
         return self.splines[0].rebuild(features)
 
 
