@@ -13,7 +13,9 @@ x = 0 and ln c_R at x = L, V(0) = p(0) = 0, V(L) - V(0) = Delta V + R_access I (
 p(L) = Delta p. ``scipy.integrate.solve_bvp`` (fourth-order collocation, mesh refined to its tolerance) solves
 it; a point starts from the previous one of an I-V curve and is reached by continuation in the drive (halved
 steps) when a direct solve fails. A point whose concentration leaves the table, or whose solve does not meet
-the tolerance, is reported as failed, never returned as converged.
+the tolerance, is reported as failed, never returned as converged. With a ``wall_profile`` M also depends on the
+wall value at x (linear between the profile's rows, nodes of the starting mesh when at most 65), interpolated
+between the tables of the wall nodes (``wall_profile.ProfileSpline``).
 """
 
 from __future__ import annotations
@@ -111,7 +113,8 @@ class TaperPath:
 
     def _matrices(self, u: np.ndarray, xi: np.ndarray, segment: int | None = None) -> np.ndarray:
         """Reduced M at (u, xi) with the table of the wall ``segment`` (by default that of the segment containing
-        each xi), u clipped to the table (a solution that leaves it is refused afterwards)."""
+        each xi) or, with a wall profile, interpolated at the wall value at xi; u clipped to the table (a solution
+        that leaves it is refused afterwards)."""
         low, high = self.spline.u_range
         s = np.log(np.interp(xi, self.xi_rows, self.sizes))  # the size linear in x between the rows
         u = np.clip(u, low, high)

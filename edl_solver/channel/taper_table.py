@@ -9,7 +9,9 @@ node, so that a uniform section between equal reservoirs is interpolated exactly
 interpolated as ``model.IonMatrixSpline`` does in ln c (logs of the diagonal, correlations), by bicubic
 splines over (ln size, ln c); the interpolation is checked against direct solves at every cell centre (the
 midpoints in both ln c and ln size, where a tensor-product interpolation is least accurate) and the largest
-error stored, as ``model.tabulate`` does at the midpoints in ln c.
+error stored, as ``model.tabulate`` does at the midpoints in ln c. A wall piecewise along x (``wall_segments``) gets
+one such table per distinct wall; a wall profile (``wall_profile``) one per wall node (``wall_nodes``), interpolated
+across the wall value by ``wall_profile.ProfileSpline``, whose error is checked at the midpoints of the nodes.
 """
 
 from __future__ import annotations
@@ -149,7 +151,9 @@ def tabulate_taper(channel: Any) -> dict[str, Any]:
     """The fields of the ``ChannelTable`` of a channel with a ``size`` (``model.tabulate`` builds it): the
     cross-section solved over (ln c, ln size) once, its interpolation checked at the cell centres; its path is
     ``taper_path.TaperPath``. A channel with ``wall_segments`` gets one such table per distinct wall (``matrices``
-    then has shape (walls, sizes, concentrations, 3, 3); the errors are the largest over the tables).
+    then has shape (walls, sizes, concentrations, 3, 3); the errors are the largest over the tables), and one with
+    a ``wall_profile`` one per wall node (``wall_nodes``; the same shape), the errors then including that across the
+    wall value (``_wall_errors``).
 
     Raises
     ------
