@@ -18,7 +18,7 @@ import edl_solver as edl
 from edl_solver import channel as ch
 from edl_solver.channel.model import table_of
 from edl_solver.channel.rectification import rectification_ratio
-from edl_solver.channel.taper_outputs import shape_attrs
+from edl_solver.channel.taper_outputs import shape_attrs, shape_words
 from edl_solver.channel.wall_profile import WallProfile
 from edl_solver.errors import InputError
 from tests.helpers import KCL, SOLVENT
@@ -142,6 +142,7 @@ def test_a_site_density_profile_and_the_outputs() -> None:
     attrs = shape_attrs(channel)
     np.testing.assert_array_equal(attrs["wall_profile_value"], [1e18, 3e18])
     assert attrs["wall_profile_quantity"] == "site_density" and attrs["wall_profile_unit"] == "1/m^2"
+    assert shape_words(attrs).endswith("(a taper); wall site density 1 nm^-2 to 3 nm^-2")
 
 
 @pytest.mark.parametrize(("profile", "field", "words"), [
