@@ -128,11 +128,12 @@ class Channel:
         It applies to both walls of a slit given an equal pair; different walls, several kinds of site, a gate and
         ``wall_segments`` with it are refused. Stored as a ``WallProfile``; the channel is tabulated at
         ``wall_points`` values spanning the profile (one for a constant profile: the plain channel's table),
-        interpolated across the value by a cubic spline whose error, measured at the midpoints of those values, is
-        part of the table's ``interpolation_error``, and solved along x as a channel with a ``size`` is.
+        interpolated across the value by a local cubic (``wall_profile.ProfileSpline``) whose error, measured at the
+        midpoints of those values, is part of the table's ``interpolation_error``, and solved along x as a channel
+        with a ``size`` is.
     wall_points : int
-        Wall values of that table, equally spaced over the profile's range, from 2 to 50 (one for a constant
-        profile).
+        Wall values of that table, from 2 to 50 (one for a constant profile): equally spaced over the profile's
+        range, a charge density's in asinh(sigma / (F c size)), denser near zero (``taper_table.wall_nodes``).
     """
 
     case: Case

@@ -18,7 +18,7 @@ both. The profile is
 
 The value is linear in x between the rows. The channel is tabulated at ``wall_points`` values spanning the
 profile's range (one when it is constant, so that a constant profile is the plain channel's table), each a
-(ln c, ln size) table of ``taper_table``, and interpolated across the value by a cubic spline (``ProfileSpline``).
+(ln c, ln size) table of ``taper_table``, and interpolated across the value by a local cubic (``ProfileSpline``).
 """
 
 from __future__ import annotations
