@@ -61,6 +61,7 @@ from edl_solver.channel.relations import SaltRatios, reduce_matrices
 from edl_solver.channel.relations import basis_of as _basis
 from edl_solver.channel.relations import zero_current_gradient as _zero_current_gradient
 from edl_solver.channel.shape import make_shape
+from edl_solver.channel.wall_profile import make_wall_profile
 from edl_solver.channel.wall_segments import make_wall_segments
 from edl_solver.constants import GAS_CONSTANT
 from edl_solver.errors import ConvergenceError, InputError
@@ -119,6 +120,20 @@ class Channel:
         x_end (m or "500 nm"), the ends rising to L; walls of the case's kind (e.g. a bipolar channel: -20 and
         +20 mC/m^2). Stored as a ``WallSegments``; the channel is then tabulated once per distinct wall and solved
         along x as a channel with a ``size`` is (a uniform ``size`` of the case's is set when none is given).
+    wall_profile : callable or table, optional
+        The wall along x as a continuous profile of what the case's wall fixes (``edl_solver.channel.wall_profile``):
+        zeta (V, "-40 mV") of a potential wall, the charge density (C/m^2, "-20 mC/m^2") of a charge wall, the site
+        density (1/m^2, "2 nm^-2") of a wall regulated by one kind of site; a callable value(x) (x in m, sampled as
+        a callable ``size`` is) or a table ``{"position": [...], "value": [...]}``, linear in x between the rows.
+        It applies to both walls of a slit given an equal pair; different walls, several kinds of site, a gate and
+        ``wall_segments`` with it are refused. Stored as a ``WallProfile``; the channel is tabulated at
+        ``wall_points`` values spanning the profile (one for a constant profile: the plain channel's table),
+        interpolated across the value by a local cubic (``wall_profile.ProfileSpline``) whose error, measured at the
+        midpoints of those values, is part of the table's ``interpolation_error``, and solved along x as a channel
+        with a ``size`` is.
+    wall_points : int
+        Wall values of that table, from 2 to 50 (one for a constant profile): equally spaced over the profile's
+        range, a charge density's in asinh(sigma / (F c size)), denser near zero (``taper_table.wall_nodes``).
     """
 
     case: Case
@@ -131,6 +146,8 @@ class Channel:
     size: Any = None
     size_points: int = 12
     wall_segments: Any = None
+    wall_profile: Any = None
+    wall_points: int = 9
 
     def __post_init__(self) -> None:
         if not isinstance(self.case, Case):
@@ -146,11 +163,20 @@ class Channel:
                              "expected True or False")
         if self.size is not None:
             object.__setattr__(self, "size", make_shape(self.size, length, self.case.geometry.kind))
+        if self.wall_segments is not None and self.wall_profile is not None:
+            raise InputError("channel.wall_profile: given with wall_segments, expected one of them (a piecewise or a "
+                             "continuous wall along x)")
         if self.wall_segments is not None:
             object.__setattr__(self, "wall_segments", make_wall_segments(self.wall_segments, length, self.case))
-            if self.size is None:
-                size = self.case.geometry.size
-                object.__setattr__(self, "size", make_shape((size, size), length, self.case.geometry.kind))
+        if self.wall_profile is not None:
+            object.__setattr__(self, "wall_profile", make_wall_profile(self.wall_profile, length, self.case))
+        if isinstance(self.wall_points, bool) or not isinstance(self.wall_points, int) or \
+                not 2 <= self.wall_points <= 50:
+            raise InputError(f"channel.wall_points: {self.wall_points!r} is not allowed, expected an integer from 2 "
+                             "to 50")
+        if (self.wall_segments is not None or self.wall_profile is not None) and self.size is None:
+            size = self.case.geometry.size
+            object.__setattr__(self, "size", make_shape((size, size), length, self.case.geometry.kind))
         self._check_width()
         if isinstance(self.size_points, bool) or not isinstance(self.size_points, int) or \
                 not 4 <= self.size_points <= 100:

@@ -8,37 +8,67 @@ from typing import Any
 
 import numpy as np
 
-__all__ = ["curve_rectification", "shape_attrs", "shape_words"]
+__all__ = ["curve_rectification", "shape_attrs", "shape_words", "wall_words"]
 
 
 def shape_attrs(channel: Any) -> dict[str, Any]:
     """The attributes of a channel dataset that describe the ``Channel``'s ``size``: {} for a uniform channel.
 
     ``size_positions`` and ``size_sizes`` (m, the ``shape.Shape`` rows), ``size_name`` ("radius" or
-    "height") and ``size_kind`` ("linear" for a pair, "table" for a table or a sampled callable).
+    "height") and ``size_kind`` ("linear" for a pair, "table" for a table or a sampled callable); for a channel with
+    a ``wall_profile``, also ``wall_profile_position`` (m) and ``wall_profile_value`` (the ``WallProfile`` rows),
+    ``wall_profile_quantity`` ("zeta", "charge_density" or "site_density") and ``wall_profile_unit`` (SI).
     """
     shape = channel.size
     if shape is None:
         return {}
-    return {"size_positions": np.asarray(shape.positions, dtype=float), "size_sizes": np.asarray(shape.sizes,
-                                                                                                  dtype=float),
-            "size_name": channel.case.geometry.size_name, "size_kind": "linear" if len(shape.sizes) == 2 else "table"}
+    attrs = {"size_positions": np.asarray(shape.positions, dtype=float), "size_sizes": np.asarray(shape.sizes,
+                                                                                                   dtype=float),
+             "size_name": channel.case.geometry.size_name, "size_kind": "linear" if len(shape.sizes) == 2 else "table"}
+    profile = channel.wall_profile
+    if profile is not None:
+        attrs.update({"wall_profile_position": np.asarray(profile.positions, dtype=float),
+                      "wall_profile_value": np.asarray(profile.values, dtype=float),
+                      "wall_profile_quantity": profile.quantity, "wall_profile_unit": profile.unit})
+    return attrs
 
 
 def shape_words(attrs: Any) -> str | None:
-    """The shape in words from ``shape_attrs`` attributes ("radius 5 nm at x = 0 to 40 nm at x = L, linear"),
-    or None for a uniform channel."""
+    """The shape in words from ``shape_attrs`` attributes ("radius 5 nm at x = 0 to 40 nm at x = L, linear"), and
+    the wall profile's when there is one (``wall_words``), or None for a uniform channel."""
     from edl_solver.report.formatting import prefixed
 
     if "size_sizes" not in attrs:
         return None
     sizes = np.atleast_1d(np.asarray(attrs["size_sizes"], dtype=float))
     name = str(attrs.get("size_name", "size"))
+    wall = wall_words(attrs)
+    wall = "" if wall is None else f"; {wall}"
     if str(attrs.get("size_kind")) == "linear":
-        return f"{name} {prefixed(sizes[0], 'm')} at x = 0 to {prefixed(sizes[-1], 'm')} at x = L, linear (a taper)"
+        return (f"{name} {prefixed(sizes[0], 'm')} at x = 0 to {prefixed(sizes[-1], 'm')} at x = L, linear (a taper)"
+                f"{wall}")
     return (f"{name} from a table of {sizes.size} rows (a table or a sampled callable): {prefixed(sizes[0], 'm')} "
             f"at x = 0, {prefixed(sizes[-1], 'm')} at x = L, from {prefixed(sizes.min(), 'm')} to "
-            f"{prefixed(sizes.max(), 'm')}")
+            f"{prefixed(sizes.max(), 'm')}{wall}")
+
+
+def wall_words(attrs: Any) -> str | None:
+    """The wall profile in words from ``shape_attrs`` attributes, short enough for a figure's title ("wall charge
+    density -20 mC/m^2 to 18 mC/m^2", x = 0 to L; a table of more rows adds their count and range), or None without
+    one."""
+    from edl_solver.report.formatting import prefixed
+
+    if "wall_profile_value" not in attrs:
+        return None
+    values = np.atleast_1d(np.asarray(attrs["wall_profile_value"], dtype=float))
+    unit = str(attrs.get("wall_profile_unit", ""))
+
+    def value(v: float) -> str:
+        return f"{v * 1e-18:.4g} nm^-2" if unit == "1/m^2" else prefixed(v, unit)
+
+    quantity = str(attrs.get("wall_profile_quantity", "value")).replace("_", " ")
+    rows = f" ({values.size} rows, {value(values.min())} to {value(values.max())})" if values.size > 2 else ""
+    return f"wall {quantity} {value(values[0])} to {value(values[-1])}{rows}"
 
 
 def curve_rectification(data: Any) -> tuple[np.ndarray, np.ndarray] | None:

@@ -13,7 +13,9 @@ x = 0 and ln c_R at x = L, V(0) = p(0) = 0, V(L) - V(0) = Delta V + R_access I (
 p(L) = Delta p. ``scipy.integrate.solve_bvp`` (fourth-order collocation, mesh refined to its tolerance) solves
 it; a point starts from the previous one of an I-V curve and is reached by continuation in the drive (halved
 steps) when a direct solve fails. A point whose concentration leaves the table, or whose solve does not meet
-the tolerance, is reported as failed, never returned as converged.
+the tolerance, is reported as failed, never returned as converged. With a ``wall_profile`` M also depends on the
+wall value at x (linear between the profile's rows, nodes of the starting mesh when at most 65), interpolated
+between the tables of the wall nodes (``wall_profile.ProfileSpline``).
 """
 
 from __future__ import annotations
@@ -69,7 +71,7 @@ class TaperPath:
     ``path.Path`` (``solve``, ``unknowns``, ``continue_to``) that ``operating`` uses."""
 
     def __init__(self, channel: Channel, splines: list[SectionSpline], basis: np.ndarray,
-                 ends: tuple[float, float]):
+                 ends: tuple[float, float], wall_nodes: np.ndarray | None = None):
         case = channel.case
         self.channel, self.splines, self.spline, self.basis = channel, splines, splines[0], basis
         segments = channel.wall_segments
@@ -88,19 +90,36 @@ class TaperPath:
         self.xi_rows = np.array(shape.positions) / self.length
         self.sizes = np.array(shape.sizes)
         self.v_scale = self.rt / FARADAY
+        self._wall_profile(channel, splines, wall_nodes)
         self.p_scale = self.rt * salt.total_concentration * max(cl, cr)
         middle = self._matrices(np.array([0.5 * sum(self.u_ends)]), np.array([0.5]))[0]
         forces = np.array([self.p_scale, self.v_scale, self.rt_nu]) / self.length
         self.f_scale = np.abs(middle) @ forces
         self._last: list[tuple[np.ndarray, np.ndarray, tuple[np.ndarray, np.ndarray, np.ndarray], int | None]] = []
         self.mesh = np.union1d(np.linspace(0.0, 1.0, 33), self.xi_rows if len(self.xi_rows) <= 65 else [])
+        if self.profile is not None and len(self.wall_rows[0]) <= 65:  # the profile's kinks are nodes
+            self.mesh = np.union1d(self.mesh, self.wall_rows[0])
+
+    def _wall_profile(self, channel: Channel, splines: list[SectionSpline], nodes: np.ndarray | None) -> None:
+        """The interpolation across the wall value of a ``wall_profile`` between the tables at the wall ``nodes``
+        (None for a constant profile: a single table) and the profile's rows (xi, value)."""
+        from edl_solver.channel.wall_profile import ProfileSpline
+
+        profile = channel.wall_profile
+        self.profile = None if profile is None or len(splines) == 1 else \
+            ProfileSpline(splines, nodes, profile.quantity)
+        if self.profile is not None:
+            self.wall_rows = (np.array(profile.positions) / channel.length, np.array(profile.values))
 
     def _matrices(self, u: np.ndarray, xi: np.ndarray, segment: int | None = None) -> np.ndarray:
         """Reduced M at (u, xi) with the table of the wall ``segment`` (by default that of the segment containing
-        each xi), u clipped to the table (a solution that leaves it is refused afterwards)."""
+        each xi) or, with a wall profile, interpolated at the wall value at xi; u clipped to the table (a solution
+        that leaves it is refused afterwards)."""
         low, high = self.spline.u_range
         s = np.log(np.interp(xi, self.xi_rows, self.sizes))  # the size linear in x between the rows
         u = np.clip(u, low, high)
+        if self.profile is not None:  # the wall value linear in x between the profile's rows
+            return reduce_matrices(self.profile(u, s, np.interp(xi, *self.wall_rows)), self.basis)
         if len(self.splines) == 1:
             return reduce_matrices(self.splines[0](u, s), self.basis)
         if segment is not None:
