@@ -63,16 +63,19 @@ def size_text(geometry: Geometry) -> str:
     return f"{geometry.kind} {geometry.size_name} {geometry.label().split(' ', 1)[1]}"
 
 
-def section_text(case: Case, concentrations: bool = True) -> str:
-    """The section in brief: geometry, walls, electrolyte (with or without its concentrations), temperature."""
-    size = size_text(case.geometry)
+def section_text(case: Case, concentrations: bool = True, size: bool = True, walls: str | None = None) -> str:
+    """The section in brief: geometry, walls, electrolyte (with or without its concentrations), temperature.
+    ``size=False`` names the kind of section only, and ``walls`` replaces the case's walls (for a channel whose
+    size or wall varies along x, described elsewhere)."""
+    shape = size_text(case.geometry) if size else case.geometry.kind
     words = case.geometry.wall_words
-    walls = f"wall {wall_text(case.walls[0])}" if case.symmetric else \
-        f"walls {wall_text(case.walls[0])} ({words[0]}), {wall_text(case.walls[1])} ({words[1]})"
+    if walls is None:
+        walls = f"wall {wall_text(case.walls[0])}" if case.symmetric else \
+            f"walls {wall_text(case.walls[0])} ({words[0]}), {wall_text(case.walls[1])} ({words[1]})"
     ions = case.electrolyte.ions
     liquid = ", ".join(f"{ion.name} {ion.concentration:.3g} mM" for ion in ions) if concentrations else \
         "/".join(ion.name for ion in ions)
-    return f"{size}, {walls}; {liquid}, {case.solvent.temperature - ZERO_CELSIUS:.3g} °C"
+    return f"{shape}, {walls}; {liquid}, {case.solvent.temperature - ZERO_CELSIUS:.3g} °C"
 
 
 def case_of(dataset: Any) -> Case | None:

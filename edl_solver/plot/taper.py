@@ -1,6 +1,8 @@
 """The panels a tapered channel adds to the I-V figure (``plot.transport.iv_figure``): the rectification
 |I(+V)/I(-V)| against |V| (when the curve, or --rectification, has both signs of a voltage) and the channel's
-size against x, both read from the channel dataset (``channel.taper_outputs``)."""
+size against x with the salt concentration along it at the largest pair of opposite voltages of the curve (the
+concentration polarisation behind the rectification), all read from the channel dataset
+(``channel.taper_outputs``, ``channel.operating.current_voltage``)."""
 
 from __future__ import annotations
 
@@ -15,6 +17,8 @@ __all__ = ["draw_taper_panels", "is_tapered", "taper_axes"]
 
 _RATIO = "#8e44ad"
 _SHAPE = "#2c7fb8"
+#: Colours of the concentration along x at +V and at -V.
+_FORWARD, _REVERSE = "#d95f02", "#1b9e77"
 
 
 def is_tapered(dataset: Any) -> bool:
@@ -62,9 +66,47 @@ def _draw_shape(axes: Any, dataset: Any) -> None:
     wall = size * (0.5 if name == "height" else 1.0) * 1e9  # a slit's walls at +-H/2, a capillary's at +-a
     x_scale, x_unit = (1e6, "µm") if x[-1] >= 1e-6 else (1e9, "nm")
     axes.fill_between(x * x_scale, wall, -wall, color=_SHAPE, alpha=0.25, lw=0)
-    axes.plot(x * x_scale, wall, color=_SHAPE, lw=1.8)
-    axes.plot(x * x_scale, -wall, color=_SHAPE, lw=1.8)
+    axes.plot(x * x_scale, wall, color=_SHAPE, lw=1.0)
+    axes.plot(x * x_scale, -wall, color=_SHAPE, lw=1.0)
     axes.set_title(f"channel shape (walls; {name} against x)", fontsize="medium")
     axes.set_xlabel(f"x ({x_unit}), left reservoir at x = 0")
     axes.set_ylabel(f"wall position, {'±H/2' if name == 'height' else '±a'} (nm)")
     axes.grid(True, lw=0.4, alpha=0.5)
+    _draw_concentration(axes, dataset, x_scale)
+
+
+def opposite_pair(dataset: Any) -> float | None:
+    """The largest V > 0 whose profiles at +V and -V both converged (``concentration_profile``), or None."""
+    if "concentration_profile" not in dataset.variables:
+        return None
+    voltages = np.asarray(dataset["voltage"].values, dtype=float)
+    ok = np.all(np.isfinite(dataset["concentration_profile"].values), axis=1)
+    scale = np.max(np.abs(voltages)) if voltages.size else 0.0
+    found = [v for v, good in zip(voltages, ok) if v > 0 and good and
+             np.any(ok & np.isclose(voltages, -v, rtol=0.0, atol=1e-9 * scale))]
+    return max(found) if found else None
+
+
+def _draw_concentration(axes: Any, dataset: Any, x_scale: float) -> None:
+    """c(x) at +V and -V on a second axis of the shape panel (log when it spans more than a factor of 10)."""
+    voltage = opposite_pair(dataset)
+    if voltage is None:
+        return
+    millivolts, concentration = unit_of("potential"), unit_of("concentration")
+    right = axes.twinx()
+    x = np.asarray(dataset["position"].values, dtype=float) * x_scale
+    voltages = np.asarray(dataset["voltage"].values, dtype=float)
+    rows = []
+    for sign, colour in ((1.0, _FORWARD), (-1.0, _REVERSE)):
+        k = int(np.argmin(np.abs(voltages - sign * voltage)))
+        row = np.asarray(dataset["concentration_profile"].values[k], dtype=float) * concentration.factor
+        rows.append(row)
+        right.plot(x, row, color=colour, lw=1.8, ls="-" if sign > 0 else "--",
+                   label=f"c at {sign * voltage * millivolts.factor:+.4g} {millivolts.symbol}")
+    values = np.concatenate(rows)
+    if values.min() > 0 and values.max() > 10.0 * values.min():
+        right.set_yscale("log")
+    right.set_ylabel(f"salt c ({concentration.symbol})")
+    right.legend(fontsize="x-small", loc="best", framealpha=0.85)
+    axes.set_title(f"shape (walls) and salt along x at ±{voltage * millivolts.factor:.4g} {millivolts.symbol}",
+                   fontsize="medium")

@@ -456,9 +456,20 @@ def iv_figure(dataset: Any, path: str | os.PathLike[str]) -> Path:
              f"{number(left)} mM (left) and {number(right)} mM (right)")
     case = case_of(dataset)
     if case is not None:
-        title += f"\n{section_text(case, concentrations=False)}"
+        title += f"\n{_iv_section_text(case, dataset, tapered)}"
     if tapered:
         draw_taper_panels(panels, dataset)
         title += f"\ntapered: {shape_words(dataset.attrs)}"
     figure.suptitle(title, fontsize="medium")
     return save_png(figure, path)
+
+
+def _iv_section_text(case: Any, dataset: Any, tapered: bool) -> str:
+    """The section line of the I-V figure: the case's, less what varies along x (the size of a tapered channel,
+    told on the next line; a wall given by a profile or by segments)."""
+    walls = None
+    if "wall_profile_value" in dataset.attrs:
+        walls = "wall varying along x"
+    elif "wall_segment_end" in dataset.variables:
+        walls = f"wall in {dataset['wall_segment_end'].size} segments along x"
+    return section_text(case, concentrations=False, size=not tapered, walls=walls)

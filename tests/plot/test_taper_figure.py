@@ -41,7 +41,7 @@ def _figure_of(dataset: Any, path: Path, monkeypatch: pytest.MonkeyPatch) -> Any
 def test_a_cone_adds_the_rectification_and_the_shape(tmp_path: Path, monkeypatch: pytest.MonkeyPatch) -> None:
     data = _cone([-0.2, -0.1, 0.0, 0.1, 0.2])
     figure = _figure_of(data, tmp_path / "cone.png", monkeypatch)
-    _main, ratio, shape = figure.axes
+    _main, ratio, shape, _salt = figure.axes
     magnitudes, ratios = curve_rectification(data)
     current = data["current"].values
     assert ratios == pytest.approx(np.abs(current[3:] / current[1::-1]))  # |I(+V)/I(-V)| of the curve's pairs
@@ -64,3 +64,18 @@ def test_a_one_sided_curve_says_there_is_no_pair_and_a_uniform_channel_has_one_p
     case = case_of(edl.Capillary(radius="5 nm"), edl.Wall(charge_density="-20 mC/m^2"))
     uniform = channel_characteristics(ch.Channel(case, "1 um", "1 mM", "1 mM"), [-0.1, 0.1])
     assert len(_figure_of(uniform, tmp_path / "uniform.png", monkeypatch).axes) == 1
+
+
+def test_the_shape_panel_carries_the_salt_along_x_at_opposite_voltages(tmp_path: Path,
+                                                                       monkeypatch: pytest.MonkeyPatch) -> None:
+    """The salt c(x) at the largest +V and -V of the curve, on a second axis of the shape panel: the curve's own
+    profiles (``concentration_profile``), in mM, with the reservoirs' 1 mM at both ends."""
+    data = _cone([-0.2, -0.1, 0.0, 0.1, 0.2])
+    figure = _figure_of(data, tmp_path / "cone.png", monkeypatch)
+    salt = figure.axes[-1]
+    forward, reverse = salt.get_lines()
+    assert forward.get_ydata() == pytest.approx(data["concentration_profile"].sel(voltage=0.2).values)
+    assert reverse.get_ydata() == pytest.approx(data["concentration_profile"].sel(voltage=-0.2).values)
+    assert forward.get_ydata()[[0, -1]] == pytest.approx([1.0, 1.0])
+    assert "±200 mV" in figure.axes[2].get_title()
+    assert "capillary, wall" in figure.get_suptitle() and "radius a = 5 nm" not in figure.get_suptitle()
