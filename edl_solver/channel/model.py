@@ -134,6 +134,12 @@ class Channel:
     wall_points : int
         Wall values of that table, from 2 to 50 (one for a constant profile): equally spaced over the profile's
         range, a charge density's in asinh(sigma / (F c size)), denser near zero (``taper_table.wall_nodes``).
+    concentration_span : float
+        Factor by which the table of a channel varying along x (``size``, ``wall_segments``, ``wall_profile``)
+        extends beyond the reservoirs' concentrations on each side, from 2 to 1e6 (default
+        ``taper_table.CONCENTRATION_SPAN``, 50): the concentration polarisation inside must stay within it. An I-V
+        point whose salt leaves the table is solved again on a table ten times wider (``operating``), up to
+        ``operating.WIDEST_SPAN``.
     """
 
     case: Case
@@ -148,6 +154,7 @@ class Channel:
     wall_segments: Any = None
     wall_profile: Any = None
     wall_points: int = 9
+    concentration_span: float = 50.0
 
     def __post_init__(self) -> None:
         if not isinstance(self.case, Case):
@@ -184,6 +191,10 @@ class Channel:
                              "to 100")
         if isinstance(self.points, bool) or not isinstance(self.points, int) or not 8 <= self.points <= 400:
             raise InputError(f"channel.points: {self.points!r} is not allowed, expected an integer from 8 to 400")
+        span = self.concentration_span
+        if isinstance(span, bool) or not isinstance(span, int | float) or not 2.0 <= span <= 1e6:
+            raise InputError(f"channel.concentration_span: {span!r} is not allowed, expected a factor from 2 to 1e6")
+        object.__setattr__(self, "concentration_span", float(span))
 
     def _check_width(self) -> None:
         from edl_solver.channel.access import slit_access_resistance

@@ -8,6 +8,7 @@ per unit width. A Channel is tabulated on first use (and cached); pass ``tabulat
 
 from __future__ import annotations
 
+import dataclasses
 import math
 from dataclasses import dataclass
 from typing import Any
@@ -72,7 +73,37 @@ def operating_point(channel: Channel | ChannelTable, voltage: float | str | None
         voltage = to_si(voltage, "V", "voltage")
     else:
         current = to_si(current, "A", "current")
-    return table._path.solve(dp, voltage, current, _guess(guess))
+    point = table._path.solve(dp, voltage, current, _guess(guess))
+    while _left_table([point]) and (table := _wider(table)) is not None:
+        point = table._path.solve(dp, voltage, current, None)
+    return point
+
+
+#: Widest concentration span a table is widened to when an I-V point's salt leaves it.
+WIDEST_SPAN = 1e4
+
+
+def _left_table(points: list[OperatingPoint]) -> bool:
+    from edl_solver.channel.taper_path import LEAVES_TABLE
+
+    return any(p.status != CONVERGED_WORD and LEAVES_TABLE in p.message for p in points)
+
+
+def _wider(table: ChannelTable) -> ChannelTable | None:
+    """The table of the channel with a ten times wider ``concentration_span`` (as many concentrations per unit of
+    ln c, at most 400; cached as ``table_of`` caches), or None: for a uniform channel, beyond ``WIDEST_SPAN``, or
+    where the wider table is refused (outside the cross-section solver's domain) or fails."""
+    channel = table.channel
+    span = 10.0 * channel.concentration_span
+    if channel.size is None or span > WIDEST_SPAN:
+        return None
+    width = abs(math.log(channel.left_concentration / channel.right_concentration))
+    points = (channel.points - 1) * (width + 2.0 * math.log(span)) / (width + 2.0 * math.log(span / 10.0))
+    wider = dataclasses.replace(channel, concentration_span=span, points=min(400, math.ceil(points) + 1))
+    try:
+        return table_of(wider)
+    except (InputError, ConvergenceError):
+        return None
 
 
 def membrane_potential(channel: Channel | ChannelTable, pressure_difference: float | str = 0.0) -> float:
@@ -131,13 +162,19 @@ def current_voltage(channel: Channel | ChannelTable, voltages: Any, pressure_dif
         the external circuit), ``channel_voltage``, ``status`` (0 converged, 1 failed), ``message``,
         ``iterations`` and ``quadrature_error`` per voltage, each with ``units`` and ``long_name``; the
         channel and the table's interpolation error as attributes. Points are solved in order of voltage,
-        each Newton solve starting from the previous solution.
+        each Newton solve starting from the previous solution. A channel varying along x (``Channel.size``) also
+        has the profiles ``concentration_profile``, ``potential_profile`` and ``pressure_profile`` on
+        (``voltage``, ``position``) and its table's ``concentration_span``: when the salt of a point leaves the
+        table, the whole curve is solved again on a table ten times wider (``_wider``), up to ``WIDEST_SPAN``.
     """
     table = table_of(channel)
     values = np.atleast_1d(np.asarray([to_si(v, "V", "voltages") for v in np.ravel(np.asarray(voltages, dtype=object))],
                                       dtype=float))
     dp = to_si(pressure_difference, "Pa", "pressure_difference")
-    return _curve_dataset(table, values, dp, _solve_curve(table._path, values, dp))
+    points = _solve_curve(table._path, values, dp)
+    while _left_table(points) and (wider := _wider(table)) is not None:  # the whole curve on one table
+        table, points = wider, _solve_curve(wider._path, values, dp)
+    return _curve_dataset(table, values, dp, points)
 
 
 def _solve_curve(path: Path | Uniform, values: np.ndarray, dp: float) -> list[OperatingPoint]:
@@ -195,7 +232,8 @@ def _curve_dataset(table: ChannelTable, values: np.ndarray, dp: float, points: l
         "case": ch.case.describe(),
     }
     coords = {"voltage": ("voltage", values, {"units": "V", "long_name": "applied voltage V(L) - V(0)"})}
-    if ch.size is not None:  # a channel that varies along x: its profiles, the concentration polarisation
+    if ch.size is not None:  # a channel that varies along x: its table's span, its profiles (the polarisation)
+        attrs["concentration_span"] = ch.concentration_span
         x, profiles = _profiles(ch.length, points)
         data.update(profiles)
         coords["position"] = ("position", x, {"units": "m", "long_name": "x along the channel, left reservoir at 0"})

@@ -34,7 +34,10 @@ if TYPE_CHECKING:
     from edl_solver.channel.model import Channel
     from edl_solver.channel.taper_table import SectionSpline
 
-__all__ = ["BVP_TOLERANCE", "TaperPath"]
+__all__ = ["BVP_TOLERANCE", "LEAVES_TABLE", "TaperPath"]
+
+#: The words of a failed point whose salt left the table (``operating`` then widens the table).
+LEAVES_TABLE = "leaves the table"
 
 #: Relative tolerance of the collocation residuals (``solve_bvp``'s tol): the fluxes then agree with a 1e-9 solve to
 #: 4e-7 (measured over a 100-point I-V curve of a rectifying cone, +-0.5 V), below the tables' interpolation error.
@@ -215,7 +218,7 @@ class TaperPath:
             return self._failed(mode, given, dp, f"no convergence at {mode} {given:.6g}: {sol.message}"), None
         if sol.y[0].min() < low - 1e-9 or sol.y[0].max() > high + 1e-9:
             return self._failed(mode, given, dp, f"the concentration ({np.exp(sol.y[0].min()):.3g} to "
-                                f"{np.exp(sol.y[0].max()):.3g} mol/m^3) leaves the table ({math.exp(low):.3g} to "
+                                f"{np.exp(sol.y[0].max()):.3g} mol/m^3) {LEAVES_TABLE} ({math.exp(low):.3g} to "
                                 f"{math.exp(high):.3g} mol/m^3)"), None
         flow, current, salt, voltage = self._drives(sol.p, mode, given)
         error = float(np.max(sol.rms_residuals)) if len(sol.rms_residuals) else 0.0
@@ -270,6 +273,9 @@ class TaperPath:
             ahead = min(1.0, done + step)
             trial, found = self._attempt(mode, g0 + ahead * (given - g0), p0 + ahead * (dp - p0), profile)
             if found is None:
+                if LEAVES_TABLE in trial.message:  # a converged state outside the table: no shorter step brings it in
+                    return self._failed(mode, given, dp, f"continuation stopped at {done:.3g} of the way: "
+                                        f"{trial.message}")
                 halvings += 1
                 step *= 0.5
                 if halvings > CONTINUATION_HALVINGS:

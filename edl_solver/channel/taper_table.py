@@ -1,18 +1,17 @@
 """The cross-section relations of a channel whose section varies along x, tabulated once over (ln c, ln size).
 
-A ``Channel`` with a ``size`` (``channel.shape``) is tabulated here instead of ``model.tabulate``: the
-cross-section is solved at every pair of ``points`` log-spaced concentrations and ``size_points`` log-spaced
-sizes (the radius of a capillary, the height of a slit). The concentration axis covers the reservoirs widened
-by ``CONCENTRATION_SPAN`` each way, since a charged tapered channel enriches or depletes its salt inside
-(concentration polarisation, the root of its rectification); it holds the left reservoir's concentration as a
-node, so that a uniform section between equal reservoirs is interpolated exactly. The ion-resolved matrix is
-interpolated as ``model.IonMatrixSpline`` does in ln c (logs of the diagonal, correlations), by bicubic
-splines over (ln size, ln c); the interpolation is checked against direct solves at every cell centre (the
-midpoints in both ln c and ln size, where a tensor-product interpolation is least accurate) and the largest
+A ``Channel`` with a ``size`` (``channel.shape``) is tabulated here instead of ``model.tabulate``: the cross-section
+is solved at every pair of ``points`` log-spaced concentrations and ``size_points`` log-spaced sizes (the radius of
+a capillary, the height of a slit). The concentration axis covers the reservoirs widened by
+``Channel.concentration_span`` (``CONCENTRATION_SPAN``, 50, by default) each way, since a charged tapered channel
+enriches or depletes its salt inside (concentration polarisation, the root of its rectification); it holds the left
+reservoir's concentration as a node, so that a uniform section between equal reservoirs is interpolated exactly. The
+ion-resolved matrix is interpolated as ``model.IonMatrixSpline`` does in ln c (logs of the diagonal, correlations),
+by bicubic splines over (ln size, ln c); the interpolation is checked against direct solves at every cell centre
+(the midpoints in both ln c and ln size, where a tensor-product interpolation is least accurate) and the largest
 error stored, as ``model.tabulate`` does at the midpoints in ln c. A wall piecewise along x (``wall_segments``) gets
 one such table per distinct wall; a wall profile (``wall_profile``) one per wall node (``wall_nodes``), interpolated
-across the wall value by ``wall_profile.ProfileSpline``, whose error is checked at the midpoints of the nodes.
-"""
+across the wall value by ``wall_profile.ProfileSpline``, whose error is checked at the midpoints of the nodes."""
 
 from __future__ import annotations
 
@@ -30,7 +29,8 @@ from edl_solver.inputs.case import Case
 
 __all__ = ["CONCENTRATION_SPAN", "SectionSpline", "tabulate_taper", "wall_nodes"]
 
-#: Factor by which the table's concentrations extend beyond the reservoirs' on each side.
+#: Factor by which the table's concentrations extend beyond the reservoirs' on each side, by default
+#: (``Channel.concentration_span``).
 CONCENTRATION_SPAN = 50.0
 
 
@@ -53,8 +53,8 @@ def _solve_grid(case: Case, concentrations: np.ndarray, sizes: np.ndarray, field
             except InputError as error:
                 raise InputError(f"{field}: the table's point c = {c:.6g} mol/m^3, {case.geometry.size_name} "
                                  f"{size:.6g} m is refused ({error}), expected sizes and concentrations (the "
-                                 f"reservoirs' widened {CONCENTRATION_SPAN:g} times each way) inside the solver's "
-                                 "domain") from None
+                                 "reservoirs' widened by the channel's concentration_span each way) inside the "
+                                 "solver's domain") from None
             except ConvergenceError as error:
                 raise ConvergenceError(f"channel: the cross-section solve at c = {c:.6g} mol/m^3 and "
                                        f"{case.geometry.size_name} {size:.6g} m failed ({error})") from error
@@ -165,7 +165,7 @@ def tabulate_taper(channel: Any) -> dict[str, Any]:
     started = time.perf_counter()
     case, shape = channel.case, channel.size
     u_left, u_right = math.log(channel.left_concentration), math.log(channel.right_concentration)
-    span = math.log(CONCENTRATION_SPAN)
+    span = math.log(channel.concentration_span)
     u = _axis(min(u_left, u_right) - span, max(u_left, u_right) + span, channel.points, u_left)
     if shape.uniform:
         s = np.array([math.log(shape.sizes[0])])
@@ -197,12 +197,12 @@ def tabulate_taper(channel: Any) -> dict[str, Any]:
 def wall_nodes(channel: Any) -> np.ndarray:
     """The wall values of the tables of a channel with a ``wall_profile`` (``WallProfile.nodes``, ``wall_points`` of
     them): a charge density's equally spaced in asinh(sigma / (F c size)) (``wall_profile.ProfileSpline``) at the
-    smallest size and the lower reservoir's concentration over sqrt(``CONCENTRATION_SPAN``), midway in ln c between
-    it and the table's lowest, where the relations turn most sharply across sigma = 0; other values equally spaced."""
+    smallest size and the lower reservoir's concentration over sqrt(``Channel.concentration_span``), midway in ln c
+    between it and the table's lowest, where the relations turn most sharply across sigma = 0; other values equally spaced."""
     profile = channel.wall_profile
     if profile.quantity != "charge_density":
         return profile.nodes(channel.wall_points)
-    concentration = min(channel.left_concentration, channel.right_concentration) / math.sqrt(CONCENTRATION_SPAN)
+    concentration = min(channel.left_concentration, channel.right_concentration) / math.sqrt(channel.concentration_span)
     return profile.nodes(channel.wall_points, FARADAY * concentration * min(channel.size.sizes))
 
 

@@ -351,13 +351,12 @@ def run_transport_command(args: argparse.Namespace) -> int:
 def _add_taper(data: Any, spec: Any, voltages: list[float] | None) -> None:
     """The shape of a tapered channel into ``data``'s attributes and, with --rectification, the variable
     ``rectification`` |I(+V)/I(-V)| over ``voltage_magnitude`` (solved at +V and -V)."""
-    from edl_solver.channel.model import table_of
     from edl_solver.channel.rectification import rectification_ratio
     from edl_solver.channel.taper_outputs import shape_attrs
 
     data.attrs.update(shape_attrs(spec))
     if voltages is not None:
-        data["rectification"] = (("voltage_magnitude",), rectification_ratio(table_of(spec), voltages),
+        data["rectification"] = (("voltage_magnitude",), rectification_ratio(spec, voltages),
                                  {"units": "1", "long_name": "rectification |I(+V)/I(-V)|"})
         data["voltage_magnitude"] = (("voltage_magnitude",), voltages, {"units": "V", "long_name": "|V(L) - V(0)|"})
 

@@ -108,9 +108,14 @@ def _taper_lines(data: Any) -> list[str]:
     if words is None:
         return []
     error = float(data.attrs.get("interpolation_error", float("nan")))
-    return [_row("tapered channel", words),
-            _row("table over (c, size): interpolation error", f"{error:.2g} (largest, relative to sqrt(L_ii L_jj), "
-                                                                 "at the cells' centres)")]
+    lines = [_row("tapered channel", words),
+             _row("table over (c, size): interpolation error", f"{error:.2g} (largest, relative to sqrt(L_ii L_jj), "
+                                                                  "at the cells' centres)")]
+    span = float(data.attrs.get("concentration_span", float("nan")))
+    if span > 50.0:  # widened because the salt inside left the default table (``operating._wider``)
+        lines.append(_row("", f"its concentrations span the reservoirs' {span:g} times each way (widened: the salt "
+                              "inside left a narrower table)"))
+    return lines
 
 
 def _segment_lines(data: Any) -> list[str]:

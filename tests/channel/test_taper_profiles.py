@@ -7,9 +7,11 @@ V(L) - V(0); the potential profile is against the left reservoir.
 from __future__ import annotations
 
 import numpy as np
+import pytest
 
 import edl_solver as edl
 from edl_solver import channel as ch
+from edl_solver.errors import InputError
 from tests.helpers import KCL, SOLVENT
 
 
@@ -55,3 +57,31 @@ def test_a_uniform_channel_has_no_profile_variables() -> None:
     """The uniform channel's curve keeps its layout (no position dimension)."""
     curve = ch.current_voltage(ch.Channel(_case("-10 mC/m^2"), "1 um", "1 mM", "1 mM"), [0.1])
     assert "position" not in curve.dims and "concentration_profile" not in curve
+
+
+def test_a_point_whose_salt_leaves_the_table_is_solved_on_a_wider_one() -> None:
+    """Depletion beyond the table (a span of 20 each way, too narrow for 1 V on a selective tip): the curve is
+    solved again on a table ten times wider, and agrees with a curve solved on a wide table from the
+    start to the interpolation error (same equations, common practice)."""
+    case = _case("-10 mC/m^2")
+    narrow = ch.Channel(case, "5 um", "1 mM", "1 mM", size=("10 nm", "200 nm"), points=16, size_points=6,
+                        concentration_span=20.0)
+    wide = ch.Channel(case, "5 um", "1 mM", "1 mM", size=("10 nm", "200 nm"), points=24, size_points=6,
+                      concentration_span=200.0)
+    voltages = [1.0]
+    widened = ch.current_voltage(narrow, voltages)
+    assert (widened["status"].values == 0).all()
+    assert widened.attrs["concentration_span"] == 200.0
+    reference = ch.current_voltage(wide, voltages)
+    bound = 10.0 * max(widened.attrs["interpolation_error"], reference.attrs["interpolation_error"])
+    np.testing.assert_allclose(widened["current"].values, reference["current"].values, rtol=bound)
+    given = ch.current_voltage(ch.tabulate(narrow), voltages)  # a table the caller made is widened alike
+    assert given.attrs["concentration_span"] == 200.0 and (given["current"] == widened["current"]).all()
+    point = ch.operating_point(narrow, voltage=1.0)
+    assert point.status == "converged" and point.current == pytest.approx(widened["current"].values[0], rel=1e-9)
+
+
+def test_the_concentration_span_is_checked() -> None:
+    for bad in (1.0, "50", True, float("nan"), 1e7):
+        with pytest.raises(InputError, match=r"channel\.concentration_span"):
+            ch.Channel(_case("-10 mC/m^2"), "5 um", "1 mM", "1 mM", size=("10 nm", "200 nm"), concentration_span=bad)
