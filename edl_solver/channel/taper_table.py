@@ -198,7 +198,8 @@ def wall_nodes(channel: Any) -> np.ndarray:
     """The wall values of the tables of a channel with a ``wall_profile`` (``WallProfile.nodes``, ``wall_points`` of
     them): a charge density's equally spaced in asinh(sigma / (F c size)) (``wall_profile.ProfileSpline``) at the
     smallest size and the lower reservoir's concentration over sqrt(``Channel.concentration_span``), midway in ln c
-    between it and the table's lowest, where the relations turn most sharply across sigma = 0; other values equally spaced."""
+    between it and the table's lowest, where the relations turn most sharply across sigma = 0; other values equally
+    spaced."""
     profile = channel.wall_profile
     if profile.quantity != "charge_density":
         return profile.nodes(channel.wall_points)
