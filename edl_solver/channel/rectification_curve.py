@@ -72,13 +72,29 @@ def _shared_table(channel: Channel, concentrations: np.ndarray) -> ChannelTable:
     return tabulate(dataclasses.replace(channel, left_concentration=low, right_concentration=high, points=nodes))
 
 
+class _Window:
+    """A shared table's spline seen over [c / span, c span] only, the range of the channel's own table: the path
+    clips its Newton iterates to it and refuses a solution that leaves it, as it does on its own table (on the
+    whole shared range an iterate can wander to concentrations far from c, and a direct solve fall back to slow
+    continuation)."""
+
+    def __init__(self, spline: Any, c: float):
+        span = math.log(CONCENTRATION_SPAN)
+        low, high = spline.u_range
+        self._spline = spline
+        self.u_range = (max(low, math.log(c) - span), min(high, math.log(c) + span))
+
+    def __call__(self, u: np.ndarray, s: np.ndarray) -> np.ndarray:
+        return self._spline(u, s)
+
+
 def _table_at(shared: ChannelTable, channel: Channel, c: float) -> ChannelTable:
     """The shared table's relations for the channel between two reservoirs at c (its path, its access)."""
     from edl_solver.channel.taper_path import TaperPath
 
     at = dataclasses.replace(channel, left_concentration=c, right_concentration=c)
     ends = _end_access(at)
-    path = TaperPath(at, shared._path.splines, shared._path.basis, ends)
+    path = TaperPath(at, [_Window(spline, c) for spline in shared._path.splines], shared._path.basis, ends)
     return dataclasses.replace(shared, channel=at, access_resistance=sum(ends), _path=path)
 
 

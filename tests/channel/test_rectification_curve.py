@@ -3,6 +3,7 @@ ratio |I(+V)/I(-V)| (Delta V = V(L) - V(0), the tip at x = 0) with kappa a_tip, 
 
 from __future__ import annotations
 
+import dataclasses
 import math
 
 import numpy as np
@@ -86,12 +87,24 @@ def test_rectification_fades_at_high_concentration_and_in_the_ideally_selective_
     assert curve["kappa_a_tip"].values[-1] == pytest.approx(5e-9 / debye, rel=1e-6)
 
 
-def test_a_failed_point_is_reported_with_its_reason_not_as_a_number() -> None:
-    """At -20 V the 1 mM cone's salt piles up beyond its table (50 c): the point fails, named so, with NaN."""
-    curve = rectification_curve(_cone(CHARGED, points=8, size_points=4), [1.0], 20.0)
+def test_a_point_whose_solve_along_x_fails_is_reported_with_its_reason_not_as_a_number() -> None:
+    """At 1 kV the collocation cannot follow the drive: the point fails, named so, with NaN values."""
+    curve = rectification_curve(_cone(CHARGED, points=8, size_points=4), [1.0], "1 kV")
     assert list(curve["status"].values) == [1]
     assert math.isnan(curve["rectification"].values[0]) and math.isnan(curve["current_positive"].values[0])
-    assert "at -20 V" in curve["message"].values[0] and "leaves the table" in curve["message"].values[0]
+    assert curve["message"].values[0].startswith("at -1000 V: ")
+
+
+def test_a_failed_cross_section_spoils_only_the_points_whose_own_table_needs_it() -> None:
+    """Five Newton iterations do not reach the dilute end of the shared table (c_min / 50): one table per point
+    is then built, and only the 0.01 mM point, whose table reaches as low, fails, saying why."""
+    case = dataclasses.replace(CHARGED, numerics=edl.Numerics(max_iterations=5))
+    curve = rectification_curve(_cone(case, points=8, size_points=4), [0.01, 1.0, 1000.0], 0.2)
+    assert curve.attrs["table"] == "one per concentration"
+    assert list(curve["status"].values) == [1, 0, 0]
+    assert curve["message"].values[0].startswith("the table failed: ") and "did not converge" in \
+        curve["message"].values[0]
+    assert math.isnan(curve["rectification"].values[0]) and np.all(np.isfinite(curve["rectification"].values[1:]))
 
 
 @pytest.mark.parametrize(("concentrations", "voltage", "channel", "match"), [
