@@ -15,6 +15,7 @@ of its own channel by the interpolation error of the two tables (the same equati
 from __future__ import annotations
 
 import dataclasses
+import json
 import math
 from typing import Any
 
@@ -178,6 +179,8 @@ def _dataset(channel: Channel, values: np.ndarray, voltage: float, rows: list[tu
              shared: ChannelTable | None) -> Any:
     import xarray as xr
 
+    from edl_solver.inputs.casefile import case_to_mapping
+
     case = channel.case
     geometry = case.geometry
     positive, negative = (np.array([row[k] for row in rows]) for k in (0, 1))
@@ -212,7 +215,8 @@ def _dataset(channel: Channel, values: np.ndarray, voltage: float, rows: list[tu
         "voltage": voltage, "length": channel.length, "size_name": geometry.size_name, "a_tip": tip,
         "size_positions": np.array(channel.size.positions), "size_sizes": np.array(channel.size.sizes),
         "table": "shared" if shared is not None else "one per concentration",
-        "conventions": CONVENTIONS, "case": case.describe(),
+        "conventions": CONVENTIONS, "case": case.describe(), "geometry": geometry.kind,
+        "case_json": json.dumps(case_to_mapping(case)),
     }
     if shared is not None:
         attrs.update(table_concentrations=len(shared.concentrations), table_sizes=len(shared.sizes),
