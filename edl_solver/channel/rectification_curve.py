@@ -150,28 +150,34 @@ def rectification_curve(channel: Channel, concentrations: Any, voltage: float | 
         ``current_negative`` (I at Delta V = +V and -V), ``conductance_ratio`` (the chord conductance
         |I(+V) - I(-V)| / 2V over that of the channel filled with bulk at c), ``kappa_a_tip``,
         ``debye_length``, ``status`` (0 converged, 1 failed: NaN values) and ``message``; the voltage, the
-        table's nodes, solves, seconds and interpolation errors as attributes.
+        table's nodes, solves, seconds and interpolation errors as attributes. A point fails when its solve along
+        x does not converge or leaves the table, or when its table fails or is refused (the shared table is then
+        replaced by one per point, each covering c / 50 to 50 c).
 
     Raises
     ------
     InputError
-        For a concentration or voltage that is not positive, or a channel that is not a Channel.
+        For a concentration or voltage that is not positive, a channel that is not a Channel, or a table refused
+        at every concentration (a table refused at some only fails those points, saying why).
     """
     values, volts = _concentrations(concentrations), _voltage(voltage)
     channel = _tapered(channel)
     try:
         shared: ChannelTable | None = _shared_table(channel, values)
-    except ConvergenceError:  # a cross-section solve failed: one table per point names the points it spoils
+    except (ConvergenceError, InputError):  # a cross-section failed or was refused: one table per point then
         shared = None
-    rows = []
+    rows, refused = [], []
     for c in values:
         try:
             table = _table_at(shared, channel, c) if shared is not None else tabulate(dataclasses.replace(
                 channel, left_concentration=float(c), right_concentration=float(c)))
-        except ConvergenceError as error:
+        except (ConvergenceError, InputError) as error:
             rows.append((math.nan, math.nan, f"the table failed: {error}"))
+            refused.append(error)
             continue
         rows.append(_point(table, volts))
+    if len(refused) == len(values) and isinstance(refused[0], InputError):
+        raise refused[0]  # refused at every concentration: an input error, not a failed point
     return _dataset(channel, values, volts, rows, shared)
 
 
