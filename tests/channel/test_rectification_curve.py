@@ -117,3 +117,14 @@ def test_bad_inputs_are_one_line_input_errors(concentrations: list[float], volta
                                               match: str) -> None:
     with pytest.raises(InputError, match=match):
         rectification_curve(_cone(CHARGED) if channel else CHARGED, concentrations, voltage)
+
+
+def test_a_table_refused_at_some_concentrations_fails_those_points_and_at_all_raises() -> None:
+    """A 500 nm radius at 1 M needs the section at 50 M, where its kappa a leaves the solver's domain (1e4)."""
+    channel = ch.Channel(CHARGED, "1 um", "10 mM", "10 mM", size=("500 nm", "500 nm"), points=8)
+    curve = rectification_curve(channel, [1.0, 1000.0], 0.1)
+    assert list(curve["status"].values) == [0, 1]
+    assert curve["message"].values[1].startswith("the table failed: channel.size: ") and "domain" in \
+        curve["message"].values[1]
+    with pytest.raises(InputError, match=r"channel\.size: the table's point .* expected sizes and concentrations"):
+        rectification_curve(channel, [1000.0], 0.1)
