@@ -38,7 +38,7 @@ def _title(dataset: Any) -> str:
         lines[1] += f"; wall {wall_text(case.walls[0])}; {ions}"
     failed = int(np.count_nonzero(dataset["status"].values != 0))
     if failed:
-        lines.append(f"({failed} point(s) failed, not shown: see the message of each)")
+        lines.append(f"({failed} point(s) failed, marked × on the axis: see the message of each in the dataset)")
     return "\n".join(lines)
 
 
@@ -74,6 +74,7 @@ def rectification_curve_figure(dataset: Any, path: str | os.PathLike[str]) -> Pa
     axes.plot(c[ok], ratio[ok], color=_RATIO, lw=1.8, marker="o", ms=4,
               label="full model" + _mark_strongest(axes, c[ok], ratio[ok], data["kappa_a_tip"].values[ok]))
     _frame_ratio(axes, ratio[ok])
+    _mark_failed(axes, c[~ok])
     _kappa_axis(axes, data)
     first = str(data["concentration"].attrs.get("long_name", "")).rsplit(", ", 1)[-1].rstrip(")")
     axes.set_xlabel(f"salt concentration c in both reservoirs (mM{', ' + first if first else ''})")
@@ -120,6 +121,17 @@ def _mark_strongest(axes: Any, c: np.ndarray, ratio: np.ndarray, kappa: np.ndarr
     return f" (circled: the strongest, {number(ratio[k])}, a factor {number(factor)}, at κ a_tip = {number(kappa[k])})"
 
 
+def _mark_failed(axes: Any, c: np.ndarray) -> None:
+    """A grey x at the foot of the axes at each failed concentration (the asked range stays in view)."""
+    if not c.size:
+        return
+    from matplotlib.transforms import blended_transform_factory
+
+    foot = blended_transform_factory(axes.transData, axes.transAxes)
+    axes.plot(c, np.full(c.size, 0.03), "x", color="0.45", ms=7, mew=1.5, transform=foot, clip_on=False,
+              label="failed point (see its message)")
+
+
 def _kappa_axis(axes: Any, data: Any) -> None:
     """kappa a_tip on the top axis: it grows as sqrt(c) (Debye length ~ c^-1/2 for a fixed composition)."""
     c0, k0 = float(data["concentration"].values[0]), float(data["kappa_a_tip"].values[0])
@@ -130,5 +142,13 @@ def _kappa_axis(axes: Any, data: Any) -> None:
     def inverse(k: np.ndarray) -> np.ndarray:
         return c0 * (np.maximum(k, 1e-300) / k0) ** 2
 
+    from matplotlib.ticker import FuncFormatter, LogLocator, NullFormatter
+
     top = axes.secondary_xaxis("top", functions=(forward, inverse))
     top.set_xlabel("κ a_tip (the smallest size over the Debye length)")
+    top.xaxis.set_major_formatter(FuncFormatter(lambda value, _: number(value, 2)))
+    c = data["concentration"].values
+    few = np.log10(c.max() / c.min()) < 4.0  # under two decades of kappa a_tip: label the minor ticks too
+    if few:
+        top.xaxis.set_minor_locator(LogLocator(subs=(2.0, 3.0, 5.0)))
+    top.xaxis.set_minor_formatter(FuncFormatter(lambda value, _: number(value, 1)) if few else NullFormatter())
