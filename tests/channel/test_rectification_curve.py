@@ -58,6 +58,14 @@ def test_a_symmetric_hourglass_does_not_rectify_at_any_concentration() -> None:
     np.testing.assert_allclose(curve["rectification"].values, 1.0, atol=1e-5)
 
 
+def test_a_uniform_channel_is_taken_as_a_cone_of_equal_ends_and_does_not_rectify() -> None:
+    """A straight charged channel between equal reservoirs is mirror-symmetric (common practice), yet far more
+    conductive than its bulk filling at 1 mM (surface conduction)."""
+    curve = rectification_curve(ch.Channel(CHARGED, "1 um", "10 mM", "10 mM", points=8), [1.0, 100.0], 0.2)
+    np.testing.assert_allclose(curve["rectification"].values, 1.0, atol=1e-6)
+    assert curve["conductance_ratio"].values[0] > 10.0 and list(curve.attrs["size_sizes"]) == [5e-9, 5e-9]
+
+
 def test_a_point_is_the_rectification_ratio_of_its_own_channel() -> None:
     """Same equations: a one-concentration curve uses exactly the table of Channel(..., c, c), so it matches
     rectification_ratio to rounding; on the shared table of a longer curve, to that table's interpolation error."""
