@@ -74,7 +74,8 @@ def _shared_table(channel: Channel, concentrations: np.ndarray) -> ChannelTable:
 
 
 class _Window:
-    """A shared table's spline seen over [c / span, c span] only, the range of the channel's own table: the path
+    """A shared table's spline seen over [c / span, c span] only, about the range of the channel's own table
+    (``taper_table`` anchors its nodes at c, so its ends fall within a node of these): the path
     clips its Newton iterates to it and refuses a solution that leaves it, as it does on its own table (on the
     whole shared range an iterate can wander to concentrations far from c, and a direct solve fall back to slow
     continuation)."""
