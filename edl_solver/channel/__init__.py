@@ -11,7 +11,7 @@ OperatingPoint), ``quadrature`` (the along-channel conditions in ln c), ``path``
 ``plateau`` (closed forms of the counter-ion limit), ``characteristics`` (a channel's lab landmarks) and
 ``conductance`` (conductance against concentration); for a section that varies along x, ``shape`` (the
 size along x), ``taper_table`` (the relations over concentration and size), ``taper_path`` (the problem along
-x) and ``rectification`` (``rectification_ratio``).
+x), ``rectification`` (``rectification_ratio``) and ``rectification_curve`` (the ratio against concentration).
 """
 
 from edl_solver.channel.device import Device
@@ -25,6 +25,7 @@ from edl_solver.channel.operating import (
     osmotic_power,
     salt_flux,
 )
+from edl_solver.channel.rectification_curve import rectification_curve
 
 __all__ = [
     "Channel",
@@ -36,6 +37,7 @@ __all__ = [
     "membrane_potential",
     "operating_point",
     "osmotic_power",
+    "rectification_curve",
     "salt_flux",
     "tabulate",
 ]

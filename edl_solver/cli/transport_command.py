@@ -17,6 +17,14 @@ from edl_solver.cli.exit_codes import EXIT_OK, EXIT_WRITE_FAILED, fail
 from edl_solver.cli.output_files import OUTPUT_FLAGS, add_output_flags, writable
 from edl_solver.cli.transport_channel import apply_channel_section, channel_section, make_channel
 from edl_solver.cli.transport_outputs import add_channel_outputs
+from edl_solver.cli.transport_rectification import FLAGS as RECTIFICATION_FLAGS
+from edl_solver.cli.transport_rectification import (
+    add_rectification_flags,
+    rectification_dataset,
+    rectification_lines,
+    rectification_plan,
+    write_rectification_figure,
+)
 from edl_solver.cli.transport_text import channel_lines, conductance_lines, flags_line
 
 __all__ = ["VALUE_FLAGS", "add_transport_command", "run_transport_command"]
@@ -24,7 +32,8 @@ __all__ = ["VALUE_FLAGS", "add_transport_command", "run_transport_command"]
 #: Flags of ``edl transport`` that take a value.
 VALUE_FLAGS = CASE_VALUE_FLAGS | frozenset(OUTPUT_FLAGS) | frozenset(
     {"--length", "--pump-figure", "--conductance", "--conductance-figure", "--iv", "--left", "--right",
-     "--iv-figure", "--size", "--width", "--channels", "--voltage", "--pressure-difference", "--access-resistance"})
+     "--iv-figure", "--size", "--width", "--channels", "--voltage", "--pressure-difference", "--access-resistance"}
+) | RECTIFICATION_FLAGS
 
 _EPILOG = """\
 examples:
@@ -58,6 +67,8 @@ size_points, [[channel.wall_segments]]; see examples/conical_pore.toml); each fl
 key (--length length, --left left, --right right, --size size, --iv iv, --width width,
 --access-resistance access_resistance, --rectification turns rectification on):
   edl transport examples/conical_pore.toml -o pore.h5 --iv-figure pore.png
+--rectification-curve C1:C2:N: the ratio against concentration, both reservoirs at each c, at
+--rectification-voltage V (default the largest |V| of --iv); --rectification-figure PNG draws it.
 A device: --width W (of each slit), --channels N (in parallel), --voltage V and --pressure-difference
 DP (e.g. 10V, 100mbar, -1bar; both as V(right) - V(left), p(right) - p(left)) print its flow rate in
 uL/min or nL/min, current and conductance, its pump curve and stall pressure at V and the streaming
@@ -93,6 +104,7 @@ def add_transport_command(commands: Any) -> None:
                                                        "(needs --length)")
     channel.add_argument("--rectification", action="store_true",
                          help="print |I(+V)/I(-V)| at the positive voltages of --iv (needs --iv)")
+    add_rectification_flags(channel)
     _add_device_flags(transport)
     curves = transport.add_argument_group("pump curve and conductance curve")
     curves.add_argument("--pump-figure", metavar="PNG",
@@ -230,9 +242,11 @@ def _transport_plan(args: argparse.Namespace, case: Any, file_keys: frozenset[st
             _positive(args.right, "--right", "mol/m^3", "a concentration, e.g. 10mM"))
         cases_at(case, list(plan["reservoirs"]))  # an electrolyte that cannot be scaled fails here, not later
     plan["size"] = _size_pair(args.size, case) if args.size is not None else None
+    plan["varies"] = plan["size"] is not None or "size" in file_keys  # along x: a shape from the flag or the file
     if args.iv is not None:
         plan["voltages"] = _parse_range(args.iv, "--iv", "V", log=False)
     plan["rectification"] = _rectification_voltages(args.rectification, plan["voltages"])
+    plan["rectification_curve"] = rectification_plan(args, plan)
     if args.conductance is not None:
         plan["concentrations"] = _parse_range(args.conductance, "--conductance", "mol/m^3", log=True)
         cases_at(case, plan["concentrations"][:1])
@@ -280,7 +294,8 @@ def _transport_outputs(args: argparse.Namespace) -> dict[str, Path]:
     for what, flag, value in (("result", "-o", args.output), ("figure", "--figure", args.figure),
                               ("pump curve", "--pump-figure", args.pump_figure),
                               ("conductance curve", "--conductance-figure", args.conductance_figure),
-                              ("I-V curve", "--iv-figure", args.iv_figure)):
+                              ("I-V curve", "--iv-figure", args.iv_figure),
+                              ("rectification curve", "--rectification-figure", args.rectification_figure)):
         if value is None:
             continue
         path = writable(flag, value)
@@ -300,11 +315,12 @@ def run_transport_command(args: argparse.Namespace) -> int:
     case = case_from_args(args)
     section = channel_section(args, case)  # the case file's [channel]: each flag given replaces its key
     extra, file_keys = apply_channel_section(args, section)
-    plan = _transport_plan(args, case, file_keys)
+    varies = {"size"} if extra.keys() & {"size", "wall_segments", "wall_profile"} else set()
+    plan = _transport_plan(args, case, file_keys | varies)
     spec = make_channel(args, case, plan, extra, section is not None)
     outputs = _transport_outputs(args)
     result = solver.solve(case)
-    curve = channel = device_text = None
+    curve = channel = device_text = rectification = None
     if plan["concentrations"] is not None:
         from edl_solver.channel.conductance import conductance_curve
 
@@ -319,6 +335,7 @@ def run_transport_command(args: argparse.Namespace) -> int:
         channel = channel_characteristics(spec, plan["voltages"])
         _add_taper(channel, spec, plan["rectification"])
         add_channel_outputs(channel, spec)
+        rectification = rectification_dataset(spec, plan["rectification_curve"])
         if plan["device"] is not None:
             from edl_solver.channel.device import Device
             from edl_solver.channel.device_text import device_lines
@@ -329,8 +346,10 @@ def run_transport_command(args: argparse.Namespace) -> int:
     failure = None
     try:
         if "result" in outputs:
-            written.append(("result", _write_transport_file(outputs["result"], result, curve, channel)))
+            written.append(("result", _write_transport_file(outputs["result"], result, curve, channel,
+                                                            rectification)))
         written += _write_transport_figures(outputs, result, curve, channel, plan["length"])
+        written += write_rectification_figure(outputs, rectification)
     except OSError as exc:
         failure = f"cannot write {exc.filename or 'the output'}: {exc.strerror or exc}"
     if not args.quiet:
@@ -339,6 +358,8 @@ def run_transport_command(args: argparse.Namespace) -> int:
             print(conductance_lines(curve))
         if channel is not None:
             print(channel_lines(channel, result))
+        if rectification is not None:
+            print(rectification_lines(rectification))
         if device_text is not None:
             print(device_text)
         if curve is None and channel is None and device_text is None:
@@ -361,16 +382,16 @@ def _add_taper(data: Any, spec: Any, voltages: list[float] | None) -> None:
         data["voltage_magnitude"] = (("voltage_magnitude",), voltages, {"units": "V", "long_name": "|V(L) - V(0)|"})
 
 
-def _write_transport_file(path: Path, result: Any, curve: Any, channel: Any) -> Path:
-    """The Result, then the groups "conductance" and "channel", all in one temporary file renamed at the end:
-    the final name never holds a file without its groups."""
+def _write_transport_file(path: Path, result: Any, curve: Any, channel: Any, rectification: Any = None) -> Path:
+    """The Result, then the groups "conductance", "channel" and "rectification", all in one temporary file
+    renamed at the end: the final name never holds a file without its groups."""
     from edl_solver.io.files import atomic_output
     from edl_solver.io.hdf5 import write_result
 
     try:
         with atomic_output(path) as temporary:
             write_result(result, temporary)
-            for group, data in (("conductance", curve), ("channel", channel)):
+            for group, data in (("conductance", curve), ("channel", channel), ("rectification", rectification)):
                 if data is not None:
                     data.to_netcdf(temporary, group=group, mode="a", engine="h5netcdf")
     except OSError as exc:  # name the file the user asked for, not the temporary one

@@ -14,7 +14,7 @@ from edl_solver.errors import InputError
 from edl_solver.model.bulk import bulk_conductivity
 
 PUBLIC = {"Channel", "ChannelTable", "Device", "OperatingPoint", "OsmoticPower", "current_voltage",
-          "membrane_potential", "operating_point", "osmotic_power", "salt_flux", "tabulate"}
+          "membrane_potential", "operating_point", "osmotic_power", "rectification_curve", "salt_flux", "tabulate"}
 CONDUCTANCE = {"bulk_conductivity", "cases_at", "channel_characteristics", "checked_length", "conductance_curve",
                "conductance_units", "counterion_convection", "counterion_mobility", "crossover_concentration",
                "henderson_potential", "planck_current"}
