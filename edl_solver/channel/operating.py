@@ -90,15 +90,16 @@ def _left_table(points: list[OperatingPoint]) -> bool:
 
 
 def _wider(table: ChannelTable) -> ChannelTable | None:
-    """The table of the channel with a ten times wider ``concentration_span`` (as many concentrations per unit of
-    ln c, at most 400; cached as ``table_of`` caches), or None: for a uniform channel, beyond ``WIDEST_SPAN``, or
-    where the wider table is refused (outside the cross-section solver's domain) or fails."""
+    """The table of the channel with a ten times wider ``concentration_span``, at most ``WIDEST_SPAN`` (as many
+    concentrations per unit of ln c, at most 400; cached as ``table_of`` caches), or None: for a uniform channel, at
+    ``WIDEST_SPAN`` already, or where the wider table is refused (outside the cross-section solver's domain) or
+    fails."""
     channel = table.channel
-    span = 10.0 * channel.concentration_span
-    if channel.size is None or span > WIDEST_SPAN:
+    if channel.size is None or channel.concentration_span >= WIDEST_SPAN:
         return None
+    now, span = channel.concentration_span, min(10.0 * channel.concentration_span, WIDEST_SPAN)
     width = abs(math.log(channel.left_concentration / channel.right_concentration))
-    points = (channel.points - 1) * (width + 2.0 * math.log(span)) / (width + 2.0 * math.log(span / 10.0))
+    points = (channel.points - 1) * (width + 2.0 * math.log(span)) / (width + 2.0 * math.log(now))
     wider = dataclasses.replace(channel, concentration_span=span, points=min(400, math.ceil(points) + 1))
     try:
         return table_of(wider)
