@@ -44,6 +44,8 @@ def shape_words(attrs: Any) -> str | None:
     name = str(attrs.get("size_name", "size"))
     wall = wall_words(attrs)
     wall = "" if wall is None else f"; {wall}"
+    if sizes.min() == sizes.max():  # a straight channel whose wall varies along x
+        return f"{name} {prefixed(sizes[0], 'm')} all along (straight){wall}"
     if str(attrs.get("size_kind")) == "linear":
         return (f"{name} {prefixed(sizes[0], 'm')} at x = 0 to {prefixed(sizes[-1], 'm')} at x = L, linear (a taper)"
                 f"{wall}")

@@ -108,7 +108,8 @@ def _taper_lines(data: Any) -> list[str]:
     if words is None:
         return []
     error = float(data.attrs.get("interpolation_error", float("nan")))
-    lines = [_row("tapered channel", words),
+    label = "straight channel, wall along x" if "all along" in words else "tapered channel"
+    lines = [_row(label, words),
              _row("table over (c, size): interpolation error", f"{error:.2g} (largest, relative to sqrt(L_ii L_jj), "
                                                                   "at the cells' centres)")]
     span = float(data.attrs.get("concentration_span", float("nan")))

@@ -459,7 +459,8 @@ def iv_figure(dataset: Any, path: str | os.PathLike[str]) -> Path:
         title += f"\n{_iv_section_text(case, dataset, tapered)}"
     if tapered:
         draw_taper_panels(panels, dataset)
-        title += f"\ntapered: {shape_words(dataset.attrs)}"
+        words = shape_words(dataset.attrs)
+        title += f"\n{'along x' if 'all along' in words else 'tapered'}: {words}"
     figure.suptitle(title, fontsize="medium")
     return save_png(figure, path)
 

@@ -142,7 +142,7 @@ def test_a_site_density_profile_and_the_outputs() -> None:
     attrs = shape_attrs(channel)
     np.testing.assert_array_equal(attrs["wall_profile_value"], [1e18, 3e18])
     assert attrs["wall_profile_quantity"] == "site_density" and attrs["wall_profile_unit"] == "1/m^2"
-    assert shape_words(attrs).endswith("(a taper); wall site density 1 nm^-2 to 3 nm^-2")
+    assert shape_words(attrs).endswith("all along (straight); wall site density 1 nm^-2 to 3 nm^-2")
 
 
 @pytest.mark.parametrize(("profile", "field", "words"), [
