@@ -4,16 +4,15 @@ and the flags, merged.
 The rule: each flag replaces its key of [channel], one key at a time - ``--length`` length, ``--left`` left,
 ``--right`` right, ``--size`` size, ``--iv`` iv, ``--width`` width, ``--access-resistance`` access_resistance,
 ``--rectification`` rectification (a flag that can only turn it on). A key without a flag (``points``,
-``size_points``, ``wall_segments``, ``wall_profile``) comes from the file alone. A file value is checked as its
-flag's value is, and everything before the first solve; an error in the channel the file makes names the file.
-The file's ``width`` and ``access_resistance`` belong to the channel: unlike their flags, they do not ask for the
-device block (``--channels``, ``--voltage``, ``--pressure-difference`` do).
+``size_points``, ``wall_points``, ``concentration_span``, ``wall_segments``, ``wall_profile``) comes from the file
+alone. A file value is checked as its flag's value is, and everything before the first solve; an error in the
+channel the file makes names the file. The file's ``width`` and ``access_resistance`` belong to the channel: unlike
+their flags, they do not ask for the device block (``--channels``, ``--voltage``, ``--pressure-difference`` do).
 """
 
 from __future__ import annotations
 
 import argparse
-import dataclasses
 from typing import Any
 
 __all__ = ["apply_channel_section", "channel_section", "make_channel"]
@@ -25,21 +24,14 @@ def channel_section(args: argparse.Namespace, case: Any) -> Any:
     Raises
     ------
     InputError
-        From ``inputs.channel_spec`` (naming the file and the dotted key), or a ``wall_profile`` where this
-        version's ``Channel`` has no such field.
+        From ``inputs.channel_spec`` (naming the file and the dotted key).
     """
-    from edl_solver.channel.model import Channel
-    from edl_solver.errors import InputError
     from edl_solver.inputs.casefile import read_mapping
     from edl_solver.inputs.channel_spec import read_channel_spec
 
     if args.case is None or "channel" not in read_mapping(args.case):
         return None
-    spec = read_channel_spec(args.case, case)
-    if spec.wall_profile is not None and "wall_profile" not in {field.name for field in dataclasses.fields(Channel)}:
-        raise InputError(f"{args.case}: channel.wall_profile: given, but a wall profile along x is not available in "
-                         "this version, expected [[channel.wall_segments]] for a wall that changes along x")
-    return spec
+    return read_channel_spec(args.case, case)
 
 
 def apply_channel_section(args: argparse.Namespace, spec: Any) -> tuple[dict[str, Any], frozenset[str]]:
@@ -76,8 +68,8 @@ def apply_channel_section(args: argparse.Namespace, spec: Any) -> tuple[dict[str
                              "count = 41 }")
         args.rectification = True
         file_keys.add("rectification")
-    extra = {key: getattr(spec, key) for key in ("points", "size_points", "wall_segments", "wall_profile")
-             if getattr(spec, key) is not None}
+    extra = {key: getattr(spec, key) for key in ("points", "size_points", "wall_points", "concentration_span",
+                                                 "wall_segments", "wall_profile") if getattr(spec, key) is not None}
     if args.size is None and spec.size is not None:
         extra["size"] = spec.size
     return extra, frozenset(file_keys)

@@ -63,9 +63,10 @@ linear between (a cone); --rectification prints |I(+V)/I(-V)| at the positive vo
       --size 5nm:40nm --iv -500mV:500mV:11 --rectification --iv-figure cone.png
 A case file's [channel] section gives the same channel (its keys: length, left, right, size as a pair,
 a table or a CSV file, iv = { start, stop, count }, rectification, access_resistance, width, points,
-size_points, [[channel.wall_segments]]; see examples/conical_pore.toml); each flag given replaces its
-key (--length length, --left left, --right right, --size size, --iv iv, --width width,
---access-resistance access_resistance, --rectification turns rectification on):
+size_points, wall_points, concentration_span, wall_profile, [[channel.wall_segments]]; see
+examples/conical_pore.toml); each flag given replaces its key (--length length, --left left, --right
+right, --size size, --iv iv, --width width, --access-resistance access_resistance, --rectification
+turns rectification on):
   edl transport examples/conical_pore.toml -o pore.h5 --iv-figure pore.png
 --rectification-curve C1:C2:N: the ratio against concentration, both reservoirs at each c, at
 --rectification-voltage V (default the largest |V| of --iv); --rectification-figure PNG draws it.

@@ -11,6 +11,8 @@
     width = "10 um"                     # a slit's width
     points = 32                         # concentrations of the table of cross-section solves
     size_points = 12                    # sizes of that table
+    wall_points = 9                     # wall values of that table (with wall_profile)
+    concentration_span = 50             # the table's reach beyond the reservoirs, each way (widened when needed)
     iv = { start = "-1 V", stop = "1 V", count = 41 }   # the I-V curve, V(L) - V(0)
     rectification = true                # |I(+V)/I(-V)| at the positive voltages of iv
 
@@ -26,7 +28,7 @@ comma, a semicolon or a tab; its first line is a header naming both columns with
 ``position [um], radius [nm]`` (the second column ``radius`` for a capillary, ``height`` for a slit, or ``size``);
 then at least two rows of finite numbers, positions rising from 0 to the length. ``wall_profile`` (a wall that
 varies continuously along x) is read as ``{ position = [...], value = [...] }`` or ``{ csv = "..." }`` and passed
-to ``Channel`` where this version has that field; otherwise it is refused.
+to ``Channel`` (which checks its values against the case's wall).
 
 The case itself is read by ``inputs.casefile``, which leaves this section to this module (it is not part of the
 ``Case``: a case written back has no [channel]). Every error is one line naming the file, the dotted key, the value
@@ -54,8 +56,8 @@ from edl_solver.inputs.units import to_positive_si, to_si
 __all__ = ["CHANNEL_KEYS", "ChannelSpec", "channel_from_mapping", "read_channel_spec"]
 
 #: Keys of the [channel] table.
-CHANNEL_KEYS = ("length", "left", "right", "access_resistance", "width", "points", "size_points", "size",
-                "wall_segments", "wall_profile", "iv", "rectification")
+CHANNEL_KEYS = ("length", "left", "right", "access_resistance", "width", "points", "size_points", "wall_points",
+                "concentration_span", "size", "wall_segments", "wall_profile", "iv", "rectification")
 _IV_KEYS = ("start", "stop", "count")
 #: Most voltages of an I-V curve (as ``edl transport --iv``).
 MOST_VOLTAGES = 1000
@@ -77,7 +79,8 @@ class ChannelSpec:
     access_resistance : bool or None
     width : float or None
         A slit's width, m.
-    points, size_points : int or None
+    points, size_points, wall_points : int or None
+    concentration_span : float or None
     size : tuple or dict or None
         A pair of sizes (m), or a table ``{"position": [...], "size": [...]}`` in m.
     wall_segments : list of (float, Wall or (Wall, Wall)) or None
@@ -96,6 +99,8 @@ class ChannelSpec:
     points: int | None = None
     size_points: int | None = None
     size: Any = None
+    wall_points: int | None = None
+    concentration_span: float | None = None
     wall_segments: list[tuple[float, Any]] | None = None
     wall_profile: Any = None
     voltages: list[float] | None = None
@@ -107,7 +112,8 @@ class ChannelSpec:
         first = case.electrolyte.ions[0].concentration
         kwargs: dict[str, Any] = {"length": self.length, "left_concentration": first if self.left is None else
                                   self.left, "right_concentration": first if self.right is None else self.right}
-        for key in ("access_resistance", "width", "points", "size_points", "size", "wall_segments", "wall_profile"):
+        for key in ("access_resistance", "width", "points", "size_points", "wall_points", "concentration_span", "size",
+                    "wall_segments", "wall_profile"):
             if getattr(self, key) is not None:
                 kwargs[key] = getattr(self, key)
         return kwargs
@@ -177,7 +183,8 @@ def _spec(data: Mapping[str, Any], case: Case, folder: Path) -> ChannelSpec:
                        size=_size(table["size"], length, case, folder) if "size" in table else None,
                        wall_segments=_segments(table["wall_segments"], case) if "wall_segments" in table else None,
                        wall_profile=_wall_profile(table["wall_profile"], folder) if "wall_profile" in table else None,
-                       voltages=voltages, rectification=flags[1])
+                       voltages=voltages, rectification=flags[1], wall_points=_count(table, "wall_points"),
+                       concentration_span=_span(table))
     return spec
 
 
@@ -192,8 +199,17 @@ def _count(table: Mapping[str, Any], key: str) -> int | None:
     value = table.get(key)
     if value is not None and (isinstance(value, bool) or not isinstance(value, Integral)):
         raise InputError(f"channel.{key}: {value!r} is not a whole number, expected e.g. {key} = "
-                         f"{32 if key == 'points' else 12}")
+                         f"{ {'points': 32, 'size_points': 12}.get(key, 9)}")
     return None if value is None else int(value)
+
+
+def _span(table: Mapping[str, Any]) -> float | None:
+    """``concentration_span``: a plain number (a factor), checked for its range by ``Channel``."""
+    value = table.get("concentration_span")
+    if value is not None and (isinstance(value, bool) or not isinstance(value, Integral | float)):
+        raise InputError(f"channel.concentration_span: {value!r} is not a number, expected a factor, e.g. "
+                         "concentration_span = 500")
+    return None if value is None else float(value)
 
 
 def _voltages(value: Any) -> list[float]:

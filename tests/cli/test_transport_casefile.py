@@ -4,7 +4,6 @@ resistance (against the closed forms of channel/access.py) and the wall segments
 
 from __future__ import annotations
 
-import dataclasses
 import math
 from pathlib import Path
 
@@ -227,18 +226,30 @@ def test_a_slit_with_access_resistance_and_no_width_names_the_file(tmp_path: Pat
     assert out == "" and not (tmp_path / "result.h5").exists()
 
 
-def test_a_wall_profile_goes_to_the_channel_only_where_it_has_that_field(tmp_path: Path,
-                                                                       monkeypatch: pytest.MonkeyPatch) -> None:
+def test_a_wall_profile_and_the_table_settings_go_to_the_channel(tmp_path: Path,
+                                                                 monkeypatch: pytest.MonkeyPatch) -> None:
+    """[channel] wall_profile, wall_points and concentration_span reach the Channel: the run's HDF5 group gives the
+    profile's rows and the span, and the currents equal those of the same Channel built in Python (same
+    equations, same table)."""
     monkeypatch.chdir(tmp_path)
-    write(tmp_path, CAPILLARY + '\n[channel]\nlength = "1 um"\nwall_profile = { position = ["0 um", "1 um"], '
-                                'value = ["-20 mC/m^2", "-5 mC/m^2"] }\n')
-    has_field = "wall_profile" in {field.name for field in dataclasses.fields(Channel)}
+    write(tmp_path, CAPILLARY + '\n[channel]\nlength = "1 um"\nwall_points = 5\nconcentration_span = 100\n'
+          'iv = { start = "-0.1 V", stop = "0.1 V", count = 3 }\n'
+          'wall_profile = { position = ["0 um", "1 um"], value = ["-20 mC/m^2", "-5 mC/m^2"] }\n')
     code, _out, err = run(["transport", "case.toml", "-o", "result.h5"])
-    if has_field:
-        assert code == 0, err
-    else:
-        assert code == 2 and "channel.wall_profile: given, but a wall profile along x is not available" in err, err
-        assert not (tmp_path / "result.h5").exists()
+    assert code == 0, err
+    data = xr.open_dataset(tmp_path / "result.h5", engine="h5netcdf", group="channel")
+    assert data.attrs["wall_profile_value"] == pytest.approx([-0.020, -0.005])
+    assert data.attrs["concentration_span"] == 100.0
+    case = load_case(tmp_path / "case.toml")
+    first = case.electrolyte.ions[0].concentration
+    channel = Channel(case, "1 um", first, first, wall_points=5, concentration_span=100,
+                      wall_profile={"position": [0.0, 1e-6], "value": [-0.020, -0.005]})
+    expected = current_voltage(channel, [-0.1, 0.0, 0.1])["current"].values
+    np.testing.assert_allclose(data["current"].values, expected, rtol=1e-9)
+    write(tmp_path, CAPILLARY + '\n[channel]\nlength = "1 um"\nconcentration_span = "big"\n')
+    code, _out, err = run(["transport", "case.toml", "-o", "bad.h5"])
+    assert code == 2 and "channel.concentration_span" in err and len(err.strip().splitlines()) == 1, err
+    assert not (tmp_path / "bad.h5").exists()
 
 
 def test_the_example_conical_pore_runs_and_rectifies(tmp_path: Path, monkeypatch: pytest.MonkeyPatch) -> None:
