@@ -142,7 +142,7 @@ class DirectRelations:
     The case at (c = e^u, size at xi, wall at xi) is the wall's case (the segment's wall, or the profile's value at
     xi) with every ion scaled with the first, as the sweep path "electrolyte.concentration" scales them, and the
     size replaced, by ``dataclasses.replace`` (~20-60 us; the table's way, through the case file's mapping and the
-    sweep paths, costs ~0.5 ms a point, several solves' worth, and would slow the peer for nothing).
+    sweep paths, costs ~0.15-0.3 ms a point, several solves' worth, and would slow the peer for nothing).
     """
 
     def __init__(self, path: TaperPath):
