@@ -21,7 +21,7 @@ linear wall profile) it measures, warm and in one process:
   ``--samples`` points drawn at random from those evaluated, so from the channel's own range of c, size and wall).
   The peer is also run for real on one I-V point (at half the largest voltage, from the linear start, as
   ``TaperPath.solve`` does): a ``DirectRelations`` object with ``_matrices``'s call signature that builds the case
-  at each (c, size, wall) as the table does and solves it, plugged into a copy of the channel's ``TaperPath``. Its
+  the table solves at each (c, size, wall) and solves it, plugged into a copy of the channel's ``TaperPath``. Its
   measured time is printed beside its own count times the unit (how well the count predicts it), and its current
   beside the table's (how far the interpolation moves the answer).
 
