@@ -16,8 +16,9 @@ __all__ = ["SaltRatios", "basis_of", "reduce_matrices", "zero_current_gradient"]
 
 
 def reduce_matrices(ion_matrices: np.ndarray, basis: np.ndarray) -> np.ndarray:
-    """M = B^T L B (``kernels.response.reduced_matrix``) for a stack of ion matrices."""
-    return np.einsum("ai,kab,bj->kij", basis, ion_matrices, basis)
+    """M = B^T L B (``kernels.response.reduced_matrix``) for a stack of ion matrices (stacked matmul: several times
+    faster than the equivalent einsum on the small matrices of every point along a channel)."""
+    return basis.T @ ion_matrices @ basis
 
 
 class SaltRatios:

@@ -42,14 +42,19 @@ def _solve_grid(case: Case, concentrations: np.ndarray, sizes: np.ndarray, field
     from edl_solver.inputs.casefile import case_to_mapping
     from edl_solver.pipeline import solve
 
-    axes = sweep_axes.make_axes({"electrolyte.concentration": [float(c) for c in concentrations],
-                                 case.geometry.size_path: [float(s) for s in sizes]})
+    axes = sweep_axes.make_axes({"electrolyte.concentration": [float(c) for c in concentrations]})
     base = case_to_mapping(case)
+    scaled: dict[int, Case] = {}  # the case at each concentration, built as the sweep path builds it, once
     ions, reduced, notes = [], [], []
-    for j, size in enumerate(sizes):
+    for size in sizes:
         for i, c in enumerate(concentrations):
             try:
-                result = solve(sweep_axes.case_at(base, axes, (i, j)))
+                if i not in scaled:
+                    scaled[i] = sweep_axes.case_at(base, axes, (i,))
+                # the size set on the geometry directly: the same Case as the sweep path "geometry.<size>" gives
+                # (checked by the same __post_init__), several times cheaper than rebuilding it from a mapping
+                sized = dataclasses.replace(scaled[i].geometry, **{case.geometry.size_name: float(size)})
+                result = solve(dataclasses.replace(scaled[i], geometry=sized))
             except InputError as error:
                 raise InputError(f"{field}: the table's point c = {c:.6g} mol/m^3, {case.geometry.size_name} "
                                  f"{size:.6g} m is refused ({error}), expected sizes and concentrations (the "
