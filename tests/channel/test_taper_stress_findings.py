@@ -1,0 +1,24 @@
+"""Defects found by ``stress/taper_run.py`` (issue 15), each pinned by a test that failed before its fix."""
+
+from __future__ import annotations
+
+import pytest
+
+import edl_solver as edl
+from edl_solver.channel import Channel, current_voltage
+from edl_solver.errors import InputError
+from tests.helpers import KCL, SOLVENT
+
+
+def _channel(**kwargs: object) -> Channel:
+    case = edl.Case(geometry=edl.Capillary(radius="5 nm"), electrolyte=KCL, wall=edl.Wall(charge_density=0.0),
+                    solvent=SOLVENT)
+    return Channel(case, length="1 um", left_concentration="1 mM", right_concentration="1 mM", **kwargs)
+
+
+@pytest.mark.parametrize("kwargs", [{}, {"size": ("5 nm", "20 nm")}], ids=["uniform", "cone"])
+def test_an_empty_list_of_voltages_is_a_one_line_input_error(kwargs: dict[str, object]) -> None:
+    # found as a bare ValueError ("attempt to get argmin of an empty sequence") from the curve's ordering
+    with pytest.raises(InputError, match=r"^voltages: .*expected") as error:
+        current_voltage(_channel(**kwargs), [])
+    assert "\n" not in str(error.value)
