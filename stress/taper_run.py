@@ -242,10 +242,13 @@ def _same_negated(name: str, data: Any, other: Any) -> list[str]:
     return []
 
 
-def symmetry_checks(draw: Draw, data: Any) -> list[str]:
+def symmetry_checks(draw: Draw, data: Any, outcomes: collections.Counter[str]) -> list[str]:
     problems = _ohmic(draw, data)
+    if draw.flags["uncharged"] and draw.channel.equal_reservoirs:
+        outcomes["checked: ohmic"] += 1
     for name, make in (("mirror", _mirror), ("flip", _flipped)):
         if draw.flags[name]:
+            outcomes[f"checked: {name}"] += 1
             other = current_voltage(make(draw), -draw.voltages[::-1])
             problems += _same_negated(name, data, other)
     return problems
@@ -268,7 +271,7 @@ def valid_part(seed: int, count: int) -> list[str]:
         start = time.perf_counter()
         try:
             data = current_voltage(draw.channel, draw.voltages)
-            problems = check_points(draw, data) + symmetry_checks(draw, data)
+            problems = check_points(draw, data) + symmetry_checks(draw, data, outcomes)
         except (InputError, ConvergenceError) as exc:
             outcomes[f"{type(exc).__name__}: {_classify(str(exc))}"] += 1
             print(f"{index}: {type(exc).__name__}: {str(exc)[:200]}", flush=True)

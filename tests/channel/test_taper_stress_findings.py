@@ -2,6 +2,7 @@
 
 from __future__ import annotations
 
+import numpy as np
 import pytest
 
 import edl_solver as edl
@@ -21,4 +22,16 @@ def test_an_empty_list_of_voltages_is_a_one_line_input_error(kwargs: dict[str, o
     # found as a bare ValueError ("attempt to get argmin of an empty sequence") from the curve's ordering
     with pytest.raises(InputError, match=r"^voltages: .*expected") as error:
         current_voltage(_channel(**kwargs), [])
+    assert "\n" not in str(error.value)
+
+
+@pytest.mark.parametrize("field", ["length", "wall_segments", "wall_profile", "points", "size"])
+def test_an_array_given_for_a_field_is_refused_in_one_line(field: str) -> None:
+    # found with a 2-D numpy array: its repr spans lines, and so did the message that showed it
+    value = np.zeros((2, 2))
+    kwargs = {"length": "1 um", field: value if field != "size" else [value, value]}
+    case = edl.Case(geometry=edl.Capillary(radius="5 nm"), electrolyte=KCL, wall=edl.Wall(charge_density=-0.02),
+                    solvent=SOLVENT)
+    with pytest.raises(InputError, match=rf"^channel\.{field}") as error:
+        Channel(case, left_concentration="1 mM", right_concentration="1 mM", **kwargs)
     assert "\n" not in str(error.value)
