@@ -35,3 +35,13 @@ def test_an_array_given_for_a_field_is_refused_in_one_line(field: str) -> None:
     with pytest.raises(InputError, match=rf"^channel\.{field}") as error:
         Channel(case, left_concentration="1 mM", right_concentration="1 mM", **kwargs)
     assert "\n" not in str(error.value)
+
+
+def test_numpy_integers_are_counts_and_bools_are_not() -> None:
+    # found refused: "channel.points: np.int64(16) is not allowed, expected an integer from 8 to 400"
+    channel = _channel(points=np.int64(16), size_points=np.int32(6), size=("5 nm", "20 nm"))
+    assert (channel.points, channel.size_points) == (16, 6) and type(channel.points) is int
+    with pytest.raises(InputError, match=r"^channel\.points: True is not allowed, expected an integer from 8 to 400"):
+        _channel(points=True)
+    with pytest.raises(InputError, match=r"^channel\.wall_points: np\.False_ is not allowed"):
+        _channel(wall_points=np.False_)
