@@ -45,3 +45,19 @@ def test_numpy_integers_are_counts_and_bools_are_not() -> None:
         _channel(points=True)
     with pytest.raises(InputError, match=r"^channel\.wall_points: np\.False_ is not allowed"):
         _channel(wall_points=np.False_)
+
+
+@pytest.mark.parametrize(("kwargs", "named"), [
+    ({"wall_profile": {"position": ["0 um", "1 um"], "value": [-0.02, 1000.0]}}, r"^channel\.wall_profile: "),
+    ({"wall_segments": [("0.5 um", edl.Wall(charge_density=-0.02)), ("1 um", edl.Wall(charge_density=1000.0))]},
+     r"^channel\.wall_segments\[1\]: "),
+])
+def test_a_wall_along_x_outside_the_solvers_domain_is_blamed_on_its_own_field(kwargs: dict[str, object],
+                                                                               named: str) -> None:
+    # found blamed on "wall.charge_density: 93.45 C/m^2", a field and (for a profile) a value the user never gave
+    case = edl.Case(geometry=edl.Capillary(radius="5 nm"), electrolyte=KCL, wall=edl.Wall(charge_density=-0.02),
+                    solvent=SOLVENT)
+    channel = Channel(case, length="1 um", left_concentration="1 mM", right_concentration="1 mM", **kwargs)
+    with pytest.raises(InputError, match=named + r".*1000 C/m\^2.*expected") as error:
+        current_voltage(channel, [0.1])
+    assert "\n" not in str(error.value)
