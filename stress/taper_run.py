@@ -246,9 +246,11 @@ def symmetry_checks(draw: Draw, data: Any, outcomes: collections.Counter[str]) -
     problems = _ohmic(draw, data)
     if draw.flags["uncharged"] and draw.channel.equal_reservoirs:
         outcomes["checked: ohmic"] += 1
+        print("  checked ohmic", flush=True)
     for name, make in (("mirror", _mirror), ("flip", _flipped)):
         if draw.flags[name]:
             outcomes[f"checked: {name}"] += 1
+            print(f"  checked {name}", flush=True)
             other = current_voltage(make(draw), -draw.voltages[::-1])
             problems += _same_negated(name, data, other)
     return problems
