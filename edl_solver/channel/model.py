@@ -52,6 +52,7 @@ import functools
 import math
 from collections.abc import Sequence
 from dataclasses import dataclass, field
+from numbers import Integral
 from typing import Any
 
 import numpy as np
@@ -177,20 +178,13 @@ class Channel:
             object.__setattr__(self, "wall_segments", make_wall_segments(self.wall_segments, length, self.case))
         if self.wall_profile is not None:
             object.__setattr__(self, "wall_profile", make_wall_profile(self.wall_profile, length, self.case))
-        if isinstance(self.wall_points, bool) or not isinstance(self.wall_points, int) or \
-                not 2 <= self.wall_points <= 50:
-            raise InputError(f"channel.wall_points: {self.wall_points!r} is not allowed, expected an integer from 2 "
-                             "to 50")
+        _whole(self, "wall_points", 2, 50)
         if (self.wall_segments is not None or self.wall_profile is not None) and self.size is None:
             size = self.case.geometry.size
             object.__setattr__(self, "size", make_shape((size, size), length, self.case.geometry.kind))
         self._check_width()
-        if isinstance(self.size_points, bool) or not isinstance(self.size_points, int) or \
-                not 4 <= self.size_points <= 100:
-            raise InputError(f"channel.size_points: {self.size_points!r} is not allowed, expected an integer from 4 "
-                             "to 100")
-        if isinstance(self.points, bool) or not isinstance(self.points, int) or not 8 <= self.points <= 400:
-            raise InputError(f"channel.points: {self.points!r} is not allowed, expected an integer from 8 to 400")
+        _whole(self, "size_points", 4, 100)
+        _whole(self, "points", 8, 400)
         span = self.concentration_span
         if isinstance(span, bool) or not isinstance(span, int | float) or not 2.0 <= span <= 1e6:
             raise InputError(f"channel.concentration_span: {span!r} is not allowed, expected a factor from 2 to 1e6")
@@ -218,6 +212,15 @@ class Channel:
         """True when both reservoirs hold the same concentration (uniform channel)."""
         return math.isclose(self.left_concentration, self.right_concentration, rel_tol=EQUAL_CONCENTRATIONS)
 
+
+
+def _whole(channel: Channel, name: str, low: int, high: int) -> None:
+    """Check the count ``name`` of ``channel`` (any integer type, numpy's too, but not a bool) and store it as an
+    int."""
+    value = getattr(channel, name)
+    if isinstance(value, bool | np.bool_) or not isinstance(value, Integral) or not low <= value <= high:
+        raise InputError(f"channel.{name}: {value!r} is not allowed, expected an integer from {low} to {high}")
+    object.__setattr__(channel, name, int(value))
 
 
 # ----------------------------------------------------------------------------------------------

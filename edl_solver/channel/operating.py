@@ -167,10 +167,17 @@ def current_voltage(channel: Channel | ChannelTable, voltages: Any, pressure_dif
         has the profiles ``concentration_profile``, ``potential_profile`` and ``pressure_profile`` on
         (``voltage``, ``position``) and its table's ``concentration_span``: when the salt of a point leaves the
         table, the whole curve is solved again on a table ten times wider (``_wider``), up to ``WIDEST_SPAN``.
+
+    Raises
+    ------
+    InputError
+        If ``voltages`` is empty or a voltage is not a finite potential.
     """
     table = table_of(channel)
     values = np.atleast_1d(np.asarray([to_si(v, "V", "voltages") for v in np.ravel(np.asarray(voltages, dtype=object))],
                                       dtype=float))
+    if values.size == 0:
+        raise InputError("voltages: empty, expected at least one voltage, e.g. [-0.5, 0.5] (V)")
     dp = to_si(pressure_difference, "Pa", "pressure_difference")
     points = _solve_curve(table._path, values, dp)
     while _left_table(points) and (wider := _wider(table)) is not None:  # the whole curve on one table

@@ -214,13 +214,28 @@ def wall_nodes(channel: Any) -> np.ndarray:
 
 def _wall_cases(channel: Any) -> list[Case]:
     """The case of each table: the case itself, that of each distinct wall (``wall_segments``) or of each wall
-    node (``wall_profile``, ``WallProfile.nodes``)."""
-    case = channel.case
-    if channel.wall_profile is not None:
-        profile = channel.wall_profile
-        return [profile.case_at(case, v) for v in wall_nodes(channel)]
-    walls = (case.wall,) if channel.wall_segments is None else channel.wall_segments.distinct
-    return [case if wall == case.wall else dataclasses.replace(case, wall=wall) for wall in walls]
+    node (``wall_profile``, ``WallProfile.nodes``).
+
+    Raises
+    ------
+    InputError
+        If the case refuses a wall: named as the profile or the segment that gave it.
+    """
+    case, profile, segments = channel.case, channel.wall_profile, channel.wall_segments
+    walls = (case.wall,) if segments is None else segments.distinct
+    values = wall_nodes(channel) if profile is not None else walls
+    out = []
+    for value in values:  # a wall the case refuses is blamed on the channel's field that gave it
+        try:
+            out.append(profile.case_at(case, value) if profile is not None else
+                       case if value == case.wall else dataclasses.replace(case, wall=value))
+        except InputError as error:
+            if profile is not None:
+                raise InputError(f"channel.wall_profile: values from {min(profile.values):.6g} to "
+                                 f"{max(profile.values):.6g} {profile.unit} are refused at {value:.6g} {profile.unit} "
+                                 f"({error}), expected a profile inside the solver's domain") from None
+            raise InputError(f"channel.wall_segments[{segments.walls.index(value)}]: {error}") from None
+    return out
 
 
 def _wall_errors(channel: Any, splines: list[SectionSpline], u: np.ndarray, s: np.ndarray
