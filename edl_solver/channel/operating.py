@@ -10,6 +10,7 @@ from __future__ import annotations
 
 import dataclasses
 import math
+from collections.abc import Callable
 from dataclasses import dataclass
 from typing import Any
 
@@ -19,6 +20,7 @@ from edl_solver.channel.model import Channel, ChannelTable, table_of
 from edl_solver.channel.path import Path, Uniform
 from edl_solver.channel.point import CONVENTIONS, CONVERGED_WORD, FAILED_WORD, STATUS_TEXT, OperatingPoint
 from edl_solver.channel.relations import SaltRatios
+from edl_solver.channel.taper_outputs import shape_notes
 from edl_solver.constants import GAS_CONSTANT
 from edl_solver.errors import ConvergenceError, InputError
 from edl_solver.inputs.geometry import extent_unit
@@ -73,10 +75,12 @@ def operating_point(channel: Channel | ChannelTable, voltage: float | str | None
         voltage = to_si(voltage, "V", "voltage")
     else:
         current = to_si(current, "A", "current")
-    point = table._path.solve(dp, voltage, current, _guess(guess))
-    while _left_table([point]) and (table := _wider(table)) is not None:
-        point = table._path.solve(dp, voltage, current, None)
-    return point
+    start = _guess(guess)
+
+    def solve(on: ChannelTable) -> list[OperatingPoint]:
+        return [on._path.solve(dp, voltage, current, start if on is table else None)]
+
+    return _widened(table, solve)[1][0]
 
 
 #: Widest concentration span a table is widened to when an I-V point's salt leaves it.
@@ -89,22 +93,39 @@ def _left_table(points: list[OperatingPoint]) -> bool:
     return any(p.status != CONVERGED_WORD and LEAVES_TABLE in p.message for p in points)
 
 
-def _wider(table: ChannelTable) -> ChannelTable | None:
+def _widened(table: ChannelTable, solve: Callable[[ChannelTable], list[OperatingPoint]]
+             ) -> tuple[ChannelTable, list[OperatingPoint]]:
+    """``solve(table)``, solved again on ever wider tables (``_wider``) while a point's salt leaves the table; the
+    table used and its points, those still outside it told why the table was not widened further."""
+    points = solve(table)
+    while _left_table(points):
+        wider, why = _wider(table)
+        if wider is None:
+            note = f" (the table was not widened further: {why})"
+            return table, [dataclasses.replace(p, message=p.message + note) if p.status != CONVERGED_WORD else p
+                           for p in points]
+        table, points = wider, solve(wider)
+    return table, points
+
+
+def _wider(table: ChannelTable) -> tuple[ChannelTable | None, str]:
     """The table of the channel with a ten times wider ``concentration_span``, at most ``WIDEST_SPAN`` (as many
-    concentrations per unit of ln c, at most 400; cached as ``table_of`` caches), or None: for a uniform channel, at
-    ``WIDEST_SPAN`` already, or where the wider table is refused (outside the cross-section solver's domain) or
-    fails."""
+    concentrations per unit of ln c, at most 400; cached as ``table_of`` caches), or None and why not: a uniform
+    channel, ``WIDEST_SPAN`` reached, or a wider table refused (outside the cross-section solver's domain) or
+    failed."""
     channel = table.channel
-    if channel.size is None or channel.concentration_span >= WIDEST_SPAN:
-        return None
+    if channel.size is None:
+        return None, "a uniform channel's table is not widened"
+    if channel.concentration_span >= WIDEST_SPAN:
+        return None, f"its span is the widest, {WIDEST_SPAN:g} times the reservoirs each way"
     now, span = channel.concentration_span, min(10.0 * channel.concentration_span, WIDEST_SPAN)
     width = abs(math.log(channel.left_concentration / channel.right_concentration))
     points = (channel.points - 1) * (width + 2.0 * math.log(span)) / (width + 2.0 * math.log(now))
     wider = dataclasses.replace(channel, concentration_span=span, points=min(400, math.ceil(points) + 1))
     try:
-        return table_of(wider)
-    except (InputError, ConvergenceError):
-        return None
+        return table_of(wider), ""
+    except (InputError, ConvergenceError) as error:
+        return None, f"at a span of {span:g} times the reservoirs each way, {error}"
 
 
 def membrane_potential(channel: Channel | ChannelTable, pressure_difference: float | str = 0.0) -> float:
@@ -179,9 +200,7 @@ def current_voltage(channel: Channel | ChannelTable, voltages: Any, pressure_dif
     if values.size == 0:
         raise InputError("voltages: empty, expected at least one voltage, e.g. [-0.5, 0.5] (V)")
     dp = to_si(pressure_difference, "Pa", "pressure_difference")
-    points = _solve_curve(table._path, values, dp)
-    while _left_table(points) and (wider := _wider(table)) is not None:  # the whole curve on one table
-        table, points = wider, _solve_curve(wider._path, values, dp)
+    table, points = _widened(table, lambda on: _solve_curve(on._path, values, dp))  # the whole curve on one table
     return _curve_dataset(table, values, dp, points)
 
 
@@ -242,6 +261,9 @@ def _curve_dataset(table: ChannelTable, values: np.ndarray, dp: float, points: l
     coords = {"voltage": ("voltage", values, {"units": "V", "long_name": "applied voltage V(L) - V(0)"})}
     if ch.size is not None:  # a channel that varies along x: its table's span, its profiles (the polarisation)
         attrs["concentration_span"] = ch.concentration_span
+        notes = shape_notes(ch)
+        if notes:
+            attrs["notes"] = "; ".join(notes)
         x, profiles = _profiles(ch.length, points)
         data.update(profiles)
         coords["position"] = ("position", x, {"units": "m", "long_name": "x along the channel, left reservoir at 0"})

@@ -8,7 +8,36 @@ from typing import Any
 
 import numpy as np
 
-__all__ = ["curve_rectification", "shape_attrs", "shape_words", "wall_words"]
+__all__ = ["curve_rectification", "shape_attrs", "shape_notes", "shape_words", "wall_words"]
+
+#: The long-channel model asks for a channel this many times longer than its widest section, at least.
+LONG_CHANNEL = 10.0
+#: And for walls this gently sloped, at most (|d(radius or half-height)/dx|; about 6 degrees).
+GENTLE_SLOPE = 0.1
+
+
+def shape_notes(channel: Any) -> tuple[str, ...]:
+    """Where a channel strains the model's assumptions: each section in local equilibrium with fluxes along x
+    only, which asks for a channel much longer than its section and walls that slope gently (the lubrication, or
+    long-wave, approximation: common practice). Notes, not refusals (no semicolons: they are joined by "; "); ()
+    for a uniform channel or one within them.
+    """
+    shape = channel.size
+    if shape is None:
+        return ()
+    notes = []
+    widest = max(shape.sizes) * (2.0 if channel.case.geometry.kind == "capillary" else 1.0)  # a diameter, a height
+    if channel.length < LONG_CHANNEL * widest:
+        notes.append(f"the channel is only {channel.length / widest:.2g} times as long as its widest section, while "
+                     f"the model (fluxes along x only, each section in local equilibrium) asks for {LONG_CHANNEL:g} "
+                     "times or more")
+    wall = np.abs(np.diff(shape.sizes) / np.diff(shape.positions))
+    wall *= 0.5 if channel.case.geometry.kind == "slit" else 1.0  # a slit's walls at +-H/2
+    if wall.size and wall.max() > GENTLE_SLOPE:
+        notes.append(f"the wall slopes steeply (up to {np.degrees(np.arctan(wall.max())):.3g} degrees), while the "
+                     "model assumes a slowly varying section (slopes under about "
+                     f"{np.degrees(np.arctan(GENTLE_SLOPE)):.2g} degrees)")
+    return tuple(notes)
 
 
 def shape_attrs(channel: Any) -> dict[str, Any]:
@@ -25,6 +54,9 @@ def shape_attrs(channel: Any) -> dict[str, Any]:
     attrs = {"size_positions": np.asarray(shape.positions, dtype=float), "size_sizes": np.asarray(shape.sizes,
                                                                                                    dtype=float),
              "size_name": channel.case.geometry.size_name, "size_kind": "linear" if len(shape.sizes) == 2 else "table"}
+    notes = shape_notes(channel)
+    if notes:
+        attrs["notes"] = "; ".join(notes)
     profile = channel.wall_profile
     if profile is not None:
         attrs.update({"wall_profile_position": np.asarray(profile.positions, dtype=float),

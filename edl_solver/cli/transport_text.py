@@ -113,6 +113,7 @@ def _taper_lines(data: Any) -> list[str]:
              _row("table over (c, size): interpolation error", f"{error:.2g} (largest, relative to sqrt(L_ii L_jj), "
                                                                   "at the cells' centres)")]
     span = float(data.attrs.get("concentration_span", float("nan")))
+    lines += [f"  note: {note}" for note in str(data.attrs.get("notes", "")).split("; ") if note]
     if span > 50.0:  # widened because the salt inside left the default table (``operating._wider``)
         lines.append(_row("", f"its concentrations span the reservoirs' {span:g} times each way (widened: the salt "
                               "inside left a narrower table)"))

@@ -85,3 +85,29 @@ def test_the_concentration_span_is_checked() -> None:
     for bad in (1.0, "50", True, float("nan"), 1e7):
         with pytest.raises(InputError, match=r"channel\.concentration_span"):
             ch.Channel(_case("-10 mC/m^2"), "5 um", "1 mM", "1 mM", size=("10 nm", "200 nm"), concentration_span=bad)
+
+
+def test_a_point_still_outside_the_widest_table_says_why(monkeypatch: pytest.MonkeyPatch) -> None:
+    """With the widest span lowered to the channel's own, the depleted point cannot be solved again: it fails,
+    never returned as a number, and its message says that the table was not widened further and why."""
+    from edl_solver.channel import operating
+
+    monkeypatch.setattr(operating, "WIDEST_SPAN", 20.0)
+    narrow = ch.Channel(_case("-10 mC/m^2"), "5 um", "1 mM", "1 mM", size=("10 nm", "200 nm"), points=16,
+                        size_points=6, concentration_span=20.0)
+    point = ch.operating_point(narrow, voltage=1.0)
+    assert point.status == "failed" and np.isnan(point.current)
+    assert "leaves the table" in point.message and "not widened further: its span is the widest" in point.message
+
+
+def test_a_short_steep_channel_carries_notes_on_the_model() -> None:
+    """The long-channel model (fluxes along x only, each section in local equilibrium) asks for a channel much
+    longer than its section and gently sloping walls (the lubrication approximation, common practice): a 100 nm
+    cone widening from 5 to 50 nm gets both notes; a 5 um one neither."""
+    short = ch.current_voltage(ch.Channel(_case("-10 mC/m^2"), "100 nm", "1 mM", "1 mM", size=("5 nm", "50 nm"),
+                                          points=8, size_points=4), [0.05])
+    notes = short.attrs["notes"]
+    assert "only 1 times as long as its widest section" in notes and "slopes steeply (up to 24.2 degrees)" in notes
+    long = ch.current_voltage(ch.Channel(_case("-10 mC/m^2"), "5 um", "1 mM", "1 mM", size=("5 nm", "50 nm"),
+                                         points=8, size_points=4), [0.05])
+    assert "notes" not in long.attrs
