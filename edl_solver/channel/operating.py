@@ -77,7 +77,7 @@ def operating_point(channel: Channel | ChannelTable, voltage: float | str | None
         current = to_si(current, "A", "current")
     start = _guess(guess)
 
-    def solve(on: ChannelTable) -> list[OperatingPoint]:
+    def solve(on: ChannelTable, kept: dict[int, OperatingPoint]) -> list[OperatingPoint]:
         return [on._path.solve(dp, voltage, current, start if on is table else None)]
 
     return _widened(table, solve)[1][0]
@@ -93,18 +93,23 @@ def _left_table(points: list[OperatingPoint]) -> bool:
     return any(p.status != CONVERGED_WORD and LEAVES_TABLE in p.message for p in points)
 
 
-def _widened(table: ChannelTable, solve: Callable[[ChannelTable], list[OperatingPoint]]
+def _widened(table: ChannelTable, solve: Callable[[ChannelTable, dict[int, OperatingPoint]], list[OperatingPoint]]
              ) -> tuple[ChannelTable, list[OperatingPoint]]:
-    """``solve(table)``, solved again on ever wider tables (``_wider``) while a point's salt leaves the table; the
-    table used and its points, those still outside it told why the table was not widened further."""
-    points = solve(table)
+    """``solve(table, kept)``, solved again on ever wider tables (``_wider``) while a point's salt leaves the
+    table; the table used and its points, those still outside it told why the table was not widened further.
+    ``kept``: the points that failed for another reason (``solve`` takes them as they are: a wider table does not
+    help them, and failing again is the dearest solve there is)."""
+    from edl_solver.channel.taper_path import LEAVES_TABLE
+
+    points = solve(table, {})
     while _left_table(points):
         wider, why = _wider(table)
         if wider is None:
             note = f" (the table was not widened further: {why})"
             return table, [dataclasses.replace(p, message=p.message + note) if p.status != CONVERGED_WORD else p
                            for p in points]
-        table, points = wider, solve(wider)
+        kept = {k: p for k, p in enumerate(points) if p.status != CONVERGED_WORD and LEAVES_TABLE not in p.message}
+        table, points = wider, solve(wider, kept)
     return table, points
 
 
@@ -200,26 +205,35 @@ def current_voltage(channel: Channel | ChannelTable, voltages: Any, pressure_dif
     if values.size == 0:
         raise InputError("voltages: empty, expected at least one voltage, e.g. [-0.5, 0.5] (V)")
     dp = to_si(pressure_difference, "Pa", "pressure_difference")
-    table, points = _widened(table, lambda on: _solve_curve(on._path, values, dp))  # the whole curve on one table
+    table, points = _widened(table, lambda on, kept: _solve_curve(on._path, values, dp, kept))  # one table
     return _curve_dataset(table, values, dp, points)
 
 
-def _solve_curve(path: Path | Uniform, values: np.ndarray, dp: float) -> list[OperatingPoint]:
-    """The points of an I-V curve in the order of ``values``, solved outward from the smallest voltage."""
+def _solve_curve(path: Path | Uniform, values: np.ndarray, dp: float,
+                 kept: dict[int, OperatingPoint] | None = None) -> list[OperatingPoint]:
+    """The points of an I-V curve in the order of ``values``, solved outward from the smallest voltage; those of
+    ``kept`` (by index) are taken as they are, not solved."""
+    kept = kept or {}
     points: list[OperatingPoint] = [None] * values.size  # type: ignore[list-item]
     order = np.argsort(values, kind="stable")
     centre = int(np.argmin(np.abs(values[order])))
-    first = path.solve(dp, float(values[order[centre]]), None, None)
+
+    def solved(k: int, anchors: list) -> OperatingPoint:
+        if k in kept:
+            return kept[k]
+        v = float(values[k])
+        return path.continue_to("voltage", anchors, v, dp) if anchors else path.solve(dp, v, None, None)
+
+    first = solved(int(order[centre]), [])
     points[order[centre]] = first
     for direction in (1, -1):  # outward from the smallest voltage, each point continued from the last two
         anchors = [] if first.status != CONVERGED_WORD else [(first.voltage, dp, path.unknowns(first))]
         k = centre + direction
         while 0 <= k < values.size:
-            v = float(values[order[k]])
-            point = path.continue_to("voltage", anchors, v, dp) if anchors else path.solve(dp, v, None, None)
+            point = solved(int(order[k]), anchors)
             points[order[k]] = point
             if point.status == CONVERGED_WORD:
-                anchors = [*anchors, (v, dp, path.unknowns(point))][-2:]
+                anchors = [*anchors, (float(values[order[k]]), dp, path.unknowns(point))][-2:]
             k += direction
     return points
 

@@ -42,7 +42,12 @@ LEAVES_TABLE = "leaves the table"
 #: Relative tolerance of the collocation residuals (``solve_bvp``'s tol): the fluxes then agree with a 1e-9 solve to
 #: 4e-7 (measured over a 100-point I-V curve of a rectifying cone, +-0.5 V), below the tables' interpolation error.
 BVP_TOLERANCE = 1e-4
-BVP_NODES = 20000
+#: Most collocation nodes of one solve (solutions of the tests and benchmarks use up to ~1,400; a mesh that outgrows
+#: this is a point whose layers the tolerance cannot follow, or a step too long).
+BVP_NODES = 6000
+#: Steps of one continuation whose mesh outgrew ``BVP_NODES`` before the point is given up: shorter steps rarely
+#: help then, and each such solve is the dearest there is.
+CROWDED_STEPS = 2
 #: Nodes of a start from a previous solution (each half: equal in x, equal in ln c).
 START_NODES = 64
 #: Halvings of a continuation step before a point is given up.
@@ -77,6 +82,7 @@ class TaperPath:
                  ends: tuple[float, float], wall_nodes: np.ndarray | None = None):
         case = channel.case
         self.channel, self.splines, self.spline, self.basis = channel, splines, splines[0], basis
+        self.crowded = False
         segments = channel.wall_segments
         # the segments of the wall along x (xi from bounds[k] to bounds[k + 1]) and the table of each
         self.bounds = np.array([0.0, 1.0]) if segments is None else np.array([0.0, *segments.ends]) / channel.length
@@ -213,6 +219,7 @@ class TaperPath:
         """One solve from ``start``: the point (failed when the solve fails or leaves the table) and its
         profile to continue from (None when failed)."""
         sol = self._bvp(mode, given, dp, start)
+        self.crowded = sol.status == 1  # the mesh reached BVP_NODES (``_march`` gives up after CROWDED_STEPS)
         low, high = self.spline.u_range
         if sol.status != 0 or not np.all(np.isfinite(sol.y)):
             return self._failed(mode, given, dp, f"no convergence at {mode} {given:.6g}: {sol.message}"), None
@@ -230,7 +237,11 @@ class TaperPath:
                                concentration=np.exp(sol.y[0]), potential=potential, pressure=sol.y[2] * self.p_scale,
                                status=CONVERGED_WORD, message=f"converged (collocation): {sol.niter} iterations, "
                                f"{sol.x.size} nodes", iterations=int(sol.niter), quadrature_error=error)
-        return point, Profile(sol.x, sol.y, np.array([flow, current, salt]), float(voltage))
+        # the next step starts from a coarsened mesh, not this one: solve_bvp only adds nodes, and a continuation
+        # that carried its refined meshes on would solve ever larger systems
+        mesh = _coarse_mesh(sol.x, sol.y[0])
+        start = np.array([np.interp(mesh, sol.x, row) for row in sol.y])
+        return point, Profile(mesh, start, np.array([flow, current, salt]), float(voltage))
 
     def _failed(self, mode: str, given: float, dp: float, message: str) -> OperatingPoint:
         nothing = np.array([])
@@ -267,7 +278,7 @@ class TaperPath:
         """Continuation along the straight path from the anchor to (given, dp): a failed step is halved, a
         successful one doubled."""
         g0, p0, profile = anchor
-        done, step, halvings = 0.0, 1.0, 0
+        done, step, halvings, crowded = 0.0, 1.0, 0, 0
         point = self._failed(mode, given, dp, "no step taken")
         while done < 1.0:
             ahead = min(1.0, done + step)
@@ -276,9 +287,9 @@ class TaperPath:
                 if LEAVES_TABLE in trial.message:  # a converged state outside the table: no shorter step brings it in
                     return self._failed(mode, given, dp, f"continuation stopped at {done:.3g} of the way: "
                                         f"{trial.message}")
-                halvings += 1
+                halvings, crowded = halvings + 1, crowded + self.crowded
                 step *= 0.5
-                if halvings > CONTINUATION_HALVINGS:
+                if halvings > CONTINUATION_HALVINGS or crowded >= CROWDED_STEPS:
                     return self._failed(mode, given, dp, f"continuation stopped at {done:.3g} of the way: "
                                         f"{trial.message}")
                 continue
