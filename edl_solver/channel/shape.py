@@ -25,7 +25,7 @@ import numpy as np
 from edl_solver.errors import InputError
 from edl_solver.inputs.units import to_positive_si, to_si
 
-__all__ = ["SHAPE_SAMPLES", "Shape", "make_shape"]
+__all__ = ["SHAPE_SAMPLES", "Shape", "make_shape", "table_columns"]
 
 #: Equal intervals of [0, L] on which a callable shape is sampled (a multiple of 4: x = L/2 and L/4 are samples).
 SHAPE_SAMPLES = 400
@@ -81,19 +81,33 @@ def _from_callable(function: Callable[[float], Any], length: float) -> Shape:
     return Shape(tuple(float(v) for v in x), tuple(sizes))
 
 
-def _from_table(table: Mapping[str, Any], length: float) -> Shape:
-    if set(table) != {"position", "size"}:
-        raise InputError(f"channel.size: a table with keys {sorted(table)}, expected exactly 'position' and 'size'")
-    positions, sizes = table["position"], table["size"]
-    if isinstance(positions, str) or isinstance(sizes, str) or not isinstance(positions, Sequence | np.ndarray) \
-            or not isinstance(sizes, Sequence | np.ndarray) or len(positions) != len(sizes) or len(sizes) < 2:
-        raise InputError("channel.size: the table's 'position' and 'size' are not two lists of the same length, "
+def table_columns(table: Mapping[str, Any], length: float, name: str, field: str) -> tuple[list[float], Sequence]:
+    """The positions (m; from 0 to L, rising strictly, the last set to L exactly) and the raw ``name`` column of a
+    table ``{"position": [...], name: [...]}`` along a channel of length L (m), ``field`` naming it in errors.
+
+    Raises
+    ------
+    InputError
+        For other keys, columns that are not two lists of the same length (at least two rows), or positions that do
+        not rise strictly from 0 to L.
+    """
+    if set(table) != {"position", name}:
+        raise InputError(f"{field}: a table with keys {sorted(table)}, expected exactly 'position' and '{name}'")
+    positions, values = table["position"], table[name]
+    if isinstance(positions, str) or isinstance(values, str) or not isinstance(positions, Sequence | np.ndarray) \
+            or not isinstance(values, Sequence | np.ndarray) or len(positions) != len(values) or len(values) < 2:
+        raise InputError(f"{field}: the table's 'position' and '{name}' are not two lists of the same length, "
                          "expected at least two rows")
-    x = [to_si(p, "m", "channel.size.position") for p in positions]
+    x = [to_si(p, "m", f"{field}.position") for p in positions]
     if x[0] != 0.0 or not math.isclose(x[-1], length, rel_tol=1e-9) or any(b <= a for a, b in itertools.pairwise(x)):
-        raise InputError(f"channel.size.position: {list(positions)!r} is not allowed, expected positions rising "
+        raise InputError(f"{field}.position: {list(positions)!r} is not allowed, expected positions rising "
                          f"strictly from 0 to the length {length:.6g} m")
     x[-1] = length
+    return x, values
+
+
+def _from_table(table: Mapping[str, Any], length: float) -> Shape:
+    x, sizes = table_columns(table, length, "size", "channel.size")
     return Shape(tuple(x), tuple(_size(s, f"channel.size.size[{k}]") for k, s in enumerate(sizes)))
 
 

@@ -24,15 +24,13 @@ profile's range (one when it is constant, so that a constant profile is the plai
 from __future__ import annotations
 
 import dataclasses
-import itertools
-import math
 from collections.abc import Callable, Mapping, Sequence
 from dataclasses import dataclass
 from typing import Any
 
 import numpy as np
 
-from edl_solver.channel.shape import SHAPE_SAMPLES
+from edl_solver.channel.shape import SHAPE_SAMPLES, table_columns
 from edl_solver.constants import FARADAY
 from edl_solver.errors import InputError
 from edl_solver.inputs.units import to_si
@@ -195,19 +193,7 @@ def _from_callable(function: Callable[[float], Any], length: float, unit: str, e
 
 
 def _from_table(table: Mapping[str, Any], length: float, unit: str, expected: str) -> list[tuple]:
-    if set(table) != {"position", "value"}:
-        raise InputError(f"channel.wall_profile: a table with keys {sorted(table)}, expected exactly 'position' and "
-                         "'value'")
-    positions, values = table["position"], table["value"]
-    if isinstance(positions, str) or isinstance(values, str) or not isinstance(positions, Sequence | np.ndarray) \
-            or not isinstance(values, Sequence | np.ndarray) or len(positions) != len(values) or len(values) < 2:
-        raise InputError("channel.wall_profile: the table's 'position' and 'value' are not two lists of the same "
-                         "length, expected at least two rows")
-    x = [to_si(p, "m", "channel.wall_profile.position") for p in positions]
-    if x[0] != 0.0 or not math.isclose(x[-1], length, rel_tol=1e-9) or any(b <= a for a, b in itertools.pairwise(x)):
-        raise InputError(f"channel.wall_profile.position: {list(positions)!r} is not allowed, expected positions "
-                         f"rising strictly from 0 to the length {length:.6g} m")
-    x[-1] = length
+    x, values = table_columns(table, length, "value", "channel.wall_profile")
     return [(p, _value(v, unit, f"channel.wall_profile.value[{k}]", expected))
             for k, (p, v) in enumerate(zip(x, values))]
 
