@@ -106,8 +106,8 @@ def _widened(table: ChannelTable, solve: Callable[[ChannelTable, dict[int, Opera
         wider, why = _wider(table)
         if wider is None:
             note = f" (the table was not widened further: {why})"
-            return table, [dataclasses.replace(p, message=p.message + note) if p.status != CONVERGED_WORD else p
-                           for p in points]
+            return table, [dataclasses.replace(p, message=p.message + note)
+                           if p.status != CONVERGED_WORD and LEAVES_TABLE in p.message else p for p in points]
         kept = {k: p for k, p in enumerate(points) if p.status != CONVERGED_WORD and LEAVES_TABLE not in p.message}
         table, points = wider, solve(wider, kept)
     return table, points
