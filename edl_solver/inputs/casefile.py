@@ -68,6 +68,7 @@ from edl_solver.inputs.case import Case, Numerics
 from edl_solver.inputs.casefile_keys import CASE_KEYS, SCALARS, check_keys
 from edl_solver.inputs.casefile_sections import WALL_PRESETS
 from edl_solver.inputs.casefile_writer import case_to_mapping, dumps_case
+from edl_solver.inputs.text_file import read_text
 
 __all__ = ["CASE_KEYS", "WALL_PRESETS", "case_from_mapping", "case_to_mapping", "dumps_case", "load_case",
            "loads_case", "read_mapping"]
@@ -106,16 +107,7 @@ def read_mapping(path: str | Path) -> dict[str, Any]:
     InputError
         If the file is missing, unreadable, not UTF-8 or not valid TOML (the message names the line).
     """
-    try:
-        text = Path(path).read_bytes().decode("utf-8")
-    except FileNotFoundError:
-        raise InputError(f"{path}: case file not found") from None
-    except IsADirectoryError:
-        raise InputError(f"{path}: is a directory, expected a TOML case file") from None
-    except UnicodeDecodeError as exc:
-        raise InputError(f"{path}: not UTF-8 text (byte {exc.start}), expected a TOML case file") from None
-    except OSError as exc:
-        raise InputError(f"{path}: cannot read the case file ({exc.strerror or exc})") from None
+    text = read_text(path, "TOML case file", bom=False)
     return _parse(text, str(path))
 
 

@@ -51,6 +51,7 @@ import numpy as np
 
 from edl_solver.errors import InputError
 from edl_solver.inputs.case import Case
+from edl_solver.inputs.text_file import read_text
 from edl_solver.inputs.units import to_positive_si, to_si
 
 __all__ = ["CHANNEL_KEYS", "ChannelSpec", "channel_from_mapping", "read_channel_spec"]
@@ -292,21 +293,6 @@ def _table(positions: list[float], sizes: list[float], length: float, where: tup
     return {"position": [*positions[:-1], length], "size": list(sizes)}
 
 
-def _csv_text(path: Path, key: str) -> str:
-    try:
-        return path.read_bytes().decode("utf-8-sig")
-    except FileNotFoundError:
-        raise InputError(f"{key}: {str(path)!r} not found, expected a CSV file (relative to the case file)") \
-            from None
-    except IsADirectoryError:
-        raise InputError(f"{key}: {str(path)!r} is a directory, expected a CSV file") from None
-    except UnicodeDecodeError as exc:
-        raise InputError(f"{key}: {str(path)!r} is not UTF-8 text (byte {exc.start}), expected a CSV file") \
-            from None
-    except OSError as exc:
-        raise InputError(f"{key}: {str(path)!r} cannot be read ({exc.strerror or exc})") from None
-
-
 def _header(fields: list[str], names: tuple[str, ...], where: str, value_unit: str | None) -> tuple[float, Any]:
     """(m per unit of the position, the value column's unit or its factor to ``value_unit``) of a header."""
     expected = f"a header 'position [um], {names[0]} [nm]'" if value_unit == "m" else \
@@ -335,7 +321,7 @@ def _csv_columns(path: Path, names: tuple[str, ...], key: str, value_unit: str |
     """The two columns of a position table: positions in m, values in m (``value_unit`` "m"), or, with
     ``value_unit`` None, strings "VALUE UNIT" in the header's unit."""
     header, positions, values = None, [], []
-    for number, line in enumerate(_csv_text(path, key).splitlines(), start=1):
+    for number, line in enumerate(read_text(path, "CSV file (relative to the case file)", key).splitlines(), start=1):
         stripped = line.strip()
         if not stripped or stripped.startswith("#"):
             continue

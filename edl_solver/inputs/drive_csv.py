@@ -24,6 +24,7 @@ from pathlib import Path
 
 from edl_solver.errors import InputError
 from edl_solver.inputs.drive_values import ANY_TARGET, is_drive_unit
+from edl_solver.inputs.text_file import read_text
 from edl_solver.inputs.units import to_si
 
 __all__ = ["read_table"]
@@ -31,20 +32,6 @@ __all__ = ["read_table"]
 _SEPARATOR = re.compile(r"[,;\t]")
 _BRACKETED = re.compile(r"^(?P<name>.*?)\s*(?:\((?P<round>[^()]*)\)|\[(?P<square>[^\[\]]*)\])$")
 _FORMS = "NAME, NAME (UNIT), NAME [UNIT] or NAME_UNIT"
-
-
-def _text(path: Path) -> str:
-    try:
-        return path.read_bytes().decode("utf-8-sig")
-    except FileNotFoundError:
-        raise InputError(f"{path}: drive table file not found") from None
-    except IsADirectoryError:
-        raise InputError(f"{path}: is a directory, expected a CSV file of times and values") from None
-    except UnicodeDecodeError as exc:
-        raise InputError(f"{path}: not UTF-8 text (byte {exc.start}), expected a CSV file of times and values") \
-            from None
-    except OSError as exc:
-        raise InputError(f"{path}: cannot read the drive table ({exc.strerror or exc})") from None
 
 
 def _number(text: str) -> float | None:
@@ -103,7 +90,7 @@ def read_table(path: str | Path) -> tuple[tuple[float, ...], tuple[float, ...], 
     file = Path(path)
     factor, unit, rows = 1.0, None, []
     first = True
-    for number, line in enumerate(_text(file).splitlines(), start=1):
+    for number, line in enumerate(read_text(file, "drive table file").splitlines(), start=1):
         stripped = line.strip()
         if not stripped or stripped.startswith("#"):
             continue
